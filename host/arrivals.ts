@@ -1,0 +1,72 @@
+// When each event is due. Closed loop: events go as fast as the pool takes them, and an event's
+// latency starts when its batch is handed to the pool. Open loop: event i is due at a scheduled
+// time fixed before the run (fixed spacing for --rate, exponential gaps from a seeded generator
+// for --poisson), and its latency starts at that scheduled time whatever the host was doing,
+// so a stalled pool shows up as queueing delay instead of hiding it (no coordinated omission).
+
+export type ArrivalMode =
+  | { kind: 'closed' }
+  | { kind: 'fixed'; rateHz: number }
+  | { kind: 'poisson'; rateHz: number; seed: number };
+
+/** The host's monotonic clock in integer-valued ns (performance.now has sub-µs resolution in Node). */
+export function nowNs(): number {
+  return Math.round(performance.now() * 1e6);
+}
+
+/** 32-bit seeded generator (mulberry32 by Tommy Ettinger, from memory); uniform in (0, 1). */
+export function seededUniform(seed: number): () => number {
+  let state = seed >>> 0;
+  return () => {
+    state = (state + 0x6d2b79f5) >>> 0;
+    let t = state;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    // + 0.5 keeps the value strictly inside (0, 1), so -log(u) is finite
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296 + 0.5 / 4294967296;
+  };
+}
+
+/**
+ * Scheduled arrival offsets, in ns from the run's start, for events 0, 1, 2, ... in input order.
+ * Poisson arrivals have independent exponential gaps of mean 1/rate (common practice).
+ */
+export class ArrivalSchedule {
+  readonly mode: ArrivalMode;
+  private index = 0;
+  private elapsedNs = 0;
+  private readonly uniform: (() => number) | null;
+
+  constructor(mode: ArrivalMode) {
+    if (mode.kind !== 'closed' && !(mode.rateHz > 0 && Number.isFinite(mode.rateHz))) {
+      throw new Error(`arrival rate must be a positive finite number of Hz, got ${mode.rateHz}`);
+    }
+    this.mode = mode;
+    this.uniform = mode.kind === 'poisson' ? seededUniform(mode.seed) : null;
+  }
+
+  get openLoop(): boolean {
+    return this.mode.kind !== 'closed';
+  }
+
+  /** Offset of the next event in ns (integer); closed loop has no schedule and returns 0. */
+  next(): number {
+    const mode = this.mode;
+    const k = this.index++;
+    if (mode.kind === 'closed') return 0;
+    if (mode.kind === 'fixed') return Math.round((k * 1e9) / mode.rateHz);
+    // the first Poisson event is due one gap after the start, like every later one
+    this.elapsedNs += (-Math.log(this.uniform!()) * 1e9) / mode.rateHz;
+    return Math.round(this.elapsedNs);
+  }
+}
+
+/** Resolves at (or just after) an absolute time on nowNs()'s clock; coarse sleep, then spin on the event loop. */
+export function sleepUntilNs(targetNs: number): Promise<void> {
+  const remainingMs = (targetNs - nowNs()) / 1e6;
+  if (remainingMs <= 0) return Promise.resolve();
+  if (remainingMs > 1.5) {
+    return new Promise((resolve) => setTimeout(resolve, Math.floor(remainingMs - 1))).then(() => sleepUntilNs(targetNs));
+  }
+  return new Promise((resolve) => setImmediate(resolve)).then(() => sleepUntilNs(targetNs));
+}

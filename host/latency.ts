@@ -1,0 +1,124 @@
+// Latency histograms: integer nanoseconds into an HDR histogram (hdr-histogram-js), never a
+// list of samples. Percentiles come from the histogram's buckets; count, sum, min and max are
+// kept exactly beside it. Histograms of the same layout add bucket by bucket, so a merge of
+// shards gives the very percentiles a single run over the same events would.
+//
+// Layout of one recorder: 3 significant digits (a bucket is at most 0.1 % wide), values from
+// 1 ns to 1 hour (auto-resized beyond), 64-bit counts. Encoded form (JSON):
+//   { count, sumNs, minNs, maxNs, hdr }  with hdr the standard compressed base64 HDR encoding,
+//   readable by any HdrHistogram implementation.
+
+import hdr from 'hdr-histogram-js';
+import type { Histogram } from 'hdr-histogram-js';
+
+const SIGNIFICANT_DIGITS = 3;
+const HIGHEST_TRACKABLE_NS = 3600e9;
+
+export interface EncodedLatency {
+  count: number;
+  sumNs: number;
+  minNs: number;
+  maxNs: number;
+  hdr: string;
+}
+
+/** The figures trigger engineers read, in microseconds. */
+export interface LatencyStats {
+  count: number;
+  p50_us: number;
+  p90_us: number;
+  p99_us: number;
+  p999_us: number;
+  max_us: number;
+  mean_us: number;
+}
+
+function newHistogram(): Histogram {
+  return hdr.build({
+    bitBucketSize: 64,
+    autoResize: true,
+    lowestDiscernibleValue: 1,
+    highestTrackableValue: HIGHEST_TRACKABLE_NS,
+    numberOfSignificantValueDigits: SIGNIFICANT_DIGITS,
+    useWebAssembly: false,
+  });
+}
+
+export class LatencyRecorder {
+  private histogram: Histogram = newHistogram();
+  count = 0;
+  sumNs = 0;
+  minNs = Infinity;
+  maxNs = 0;
+
+  /** Records one value; non-integer input is rounded, negative input (clock skew) counts as 0. */
+  recordNs(valueNs: number): void {
+    let value = Math.round(valueNs);
+    if (!(value > 0)) value = 0;
+    this.histogram.recordValue(value);
+    this.count++;
+    this.sumNs += value;
+    if (value < this.minNs) this.minNs = value;
+    if (value > this.maxNs) this.maxNs = value;
+  }
+
+  /** Value at a percentile in ns (highest value of the bucket holding it), 0 when empty. */
+  percentileNs(percentile: number): number {
+    if (this.count === 0) return 0;
+    return this.histogram.getValueAtPercentile(percentile);
+  }
+
+  meanNs(): number {
+    return this.count === 0 ? 0 : this.sumNs / this.count;
+  }
+
+  /** Adds every value of another recorder to this one. */
+  merge(other: LatencyRecorder): void {
+    if (other.count === 0) return;
+    this.histogram.add(other.histogram);
+    this.count += other.count;
+    this.sumNs += other.sumNs;
+    if (other.minNs < this.minNs) this.minNs = other.minNs;
+    if (other.maxNs > this.maxNs) this.maxNs = other.maxNs;
+  }
+
+  stats(): LatencyStats {
+    return {
+      count: this.count,
+      p50_us: this.percentileNs(50) / 1000,
+      p90_us: this.percentileNs(90) / 1000,
+      p99_us: this.percentileNs(99) / 1000,
+      p999_us: this.percentileNs(99.9) / 1000,
+      max_us: this.maxNs / 1000,
+      mean_us: this.meanNs() / 1000,
+    };
+  }
+
+  encode(): EncodedLatency {
+    return {
+      count: this.count,
+      sumNs: this.sumNs,
+      minNs: this.count === 0 ? 0 : this.minNs,
+      maxNs: this.maxNs,
+      hdr: hdr.encodeIntoCompressedBase64(this.histogram),
+    };
+  }
+
+  static decode(encoded: EncodedLatency, where = 'histogram'): LatencyRecorder {
+    const recorder = new LatencyRecorder();
+    if (!encoded || typeof encoded.hdr !== 'string' || !Number.isInteger(encoded.count) || encoded.count < 0) {
+      throw new Error(`${where}: not an encoded latency histogram`);
+    }
+    if (encoded.count === 0) return recorder;
+    const decoded = hdr.decodeFromCompressedBase64(encoded.hdr, 64, false);
+    if (decoded.totalCount !== encoded.count) {
+      throw new Error(`${where}: histogram holds ${decoded.totalCount} values but count says ${encoded.count}`);
+    }
+    recorder.histogram.add(decoded);
+    recorder.count = encoded.count;
+    recorder.sumNs = encoded.sumNs;
+    recorder.minNs = encoded.minNs;
+    recorder.maxNs = encoded.maxNs;
+    return recorder;
+  }
+}
