@@ -1,0 +1,106 @@
+import { describe, expect, it } from 'vitest';
+import { describeMachine, fitMultiplicity, mergeSummaries, renderSummary, RunTally, type RunConfiguration, type RunSummary } from '../host/summary.js';
+import { formatReport } from '../host/report.js';
+
+
+function configuration(shardIndex: number, shardCount: number): RunConfiguration {
+  return {
+    file: 'events.jl',
+    engine: 'reference',
+    grid: { etaMin: -2.5, etaMax: 2.5, etaBins: 50, phiBins: 64 },
+    settings: { p: -1, radius: 0.4, ptMin: 0, threshold: 0, recombination: 'e' },
+    workers: 2,
+    batch: 16,
+    arrival: { mode: 'closed', rateHz: null, seed: null },
+    budgetUs: 500,
+    check: { mode: 'fraction', fraction: 0.1, seed: 1 },
+    shard: { index: shardIndex, count: shardCount },
+    maxEvents: null,
+    out: null,
+  };
+}
+
+/** a tally of synthetic events: event k has 10 + k % 700 towers and takes a time that grows with them */
+function tallyOf(events: number[]): RunTally {
+  const tally = new RunTally();
+  for (const k of events) {
+    tally.read++;
+    if (k % 97 === 0) { tally.addInvalid({ event: k, offset: 100 + k * 40, reason: 'tower 0 has non-finite et NaN' }); continue; }
+    tally.ok++;
+    const towers = 10 + (k % 700);
+    const clusterNs = Math.round(50 * towers ** 1.3 * (1 + 0.01 * ((k * 7919) % 13)));
+    tally.cluster.recordNs(clusterNs);
+    tally.stages.cluster.recordNs(clusterNs);
+    tally.multiplicity.record(towers, clusterNs);
+    const endNs = clusterNs + ((k * 104_729) % 40_000);
+    tally.endToEnd.recordNs(endNs);
+    if (endNs > 500_000) tally.overBudget++;
+  }
+  return tally;
+}
+
+function render(tally: RunTally, shardIndex = 0, shardCount = 1): RunSummary {
+  return renderSummary(tally, {
+    configuration: configuration(shardIndex, shardCount),
+    shards: [{ index: shardIndex, count: shardCount }],
+    machine: describeMachine(),
+    partial: false,
+    partialReason: null,
+    wallSeconds: 1,
+  });
+}
+
+describe('run summaries', () => {
+  const all = Array.from({ length: 3000 }, (_, k) => k);
+
+  it('merged from two shards equal one summary of all events in counts and every percentile', () => {
+    const single = render(tallyOf(all));
+    const shard0 = JSON.parse(JSON.stringify(render(tallyOf(all.filter((k) => Math.floor(k / 16) % 2 === 0)), 0, 2)));
+    const shard1 = JSON.parse(JSON.stringify(render(tallyOf(all.filter((k) => Math.floor(k / 16) % 2 === 1)), 1, 2)));
+    const merged = mergeSummaries([{ name: 'a.json', summary: shard0 }, { name: 'b.json', summary: shard1 }]);
+    expect(merged.events).toEqual(single.events);
+    expect(merged.latency).toEqual(single.latency);
+    expect(merged.multiplicity).toEqual(single.multiplicity);
+    expect(merged.budget).toEqual(single.budget);
+    expect(merged.invalidEvents).toEqual(single.invalidEvents);
+    expect(merged.shards).toEqual([{ index: 0, count: 2 }, { index: 1, count: 2 }]);
+  });
+
+  it('refuse to merge the same shard twice', () => {
+    const shard0 = render(tallyOf([1, 2, 3]), 0, 2);
+    expect(() => mergeSummaries([{ name: 'a.json', summary: shard0 }, { name: 'c.json', summary: shard0 }]))
+      .toThrow('c.json: shard 0/2 is already in a.json');
+  });
+
+  it('refuse to merge runs with different clustering settings', () => {
+    const a = render(tallyOf([1, 2, 3]), 0, 2);
+    const b = render(tallyOf([4, 5, 6]), 1, 2);
+    b.configuration = { ...b.configuration, settings: { ...b.configuration.settings, radius: 0.6 } };
+    expect(() => mergeSummaries([{ name: 'a.json', summary: a }, { name: 'b.json', summary: b }])).toThrow('b.json: configuration differs from a.json');
+  });
+
+  it('will not render counts that do not add up', () => {
+    const tally = tallyOf([1, 2, 3]);
+    tally.read++;
+    expect(() => render(tally)).toThrow('event counts do not add up');
+  });
+
+  it('fit the exponent of time against towers', () => {
+    const summary = render(tallyOf(all));
+    // times were made ∝ N^1.3 with a small spread; bins mix N, so allow a few hundredths
+    expect(summary.multiplicity.alpha).not.toBeNull();
+    expect(Math.abs(summary.multiplicity.alpha! - 1.3)).toBeLessThan(0.05);
+  });
+
+  it('fit no exponent from a single bin', () => {
+    expect(fitMultiplicity([{ towersMin: 16, towersMax: 31, count: 10, meanTowers: 20, mean_us: 5, p50_us: 5, p99_us: 6 }]).alpha).toBeNull();
+  });
+
+  it('print a report with the percentiles, counts and budget misses', () => {
+    const summary = render(tallyOf(all));
+    const text = formatReport(summary);
+    expect(text).toContain(`read 3,000 · ok ${summary.events.ok.toLocaleString('en-US')} · invalid ${summary.events.invalid} · failed 0`);
+    expect(text).toMatch(/p50\s+p90\s+p99\s+p99\.9\s+max/);
+    expect(text).toContain(`500 µs: ${summary.budget!.over.toLocaleString('en-US')} events over`);
+  });
+});
