@@ -9,18 +9,22 @@ import { InputError, UsageError, formatHelp, parseArgs, type CommandIo, type Com
 
 interface CommandEntry {
   summary: string;
-  load: () => Promise<{ spec: CommandSpec; main: CommandMain }>;
+}
+
+/** each command lives in commands/<name>.js and exports its option table and main */
+async function loadCommand(name: string): Promise<{ spec: CommandSpec; main: CommandMain }> {
+  return import(`./commands/${name}.js`);
 }
 
 const COMMANDS: Record<string, CommandEntry> = {
-  demo: { summary: 'generate a demo event file and run the main job on it', load: () => import('./commands/demo.js') },
-  run: { summary: 'stream an event file through the worker pool and report latency', load: () => import('./commands/run.js') },
-  cluster: { summary: 'cluster every event of a file and write the jets', load: () => import('./commands/cluster.js') },
-  compare: { summary: 'check an outside implementation\'s jets against the reference', load: () => import('./commands/compare.js') },
-  generate: { summary: 'write a file of invented demo events (toy generator)', load: () => import('./commands/generate.js') },
-  import: { summary: 'turn a CSV tower file into an event file', load: () => import('./commands/import.js') },
-  export: { summary: 'write an event or jets file as CSV or JSON lines', load: () => import('./commands/export.js') },
-  merge: { summary: 'add up the summaries of sharded runs exactly', load: () => import('./commands/merge.js') },
+  demo: { summary: 'generate a demo event file and run the main job on it' },
+  run: { summary: 'stream an event file through the worker pool and report latency' },
+  cluster: { summary: 'cluster every event of a file and write the jets' },
+  compare: { summary: 'check an outside implementation\'s jets against the reference' },
+  generate: { summary: 'write a file of invented demo events (toy generator)' },
+  import: { summary: 'turn a CSV tower file into an event file' },
+  export: { summary: 'write an event or jets file as CSV or JSON lines' },
+  merge: { summary: 'add up the summaries of sharded runs exactly' },
 };
 
 function topHelp(): string {
@@ -55,7 +59,7 @@ export async function runCli(argv: string[], io: CommandIo): Promise<number> {
     return 2;
   }
   try {
-    const command = await entry.load();
+    const command = await loadCommand(name);
     if (rest.includes('--help') || rest.includes('-h')) {
       parseArgs(command.spec, rest); // still reject unknown options
       io.stdout.write(formatHelp(command.spec));
