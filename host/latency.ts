@@ -62,10 +62,13 @@ export class LatencyRecorder {
     if (value > this.maxNs) this.maxNs = value;
   }
 
-  /** Value at a percentile in ns (highest value of the bucket holding it), 0 when empty. */
+  /**
+   * Value at a percentile in ns: the highest value of the bucket holding it, but never above
+   * the exact maximum (the top bucket reaches past it); 0 when empty.
+   */
   percentileNs(percentile: number): number {
     if (this.count === 0) return 0;
-    return this.histogram.getValueAtPercentile(percentile);
+    return Math.min(this.histogram.getValueAtPercentile(percentile), this.maxNs);
   }
 
   meanNs(): number {

@@ -7,16 +7,15 @@ import type { RunSummary } from './summary.js';
 const COLUMNS = ['p50', 'p90', 'p99', 'p99.9', 'max', 'mean'] as const;
 
 function micros(value: number): string {
-  if (value >= 100_000) return value.toExponential(2);
   if (value >= 1000) return value.toFixed(0);
   if (value >= 100) return value.toFixed(1);
   return value.toFixed(2);
 }
 
 function latencyRow(label: string, stats: LatencyStats): string {
-  if (stats.count === 0) return `  ${label.padEnd(12)}${'—'.padStart(9)}`;
+  if (stats.count === 0) return `  ${label.padEnd(12)}${'—'.padStart(10)}`;
   const cells = [stats.p50_us, stats.p90_us, stats.p99_us, stats.p999_us, stats.max_us, stats.mean_us];
-  return `  ${label.padEnd(12)}${cells.map((v) => micros(v).padStart(9)).join('')}`;
+  return `  ${label.padEnd(12)}${cells.map((v) => micros(v).padStart(10)).join('')}`;
 }
 
 function algorithmName(p: number): string {
@@ -43,7 +42,7 @@ export function formatReport(summary: RunSummary): string {
   lines.push(`${c.file} · ${algorithmName(s.p)} R=${s.radius}${s.recombination === 'wta' ? ' WTA' : ''} · ${c.engine} · ${c.workers} worker${c.workers === 1 ? '' : 's'}, batch ${c.batch} · ${arrival}${shardText}`);
   const e = summary.events;
   lines.push(`  events      read ${grouped(e.read)} · ok ${grouped(e.ok)} · invalid ${grouped(e.invalid)} · failed ${grouped(e.failed)}`);
-  lines.push(`  latency µs  ${COLUMNS.map((col) => col.padStart(9)).join('')}`);
+  lines.push(`  latency µs  ${COLUMNS.map((col) => col.padStart(10)).join('')}`);
   lines.push(latencyRow('cluster', summary.latency.cluster));
   lines.push(latencyRow('end-to-end', summary.latency.endToEnd));
   lines.push(`  throughput  ${grouped(summary.throughput.eventsPerSecond)} events/s over ${summary.throughput.wallSeconds.toFixed(2)} s`);

@@ -19,14 +19,20 @@ export const LISTED_MAX = 1000;
 export const DIFFERENCES_MAX = 20;
 
 export interface InvalidEvent {
-  event: number;
+  /** null when the record was too broken to say */
+  event: number | null;
+  /** ordinal of the record among the file's events (0 = the first event record) */
+  record: number;
+  /** byte offset of the record's start (uncompressed) */
   offset: number;
   reason: string;
 }
 
 export interface FailedBatch {
-  firstEvent: number;
+  /** ordinal of the batch's first record among the file's events */
+  firstRecord: number;
   events: number;
+  /** byte offset of the batch's first record */
   offset: number;
   reason: string;
 }
@@ -161,9 +167,9 @@ export class RunTally {
     this.bytesRead += other.bytesRead;
     this.jets += other.jets;
     for (const entry of other.invalidEvents) if (this.invalidEvents.length < LISTED_MAX) this.invalidEvents.push(entry);
-    this.invalidEvents.sort((a, b) => a.event - b.event || a.offset - b.offset);
+    this.invalidEvents.sort((a, b) => a.record - b.record);
     for (const entry of other.failedBatches) if (this.failedBatches.length < LISTED_MAX) this.failedBatches.push(entry);
-    this.failedBatches.sort((a, b) => a.firstEvent - b.firstEvent);
+    this.failedBatches.sort((a, b) => a.firstRecord - b.firstRecord);
     this.towers.offered += other.towers.offered;
     this.towers.belowThreshold += other.towers.belowThreshold;
     this.towers.outsideAcceptance += other.towers.outsideAcceptance;

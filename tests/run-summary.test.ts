@@ -25,7 +25,7 @@ function tallyOf(events: number[]): RunTally {
   const tally = new RunTally();
   for (const k of events) {
     tally.read++;
-    if (k % 97 === 0) { tally.addInvalid({ event: k, offset: 100 + k * 40, reason: 'tower 0 has non-finite et NaN' }); continue; }
+    if (k % 97 === 0) { tally.addInvalid({ event: k, record: k, offset: 100 + k * 40, reason: 'tower 0 has non-finite et NaN' }); continue; }
     tally.ok++;
     const towers = 10 + (k % 700);
     const clusterNs = Math.round(50 * towers ** 1.3 * (1 + 0.01 * ((k * 7919) % 13)));

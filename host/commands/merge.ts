@@ -1,0 +1,54 @@
+// jetlag merge SUMMARY...: add the summaries of sharded runs (--shard k/n) into one, exactly:
+// counts add, histograms add bucket by bucket, so merged percentiles are those of a single
+// run over the same events.
+
+import { readFileSync } from 'node:fs';
+import { InputError, UsageError, parseArgs, type CommandIo, type CommandMain, type CommandSpec } from '../args.js';
+import { mergeSummaries, type RunSummary } from '../summary.js';
+import { formatReport } from '../report.js';
+import { writeFileAtomic } from '../run.js';
+
+export const spec: CommandSpec = {
+  name: 'merge',
+  summary: 'Add the JSON summaries of sharded runs (jetlag run --shard k/n --json ...) into one summary.',
+  usage: 'jetlag merge <summary.json>... [--json <file>]',
+  positionals: { min: 1, max: Number.MAX_SAFE_INTEGER },
+  options: [
+    { name: 'json', kind: 'string', argument: '<file>', description: 'write the merged summary here (default: none)' },
+    { name: 'quiet', kind: 'flag', short: 'q', description: 'do not print the report' },
+  ],
+};
+
+export function readSummary(path: string): RunSummary {
+  let text: string;
+  try {
+    text = readFileSync(path, 'utf8');
+  } catch (error) {
+    throw new InputError(path, `cannot read: ${(error as Error).message}`);
+  }
+  try {
+    return JSON.parse(text) as RunSummary;
+  } catch (error) {
+    throw new InputError(path, `not JSON: ${(error as Error).message}`);
+  }
+}
+
+export const main: CommandMain = async (argv: string[], io: CommandIo) => {
+  const args = parseArgs(spec, argv);
+  const inputs = args.positionals.map((name) => ({ name, summary: readSummary(name) }));
+  let merged: RunSummary;
+  try {
+    merged = mergeSummaries(inputs);
+  } catch (error) {
+    throw new UsageError(`merge: ${(error as Error).message}`);
+  }
+  const json = args.values.json as string | undefined;
+  if (json) writeFileAtomic(json, JSON.stringify(merged, null, 2) + '\n');
+  if (args.values.quiet !== true) io.stdout.write(formatReport(merged));
+  const count = merged.configuration.shard.count;
+  if (merged.shards.length < count) {
+    const missing = Array.from({ length: count }, (_, k) => k).filter((k) => !merged.shards.some((s) => s.index === k));
+    io.stderr.write(`jetlag merge: shards ${missing.join(', ')} of ${count} are not in the inputs\n`);
+  }
+  return 0;
+};

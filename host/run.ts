@@ -1,0 +1,348 @@
+// The streamed run: file -> records -> batches -> workers -> results -> tally -> summary.
+// runEvents() is the programmatic entry (commands/run.ts and the demo call it). One run reads
+// the input once; --find-rate and --scan-workers repeat runs (runStudies below).
+//
+// Latency starts, per event: closed loop, when its batch is handed to the pool; open loop,
+// at its scheduled arrival (arrivals.ts). It ends when the batch's result reaches the main
+// thread. Events whose results wait for an earlier batch before being written in input order
+// are not charged for that wait: in-order output is a property of the file, not of a trigger.
+
+import { closeSync, openSync, renameSync, rmSync, statSync, writeSync } from 'node:fs';
+import { openEventSource } from './event-source.js';
+import { InputError } from './args.js';
+import { ArrivalSchedule, nowNs, sleepUntilNs, type ArrivalMode } from './arrivals.js';
+import { BatchBuilder, BatchPool, type BatchOutcome } from './pool.js';
+import { resultViews, STAGE_COUNT, STATUS_OK, type WorkerConfig } from './worker.js';
+import { describeMachine, renderSummary, RunTally, STAGES, type RunConfiguration, type RunSummary } from './summary.js';
+import { ProgressBar } from './progress.js';
+import { DEFAULT_SETTINGS, type ClusterSettings, type Grid } from './types.js';
+import { describeDifference } from './bit-exact.js';
+
+/**
+ * Default events per batch. Measured with bench/pool.bench.ts on this 2-core machine (see the
+ * figure there and in the README): the pool's per-task cost is amortised well below 1 % of the
+ * clustering time from about 16 events of pileup 200 per batch on; 32 keeps the per-batch
+ * wait of an open-loop run short.
+ */
+export const DEFAULT_BATCH = 32;
+
+export interface CheckOption {
+  mode: 'all' | 'fraction' | 'none';
+  fraction: number;
+  seed: number;
+}
+
+export interface RunOptions {
+  /** event file path, '-' for stdin */
+  input: string;
+  workers?: number;
+  batch?: number;
+  arrival?: ArrivalMode;
+  budgetUs?: number | null;
+  check?: CheckOption;
+  settings?: ClusterSettings;
+  engine?: WorkerConfig['engine'];
+  shard?: { index: number; count: number };
+  /** jets file to write (temporary name, renamed when complete) */
+  out?: string | null;
+  /** grid of a CSV tower file (an event file carries its own) */
+  grid?: Grid;
+  /** stop after this many event records (of the whole file, before sharding) */
+  maxEvents?: number | null;
+  /** aborting stops reading; what is in flight is drained and the summary is marked partial */
+  signal?: AbortSignal;
+  /** progress bar output, when wanted */
+  progress?: NodeJS.WritableStream | null;
+  /** one line per problem (invalid event, failed batch, check difference), up to a limit */
+  onProblem?: (line: string) => void;
+  /** batches out at once (default 2 per worker, so a worker never waits for the host) */
+  maxInFlight?: number;
+}
+
+export const DEFAULT_CHECK: CheckOption = { mode: 'fraction', fraction: 0.01, seed: 1 };
+
+function defaultWorkers(): number {
+  return describeMachine().cores;
+}
+
+/** Writes to `${path}.tmp-<pid>` and renames when complete, so a reader never sees half a file. */
+export class AtomicFile {
+  readonly temporary: string;
+  private fd: number | null;
+  constructor(readonly path: string) {
+    this.temporary = `${path}.tmp-${process.pid}`;
+    this.fd = openSync(this.temporary, 'w');
+  }
+  write(bytes: Uint8Array): void {
+    let at = 0;
+    while (at < bytes.length) at += writeSync(this.fd!, bytes, at, bytes.length - at);
+  }
+  commit(): void {
+    closeSync(this.fd!);
+    this.fd = null;
+    renameSync(this.temporary, this.path);
+  }
+  abandon(): void {
+    if (this.fd !== null) closeSync(this.fd);
+    this.fd = null;
+    rmSync(this.temporary, { force: true });
+  }
+}
+
+export function writeFileAtomic(path: string, text: string): void {
+  const file = new AtomicFile(path);
+  try {
+    file.write(Buffer.from(text, 'utf8'));
+    file.commit();
+  } catch (error) {
+    file.abandon();
+    throw error;
+  }
+}
+
+const PROBLEM_LINES_MAX = 20;
+
+export async function runEvents(options: RunOptions): Promise<RunSummary> {
+  const workers = options.workers ?? defaultWorkers();
+  const batch = options.batch ?? DEFAULT_BATCH;
+  const arrival = options.arrival ?? { kind: 'closed' };
+  const check = options.check ?? DEFAULT_CHECK;
+  const settings = options.settings ?? { ...DEFAULT_SETTINGS };
+  const shard = options.shard ?? { index: 0, count: 1 };
+  const budgetUs = options.budgetUs ?? null;
+  const budgetNs = budgetUs === null ? Infinity : budgetUs * 1000;
+  if (!Number.isInteger(batch) || batch < 1) throw new TypeError(`batch must be a positive integer, got ${batch}`);
+  if (!Number.isInteger(shard.count) || shard.count < 1 || !Number.isInteger(shard.index) || shard.index < 0 || shard.index >= shard.count) {
+    throw new TypeError(`shard must be k/n with 0 <= k < n, got ${shard.index}/${shard.count}`);
+  }
+  const label = options.input === '-' ? '<stdin>' : options.input;
+  const schedule = new ArrivalSchedule(arrival);
+
+  const source = await openEventSource(options.input, { fileLabel: label, grid: options.grid });
+  const records = source.records;
+  const grid: Grid = source.header.grid;
+
+  let bytesTotal = 0;
+  if (options.input !== '-') {
+    try { bytesTotal = statSync(options.input).size; } catch { bytesTotal = 0; }
+  }
+  const tally = new RunTally();
+  let problemLines = 0;
+  const problem = (line: string) => {
+    if (options.onProblem && problemLines++ < PROBLEM_LINES_MAX) options.onProblem(line);
+  };
+  let engineName = options.engine === 'reference' ? 'reference' : 'wasm';
+  let jetsFile: AtomicFile | null = null;
+  const config: WorkerConfig = {
+    grid,
+    settings,
+    engine: options.engine ?? 'auto',
+    checkFraction: check.mode === 'all' ? 1 : check.mode === 'none' ? 0 : check.fraction,
+    checkSeed: check.seed,
+    encodeJets: Boolean(options.out),
+  };
+  if (options.out) {
+    const { encodeJetsFileHeader } = await import('./jets-codec.js' as string);
+    jetsFile = new AtomicFile(options.out);
+    jetsFile.write(encodeJetsFileHeader(grid, { ...settings, engine: engineName }));
+  }
+
+  const deliver = (outcome: BatchOutcome) => {
+    const { count, result } = outcome;
+    tally.read += count;
+    if (result === null) {
+      tally.addFailedBatch({ firstRecord: outcome.firstRecord, events: count, offset: outcome.recordOffsets[0], reason: outcome.failure ?? 'unknown failure' });
+      problem(`${label}, records ${outcome.firstRecord}..${outcome.firstRecord + count - 1}, byte ${outcome.recordOffsets[0]}: batch failed: ${outcome.failure}`);
+      return;
+    }
+    engineName = result.engine;
+    const views = resultViews(result.buffer, count);
+    const invalidReasons = new Map<number, string>();
+    for (const entry of result.invalid) invalidReasons.set(entry.index, entry.reason);
+    for (let k = 0; k < count; k++) {
+      const stage = k * STAGE_COUNT;
+      if (views.status[k] !== STATUS_OK) {
+        const event = views.eventNumber[k] >= 0 ? views.eventNumber[k] : null;
+        const reason = invalidReasons.get(k) ?? 'invalid';
+        tally.addInvalid({ event, record: outcome.firstRecord + k, offset: outcome.recordOffsets[k], reason });
+        problem(`${label}, ${event === null ? `record ${outcome.firstRecord + k}` : `event ${event}`}, byte ${outcome.recordOffsets[k]}: ${reason}`);
+        continue;
+      }
+      tally.ok++;
+      const clusterNs = views.stageNs[stage + 2];
+      tally.cluster.recordNs(clusterNs);
+      for (let s = 0; s < STAGE_COUNT; s++) {
+        const value = views.stageNs[stage + s];
+        // stages that did not run for this event (check not sampled, no jets file) are not recorded
+        if (s >= 3 && value === 0) continue;
+        tally.stages[STAGES[s]].recordNs(value);
+      }
+      tally.multiplicity.record(views.towersClustered[k], clusterNs);
+      const endToEndNs = outcome.finishedNs - outcome.startNs[k];
+      tally.endToEnd.recordNs(endToEndNs);
+      if (endToEndNs > budgetNs) tally.overBudget++;
+    }
+    tally.jets += result.jets;
+    tally.towers.offered += result.towersOffered;
+    tally.towers.belowThreshold += result.towersBelowThreshold;
+    tally.towers.outsideAcceptance += result.towersOutsideAcceptance;
+    tally.towers.clustered += result.towersOffered - result.towersBelowThreshold;
+    tally.check.checked += result.checked;
+    tally.check.agreeing += result.agreeing;
+    tally.check.disagreeing += result.checked - result.agreeing;
+    for (const difference of result.differences) {
+      tally.addDifference(difference);
+      problem(`${label}: check: ${describeDifference(difference.event, difference)}`);
+    }
+    if (jetsFile && result.jetsBytes) jetsFile.write(result.jetsBytes);
+  };
+
+  let lastOffset = 0;
+  const pool = new BatchPool({ workers, maxInFlight: options.maxInFlight ?? 2 * workers, config, deliver });
+  // threads and engines are made before the clock starts: start-up is not throughput
+  await pool.warmUp(workers);
+  const progress = new ProgressBar(options.progress ?? process.stderr, { eventsDone: () => tally.read, bytesDone: () => lastOffset }, bytesTotal, Boolean(options.progress));
+  let partialReason: string | null = null;
+  let inputError: InputError | null = null;
+  const builder = new BatchBuilder();
+  let dispatchIndex = 0;
+  let ordinal = 0; // event records seen in the file
+  let builderFirstRecord = 0;
+  const builderStartNs: number[] = [];
+  const startNs = nowNs();
+
+  const send = async () => {
+    await pool.waitForRoom();
+    const sealed = builder.seal(dispatchIndex++);
+    const starts = new Float64Array(sealed.task.count);
+    if (schedule.openLoop) for (let k = 0; k < starts.length; k++) starts[k] = builderStartNs[k];
+    else starts.fill(nowNs());
+    builderStartNs.length = 0;
+    pool.dispatch(sealed, builderFirstRecord, starts);
+  };
+
+  progress.start();
+  try {
+    try {
+      for await (const record of records) {
+        if (options.signal?.aborted) { partialReason = 'interrupted: reading stopped, batches in flight drained'; break; }
+        if (options.maxEvents != null && ordinal >= options.maxEvents) break;
+        const record0 = ordinal++;
+        lastOffset = record.offset;
+        // shards take every n-th group of `batch` records, whatever the run's timing
+        if (Math.floor(record0 / batch) % shard.count !== shard.index) continue;
+        if (schedule.openLoop) {
+          const dueNs = startNs + schedule.next();
+          // events already due go now rather than wait for this one
+          if (builder.count > 0 && (builder.count >= batch || dueNs > nowNs())) await send();
+          await sleepUntilNs(dueNs);
+          if (builder.count === 0) builderFirstRecord = record0;
+          builder.add(record.bytes, record.offset);
+          builderStartNs.push(dueNs);
+        } else {
+          if (builder.count === 0) builderFirstRecord = record0;
+          builder.add(record.bytes, record.offset);
+          if (builder.count >= batch) await send();
+        }
+      }
+    } catch (error) {
+      if (!(error instanceof InputError)) throw error;
+      // the rest of the file is unreadable: keep what came before it
+      inputError = error;
+      partialReason = `input unreadable from here on: ${error.message}`;
+    }
+    if (builder.count > 0) await send();
+    await pool.drain();
+  } catch (error) {
+    jetsFile?.abandon();
+    throw error;
+  } finally {
+    progress.stop();
+    await pool.close();
+  }
+  const wallSeconds = (nowNs() - startNs) / 1e9;
+  tally.bytesRead = lastOffset;
+  jetsFile?.commit();
+
+  const configuration: RunConfiguration = {
+    file: label,
+    engine: engineName,
+    grid: { ...grid },
+    settings: { ...settings },
+    workers,
+    batch,
+    arrival: {
+      mode: arrival.kind,
+      rateHz: arrival.kind === 'closed' ? null : arrival.rateHz,
+      seed: arrival.kind === 'poisson' ? arrival.seed : null,
+    },
+    budgetUs,
+    check: { mode: check.mode, fraction: config.checkFraction, seed: check.seed },
+    shard,
+    maxEvents: options.maxEvents ?? null,
+    out: options.out ?? null,
+  };
+  const summary = renderSummary(tally, {
+    configuration,
+    shards: [shard],
+    machine: describeMachine(),
+    partial: partialReason !== null,
+    partialReason,
+    wallSeconds,
+  });
+  if (inputError) Object.defineProperty(summary, 'inputError', { value: inputError, enumerable: false });
+  return summary;
+}
+
+/** The input error that cut a run short, if any (kept off the JSON). */
+export function inputErrorOf(summary: RunSummary): InputError | null {
+  return (summary as unknown as { inputError?: InputError }).inputError ?? null;
+}
+
+/**
+ * --find-rate: the highest open-loop rate whose end-to-end p99 stays within the budget,
+ * by bisection in log(rate) between 2 % and 100 % of the closed-loop events/s.
+ */
+export async function findRate(options: RunOptions, closedLoop: RunSummary, budgetUs: number, poisson: boolean, trials = 7) {
+  const ceiling = Math.max(1, closedLoop.throughput.eventsPerSecond);
+  const runAt = async (rateHz: number) => {
+    const arrival: ArrivalMode = poisson ? { kind: 'poisson', rateHz, seed: 1 } : { kind: 'fixed', rateHz };
+    const summary = await runEvents({ ...options, arrival, out: null, progress: null, onProblem: undefined });
+    const p99 = summary.latency.endToEnd.p99_us;
+    return { rateHz, p99_us: p99, withinBudget: summary.latency.endToEnd.count > 0 && p99 <= budgetUs, events: summary.events.read };
+  };
+  const results: { rateHz: number; p99_us: number; withinBudget: boolean; events: number }[] = [];
+  let low = ceiling * 0.02;
+  let high = ceiling;
+  const lowTrial = await runAt(low);
+  results.push(lowTrial);
+  if (!lowTrial.withinBudget) return { budgetUs, rateHz: null, trials: results };
+  let best = low;
+  const highTrial = await runAt(high);
+  results.push(highTrial);
+  if (highTrial.withinBudget) return { budgetUs, rateHz: high, trials: results };
+  for (let k = 2; k < trials; k++) {
+    const mid = Math.sqrt(low * high);
+    const trial = await runAt(mid);
+    results.push(trial);
+    if (trial.withinBudget) { best = mid; low = mid; } else high = mid;
+  }
+  return { budgetUs, rateHz: best, trials: results };
+}
+
+/** --scan-workers: closed-loop events/s for 1 .. cores workers. */
+export async function scanWorkers(options: RunOptions, cores: number) {
+  const points: { workers: number; eventsPerSecond: number; speedup: number; cluster_p50_us: number; endToEnd_p99_us: number }[] = [];
+  for (let workers = 1; workers <= cores; workers++) {
+    const summary = await runEvents({ ...options, workers, arrival: { kind: 'closed' }, out: null, progress: null, onProblem: undefined });
+    const eventsPerSecond = summary.throughput.eventsPerSecond;
+    points.push({
+      workers,
+      eventsPerSecond,
+      speedup: points.length ? eventsPerSecond / points[0].eventsPerSecond : 1,
+      cluster_p50_us: summary.latency.cluster.p50_us,
+      endToEnd_p99_us: summary.latency.endToEnd.p99_us,
+    });
+  }
+  return { points };
+}

@@ -1,0 +1,334 @@
+// One pool worker (a piscina worker thread; runs from compiled dist/ JS). It owns its
+// clusterer instance, its reference (for --check), its decoder and scratch, all made once on
+// the first batch. Per event of a batch:
+//   decode the record -> validate and bin the towers -> cluster -> check (sampled) -> encode
+// and each stage's time goes into the batch's per-event stage table. Per-event faults of the
+// data (bad wire format, invalid towers) make that event invalid; a fault of the worker
+// itself (a throw, a wasm trap, an out-of-memory) fails the whole batch: the host marks its
+// events failed, and this worker drops its clusterer, which may be poisoned, and builds a new
+// one on the next batch. A worker thread that dies is replaced by the pool.
+//
+// Batch layout (host -> worker, one transferred ArrayBuffer, see pool.ts):
+//   Float64 recordOffset[count]  |  Uint32 recordStart[count + 1]  |  pad to 8  |  record bytes
+// Result layout (worker -> host, one transferred ArrayBuffer):
+//   Float64 eventNumber[count] | Float64 stageNs[count * STAGE_COUNT] (event-major) |
+//   Int32 towersClustered[count] | Uint8 status[count] (0 ok, 1 invalid)
+// plus small plain fields (invalid events' reasons, check differences, jets bytes).
+
+import { move, transferableSymbol, valueSymbol, workerData as piscinaWorkerData } from 'piscina';
+import { EventRecordDecoder } from './event-codec.js';
+import { binDeposits, findInvalidTower, makeGridTables, MIN_ET, type GridTables } from './grid.js';
+import { ReferenceClusterer } from './reference.js';
+import { firstJetDifference, type JetDifference } from './bit-exact.js';
+import type { ClusterSettings, Clusterer, Grid, JetSet } from './types.js';
+
+export const STAGE_COUNT = 5; // decode, bin, cluster, check, encode (summary.ts STAGES)
+export const STATUS_OK = 0;
+export const STATUS_INVALID = 1;
+
+export interface WorkerConfig {
+  grid: Grid;
+  settings: ClusterSettings;
+  /** 'wasm' (the engine; falls back to the reference only when asked with 'auto') or 'reference' */
+  engine: 'wasm' | 'reference' | 'auto';
+  /** fraction of events compared with the reference: 1 all, 0 none */
+  checkFraction: number;
+  checkSeed: number;
+  /** encode each event's jets for a jets file */
+  encodeJets: boolean;
+}
+
+export interface BatchTask {
+  batchIndex: number;
+  count: number;
+  dataStart: number;
+  buffer: ArrayBuffer;
+}
+
+export interface InvalidEntry {
+  index: number;
+  reason: string;
+}
+
+export interface BatchResult {
+  batchIndex: number;
+  count: number;
+  engine: string;
+  buffer: ArrayBuffer;
+  invalid: InvalidEntry[];
+  differences: (JetDifference & { event: number })[];
+  checked: number;
+  agreeing: number;
+  jets: number;
+  towersOffered: number;
+  towersBelowThreshold: number;
+  towersOutsideAcceptance: number;
+  /** delimited jets records of this batch's events in order, when encodeJets is on */
+  jetsBytes: Uint8Array | null;
+}
+
+/** Views into a result buffer (used by the worker to fill it and by the host to read it). */
+export function resultViews(buffer: ArrayBuffer, count: number) {
+  let at = 0;
+  const eventNumber = new Float64Array(buffer, at, count); at += 8 * count;
+  const stageNs = new Float64Array(buffer, at, count * STAGE_COUNT); at += 8 * count * STAGE_COUNT;
+  const towersClustered = new Int32Array(buffer, at, count); at += 4 * count;
+  const status = new Uint8Array(buffer, at, count);
+  return { eventNumber, stageNs, towersClustered, status };
+}
+
+export function resultBytes(count: number): number {
+  return 8 * count + 8 * count * STAGE_COUNT + 4 * count + count;
+}
+
+/** Views into a batch buffer. */
+export function batchViews(buffer: ArrayBuffer, count: number, dataStart: number) {
+  const recordOffset = new Float64Array(buffer, 0, count);
+  const recordStart = new Uint32Array(buffer, 8 * count, count + 1);
+  const data = new Uint8Array(buffer, dataStart);
+  return { recordOffset, recordStart, data };
+}
+
+/** Whether event number `event` is in the check sample: a hash of (event, seed), so shards agree. */
+export function inCheckSample(event: number, fraction: number, seed: number): boolean {
+  if (fraction >= 1) return true;
+  if (fraction <= 0) return false;
+  // murmur3's 32-bit finaliser over both halves of the event number (from memory)
+  let h = (seed ^ Math.imul(event >>> 0, 0x9e3779b1) ^ Math.imul(Math.floor(event / 4294967296), 0x85ebca6b)) >>> 0;
+  h ^= h >>> 16; h = Math.imul(h, 0x85ebca6b);
+  h ^= h >>> 13; h = Math.imul(h, 0xc2b2ae35);
+  h ^= h >>> 16;
+  return (h >>> 0) / 4294967296 < fraction;
+}
+
+// ---- test-only switches (environment): plant faults to show the host copes -----------------
+//   JETLAG_TEST_FAULT=throw:B   batch B throws inside the worker
+//   JETLAG_TEST_FAULT=exit:B    the worker thread exits while running batch B
+//   JETLAG_TEST_FAULT=stall:B:MS  batch B sleeps MS milliseconds before it starts
+//   JETLAG_TEST_SYNTHETIC_TIMES=1  stage times are a fixed function of the event, not measured,
+//                                  so two runs over the same events record identical values
+interface PlantedFault { kind: 'throw' | 'exit' | 'stall'; batch: number; ms: number }
+function plantedFault(): PlantedFault | null {
+  const text = process.env.JETLAG_TEST_FAULT;
+  if (!text) return null;
+  const [kind, batch, ms] = text.split(':');
+  if (kind !== 'throw' && kind !== 'exit' && kind !== 'stall') return null;
+  return { kind, batch: Number(batch), ms: Number(ms ?? 0) };
+}
+const FAULT = plantedFault();
+const SYNTHETIC_TIMES = process.env.JETLAG_TEST_SYNTHETIC_TIMES === '1';
+
+// ---- per-worker state, made on the first batch ------------------------------------------
+interface WorkerState {
+  config: WorkerConfig;
+  tables: GridTables;
+  clusterer: Clusterer | null;
+  reference: ReferenceClusterer | null;
+  decoder: EventRecordDecoder;
+  seen: Uint8Array;
+  encodeJets: ((event: number, jets: JetSet | null, clusterNs: number, error: string) => Uint8Array) | null;
+}
+
+let state: WorkerState | null = null;
+
+async function makeClusterer(config: WorkerConfig): Promise<Clusterer> {
+  if (config.engine === 'reference') return new ReferenceClusterer(config.grid, config.settings);
+  try {
+    const engineModule: { WasmClusterer: new (grid: Grid, settings: ClusterSettings) => Clusterer } =
+      await import(/* engine module, built from assembly/ */ './engine.js' as string);
+    return new engineModule.WasmClusterer(config.grid, config.settings);
+  } catch (error) {
+    if (config.engine === 'auto') return new ReferenceClusterer(config.grid, config.settings);
+    throw error;
+  }
+}
+
+async function makeState(config: WorkerConfig): Promise<WorkerState> {
+  const tables = makeGridTables(config.grid);
+  let encodeJets: WorkerState['encodeJets'] = null;
+  if (config.encodeJets) {
+    const codec = await import('./jets-codec.js' as string);
+    encodeJets = codec.encodeDelimitedJetsRecord;
+  }
+  return {
+    config,
+    tables,
+    clusterer: await makeClusterer(config),
+    reference: config.checkFraction > 0 ? new ReferenceClusterer(config.grid, config.settings) : null,
+    decoder: new EventRecordDecoder(),
+    seen: new Uint8Array(tables.towerTotal),
+    encodeJets,
+  };
+}
+
+function nowNs(): number {
+  return performance.now() * 1e6;
+}
+
+function sleep(ms: number): Promise<void> {
+  return new Promise((resolve) => setTimeout(resolve, ms));
+}
+
+/** piscina entry: one batch in, one result out (both buffers transferred). */
+export default async function runBatch(task: BatchTask): Promise<unknown> {
+  if (FAULT && FAULT.batch === task.batchIndex) {
+    if (FAULT.kind === 'throw') throw new Error(`planted fault in batch ${task.batchIndex}`);
+    if (FAULT.kind === 'exit') process.exit(3);
+    if (FAULT.kind === 'stall') await sleep(FAULT.ms);
+  }
+  if (!state) state = await makeState(piscinaWorkerData as WorkerConfig);
+  if (!state.clusterer) state.clusterer = await makeClusterer(state.config);
+  try {
+    const result = clusterBatch(state, task);
+    return move({
+      get [transferableSymbol]() { return result.jetsBytes ? [result.buffer, result.jetsBytes.buffer] : [result.buffer]; },
+      get [valueSymbol]() { return result; },
+    } as unknown as ArrayBuffer);
+  } catch (error) {
+    // the clusterer may be poisoned (a wasm trap leaves its memory in an unknown state)
+    state.clusterer = null;
+    throw error;
+  }
+}
+
+function clusterBatch(s: WorkerState, task: BatchTask): BatchResult {
+  const { count } = task;
+  const { recordStart, data } = batchViews(task.buffer, count, task.dataStart);
+  const buffer = new ArrayBuffer(resultBytes(count));
+  const out = resultViews(buffer, count);
+  const { config, tables, decoder, seen } = s;
+  const clusterer = s.clusterer!;
+  const threshold = config.settings.threshold;
+  const invalid: InvalidEntry[] = [];
+  const differences: BatchResult['differences'] = [];
+  const jetChunks: Uint8Array[] = [];
+  let checked = 0;
+  let agreeing = 0;
+  let jetsTotal = 0;
+  let towersOffered = 0;
+  let towersBelowThreshold = 0;
+  let towersOutsideAcceptance = 0;
+
+  for (let k = 0; k < count; k++) {
+    const stage = k * STAGE_COUNT;
+    const t0 = nowNs();
+    let problem: string | null = null;
+    let event = -1;
+    try {
+      decoder.decode(data.subarray(recordStart[k], recordStart[k + 1]));
+      event = decoder.event;
+    } catch (error) {
+      if (decoder.hasEvent) event = decoder.event;
+      problem = `bad event record: ${(error as Error).message}`;
+    }
+    const t1 = nowNs();
+
+    // validate and bin: the rules and texts of event-towers.ts, split here so that decode and
+    // bin are timed apart
+    let towerIndex: Int32Array | null = null;
+    let towerEt: Float64Array | null = null;
+    if (problem === null) {
+      if (decoder.error !== '') problem = decoder.error;
+      else if (decoder.depositEtaCount > 0 || decoder.depositPhiCount > 0 || decoder.depositEtCount > 0) {
+        if (decoder.towerIndexCount > 0 || decoder.towerEtCount > 0) problem = 'the record holds both towers and raw deposits';
+        else {
+          const binned = binDeposits(tables,
+            decoder.depositEta.subarray(0, decoder.depositEtaCount),
+            decoder.depositPhi.subarray(0, decoder.depositPhiCount),
+            decoder.depositEt.subarray(0, decoder.depositEtCount));
+          problem = binned.problem;
+          towerIndex = binned.towerIndex;
+          towerEt = binned.towerEt;
+          towersOutsideAcceptance += binned.outsideAcceptance;
+        }
+      } else if (decoder.towerIndexCount !== decoder.towerEtCount) {
+        problem = `tower_index has ${decoder.towerIndexCount} entries but tower_et has ${decoder.towerEtCount}`;
+      } else {
+        towerIndex = decoder.towerIndex.subarray(0, decoder.towerIndexCount);
+        towerEt = decoder.towerEt.subarray(0, decoder.towerEtCount);
+        problem = findInvalidTower(tables, towerIndex, towerEt, seen);
+      }
+    }
+    let clustered = 0;
+    if (problem === null) {
+      for (let t = 0; t < towerEt!.length; t++) {
+        const et = towerEt![t];
+        if (et > threshold && et >= MIN_ET) clustered++;
+      }
+      towersOffered += towerEt!.length;
+      towersBelowThreshold += towerEt!.length - clustered;
+    }
+    const t2 = nowNs();
+
+    out.eventNumber[k] = event;
+    out.towersClustered[k] = clustered;
+    if (problem !== null) {
+      out.status[k] = STATUS_INVALID;
+      invalid.push({ index: k, reason: problem });
+      if (s.encodeJets && event >= 0) jetChunks.push(s.encodeJets(event, null, 0, problem));
+      const tEnd = nowNs();
+      out.stageNs[stage] = t1 - t0;
+      out.stageNs[stage + 1] = tEnd - t1;
+      continue;
+    }
+
+    const jets = clusterer.cluster(towerIndex!, towerEt!);
+    const t3 = nowNs();
+    jetsTotal += jets.count;
+
+    let t4 = t3;
+    if (s.reference && inCheckSample(event, config.checkFraction, config.checkSeed)) {
+      const reference = s.reference.cluster(towerIndex!, towerEt!);
+      const difference = firstJetDifference(jets, reference);
+      checked++;
+      if (difference === null) agreeing++;
+      else differences.push({ event, ...difference });
+      t4 = nowNs();
+    }
+
+    let t5 = t4;
+    if (s.encodeJets) {
+      jetChunks.push(s.encodeJets(event, jets, Math.round(t3 - t2), ''));
+      t5 = nowNs();
+    }
+    out.status[k] = STATUS_OK;
+    if (SYNTHETIC_TIMES) {
+      // a fixed function of the event: decode 1 µs, bin 2 µs, cluster 50 ns per tower + 1 µs
+      out.stageNs[stage] = 1000;
+      out.stageNs[stage + 1] = 2000;
+      out.stageNs[stage + 2] = 1000 + 50 * clustered;
+      out.stageNs[stage + 3] = t4 > t3 ? 500 : 0;
+      out.stageNs[stage + 4] = t5 > t4 ? 300 : 0;
+    } else {
+      out.stageNs[stage] = t1 - t0;
+      out.stageNs[stage + 1] = t2 - t1;
+      out.stageNs[stage + 2] = t3 - t2;
+      out.stageNs[stage + 3] = t4 - t3;
+      out.stageNs[stage + 4] = t5 - t4;
+    }
+  }
+
+  let jetsBytes: Uint8Array | null = null;
+  if (s.encodeJets) {
+    let total = 0;
+    for (const chunk of jetChunks) total += chunk.length;
+    jetsBytes = new Uint8Array(total);
+    let at = 0;
+    for (const chunk of jetChunks) { jetsBytes.set(chunk, at); at += chunk.length; }
+  }
+  return {
+    batchIndex: task.batchIndex,
+    count,
+    engine: clusterer.name,
+    buffer,
+    invalid,
+    differences,
+    checked,
+    agreeing,
+    jets: jetsTotal,
+    towersOffered,
+    towersBelowThreshold,
+    towersOutsideAcceptance,
+    jetsBytes,
+  };
+}
