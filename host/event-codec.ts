@@ -80,6 +80,8 @@ const DOUBLE_FIELD_NAMES = ['tower_et', 'deposit_eta', 'deposit_phi', 'deposit_e
 
 export class EventRecordDecoder {
   event = 0;
+  /** false until the event field has been read (so an error text can still name the event) */
+  hasEvent = false;
   error = '';
   towerIndex = new Int32Array(256);
   towerIndexCount = 0;
@@ -97,6 +99,7 @@ export class EventRecordDecoder {
     const c = this.cursor;
     c.reset(bytes);
     this.event = 0;
+    this.hasEvent = false;
     this.error = '';
     this.towerIndexCount = 0;
     this.towerEtCount = 0;
@@ -114,6 +117,7 @@ export class EventRecordDecoder {
           const event = c.readVarint();
           if (event > Number.MAX_SAFE_INTEGER) c.fail(at, `event number ${event} is above 2^53 - 1`);
           this.event = event;
+          this.hasEvent = true;
           break;
         }
         case FIELD_TOWER_INDEX:

@@ -11,6 +11,8 @@
 //     InputError("<file>, byte <offset>: <detail>"): a length above maxRecordBytes (default
 //     64 MiB), a length varint longer than 10 bytes or above 2^32 - 1, a truncated record,
 //     corrupt or truncated gzip, or a read error.
+//   framedRecords(chunks, label, maxRecordBytes?): the same over chunks from readChunks().
+//   readChunks(input, label?): the uncompressed chunks of an input (gzip by content).
 //   RecordFramer: the synchronous core (feed chunks, get records through a callback), for
 //     callers that want no promise per record.
 //
@@ -312,10 +314,19 @@ async function* inflateIfGzip(source: NodeJS.ReadableStream, label: string): Asy
 /** Records of a delimited file, in order; see the API note at the top of this file. */
 export async function* readRecords(input: string | NodeJS.ReadableStream, options: ReadRecordsOptions = {}): AsyncGenerator<RawRecord> {
   const label = inputLabel(input, options.fileLabel);
-  const framer = new RecordFramer(options.maxRecordBytes ?? DEFAULT_MAX_RECORD_BYTES);
+  yield* framedRecords(readChunks(input, label), label, options.maxRecordBytes);
+}
+
+/** Records framed from uncompressed chunks (readChunks output); errors name `label`. */
+export async function* framedRecords(
+  chunks: AsyncIterable<Uint8Array>,
+  label: string,
+  maxRecordBytes = DEFAULT_MAX_RECORD_BYTES,
+): AsyncGenerator<RawRecord> {
+  const framer = new RecordFramer(maxRecordBytes);
   const batch: RawRecord[] = [];
   const collect: RecordSink = (bytes, offset) => { batch.push({ bytes, offset }); };
-  for await (const chunk of readChunks(input, label)) {
+  for await (const chunk of chunks) {
     framer.feed(chunk, collect);
     for (let k = 0; k < batch.length; k++) yield batch[k];
     batch.length = 0;

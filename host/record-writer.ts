@@ -1,0 +1,190 @@
+// Writing delimited record files (proto/jetlag.proto) safely: to a temporary name next to
+// the target, renamed into place by close(), so a reader never sees a half-written file
+// under the final name. '-' writes to stdout (no temporary). Optional gzip. Small records
+// are gathered into 256 KiB blocks; a block write that the stream refuses (backpressure)
+// is awaited until 'drain'.
+//
+// API
+//   RecordFileWriter.open(path, { gzip?, stdout? }): Promise<RecordFileWriter>
+//     .write(message): Promise<void> | undefined   appends varint length + message; await
+//                                                   the promise when one is returned
+//     .close(): Promise<void>                       flushes, ends, renames into place
+//     .abort(): Promise<void>                       drops the temporary file
+//     .records, .bytes                              counts written so far (uncompressed)
+//   EventFileWriter.open(path, header, options)    header record first, then writeEvent()
+//   (jets files: jets-codec.ts JetsFileWriter)
+
+import { once } from 'node:events';
+import { createWriteStream } from 'node:fs';
+import { rename, unlink } from 'node:fs/promises';
+import { basename, dirname, join } from 'node:path';
+import { createGzip } from 'node:zlib';
+import { encodeEventRecord, type EventRecordFields } from './event-codec.js';
+import { encodeFileHeader, type FileHeader } from './file-header.js';
+import { ProtoWriter } from './wire.js';
+
+const BLOCK_BYTES = 256 * 1024;
+
+export interface WriterOptions {
+  gzip?: boolean;
+  /** the stream '-' stands for (default process.stdout) */
+  stdout?: NodeJS.WritableStream;
+}
+
+export class RecordFileWriter {
+  records = 0;
+  bytes = 0;
+  private block = new Uint8Array(BLOCK_BYTES);
+  private fill = 0;
+  private failure: Error | null = null;
+  private closed = false;
+
+  private constructor(
+    private readonly sink: NodeJS.WritableStream,
+    private readonly file: NodeJS.WritableStream | null,
+    private readonly tempPath: string | null,
+    private readonly finalPath: string | null,
+    private readonly stdoutTarget: NodeJS.WritableStream | null = null,
+  ) {
+    const remember = (error: Error) => { this.failure ??= error; };
+    sink.on('error', remember);
+    if (file && file !== sink) file.on('error', remember);
+  }
+
+  static async open(path: string, options: WriterOptions = {}): Promise<RecordFileWriter> {
+    if (path === '-') {
+      const stdout = options.stdout ?? process.stdout;
+      if (!options.gzip) return new RecordFileWriter(stdout, null, null, null, stdout);
+      const gzip = createGzip();
+      gzip.pipe(stdout as NodeJS.WritableStream, { end: false });
+      return new RecordFileWriter(gzip, null, null, null, stdout);
+    }
+    const tempPath = join(dirname(path), `.${basename(path)}.${process.pid}.${Math.random().toString(36).slice(2, 8)}.tmp`);
+    const file = createWriteStream(tempPath);
+    await once(file, 'open');
+    if (!options.gzip) return new RecordFileWriter(file, file, tempPath, path);
+    const gzip = createGzip();
+    gzip.pipe(file);
+    return new RecordFileWriter(gzip, file, tempPath, path);
+  }
+
+  /** Appends one record. Returns a promise (await it) when the output asked to wait. */
+  write(message: Uint8Array): Promise<void> | undefined {
+    if (this.failure) return Promise.reject(this.failure);
+    const need = 10 + message.length;
+    let pending: Promise<void> | undefined;
+    if (this.fill + need > this.block.length) pending = this.flush();
+    if (need > this.block.length) {
+      // a record larger than a block goes out on its own
+      const framed = new Uint8Array(need);
+      const start = writeVarint(framed, 0, message.length);
+      framed.set(message, start);
+      const done = this.push(framed.subarray(0, start + message.length));
+      pending = pending ? pending.then(() => done) : done;
+    } else {
+      this.fill = writeVarint(this.block, this.fill, message.length);
+      this.block.set(message, this.fill);
+      this.fill += message.length;
+    }
+    this.records++;
+    this.bytes += message.length + varintLength(message.length);
+    return pending;
+  }
+
+  private flush(): Promise<void> | undefined {
+    if (this.fill === 0) return undefined;
+    const out = this.block.subarray(0, this.fill);
+    this.block = new Uint8Array(BLOCK_BYTES); // the stream keeps `out` until written
+    this.fill = 0;
+    return this.push(out);
+  }
+
+  private push(bytes: Uint8Array): Promise<void> | undefined {
+    if (this.sink.write(bytes)) return undefined;
+    return this.waitDrain();
+  }
+
+  private async waitDrain(): Promise<void> {
+    if (this.failure) throw this.failure;
+    await new Promise<void>((resolve, reject) => {
+      const onDrain = () => { cleanup(); resolve(); };
+      const onError = (error: Error) => { cleanup(); reject(error); };
+      const cleanup = () => { this.sink.off('drain', onDrain); this.sink.off('error', onError); };
+      this.sink.on('drain', onDrain);
+      this.sink.on('error', onError);
+    });
+  }
+
+  /** Writes what is left, ends the output and renames the temporary file into place. */
+  async close(): Promise<void> {
+    if (this.closed) return;
+    this.closed = true;
+    await this.flush();
+    if (this.failure) { await this.dropTemp(); throw this.failure; }
+    if (this.finalPath === null) {
+      if (this.file === null && this.sink !== this.stdoutTarget) {
+        // gzip to stdout: end the gzip stream (never stdout itself) and let it drain into stdout
+        const ended = once(this.sink, 'end');
+        this.sink.end();
+        await ended;
+      }
+      return;
+    }
+    const done = once(this.file!, 'close');
+    this.sink.end();
+    await done;
+    if (this.failure) { await this.dropTemp(); throw this.failure; }
+    await rename(this.tempPath!, this.finalPath!);
+  }
+
+  async abort(): Promise<void> {
+    if (this.closed) return;
+    this.closed = true;
+    if (this.finalPath === null) return;
+    (this.sink as NodeJS.WritableStream & { destroy(): void }).destroy();
+    if (this.file !== this.sink) (this.file as NodeJS.WritableStream & { destroy(): void }).destroy();
+    await this.dropTemp();
+  }
+
+  private async dropTemp(): Promise<void> {
+    if (this.tempPath) await unlink(this.tempPath).catch(() => undefined);
+  }
+}
+
+function varintLength(value: number): number {
+  let n = 1;
+  while (value >= 128) { value = Math.floor(value / 128); n++; }
+  return n;
+}
+
+function writeVarint(out: Uint8Array, pos: number, value: number): number {
+  while (value >= 128) { out[pos++] = (value % 128) | 0x80; value = Math.floor(value / 128); }
+  out[pos++] = value;
+  return pos;
+}
+
+/** An event file: the header record, then one event record per writeEvent(). */
+export class EventFileWriter {
+  private readonly encoder = new ProtoWriter(4096);
+  private constructor(readonly records: RecordFileWriter, readonly header: FileHeader) {}
+
+  static async open(path: string, header: Omit<FileHeader, 'kind' | 'formatVersion'>, options: WriterOptions = {}): Promise<EventFileWriter> {
+    const full: FileHeader = { ...header, kind: 'events', formatVersion: 1 };
+    const headerBytes = encodeFileHeader(full); // fails on a bad grid before any file is made
+    const records = await RecordFileWriter.open(path, options);
+    await records.write(headerBytes);
+    return new EventFileWriter(records, full);
+  }
+
+  writeEvent(fields: EventRecordFields): Promise<void> | undefined {
+    return this.records.write(encodeEventRecord(fields, this.encoder));
+  }
+
+  close(): Promise<void> {
+    return this.records.close();
+  }
+
+  abort(): Promise<void> {
+    return this.records.abort();
+  }
+}
