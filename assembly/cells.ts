@@ -1,0 +1,166 @@
+// One cell per tower of the grid; a cell holds at most one jet. At the start every tower sits in
+// its own cell; a merged jet takes the cell that contains its (y, phi) when that cell is free,
+// else the nearer of its parents' cells. How far jets sit from their cell centres is tracked
+// (driftY, driftPhi: the largest offsets this event), so searches stay exact.
+//
+// Per cell c (see layout.ts): cellY cellPhi cellW (the jet's weight w), cellNnDR2 cellNnKey (the
+// jet's nearest neighbour by the key of clustering-spec.md section 4, its dR2 and (w*dR2)*invR2;
+// +Inf when none lies within the reach), cellJet, cellNn (the neighbour's cell or -1), cellWide
+// (1: weight outside the safe range, neighbour sought among all jets).
+// Who points at whom: the cells whose neighbour is cell q form a doubly linked list
+// pointHead[q] -> pointNext -> ... (pointPrev links back), so removing a jet finds at once the
+// jets that lost their neighbour.
+
+import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellNn, cellWide,
+  pointHead, pointNext, pointPrev, etaCentre, phiCentre, etaBins, phiBins, jetY, jetPhi, jetKt2,
+  getF64, setF64, getI32, setI32 } from './layout';
+import { invR2, etaMin, etaPitch, phiPitch, PI, TWO_PI, BEAM } from './settings';
+import { weightOf, needsWideSearch } from './kinematics';
+import { setCandidate, setEmptyCandidate } from './tournament';
+
+export let wideCount: i32 = 0;
+export let driftY: f64 = 0;
+export let driftPhi: f64 = 0;
+export let driftNorm: f64 = 0;
+
+/** Called once per engine. */
+export function initCells(): void {
+  for (let c = 0; c < cellTotal; c++) {
+    setI32(cellJet, c, -1);
+    setF64(cellY, c, Infinity);
+    setF64(cellPhi, c, 0);
+    setI32(cellNn, c, -1);
+    setI32(pointHead, c, -1);
+    setI32(cellWide, c, 0);
+  }
+}
+
+export function resetDrift(): void {
+  driftY = 0;
+  driftPhi = 0;
+  driftNorm = 0;
+  wideCount = 0;
+}
+
+// @ts-ignore: decorator
+@inline export function centreOffsetY(c: i32, y: f64): f64 {
+  return abs<f64>(y - getF64(etaCentre, c / phiBins));
+}
+
+// @ts-ignore: decorator
+@inline export function centreOffsetPhi(c: i32, phi: f64): f64 {
+  let d = abs<f64>(phi - getF64(phiCentre, c % phiBins));
+  if (d > PI) d = TWO_PI - d;
+  return d;
+}
+
+/** The cell whose area contains (y, phi), clamped to the grid; -1 for a non-finite position. */
+export function containingCell(y: f64, phi: f64): i32 {
+  const u = floor<f64>((y - etaMin) / etaPitch);
+  const v = floor<f64>(phi / phiPitch);
+  if (!(u == u) || !(v == v) || abs<f64>(u) > 1e9 || abs<f64>(v) > 1e9) return -1;
+  const row = min<i32>(max<i32>(<i32>u, 0), etaBins - 1);
+  const col = min<i32>(max<i32>(<i32>v, 0), phiBins - 1);
+  return row * phiBins + col;
+}
+
+/** Jet `jet` moves into the empty cell c, with no neighbour yet. */
+export function placeJet(c: i32, jet: i32): void {
+  const y = getF64(jetY, jet);
+  const phi = getF64(jetPhi, jet);
+  const w = weightOf(getF64(jetKt2, jet));
+  setI32(cellJet, c, jet);
+  setF64(cellY, c, y);
+  setF64(cellPhi, c, phi);
+  setF64(cellW, c, w);
+  setI32(cellNn, c, -1);
+  setF64(cellNnDR2, c, Infinity);
+  setF64(cellNnKey, c, Infinity);
+  setI32(pointHead, c, -1);
+  const wide = needsWideSearch(w) ? 1 : 0;
+  setI32(cellWide, c, wide);
+  wideCount += wide;
+  const dy = centreOffsetY(c, y);
+  const dphi = centreOffsetPhi(c, phi);
+  if (dy > driftY || dphi > driftPhi) {
+    driftY = max<f64>(driftY, dy);
+    driftPhi = max<f64>(driftPhi, dphi);
+    driftNorm = sqrt<f64>(driftY * driftY + driftPhi * driftPhi);
+  }
+}
+
+/** Cell c becomes empty; its lists must already be detached. */
+export function clearCell(c: i32): void {
+  wideCount -= getI32(cellWide, c);
+  setI32(cellWide, c, 0);
+  setI32(cellJet, c, -1);
+  setF64(cellY, c, Infinity);
+  setF64(cellPhi, c, 0);
+  setEmptyCandidate(c);
+}
+
+/** Takes c out of the list of the cell it points at. */
+export function unlink(c: i32): void {
+  const q = getI32(cellNn, c);
+  if (q < 0) return;
+  const prev = getI32(pointPrev, c);
+  const next = getI32(pointNext, c);
+  if (prev >= 0) setI32(pointNext, prev, next);
+  else setI32(pointHead, q, next);
+  if (next >= 0) setI32(pointPrev, next, prev);
+  setI32(cellNn, c, -1);
+}
+
+/**
+ * Moves every cell pointing at q onto the redo stack (from `count` on), forgetting their
+ * neighbour; returns the new stack size.
+ */
+export function detachPointers(q: i32, stack: usize, count: i32): i32 {
+  let c = getI32(pointHead, q);
+  while (c >= 0) {
+    const next = getI32(pointNext, c);
+    setI32(cellNn, c, -1);
+    setF64(cellNnDR2, c, Infinity);
+    setF64(cellNnKey, c, Infinity);
+    setI32(stack, count++, c);
+    c = next;
+  }
+  setI32(pointHead, q, -1);
+  return count;
+}
+
+/** Cell c's jet now has the neighbour in cell q (or none, q = -1); its candidate follows. */
+export function setNeighbour(c: i32, q: i32, dR2: f64, key: f64): void {
+  unlink(c);
+  if (q >= 0) {
+    setI32(cellNn, c, q);
+    const head = getI32(pointHead, q);
+    setI32(pointPrev, c, -1);
+    setI32(pointNext, c, head);
+    if (head >= 0) setI32(pointPrev, head, c);
+    setI32(pointHead, q, c);
+    setF64(cellNnDR2, c, dR2);
+    setF64(cellNnKey, c, key);
+  } else {
+    setF64(cellNnDR2, c, Infinity);
+    setF64(cellNnKey, c, Infinity);
+  }
+  refreshCandidate(c);
+}
+
+/** Cell c's candidate: the smaller of its beam and its pair with its neighbour (spec section 4). */
+export function refreshCandidate(c: i32): void {
+  const w = getF64(cellW, c);
+  const i = getI32(cellJet, c);
+  const q = getI32(cellNn, c);
+  if (q >= 0) {
+    const j = getI32(cellJet, q);
+    const d = (min<f64>(w, getF64(cellW, q)) * getF64(cellNnDR2, c)) * invR2;
+    // on equal measures the pair comes first: its smaller index is <= i and its larger < BEAM
+    if (d <= w) {
+      setCandidate(c, d, min<i32>(i, j), max<i32>(i, j));
+      return;
+    }
+  }
+  setCandidate(c, w, i, BEAM);
+}

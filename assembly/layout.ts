@@ -1,0 +1,223 @@
+// Memory layout of one engine instance. Every region is reserved once by setup(), sized for the
+// largest event the grid allows (all C = etaBins * phiBins towers occupied) and for the host's
+// batch capacity; nothing is allocated per event. Regions are 16-byte aligned, in this order:
+//
+//   tables   etaCentre sinhEta coshEta f64[etaBins]   phiCentre cosPhi sinPhi f64[phiBins]
+//   input    inIndex i32[IN]  inEt f64[IN]  inStart i32[EV+1]          (written by the host)
+//   output   outJetStart i32[EV+1]  outNs f64[EV]  outClustered i32[EV]  outStatus i32[EV]
+//            outPx outPy outPz outE outPt outY outPhi outMass f64[IN]
+//            outTowerCount outTowerStart outTowers i32[IN]               (read by the host)
+//   event    evIndex i32[C]  evEt f64[C]  sortIndex i32[C]  sortEt f64[C]  radixCount i32[2048]
+//   cells    cellY cellPhi cellW cellNnDR2 cellNnKey f64[C]  candValue f64[P]
+//            cellJet cellNn pointHead pointNext pointPrev cellWide i32[C]  candLo candHi i32[P]
+//   tree     tree i32[2P]     (P = power of two >= C; node n < P holds the winning leaf of its
+//                              subtree, tree[P + c] = c; leaves c >= C stay empty)
+//   jets     jetPx jetPy jetPz jetE jetKt2 jetY jetPhi f64[2C]  jetInto jetLabel i32[2C]
+//   finals   finalJet finalOrder finalScratch i32[C]  finalPt f64[C]  redo i32[C]
+//   offsets  offDr offDc i32[O]  offDist f64[O]  offPerm offScratch offTmpI i32[O]  offTmpF f64[O]
+//            (O = OFFSET_LIMIT; the last four only while the offsets are sorted)
+//
+// IN is the batch tower capacity, EV the batch event capacity. Cell c = ieta * phiBins + iphi;
+// an empty cell has cellY = +Infinity and cellJet = -1.
+
+// @ts-ignore: decorator
+@inline export const OFFSET_LIMIT: i32 = 1 << 16;
+// @ts-ignore: decorator
+@inline export const RADIX_BUCKETS: i32 = 2048;
+
+export let etaBins: i32 = 0;
+export let phiBins: i32 = 0;
+export let cellTotal: i32 = 0;
+export let treeLeaves: i32 = 0;
+export let batchTowers: i32 = 0;
+export let batchEvents: i32 = 0;
+
+export let etaCentre: usize = 0;
+export let sinhEta: usize = 0;
+export let coshEta: usize = 0;
+export let phiCentre: usize = 0;
+export let cosPhi: usize = 0;
+export let sinPhi: usize = 0;
+
+export let inIndex: usize = 0;
+export let inEt: usize = 0;
+export let inStart: usize = 0;
+
+export let outJetStart: usize = 0;
+export let outNs: usize = 0;
+export let outClustered: usize = 0;
+export let outStatus: usize = 0;
+export let outPx: usize = 0;
+export let outPy: usize = 0;
+export let outPz: usize = 0;
+export let outE: usize = 0;
+export let outPt: usize = 0;
+export let outY: usize = 0;
+export let outPhi: usize = 0;
+export let outMass: usize = 0;
+export let outTowerCount: usize = 0;
+export let outTowerStart: usize = 0;
+export let outTowers: usize = 0;
+
+export let evIndex: usize = 0;
+export let evEt: usize = 0;
+export let sortIndex: usize = 0;
+export let sortEt: usize = 0;
+export let radixCount: usize = 0;
+
+export let cellY: usize = 0;
+export let cellPhi: usize = 0;
+export let cellW: usize = 0;
+export let cellNnDR2: usize = 0;
+export let cellNnKey: usize = 0;
+export let candValue: usize = 0;
+export let cellJet: usize = 0;
+export let cellNn: usize = 0;
+export let pointHead: usize = 0;
+export let pointNext: usize = 0;
+export let pointPrev: usize = 0;
+export let candLo: usize = 0;
+export let candHi: usize = 0;
+export let cellWide: usize = 0;
+
+export let tree: usize = 0;
+
+export let jetPx: usize = 0;
+export let jetPy: usize = 0;
+export let jetPz: usize = 0;
+export let jetE: usize = 0;
+export let jetKt2: usize = 0;
+export let jetY: usize = 0;
+export let jetPhi: usize = 0;
+export let jetInto: usize = 0;
+export let jetLabel: usize = 0;
+
+export let finalJet: usize = 0;
+export let finalOrder: usize = 0;
+export let finalScratch: usize = 0;
+export let finalPt: usize = 0;
+export let redo: usize = 0;
+
+export let offDr: usize = 0;
+export let offDc: usize = 0;
+export let offDist: usize = 0;
+export let offPerm: usize = 0;
+export let offScratch: usize = 0;
+export let offTmpI: usize = 0;
+export let offTmpF: usize = 0;
+
+// @ts-ignore: decorator
+@inline export function getF64(base: usize, i: i32): f64 { return load<f64>(base + (<usize>i << 3)); }
+// @ts-ignore: decorator
+@inline export function setF64(base: usize, i: i32, v: f64): void { store<f64>(base + (<usize>i << 3), v); }
+// @ts-ignore: decorator
+@inline export function getI32(base: usize, i: i32): i32 { return load<i32>(base + (<usize>i << 2)); }
+// @ts-ignore: decorator
+@inline export function setI32(base: usize, i: i32, v: i32): void { store<i32>(base + (<usize>i << 2), v); }
+
+let cursor: usize = 0;
+
+function take(bytes: usize): usize {
+  const at = cursor;
+  cursor = (cursor + bytes + 15) & ~<usize>15;
+  return at;
+}
+
+/** Lays out every region; returns false when memory cannot grow that far. Called once. */
+export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventCapacity: i32): bool {
+  etaBins = etaCount;
+  phiBins = phiCount;
+  const c = etaCount * phiCount;
+  cellTotal = c;
+  let p = 1;
+  while (p < c) p <<= 1;
+  treeLeaves = p;
+  batchTowers = towerCapacity;
+  batchEvents = eventCapacity;
+  const inCap = <usize>towerCapacity;
+  const evCap = <usize>eventCapacity;
+  const cells = <usize>c;
+  const jets = cells << 1;
+  cursor = (__heap_base + 15) & ~<usize>15;
+
+  etaCentre = take(<usize>etaCount << 3);
+  sinhEta = take(<usize>etaCount << 3);
+  coshEta = take(<usize>etaCount << 3);
+  phiCentre = take(<usize>phiCount << 3);
+  cosPhi = take(<usize>phiCount << 3);
+  sinPhi = take(<usize>phiCount << 3);
+
+  inIndex = take(inCap << 2);
+  inEt = take(inCap << 3);
+  inStart = take((evCap + 1) << 2);
+
+  outJetStart = take((evCap + 1) << 2);
+  outNs = take(evCap << 3);
+  outClustered = take(evCap << 2);
+  outStatus = take(evCap << 2);
+  outPx = take(inCap << 3);
+  outPy = take(inCap << 3);
+  outPz = take(inCap << 3);
+  outE = take(inCap << 3);
+  outPt = take(inCap << 3);
+  outY = take(inCap << 3);
+  outPhi = take(inCap << 3);
+  outMass = take(inCap << 3);
+  outTowerCount = take(inCap << 2);
+  outTowerStart = take(inCap << 2);
+  outTowers = take(inCap << 2);
+
+  evIndex = take(cells << 2);
+  evEt = take(cells << 3);
+  sortIndex = take(cells << 2);
+  sortEt = take(cells << 3);
+  radixCount = take(<usize>RADIX_BUCKETS << 2);
+
+  cellY = take(cells << 3);
+  cellPhi = take(cells << 3);
+  cellW = take(cells << 3);
+  cellNnDR2 = take(cells << 3);
+  cellNnKey = take(cells << 3);
+  candValue = take(<usize>p << 3);
+  cellJet = take(cells << 2);
+  cellNn = take(cells << 2);
+  pointHead = take(cells << 2);
+  pointNext = take(cells << 2);
+  pointPrev = take(cells << 2);
+  candLo = take(<usize>p << 2);
+  candHi = take(<usize>p << 2);
+  cellWide = take(cells << 2);
+
+  tree = take(<usize>p << 3); // 2P entries of i32
+
+  jetPx = take(jets << 3);
+  jetPy = take(jets << 3);
+  jetPz = take(jets << 3);
+  jetE = take(jets << 3);
+  jetKt2 = take(jets << 3);
+  jetY = take(jets << 3);
+  jetPhi = take(jets << 3);
+  jetInto = take(jets << 2);
+  jetLabel = take(jets << 2);
+
+  finalJet = take(cells << 2);
+  finalOrder = take(cells << 2);
+  finalScratch = take(cells << 2);
+  finalPt = take(cells << 3);
+  redo = take(cells << 2);
+
+  offDr = take(<usize>OFFSET_LIMIT << 2);
+  offDc = take(<usize>OFFSET_LIMIT << 2);
+  offDist = take(<usize>OFFSET_LIMIT << 3);
+  offPerm = take(<usize>OFFSET_LIMIT << 2);
+  offScratch = take(<usize>OFFSET_LIMIT << 2);
+  offTmpI = take(<usize>OFFSET_LIMIT << 2);
+  offTmpF = take(<usize>OFFSET_LIMIT << 3);
+
+  const have = <usize>memory.size() << 16;
+  if (cursor > have) {
+    const pages = <i32>((cursor - have + 0xffff) >> 16);
+    if (memory.grow(pages) < 0) return false;
+  }
+  return true;
+}

@@ -1,0 +1,120 @@
+// The clustering sequence of one event (clustering-spec.md section 4): towers enter as jets
+// 0..N-1, every cell keeps its jet's nearest neighbour and candidate, the tournament tree gives
+// the smallest candidate, and after each step only the jets that lost their neighbour search
+// again; the new jet offers itself to the jets around it.
+//
+// Per jet: jetInto i32 (the jet it was merged into, -1 while alive or once final).
+// finalJet i32[finalCount]: the final jets in the order they became final. redo i32: the cells
+// whose neighbour went away in the current step.
+
+import { evIndex, evEt, cellJet, cellNn, candHi, jetInto, jetY, jetPhi, finalJet, redo,
+  getF64, getI32, setI32 } from './layout';
+import { BEAM } from './settings';
+import { loadTower, mergeJets } from './kinematics';
+import { resetDrift, placeJet, clearCell, unlink, detachPointers, containingCell,
+  centreOffsetY, centreOffsetPhi } from './cells';
+import { findNeighbour, scanNewJet } from './tiles';
+import { buildTree, updateTree, treeWinner } from './tournament';
+
+export let finalCount: i32 = 0;
+export let jetCount: i32 = 0;
+
+function redoSearches(count: i32, skip: i32): void {
+  for (let k = 0; k < count; k++) {
+    const c = getI32(redo, k);
+    if (c == skip || getI32(cellJet, c) < 0) continue;
+    findNeighbour(c);
+    updateTree(c);
+  }
+}
+
+function finish(c: i32): void {
+  setI32(finalJet, finalCount++, getI32(cellJet, c));
+  const count = detachPointers(c, redo, 0);
+  unlink(c);
+  clearCell(c);
+  updateTree(c);
+  redoSearches(count, -1);
+}
+
+function merge(ca: i32, cb: i32): void {
+  const i = getI32(cellJet, ca);
+  const j = getI32(cellJet, cb);
+  const a = min<i32>(i, j);
+  const b = max<i32>(i, j);
+  const k = jetCount++;
+  mergeJets(a, b, k);
+  setI32(jetInto, i, k);
+  setI32(jetInto, j, k);
+  setI32(jetInto, k, -1);
+
+  let count = detachPointers(ca, redo, 0);
+  count = detachPointers(cb, redo, count);
+  unlink(ca);
+  unlink(cb);
+  clearCell(ca);
+  clearCell(cb);
+
+  // the free cell that contains the new jet, else the nearer parent cell
+  const y = getF64(jetY, k);
+  const phi = getF64(jetPhi, k);
+  let ck = containingCell(y, phi);
+  if (ck < 0 || getI32(cellJet, ck) >= 0) {
+    const da = centreOffsetY(ca, y) + centreOffsetPhi(ca, phi);
+    const db = centreOffsetY(cb, y) + centreOffsetPhi(cb, phi);
+    ck = db < da ? cb : ca;
+  }
+  placeJet(ck, k);
+  scanNewJet(ck);
+  updateTree(ck);
+  if (ca != ck) updateTree(ca);
+  if (cb != ck) updateTree(cb);
+  redoSearches(count, ck);
+}
+
+/** Clusters the n towers in evIndex/evEt; the final jets end up in finalJet[0..finalCount). */
+export function clusterTowers(n: i32): void {
+  resetDrift();
+  finalCount = 0;
+  jetCount = n;
+  for (let t = 0; t < n; t++) {
+    loadTower(t, getI32(evIndex, t), getF64(evEt, t));
+    setI32(jetInto, t, -1);
+    placeJet(getI32(evIndex, t), t);
+  }
+  for (let t = 0; t < n; t++) findNeighbour(getI32(evIndex, t));
+  buildTree();
+  let live = n;
+  while (live > 0) {
+    const c = treeWinner();
+    if (getI32(candHi, c) == BEAM) {
+      finish(c);
+    } else {
+      merge(c, getI32(cellNn, c));
+    }
+    live--;
+  }
+}
+
+/** The first neighbour table of the n towers in evIndex/evEt, as jet indices (-1: none within
+ * the reach) into out; the cells are left empty. */
+export function firstNeighbours(n: i32, out: usize): void {
+  resetDrift();
+  for (let t = 0; t < n; t++) {
+    loadTower(t, getI32(evIndex, t), getF64(evEt, t));
+    placeJet(getI32(evIndex, t), t);
+  }
+  for (let t = 0; t < n; t++) findNeighbour(getI32(evIndex, t));
+  for (let t = 0; t < n; t++) {
+    const q = getI32(cellNn, getI32(evIndex, t));
+    setI32(out, t, q < 0 ? -1 : getI32(cellJet, q));
+  }
+  for (let t = 0; t < n; t++) {
+    const c = getI32(evIndex, t);
+    detachPointers(c, redo, 0);
+  }
+  for (let t = 0; t < n; t++) {
+    const c = getI32(evIndex, t);
+    clearCell(c);
+  }
+}

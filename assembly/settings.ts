@@ -1,0 +1,39 @@
+// Algorithm settings of one engine instance, fixed by configure() (called once from the host).
+
+// @ts-ignore: decorator
+@inline export const BEAM: i32 = 0x7fffffff;
+// @ts-ignore: decorator
+@inline export const PI: f64 = 3.141592653589793;
+// @ts-ignore: decorator
+@inline export const TWO_PI: f64 = 6.283185307179586;
+
+/** 0: p = -1, 1: p = 0, 2: p = 1, 3: any other p (Math.pow) */
+export let pMode: i32 = 0;
+export let pValue: f64 = -1;
+export let invR2: f64 = 0;
+/** squared reach of the neighbour search: a pair can only win when dR2 <= R*R up to a few ulp */
+export let reach2: f64 = 0;
+/** sqrt(reach2) widened again, for choosing cells (never for deciding a pair) */
+export let reach: f64 = 0;
+export let ptMin: f64 = 0;
+export let threshold: f64 = 0;
+export let winnerTakeAll: bool = false;
+export let etaMin: f64 = 0;
+/** approximate row and column pitch, for choosing cells only */
+export let etaPitch: f64 = 0;
+export let phiPitch: f64 = 0;
+
+export function configure(p: f64, radius: f64, ptMinGeV: f64, thresholdGeV: f64, wta: i32,
+  etaLow: f64, etaHigh: f64, etaCount: i32, phiCount: i32): void {
+  pValue = p;
+  pMode = p == -1 ? 0 : p == 0 ? 1 : p == 1 ? 2 : 3;
+  invR2 = 1 / (radius * radius);
+  reach2 = radius * radius * (1 + 1e-9);
+  reach = Math.sqrt(reach2) * (1 + 1e-9) + 1e-12;
+  ptMin = ptMinGeV;
+  threshold = thresholdGeV;
+  winnerTakeAll = wta != 0;
+  etaMin = etaLow;
+  etaPitch = (etaHigh - etaLow) / <f64>etaCount;
+  phiPitch = TWO_PI / <f64>phiCount;
+}

@@ -1,0 +1,279 @@
+// Nearest-neighbour searches over the cells (clustering-spec.md section 4: nn(i) is the jet j
+// with the smallest key ((w_i * dR2_ij) * invR2, j), jet i's own weight). Only jets within the
+// reach (dR2 <= R*R*(1 + 1e-9)) are sought: a farther pair always loses to a beam, so it can
+// never be the step's choice. Jets with a weight outside the safe range ("wide") look at all jets.
+//
+// Three ways to search, all exact:
+// - ordered: cell offsets (offDr, offDc) sorted by the distance between cell centres (offDist,
+//   a lower bound), visited nearest first; stops once no farther cell can hold a jet as close
+//   as the best so far, allowing for how far jets sit from their cell centres (drift).
+// - window: every cell whose centre lies within reach + drift of the jet, row by row; the φ
+//   range wraps at the seam and is cut into at most two contiguous runs.
+// - all cells (wide jets).
+// A new jet scans its window once: it finds its own neighbour and offers itself to each jet
+// there, which takes it only when it is strictly nearer by that jet's key (ties go to the older
+// jet, as the new one has the largest index).
+
+import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellWide,
+  etaBins, phiBins, offDr, offDc, offDist, offPerm, offScratch, offTmpI, offTmpF, OFFSET_LIMIT,
+  getF64, setF64, getI32, setI32 } from './layout';
+import { invR2, reach2, reach, etaMin, etaPitch, phiPitch, BEAM } from './settings';
+import { deltaR2 } from './kinematics';
+import { driftY, driftPhi, driftNorm, wideCount, centreOffsetY, centreOffsetPhi, setNeighbour } from './cells';
+import { updateTree } from './tournament';
+import { sortPermutation } from './sort';
+
+let offCount: i32 = 0;
+/** every offset whose centre distance is at most this is in the list */
+let offReach: f64 = 0;
+
+let bestCell: i32 = -1;
+let bestJet: i32 = BEAM;
+let bestDR2: f64 = Infinity;
+let bestKey: f64 = Infinity;
+
+// the current window: rows winRow0..winRow1, columns runA0..runA1 and runB0..runB1 (B may be empty)
+let winRow0: i32 = 0;
+let winRow1: i32 = -1;
+let runA0: i32 = 0;
+let runA1: i32 = -1;
+let runB0: i32 = 0;
+let runB1: i32 = -1;
+
+/** Called once per engine, after configure(). */
+export function buildOffsets(): void {
+  const pitch = max<f64>(etaPitch, phiPitch);
+  const dcLow = -((phiBins - 1) >> 1);
+  const dcHigh = phiBins >> 1;
+  let limit = reach + 3 * pitch;
+  let rows = 0;
+  let count = 0;
+  for (;;) {
+    rows = <i32>min<f64>(<f64>(etaBins - 1), ceil<f64>(limit / etaPitch));
+    count = 0;
+    for (let dr = -rows; dr <= rows; dr++) {
+      for (let dc = dcLow; dc <= dcHigh; dc++) {
+        if (dr == 0 && dc == 0) continue;
+        if (centreDistance(dr, dc) <= limit) count++;
+      }
+    }
+    if (count <= OFFSET_LIMIT) break;
+    limit *= 0.75;
+  }
+  const complete = limit / etaPitch >= <f64>(etaBins - 1) && limit / phiPitch >= <f64>(phiBins >> 1);
+  offReach = complete ? Infinity : limit;
+  let n = 0;
+  for (let dr = -rows; dr <= rows; dr++) {
+    for (let dc = dcLow; dc <= dcHigh; dc++) {
+      if (dr == 0 && dc == 0) continue;
+      const dist = centreDistance(dr, dc);
+      if (dist > limit) continue;
+      setI32(offTmpI, n, (dr << 16) | (dc & 0xffff));
+      setF64(offTmpF, n, dist);
+      setI32(offPerm, n, n);
+      n++;
+    }
+  }
+  sortPermutation(offPerm, offScratch, n, offTmpF, 0);
+  // centres can sit a few ulp off the ideal lattice: shave the bound a little
+  const ulpScale = 1e-15 * (abs<f64>(etaMin) + abs<f64>(etaMin + etaPitch * <f64>etaBins) + 8);
+  for (let o = 0; o < n; o++) {
+    const from = getI32(offPerm, o);
+    const packed = getI32(offTmpI, from);
+    setI32(offDr, o, packed >> 16);
+    setI32(offDc, o, <i32>(<i16>(packed & 0xffff)));
+    setF64(offDist, o, getF64(offTmpF, from) * (1 - 1e-9) - 4 * ulpScale);
+  }
+  offCount = n;
+}
+
+function centreDistance(dr: i32, dc: i32): f64 {
+  const adc = abs<i32>(dc);
+  const ay = <f64>abs<i32>(dr) * etaPitch;
+  const ap = <f64>min<i32>(adc, phiBins - adc) * phiPitch;
+  return sqrt<f64>(ay * ay + ap * ap);
+}
+
+// @ts-ignore: decorator
+@inline function resetBest(): void {
+  bestCell = -1;
+  bestJet = BEAM;
+  bestDR2 = Infinity;
+  bestKey = Infinity;
+}
+
+// @ts-ignore: decorator
+@inline function offerBest(q: i32, d: f64, key: f64): bool {
+  const j = getI32(cellJet, q);
+  if (key < bestKey || (key == bestKey && j < bestJet)) {
+    bestCell = q;
+    bestJet = j;
+    bestDR2 = d;
+    bestKey = key;
+    return true;
+  }
+  return false;
+}
+
+/** Nearest first over the offsets; false when the list ran out before the search could stop. */
+function searchOrdered(c: i32): bool {
+  const y = getF64(cellY, c);
+  const phi = getF64(cellPhi, c);
+  const w = getF64(cellW, c);
+  const row = c / phiBins;
+  const col = c - row * phiBins;
+  const dyq = centreOffsetY(c, y);
+  const dpq = centreOffsetPhi(c, phi);
+  const slack = sqrt<f64>(dyq * dyq + dpq * dpq) + driftNorm + 1e-12;
+  let limit = reach;
+  const n = offCount;
+  const rowCount = <u32>etaBins;
+  const colCount = phiBins;
+  for (let o = 0; o < n; o++) {
+    if (getF64(offDist, o) - slack > limit) return true;
+    const r = row + getI32(offDr, o);
+    if (<u32>r >= rowCount) continue;
+    let cc = col + getI32(offDc, o);
+    if (cc < 0) cc += colCount;
+    else if (cc >= colCount) cc -= colCount;
+    const q = r * colCount + cc;
+    const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
+    if (!(d <= reach2)) continue; // empty cells have y = +Inf
+    if (offerBest(q, d, (w * d) * invR2)) limit = min<f64>(limit, sqrt<f64>(d) * (1 + 1e-8));
+  }
+  return offReach - slack > limit;
+}
+
+/** Sets the window of cells that can hold a jet within the reach of (y, phi). */
+function setWindow(y: f64, phi: f64): void {
+  const ry = (reach + driftY) / etaPitch;
+  const rp = (reach + driftPhi) / phiPitch;
+  const u = (y - etaMin) / etaPitch - 0.5;
+  const r0 = floor<f64>(u - ry);
+  const r1 = ceil<f64>(u + ry);
+  if (r0 == r0 && r1 == r1) {
+    winRow0 = <i32>max<f64>(r0, 0);
+    winRow1 = <i32>min<f64>(r1, <f64>(etaBins - 1));
+  } else {
+    winRow0 = 0;
+    winRow1 = etaBins - 1;
+  }
+  const v = phi / phiPitch - 0.5;
+  const c0 = floor<f64>(v - rp);
+  const c1 = ceil<f64>(v + rp);
+  runB0 = 0;
+  runB1 = -1;
+  if (!(c1 - c0 + 1 < <f64>phiBins)) {
+    runA0 = 0;
+    runA1 = phiBins - 1;
+    return;
+  }
+  const length = <i32>(c1 - c0) + 1;
+  let first = <i32>c0 % phiBins;
+  if (first < 0) first += phiBins;
+  runA0 = first;
+  if (first + length <= phiBins) {
+    runA1 = first + length - 1;
+  } else {
+    runA1 = phiBins - 1;
+    runB1 = first + length - 1 - phiBins;
+  }
+}
+
+function searchWindowRun(c: i32, y: f64, phi: f64, w: f64, from: i32, to: i32): void {
+  for (let q = from; q <= to; q++) {
+    const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
+    if (!(d <= reach2) || q == c) continue;
+    offerBest(q, d, (w * d) * invR2);
+  }
+}
+
+function searchWindow(c: i32): void {
+  const y = getF64(cellY, c);
+  const phi = getF64(cellPhi, c);
+  const w = getF64(cellW, c);
+  setWindow(y, phi);
+  for (let r = winRow0; r <= winRow1; r++) {
+    const base = r * phiBins;
+    searchWindowRun(c, y, phi, w, base + runA0, base + runA1);
+    if (runB1 >= runB0) searchWindowRun(c, y, phi, w, base + runB0, base + runB1);
+  }
+}
+
+function searchAll(c: i32): void {
+  const y = getF64(cellY, c);
+  const phi = getF64(cellPhi, c);
+  const w = getF64(cellW, c);
+  for (let q = 0; q < cellTotal; q++) {
+    if (q == c || getI32(cellJet, q) < 0) continue;
+    const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
+    offerBest(q, d, (w * d) * invR2);
+  }
+}
+
+/** Finds cell c's neighbour from scratch and sets it (the tree is the caller's). */
+export function findNeighbour(c: i32): void {
+  resetBest();
+  if (getI32(cellWide, c) != 0) searchAll(c);
+  else if (!searchOrdered(c)) {
+    resetBest();
+    searchWindow(c);
+  }
+  setNeighbour(c, bestCell, bestDR2, bestKey);
+}
+
+// @ts-ignore: decorator
+@inline function offerNewJet(q: i32, ck: i32, d: f64): void {
+  const key = (getF64(cellW, q) * d) * invR2;
+  if (key < getF64(cellNnKey, q)) {
+    setNeighbour(q, ck, d, key);
+    updateTree(q);
+  }
+}
+
+function scanRun(ck: i32, y: f64, phi: f64, w: f64, wide: bool, from: i32, to: i32): void {
+  for (let q = from; q <= to; q++) {
+    if (q == ck) continue;
+    const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
+    if (d <= reach2) {
+      offerBest(q, d, (w * d) * invR2);
+      if (d < getF64(cellNnDR2, q)) offerNewJet(q, ck, d);
+    } else if (wide && getI32(cellJet, q) >= 0) {
+      offerBest(q, d, (w * d) * invR2);
+      if (getI32(cellWide, q) != 0 && d < getF64(cellNnDR2, q)) offerNewJet(q, ck, d);
+    }
+  }
+}
+
+/**
+ * The new jet in cell ck: its own neighbour, and its offers to the jets around it (and to every
+ * wide jet). The tree is updated for the jets that take it; ck's own leaf is the caller's.
+ */
+export function scanNewJet(ck: i32): void {
+  const y = getF64(cellY, ck);
+  const phi = getF64(cellPhi, ck);
+  const w = getF64(cellW, ck);
+  const wide = getI32(cellWide, ck) != 0;
+  resetBest();
+  if (wide) {
+    scanRun(ck, y, phi, w, true, 0, cellTotal - 1);
+  } else {
+    setWindow(y, phi);
+    for (let r = winRow0; r <= winRow1; r++) {
+      const base = r * phiBins;
+      scanRun(ck, y, phi, w, false, base + runA0, base + runA1);
+      if (runB1 >= runB0) scanRun(ck, y, phi, w, false, base + runB0, base + runB1);
+    }
+  }
+  const bc = bestCell;
+  const bd = bestDR2;
+  const bk = bestKey;
+  if (wideCount > (wide ? 1 : 0)) {
+    for (let q = 0; q < cellTotal; q++) {
+      if (q == ck || getI32(cellWide, q) == 0) continue;
+      const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
+      if (d < getF64(cellNnDR2, q)) offerNewJet(q, ck, d);
+    }
+  }
+  setNeighbour(ck, bc, bd, bk);
+}
