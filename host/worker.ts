@@ -21,6 +21,7 @@ import { binDeposits, findInvalidTower, makeGridTables, MIN_ET, type GridTables 
 import { ReferenceClusterer } from './reference.js';
 import { firstJetDifference, type JetDifference } from './bit-exact.js';
 import type { ClusterSettings, Clusterer, Grid, JetSet } from './types.js';
+import { batchEventJets, WasmClusterer, type BatchJets } from './engine.js';
 
 export const STAGE_COUNT = 5; // decode, bin, cluster, check, encode (summary.ts STAGES)
 export const STATUS_OK = 0;
@@ -126,18 +127,22 @@ interface WorkerState {
   reference: ReferenceClusterer | null;
   decoder: EventRecordDecoder;
   seen: Uint8Array;
+  /** the valid events of the batch being worked on: their towers, flat, and their places */
+  batchIndex: Int32Array;
+  batchEt: Float64Array;
+  batchStart: Int32Array;
+  validEvent: Int32Array;
   encodeJets: ((event: number, jets: JetSet | null, clusterNs: number, error: string) => Uint8Array) | null;
 }
 
 let state: WorkerState | null = null;
 
-async function makeClusterer(config: WorkerConfig): Promise<Clusterer> {
+function makeClusterer(config: WorkerConfig): Clusterer {
   if (config.engine === 'reference') return new ReferenceClusterer(config.grid, config.settings);
   try {
-    const engineModule: { WasmClusterer: new (grid: Grid, settings: ClusterSettings) => Clusterer } =
-      await import(/* engine module, built from assembly/ */ './engine.js' as string);
-    return new engineModule.WasmClusterer(config.grid, config.settings);
+    return new WasmClusterer(config.grid, config.settings);
   } catch (error) {
+    // 'auto' only: the engine is not built (or refuses these settings); the reference stands in
     if (config.engine === 'auto') return new ReferenceClusterer(config.grid, config.settings);
     throw error;
   }
@@ -153,10 +158,14 @@ async function makeState(config: WorkerConfig): Promise<WorkerState> {
   return {
     config,
     tables,
-    clusterer: await makeClusterer(config),
+    clusterer: makeClusterer(config),
     reference: config.checkFraction > 0 ? new ReferenceClusterer(config.grid, config.settings) : null,
     decoder: new EventRecordDecoder(),
     seen: new Uint8Array(tables.towerTotal),
+    batchIndex: new Int32Array(1 << 16),
+    batchEt: new Float64Array(1 << 16),
+    batchStart: new Int32Array(1),
+    validEvent: new Int32Array(0),
     encodeJets,
   };
 }
@@ -177,7 +186,11 @@ export default async function runBatch(task: BatchTask): Promise<unknown> {
     if (FAULT.kind === 'stall') await sleep(FAULT.ms);
   }
   if (!state) state = await makeState(piscinaWorkerData as WorkerConfig);
-  if (!state.clusterer) state.clusterer = await makeClusterer(state.config);
+  if (!state.clusterer) state.clusterer = makeClusterer(state.config);
+  if (state.validEvent.length < task.count) {
+    state.validEvent = new Int32Array(task.count);
+    state.batchStart = new Int32Array(task.count + 1);
+  }
   try {
     const result = clusterBatch(state, task);
     return move({
@@ -189,6 +202,23 @@ export default async function runBatch(task: BatchTask): Promise<unknown> {
     state.clusterer = null;
     throw error;
   }
+}
+
+/** A clusterer that takes a whole batch per call (the wasm engine, host/engine.ts). */
+interface BatchClusterer extends Clusterer {
+  clusterBatch(eventCount: number, towerStart: Int32Array, towerIndex: Int32Array, towerEt: Float64Array, withTowers: boolean): BatchJets;
+}
+
+function hasBatchApi(clusterer: Clusterer): clusterer is BatchClusterer {
+  return typeof (clusterer as Partial<BatchClusterer>).clusterBatch === 'function';
+}
+
+/** Grows a typed array to at least `needed` entries, keeping its contents. */
+function grown<T extends Int32Array | Float64Array>(array: T, needed: number): T {
+  if (array.length >= needed) return array;
+  const bigger = new (array.constructor as { new (n: number): T })(Math.max(needed, 2 * array.length));
+  bigger.set(array);
+  return bigger;
 }
 
 function clusterBatch(s: WorkerState, task: BatchTask): BatchResult {
@@ -209,6 +239,11 @@ function clusterBatch(s: WorkerState, task: BatchTask): BatchResult {
   let towersBelowThreshold = 0;
   let towersOutsideAcceptance = 0;
 
+  // phase 1, per event: decode, validate and bin; valid events' towers are gathered into one
+  // flat batch (s.batchIndex/s.batchEt, event v's towers at batchStart[v]..batchStart[v+1])
+  const validEvent = s.validEvent;
+  let valid = 0;
+  s.batchStart[0] = 0;
   for (let k = 0; k < count; k++) {
     const stage = k * STAGE_COUNT;
     const t0 = nowNs();
@@ -249,60 +284,91 @@ function clusterBatch(s: WorkerState, task: BatchTask): BatchResult {
         problem = findInvalidTower(tables, towerIndex, towerEt, seen);
       }
     }
-    let clustered = 0;
+    out.eventNumber[k] = event;
     if (problem === null) {
+      let clustered = 0;
       for (let t = 0; t < towerEt!.length; t++) {
         const et = towerEt![t];
         if (et > threshold && et >= MIN_ET) clustered++;
       }
       towersOffered += towerEt!.length;
       towersBelowThreshold += towerEt!.length - clustered;
-    }
-    const t2 = nowNs();
-
-    out.eventNumber[k] = event;
-    out.towersClustered[k] = clustered;
-    if (problem !== null) {
+      out.towersClustered[k] = clustered;
+      const from = s.batchStart[valid];
+      const to = from + towerIndex!.length;
+      s.batchIndex = grown(s.batchIndex, to);
+      s.batchEt = grown(s.batchEt, to);
+      s.batchIndex.set(towerIndex!, from);
+      s.batchEt.set(towerEt!, from);
+      validEvent[valid++] = k;
+      s.batchStart[valid] = to;
+      out.status[k] = STATUS_OK;
+    } else {
       out.status[k] = STATUS_INVALID;
       invalid.push({ index: k, reason: problem });
-      if (s.encodeJets && event >= 0) jetChunks.push(s.encodeJets(event, null, 0, problem));
-      const tEnd = nowNs();
-      out.stageNs[stage] = t1 - t0;
-      out.stageNs[stage + 1] = tEnd - t1;
+    }
+    out.stageNs[stage] = t1 - t0;
+    out.stageNs[stage + 1] = nowNs() - t1;
+  }
+
+  // phase 2: cluster the valid events, one engine call for the whole batch
+  const withTowers = s.reference !== null || s.encodeJets !== null;
+  let jetsOf: (v: number) => JetSet;
+  if (hasBatchApi(clusterer)) {
+    const batch = clusterer.clusterBatch(valid, s.batchStart, s.batchIndex, s.batchEt, withTowers);
+    for (let v = 0; v < valid; v++) {
+      if (batch.status[v] !== 0) throw new Error(`engine refused event ${out.eventNumber[validEvent[v]]} that passed validation (status ${batch.status[v]})`);
+      out.stageNs[validEvent[v] * STAGE_COUNT + 2] = batch.clusterNs[v];
+    }
+    jetsOf = (v) => batchEventJets(batch, v);
+  } else {
+    const sets: JetSet[] = [];
+    for (let v = 0; v < valid; v++) {
+      const t2 = nowNs();
+      sets.push(clusterer.cluster(s.batchIndex.subarray(s.batchStart[v], s.batchStart[v + 1]), s.batchEt.subarray(s.batchStart[v], s.batchStart[v + 1])));
+      out.stageNs[validEvent[v] * STAGE_COUNT + 2] = nowNs() - t2;
+    }
+    jetsOf = (v) => sets[v];
+  }
+
+  // phase 3, per event in input order: check (sampled), encode; invalid events keep their
+  // place in the jets file as records with the error text
+  let v = 0;
+  for (let k = 0; k < count; k++) {
+    const stage = k * STAGE_COUNT;
+    const event = out.eventNumber[k];
+    if (out.status[k] !== STATUS_OK) {
+      if (s.encodeJets && event >= 0) jetChunks.push(s.encodeJets(event, null, 0, invalid.find((e) => e.index === k)!.reason));
       continue;
     }
-
-    const jets = clusterer.cluster(towerIndex!, towerEt!);
-    const t3 = nowNs();
+    const jets = jetsOf(v);
+    const from = s.batchStart[v];
+    const to = s.batchStart[v + 1];
+    v++;
     jetsTotal += jets.count;
-
+    const t3 = nowNs();
     let t4 = t3;
     if (s.reference && inCheckSample(event, config.checkFraction, config.checkSeed)) {
-      const reference = s.reference.cluster(towerIndex!, towerEt!);
+      const reference = s.reference.cluster(s.batchIndex.subarray(from, to), s.batchEt.subarray(from, to));
       const difference = firstJetDifference(jets, reference);
       checked++;
       if (difference === null) agreeing++;
       else differences.push({ event, ...difference });
       t4 = nowNs();
     }
-
     let t5 = t4;
     if (s.encodeJets) {
-      jetChunks.push(s.encodeJets(event, jets, Math.round(t3 - t2), ''));
+      jetChunks.push(s.encodeJets(event, jets, Math.round(out.stageNs[stage + 2]), ''));
       t5 = nowNs();
     }
-    out.status[k] = STATUS_OK;
     if (SYNTHETIC_TIMES) {
       // a fixed function of the event: decode 1 µs, bin 2 µs, cluster 50 ns per tower + 1 µs
       out.stageNs[stage] = 1000;
       out.stageNs[stage + 1] = 2000;
-      out.stageNs[stage + 2] = 1000 + 50 * clustered;
+      out.stageNs[stage + 2] = 1000 + 50 * out.towersClustered[k];
       out.stageNs[stage + 3] = t4 > t3 ? 500 : 0;
       out.stageNs[stage + 4] = t5 > t4 ? 300 : 0;
     } else {
-      out.stageNs[stage] = t1 - t0;
-      out.stageNs[stage + 1] = t2 - t1;
-      out.stageNs[stage + 2] = t3 - t2;
       out.stageNs[stage + 3] = t4 - t3;
       out.stageNs[stage + 4] = t5 - t4;
     }
