@@ -17,6 +17,7 @@ import { describeMachine, renderSummary, RunTally, STAGES, type RunConfiguration
 import { ProgressBar } from './progress.js';
 import { DEFAULT_SETTINGS, type ClusterSettings, type Grid } from './types.js';
 import { describeDifference } from './bit-exact.js';
+import { encodeJetsFileHeader } from './jets-codec.js';
 
 /**
  * Default events per batch. Measured with bench/pool.bench.ts on this 2-core machine (see the
@@ -141,11 +142,12 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
     checkSeed: check.seed,
     encodeJets: Boolean(options.out),
   };
-  if (options.out) {
-    const { encodeJetsFileHeader } = await import('./jets-codec.js' as string);
+  // the jets file is opened on the first result, when the workers' engine is known
+  const openJetsFile = (engine: string) => {
+    if (jetsFile || !options.out) return;
     jetsFile = new AtomicFile(options.out);
-    jetsFile.write(encodeJetsFileHeader(grid, { ...settings, engine: engineName }));
-  }
+    jetsFile.write(encodeJetsFileHeader(grid, { ...settings, engine }, { producer: 'jetlag 0.1.0 run', label: source.header.label }));
+  };
 
   const deliver = (outcome: BatchOutcome) => {
     const { count, result } = outcome;
@@ -194,7 +196,10 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
       tally.addDifference(difference);
       problem(`${label}: check: ${describeDifference(difference.event, difference)}`);
     }
-    if (jetsFile && result.jetsBytes) jetsFile.write(result.jetsBytes);
+    if (options.out && result.jetsBytes) {
+      openJetsFile(result.engine);
+      jetsFile!.write(result.jetsBytes);
+    }
   };
 
   let lastOffset = 0;
@@ -254,7 +259,7 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
     if (builder.count > 0) await send();
     await pool.drain();
   } catch (error) {
-    jetsFile?.abandon();
+    (jetsFile as AtomicFile | null)?.abandon();
     throw error;
   } finally {
     progress.stop();
@@ -262,7 +267,8 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   }
   const wallSeconds = (nowNs() - startNs) / 1e9;
   tally.bytesRead = lastOffset;
-  jetsFile?.commit();
+  openJetsFile(engineName);
+  (jetsFile as AtomicFile | null)?.commit();
 
   const configuration: RunConfiguration = {
     file: label,

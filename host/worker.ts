@@ -22,6 +22,7 @@ import { ReferenceClusterer } from './reference.js';
 import { firstJetDifference, type JetDifference } from './bit-exact.js';
 import type { ClusterSettings, Clusterer, Grid, JetSet } from './types.js';
 import { batchEventJets, WasmClusterer, type BatchJets } from './engine.js';
+import { encodeDelimitedJetsRecord } from './jets-codec.js';
 
 export const STAGE_COUNT = 5; // decode, bin, cluster, check, encode (summary.ts STAGES)
 export const STATUS_OK = 0;
@@ -148,13 +149,9 @@ function makeClusterer(config: WorkerConfig): Clusterer {
   }
 }
 
-async function makeState(config: WorkerConfig): Promise<WorkerState> {
+function makeState(config: WorkerConfig): WorkerState {
   const tables = makeGridTables(config.grid);
-  let encodeJets: WorkerState['encodeJets'] = null;
-  if (config.encodeJets) {
-    const codec = await import('./jets-codec.js' as string);
-    encodeJets = codec.encodeDelimitedJetsRecord;
-  }
+  const encodeJets = config.encodeJets ? encodeDelimitedJetsRecord : null;
   return {
     config,
     tables,
@@ -185,7 +182,7 @@ export default async function runBatch(task: BatchTask): Promise<unknown> {
     if (FAULT.kind === 'exit') process.exit(3);
     if (FAULT.kind === 'stall') await sleep(FAULT.ms);
   }
-  if (!state) state = await makeState(piscinaWorkerData as WorkerConfig);
+  if (!state) state = makeState(piscinaWorkerData as WorkerConfig);
   if (!state.clusterer) state.clusterer = makeClusterer(state.config);
   if (state.validEvent.length < task.count) {
     state.validEvent = new Int32Array(task.count);

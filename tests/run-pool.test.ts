@@ -10,6 +10,10 @@ import { EventTowerReader } from '../host/event-towers.js';
 import { encodeEventRecord } from '../host/event-codec.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../host/types.js';
 import { toyEvents, writeEventFile } from './support/run-files.js';
+import { openRecordFile } from '../host/event-source.js';
+import { decodeJetsRecord } from '../host/jets-codec.js';
+import { ReferenceClusterer } from '../host/reference.js';
+import { firstJetDifference } from '../host/bit-exact.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'jetlag-run-'));
 const events = toyEvents(120, 17, 5);
@@ -162,5 +166,26 @@ describe('the pool', () => {
     } finally {
       await pool.close();
     }
+  });
+});
+
+describe('the jets file of a run', () => {
+  it('holds every event in input order with jets identical to the reference\'s', async () => {
+    const out = join(dir, 'toy.jets');
+    const summary = await runEvents({ input: file.path, workers: 2, batch: 5, out, check: { mode: 'none', fraction: 0, seed: 1 } });
+    expect(readdirSync(dir).filter((name) => name.includes('.tmp-'))).toEqual([]);
+    const source = await openRecordFile(out);
+    expect(source.format).toBe('jets-file');
+    expect(source.header.settings?.engine).toBe(summary.configuration.engine);
+    const reference = new ReferenceClusterer(DEFAULT_GRID, DEFAULT_SETTINGS);
+    let k = 0;
+    for await (const record of source.records) {
+      const decoded = decodeJetsRecord(record.bytes);
+      const input = events[k++];
+      expect(decoded.event).toBe(input.event);
+      const expected = reference.cluster(Int32Array.from(input.towerIndex!), Float64Array.from(input.towerEt!));
+      expect(firstJetDifference(decoded.jets, expected)).toBeNull();
+    }
+    expect(k).toBe(events.length);
   });
 });
