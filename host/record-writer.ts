@@ -5,6 +5,8 @@
 // is awaited until 'drain'.
 //
 // API
+//   OutputFile.open(path, { gzip?, stdout? }): bytes, temporary name, rename on close()
+//   TextFileWriter.open(path, options): .write(text), .close(), .abort() (CSV, JSON lines)
 //   RecordFileWriter.open(path, { gzip?, stdout? }): Promise<RecordFileWriter>
 //     .write(message): Promise<void> | undefined   appends varint length + message; await
 //                                                   the promise when one is returned
@@ -31,11 +33,11 @@ export interface WriterOptions {
   stdout?: NodeJS.WritableStream;
 }
 
-export class RecordFileWriter {
-  records = 0;
-  bytes = 0;
-  private block = new Uint8Array(BLOCK_BYTES);
-  private fill = 0;
+/**
+ * An output file written under a temporary name and renamed into place by close(); '-' is
+ * stdout. write() returns a promise when the stream asks to wait (backpressure).
+ */
+export class OutputFile {
   private failure: Error | null = null;
   private closed = false;
 
@@ -51,26 +53,95 @@ export class RecordFileWriter {
     if (file && file !== sink) file.on('error', remember);
   }
 
-  static async open(path: string, options: WriterOptions = {}): Promise<RecordFileWriter> {
+  static async open(path: string, options: WriterOptions = {}): Promise<OutputFile> {
     if (path === '-') {
       const stdout = options.stdout ?? process.stdout;
-      if (!options.gzip) return new RecordFileWriter(stdout, null, null, null, stdout);
+      if (!options.gzip) return new OutputFile(stdout, null, null, null, stdout);
       const gzip = createGzip();
       gzip.pipe(stdout as NodeJS.WritableStream, { end: false });
-      return new RecordFileWriter(gzip, null, null, null, stdout);
+      return new OutputFile(gzip, null, null, null, stdout);
     }
     const tempPath = join(dirname(path), `.${basename(path)}.${process.pid}.${Math.random().toString(36).slice(2, 8)}.tmp`);
     const file = createWriteStream(tempPath);
-    await once(file, 'open');
-    if (!options.gzip) return new RecordFileWriter(file, file, tempPath, path);
+    await new Promise<void>((resolve, reject) => {
+      file.once('open', () => resolve());
+      file.once('error', reject);
+    });
+    if (!options.gzip) return new OutputFile(file, file, tempPath, path);
     const gzip = createGzip();
     gzip.pipe(file);
-    return new RecordFileWriter(gzip, file, tempPath, path);
+    return new OutputFile(gzip, file, tempPath, path);
+  }
+
+  /** The stream keeps `bytes` until written: do not reuse them. */
+  write(bytes: Uint8Array): Promise<void> | undefined {
+    if (this.failure) return Promise.reject(this.failure);
+    if (this.sink.write(bytes)) return undefined;
+    return this.waitDrain();
+  }
+
+  private async waitDrain(): Promise<void> {
+    if (this.failure) throw this.failure;
+    await new Promise<void>((resolve, reject) => {
+      const onDrain = () => { cleanup(); resolve(); };
+      const onError = (error: Error) => { cleanup(); reject(error); };
+      const cleanup = () => { this.sink.off('drain', onDrain); this.sink.off('error', onError); };
+      this.sink.on('drain', onDrain);
+      this.sink.on('error', onError);
+    });
+  }
+
+  /** Ends the output and renames the temporary file into place (stdout is left open). */
+  async close(): Promise<void> {
+    if (this.closed) return;
+    this.closed = true;
+    if (this.failure) { await this.dropTemp(); throw this.failure; }
+    if (this.finalPath === null) {
+      if (this.sink !== this.stdoutTarget) {
+        // gzip to stdout: end the gzip stream (never stdout itself) and let it drain into stdout
+        const ended = once(this.sink, 'end');
+        this.sink.end();
+        await ended;
+      }
+      return;
+    }
+    const done = once(this.file!, 'close');
+    this.sink.end();
+    await done;
+    if (this.failure) { await this.dropTemp(); throw this.failure; }
+    await rename(this.tempPath!, this.finalPath!);
+  }
+
+  /** Drops the temporary file (stdout: nothing to undo). */
+  async abort(): Promise<void> {
+    if (this.closed) return;
+    this.closed = true;
+    if (this.finalPath === null) return;
+    (this.sink as NodeJS.WritableStream & { destroy(): void }).destroy();
+    if (this.file !== this.sink) (this.file as NodeJS.WritableStream & { destroy(): void }).destroy();
+    await this.dropTemp();
+  }
+
+  private async dropTemp(): Promise<void> {
+    if (this.tempPath) await unlink(this.tempPath).catch(() => undefined);
+  }
+}
+
+/** Delimited records onto an OutputFile, gathered into blocks. */
+export class RecordFileWriter {
+  records = 0;
+  bytes = 0;
+  private block = new Uint8Array(BLOCK_BYTES);
+  private fill = 0;
+
+  private constructor(private readonly output: OutputFile) {}
+
+  static async open(path: string, options: WriterOptions = {}): Promise<RecordFileWriter> {
+    return new RecordFileWriter(await OutputFile.open(path, options));
   }
 
   /** Appends one record. Returns a promise (await it) when the output asked to wait. */
   write(message: Uint8Array): Promise<void> | undefined {
-    if (this.failure) return Promise.reject(this.failure);
     const need = 10 + message.length;
     let pending: Promise<void> | undefined;
     if (this.fill + need > this.block.length) pending = this.flush();
@@ -79,7 +150,7 @@ export class RecordFileWriter {
       const framed = new Uint8Array(need);
       const start = writeVarint(framed, 0, message.length);
       framed.set(message, start);
-      const done = this.push(framed.subarray(0, start + message.length));
+      const done = this.output.write(framed.subarray(0, start + message.length));
       pending = pending ? pending.then(() => done) : done;
     } else {
       this.fill = writeVarint(this.block, this.fill, message.length);
@@ -96,58 +167,53 @@ export class RecordFileWriter {
     const out = this.block.subarray(0, this.fill);
     this.block = new Uint8Array(BLOCK_BYTES); // the stream keeps `out` until written
     this.fill = 0;
-    return this.push(out);
-  }
-
-  private push(bytes: Uint8Array): Promise<void> | undefined {
-    if (this.sink.write(bytes)) return undefined;
-    return this.waitDrain();
-  }
-
-  private async waitDrain(): Promise<void> {
-    if (this.failure) throw this.failure;
-    await new Promise<void>((resolve, reject) => {
-      const onDrain = () => { cleanup(); resolve(); };
-      const onError = (error: Error) => { cleanup(); reject(error); };
-      const cleanup = () => { this.sink.off('drain', onDrain); this.sink.off('error', onError); };
-      this.sink.on('drain', onDrain);
-      this.sink.on('error', onError);
-    });
+    return this.output.write(out);
   }
 
   /** Writes what is left, ends the output and renames the temporary file into place. */
   async close(): Promise<void> {
-    if (this.closed) return;
-    this.closed = true;
     await this.flush();
-    if (this.failure) { await this.dropTemp(); throw this.failure; }
-    if (this.finalPath === null) {
-      if (this.file === null && this.sink !== this.stdoutTarget) {
-        // gzip to stdout: end the gzip stream (never stdout itself) and let it drain into stdout
-        const ended = once(this.sink, 'end');
-        this.sink.end();
-        await ended;
-      }
-      return;
-    }
-    const done = once(this.file!, 'close');
-    this.sink.end();
-    await done;
-    if (this.failure) { await this.dropTemp(); throw this.failure; }
-    await rename(this.tempPath!, this.finalPath!);
+    await this.output.close();
   }
 
-  async abort(): Promise<void> {
-    if (this.closed) return;
-    this.closed = true;
-    if (this.finalPath === null) return;
-    (this.sink as NodeJS.WritableStream & { destroy(): void }).destroy();
-    if (this.file !== this.sink) (this.file as NodeJS.WritableStream & { destroy(): void }).destroy();
-    await this.dropTemp();
+  abort(): Promise<void> {
+    return this.output.abort();
+  }
+}
+
+/** Lines of text onto an OutputFile, gathered into blocks of about 64 KiB. */
+export class TextFileWriter {
+  private parts: string[] = [];
+  private size = 0;
+
+  private constructor(private readonly output: OutputFile) {}
+
+  static async open(path: string, options: WriterOptions = {}): Promise<TextFileWriter> {
+    return new TextFileWriter(await OutputFile.open(path, options));
   }
 
-  private async dropTemp(): Promise<void> {
-    if (this.tempPath) await unlink(this.tempPath).catch(() => undefined);
+  /** Appends text (include the newline). Returns a promise (await it) when the output asked to wait. */
+  write(text: string): Promise<void> | undefined {
+    this.parts.push(text);
+    this.size += text.length;
+    return this.size >= 65536 ? this.flush() : undefined;
+  }
+
+  private flush(): Promise<void> | undefined {
+    if (this.parts.length === 0) return undefined;
+    const bytes = Buffer.from(this.parts.join(''), 'utf8');
+    this.parts = [];
+    this.size = 0;
+    return this.output.write(bytes);
+  }
+
+  async close(): Promise<void> {
+    await this.flush();
+    await this.output.close();
+  }
+
+  abort(): Promise<void> {
+    return this.output.abort();
   }
 }
 

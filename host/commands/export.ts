@@ -1,0 +1,186 @@
+// jetlag export FILE: an event file, a CSV tower file or a jets file as CSV or JSON lines.
+//
+// events, CSV   event,ieta,iphi,et, one row per tower in record order (what import reads
+//               back); raw deposits are binned onto the header's grid first. CSV has no
+//               place for an invalid event or for empty events after the last tower: invalid
+//               events are reported on stderr and left out.
+// events, jsonl {"event":n,"towers":[[ieta,iphi,et],...]} or {"event":n,"error":"..."}
+// jets, CSV     event,pt,y,phi,m,px,py,pz,E,n,towers,error: one row per jet (towers: the
+//               constituent indices separated by spaces, empty when not stored); an invalid
+//               event is one row with only its number and its error text
+// jets, jsonl   the line form of `jetlag cluster --format jsonl` (jets-jsonl.ts)
+// Numbers are written with String(x), so every double reads back identical.
+// Exit 2 when the file is unreadable (after writing everything before the problem) or a
+// jets record cannot be decoded (it is reported and skipped).
+
+import { InputError, UsageError, parseArgs, type CommandIo, type CommandMain, type CommandSpec } from '../args.js';
+import { GRID_OPTIONS, gridFrom, hasGridOptions } from '../common-options.js';
+import { openRecordFile, type RecordSource } from '../event-source.js';
+import { EventTowerReader } from '../event-towers.js';
+import { decodeJetsRecord } from '../jets-codec.js';
+import { formatErrorLine, formatJetsLine, jsonNumber } from '../jets-jsonl.js';
+import { DEFAULT_MAX_RECORD_BYTES } from '../record-reader.js';
+import { TextFileWriter } from '../record-writer.js';
+import type { JetSet } from '../types.js';
+
+export const spec: CommandSpec = {
+  name: 'export',
+  summary: 'Write an event file, a CSV tower file or a jets file as CSV or JSON lines.',
+  usage: 'jetlag export <file> [--format csv|jsonl] [--out <file>] [options]',
+  positionals: { min: 1, max: 1 },
+  options: [
+    { name: 'format', kind: 'string', argument: '<csv|jsonl>', description: 'output form (default: csv)' },
+    { name: 'out', kind: 'string', argument: '<file>', description: 'where to write; - for stdout (default: -)' },
+    ...GRID_OPTIONS.map((o) => ({ ...o, description: o.description.replace(' (default:', ', for CSV input (default:') })),
+    { name: 'max-record-bytes', kind: 'integer', argument: '<n>', description: `largest record accepted (default: ${DEFAULT_MAX_RECORD_BYTES})` },
+    { name: 'quiet', kind: 'flag', short: 'q', description: 'do not print the per-event problems and the summary line' },
+  ],
+};
+
+const PROBLEM_LINES_MAX = 20;
+
+/** a CSV field: quoted when it holds a comma, a quote or a line end */
+function csvText(text: string): string {
+  return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
+}
+
+interface Tally {
+  events: number;
+  rows: number;
+  invalid: number;
+  broken: number;
+}
+
+class ProblemLines {
+  private shown = 0;
+  private hidden = 0;
+  constructor(private readonly io: CommandIo, private readonly quiet: boolean) {}
+  add(line: string): void {
+    if (this.quiet) return;
+    if (this.shown < PROBLEM_LINES_MAX) { this.shown++; this.io.stderr.write(`jetlag export: ${line}\n`); } else this.hidden++;
+  }
+  finish(): void {
+    if (!this.quiet && this.hidden > 0) this.io.stderr.write(`jetlag export: ... and ${this.hidden} more\n`);
+  }
+}
+
+async function exportEvents(source: RecordSource, format: string, out: TextFileWriter, tally: Tally, problems: ProblemLines): Promise<void> {
+  const reader = new EventTowerReader(source.header.grid);
+  const phiBins = source.header.grid.phiBins;
+  if (format === 'csv') await out.write('event,ieta,iphi,et\n');
+  for await (const record of source.records) {
+    tally.events++;
+    const result = reader.read(record.bytes);
+    if (!result.ok) {
+      tally.invalid++;
+      const where = result.event === undefined ? `record ${tally.events - 1}` : `event ${result.event}`;
+      if (format === 'csv') {
+        problems.add(`${source.label}, ${where}, byte ${record.offset}: ${result.problem} (invalid event, no CSV rows written)`);
+      } else {
+        problems.add(`${source.label}, ${where}, byte ${record.offset}: ${result.problem} (invalid event, written as an error line)`);
+        if (result.event !== undefined) await out.write(formatErrorLine(result.event, result.problem) + '\n');
+      }
+      continue;
+    }
+    const { event, towerIndex, towerEt } = result;
+    tally.rows += towerIndex.length;
+    if (format === 'csv') {
+      let text = '';
+      for (let k = 0; k < towerIndex.length; k++) {
+        const index = towerIndex[k];
+        text += `${event},${Math.floor(index / phiBins)},${index % phiBins},${jsonNumber(towerEt[k])}\n`;
+      }
+      if (text.length > 0) await out.write(text);
+    } else {
+      const towers: string[] = [];
+      for (let k = 0; k < towerIndex.length; k++) {
+        const index = towerIndex[k];
+        towers.push(`[${Math.floor(index / phiBins)},${index % phiBins},${jsonNumber(towerEt[k])}]`);
+      }
+      await out.write(`{"event":${event},"towers":[${towers.join(',')}]}\n`);
+    }
+  }
+}
+
+function jetCsvRows(event: number, jets: JetSet, hasTowers: boolean): string {
+  let text = '';
+  for (let k = 0; k < jets.count; k++) {
+    const start = jets.towerStart[k];
+    const towers = hasTowers ? Array.prototype.join.call(jets.towers.subarray(start, start + jets.towerCount[k]), ' ') : '';
+    text += `${event},${jsonNumber(jets.pt[k])},${jsonNumber(jets.rapidity[k])},${jsonNumber(jets.phi[k])},${jsonNumber(jets.mass[k])},` +
+      `${jsonNumber(jets.px[k])},${jsonNumber(jets.py[k])},${jsonNumber(jets.pz[k])},${jsonNumber(jets.energy[k])},${jets.towerCount[k]},${towers},\n`;
+  }
+  return text;
+}
+
+async function exportJets(source: RecordSource, format: string, out: TextFileWriter, tally: Tally, problems: ProblemLines): Promise<void> {
+  if (format === 'csv') await out.write('event,pt,y,phi,m,px,py,pz,E,n,towers,error\n');
+  let record = -1;
+  for await (const raw of source.records) {
+    record++;
+    tally.events++;
+    let decoded;
+    try {
+      decoded = decodeJetsRecord(raw.bytes);
+    } catch (error) {
+      tally.broken++;
+      problems.add(`${source.label}, record ${record}, byte ${raw.offset}: bad jets record: ${(error as Error).message}`);
+      continue;
+    }
+    if (decoded.problem !== '') {
+      tally.broken++;
+      problems.add(`${source.label}, event ${decoded.event}, byte ${raw.offset}: bad jets record: ${decoded.problem}`);
+      continue;
+    }
+    if (decoded.error !== '') {
+      tally.invalid++;
+      await out.write(format === 'csv' ? `${decoded.event},,,,,,,,,,,${csvText(decoded.error)}\n` : formatErrorLine(decoded.event, decoded.error) + '\n');
+      continue;
+    }
+    tally.rows += decoded.jets.count;
+    await out.write(format === 'csv'
+      ? jetCsvRows(decoded.event, decoded.jets, decoded.hasTowers)
+      : formatJetsLine(decoded.event, decoded.jets, decoded.hasTowers) + '\n');
+  }
+}
+
+export const main: CommandMain = async (argv: string[], io: CommandIo) => {
+  const args = parseArgs(spec, argv);
+  const format = (args.values.format as string | undefined) ?? 'csv';
+  if (format !== 'csv' && format !== 'jsonl') throw new UsageError(`export: --format must be csv or jsonl, got ${JSON.stringify(format)}`);
+  const input = args.positionals[0];
+  const outPath = (args.values.out as string | undefined) ?? '-';
+  const quiet = args.values.quiet === true;
+  const grid = hasGridOptions(args) ? gridFrom(args, 'export') : undefined;
+  const maxRecordBytes = args.values['max-record-bytes'] as number | undefined;
+  if (maxRecordBytes !== undefined && maxRecordBytes < 1) throw new UsageError(`export: --max-record-bytes must be at least 1, got ${maxRecordBytes}`);
+
+  const source = await openRecordFile(input === '-' ? io.stdin : input, { grid, maxRecordBytes, fileLabel: input === '-' ? '<stdin>' : input });
+  const out = await TextFileWriter.open(outPath, { stdout: io.stdout });
+  const tally: Tally = { events: 0, rows: 0, invalid: 0, broken: 0 };
+  const problems = new ProblemLines(io, quiet);
+  let unreadable: InputError | null = null;
+  try {
+    if (source.format === 'jets-file') await exportJets(source, format, out, tally, problems);
+    else await exportEvents(source, format, out, tally, problems);
+  } catch (error) {
+    if (!(error instanceof InputError)) {
+      await out.abort();
+      throw error;
+    }
+    unreadable = error;
+  }
+  await out.close();
+  problems.finish();
+  const what = source.format === 'jets-file' ? 'jets' : 'towers';
+  const outLabel = outPath === '-' ? '<stdout>' : outPath;
+  if (unreadable) {
+    io.stderr.write(`jetlag export: ${unreadable.message}; the ${tally.events} records before it were written to ${outLabel}\n`);
+    return 2;
+  }
+  if (!quiet) {
+    io.stderr.write(`jetlag export: read ${tally.events} events (${tally.invalid} invalid` +
+      `${tally.broken > 0 ? `, ${tally.broken} unreadable records` : ''}), wrote ${tally.rows} ${what} to ${outLabel}\n`);
+  }
+  return tally.broken > 0 ? 2 : 0;
+};

@@ -1,0 +1,262 @@
+import { existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { PassThrough, Readable } from 'node:stream';
+import { describe, expect, it } from 'vitest';
+import { UsageError, type CommandIo } from '../host/args.js';
+import { main as exportMain } from '../host/commands/export.js';
+import { main as importMain } from '../host/commands/import.js';
+import { decodeEventRecord } from '../host/event-codec.js';
+import { openEventSource } from '../host/event-source.js';
+import { JetsFileWriter } from '../host/jets-codec.js';
+import { formatErrorLine, formatJetsLine } from '../host/jets-jsonl.js';
+import type { JetSet } from '../host/types.js';
+
+const dir = mkdtempSync(join(tmpdir(), 'jetlag-commands-'));
+let n = 0;
+const temp = (name: string) => join(dir, `${n++}-${name}`);
+
+function makeIo(stdinText = '') {
+  const stdout = new PassThrough();
+  const stderr = new PassThrough();
+  const out: Buffer[] = [];
+  const err: Buffer[] = [];
+  stdout.on('data', (c) => out.push(c));
+  stderr.on('data', (c) => err.push(c));
+  const stdin = new PassThrough();
+  stdin.end(stdinText);
+  const io: CommandIo = { stdout, stderr, stdin, isTty: false };
+  return { io, stdoutBytes: () => Buffer.concat(out), stdout: () => Buffer.concat(out).toString('utf8'), stderr: () => Buffer.concat(err).toString('utf8') };
+}
+
+async function run(command: typeof importMain, argv: string[], stdinText = '') {
+  const t = makeIo(stdinText);
+  const code = await command(argv, t.io);
+  return { code, stdout: t.stdout(), stdoutBytes: t.stdoutBytes(), stderr: t.stderr() };
+}
+
+async function recordsOf(path: string) {
+  const source = await openEventSource(path);
+  const events = [];
+  for await (const r of source.records) events.push(decodeEventRecord(r.bytes));
+  return { header: source.header, events };
+}
+
+// invented towers on the default grid, numbers in their shortest round-trip form
+const CANONICAL = [
+  'event,ieta,iphi,et',
+  '0,0,0,12',
+  '0,49,63,1.5',
+  '0,10,5,1e-7',
+  '2,3,4,-0.25',
+  '2,3,5,1e+21',
+  '3,0,1,0.1',
+].join('\n') + '\n';
+
+describe('jetlag import', () => {
+  it('writes every CSV event, empty ones included, with the grid in the header', async () => {
+    const csv = temp('towers.csv');
+    writeFileSync(csv, CANONICAL);
+    const out = temp('events.pb');
+    const r = await run(importMain, ['--csv', csv, '--out', out, '--label', 'bench run, fictional']);
+    expect(r.code).toBe(0);
+    expect(r.stderr).toBe(`jetlag import: wrote 4 events (6 towers, 0 invalid) to ${out}\n`);
+    const { header, events } = await recordsOf(out);
+    expect(header.grid).toEqual({ etaMin: -2.5, etaMax: 2.5, etaBins: 50, phiBins: 64 });
+    expect(header.label).toBe('bench run, fictional');
+    expect(header.producer).toBe('jetlag 0.1.0 import');
+    expect(events.map((e) => [e.event, Array.from(e.towerIndex), Array.from(e.towerEt)])).toEqual([
+      [0, [0, 49 * 64 + 63, 10 * 64 + 5], [12, 1.5, 1e-7]],
+      [1, [], []],
+      [2, [3 * 64 + 4, 3 * 64 + 5], [-0.25, 1e21]],
+      [3, [1], [0.1]],
+    ]);
+  });
+
+  it('keeps an invalid CSV event as a record with its error text and CSV offset, and the events around it', async () => {
+    const csv = temp('bad.csv');
+    const text = 'event,ieta,iphi,et\n0,0,0,1\n1,0,0,1e\n2,0,0,2\n';
+    writeFileSync(csv, text);
+    const out = temp('events.pb');
+    const r = await run(importMain, ['--csv', csv, '--out', out]);
+    expect(r.code).toBe(0);
+    expect(r.stderr).toBe(
+      `jetlag import: ${csv}, event 1, byte 27: et "1e" is not a decimal number (kept as an invalid event)\n` +
+      `jetlag import: wrote 3 events (2 towers, 1 invalid) to ${out}\n`);
+    const { events } = await recordsOf(out);
+    expect(events.map((e) => [e.event, e.towerEt.length, e.error])).toEqual([
+      [0, 1, ''],
+      [1, 0, `et "1e" is not a decimal number (CSV ${csv}, row at byte 27)`],
+      [2, 1, ''],
+    ]);
+  });
+
+  it('writes the events before an unreadable line and exits 2 with one error line', async () => {
+    const csv = temp('decreasing.csv');
+    writeFileSync(csv, 'event,ieta,iphi,et\n0,0,0,1\n1,0,0,1\n2,0,0,1\n1,0,1,1\n');
+    const out = temp('events.pb');
+    const r = await run(importMain, ['--csv', csv, '--out', out, '--quiet']);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toBe(`jetlag import: ${csv}, byte 43: event number 1 after 2: numbers must not decrease (the rest of the file is unreadable); the 2 events before it were written to ${out}\n`);
+    expect((await recordsOf(out)).events.map((e) => e.event)).toEqual([0, 1]);
+  });
+
+  it('reads stdin and writes stdout with -, gzip on request', async () => {
+    const r = await run(importMain, ['--csv', '-', '--out', '-', '--gzip', '-q', '--eta-bins', '4', '--phi-bins', '8', '--eta-min', '-1', '--eta-max', '1'], 'event,ieta,iphi,et\n0,3,7,2\n');
+    expect(r.code).toBe(0);
+    expect(Array.from(r.stdoutBytes.subarray(0, 2))).toEqual([0x1f, 0x8b]);
+    const source = await openEventSource(Readable.from([r.stdoutBytes]));
+    expect(source.header.grid).toEqual({ etaMin: -1, etaMax: 1, etaBins: 4, phiBins: 8 });
+    const events = [];
+    for await (const record of source.records) events.push(decodeEventRecord(record.bytes));
+    expect(events.map((e) => [e.event, Array.from(e.towerIndex), Array.from(e.towerEt)])).toEqual([[0, [31], [2]]]);
+  });
+
+  it('checks its options', async () => {
+    await expect(run(importMain, ['--out', 'x.pb'])).rejects.toThrow(new UsageError('import: --csv <file> is required'));
+    await expect(run(importMain, ['--csv', 'x.csv'])).rejects.toThrow(new UsageError('import: --out <events> is required'));
+    await expect(run(importMain, ['--csv', 'x.csv', '--out', 'y.pb', '--eta-bins', '0'])).rejects.toThrow(UsageError);
+  });
+
+  it('leaves no output file when the input cannot be opened', async () => {
+    const out = temp('never.pb');
+    const r = await run(importMain, ['--csv', join(dir, 'missing.csv'), '--out', out]);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toBe(`jetlag import: ${join(dir, 'missing.csv')}: cannot open: no such file\n`);
+    expect(existsSync(out)).toBe(false);
+  });
+});
+
+describe('jetlag export of events', () => {
+  it('gives back the imported CSV row for row (round trip CSV -> event file -> CSV)', async () => {
+    const csv = temp('towers.csv');
+    writeFileSync(csv, CANONICAL);
+    const events = temp('events.pb.gz');
+    expect((await run(importMain, ['--csv', csv, '--out', events, '--gzip', '-q'])).code).toBe(0);
+    const r = await run(exportMain, [events, '-q']);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toBe(CANONICAL);
+  });
+
+  it('writes CSV that imports to the same records, whatever literal forms the input used', async () => {
+    const csv = temp('forms.csv');
+    writeFileSync(csv, 'event,ieta,iphi,et\r\n0,+1,2,.5\r\n0,1,3,5.\r\n1,0,0,+3\r\n1,0,1,1E-3\r\n');
+    const first = temp('first.pb');
+    await run(importMain, ['--csv', csv, '--out', first, '-q']);
+    const exported = temp('exported.csv');
+    expect((await run(exportMain, [first, '--out', exported, '-q'])).code).toBe(0);
+    expect(readFileSync(exported, 'utf8')).toBe('event,ieta,iphi,et\n0,1,2,0.5\n0,1,3,5\n1,0,0,3\n1,0,1,0.001\n');
+    const second = temp('second.pb');
+    await run(importMain, ['--csv', exported, '--out', second, '-q']);
+    expect((await recordsOf(second)).events).toEqual((await recordsOf(first)).events);
+  });
+
+  it('writes events as JSON lines, invalid ones as error lines (round trip CSV -> event file -> JSON lines)', async () => {
+    const csv = temp('mixed.csv');
+    writeFileSync(csv, 'event,ieta,iphi,et\n0,1,2,0.5\n0,1,3,7\n1,1,2,x\n3,0,0,1\n');
+    const events = temp('events.pb');
+    await run(importMain, ['--csv', csv, '--out', events, '-q']);
+    const r = await run(exportMain, [events, '--format', 'jsonl']);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toBe([
+      '{"event":0,"towers":[[1,2,0.5],[1,3,7]]}',
+      formatErrorLine(1, `et "x" is not a decimal number (CSV ${csv}, row at byte 37)`),
+      '{"event":2,"towers":[]}',
+      '{"event":3,"towers":[[0,0,1]]}',
+    ].join('\n') + '\n');
+    expect(r.stderr.split('\n')[0]).toMatch(new RegExp(`^jetlag export: ${events.replace(/[.]/g, '\\.')}, event 1, byte \\d+: et "x" is not a decimal number .* \\(invalid event, written as an error line\\)$`));
+  });
+
+  it('reports invalid events on stderr when writing CSV, and counts them', async () => {
+    const csv = temp('mixed.csv');
+    writeFileSync(csv, 'event,ieta,iphi,et\n0,1,2,0.5\n1,99,2,1\n');
+    const events = temp('events.pb');
+    await run(importMain, ['--csv', csv, '--out', events, '-q']);
+    const out = temp('out.csv');
+    const r = await run(exportMain, [events, '--out', out]);
+    expect(r.code).toBe(0);
+    expect(readFileSync(out, 'utf8')).toBe('event,ieta,iphi,et\n0,1,2,0.5\n');
+    const lines = r.stderr.trimEnd().split('\n');
+    expect(lines).toHaveLength(2);
+    expect(lines[0]).toMatch(/event 1, byte \d+: tower \(ieta 99, iphi 2\) is outside the grid of 50 x 64 towers .*\(invalid event, no CSV rows written\)$/);
+    expect(lines[1]).toBe(`jetlag export: read 2 events (1 invalid), wrote 1 towers to ${out}`);
+  });
+
+  it('exports a CSV input too, on the grid given', async () => {
+    const csv = temp('small-grid.csv');
+    writeFileSync(csv, 'event,ieta,iphi,et\n0,3,7,1\n0,4,0,1\n');
+    const r = await run(exportMain, [csv, '--format', 'jsonl', '--eta-bins', '4', '--phi-bins', '8', '-q']);
+    expect(r.stdout).toBe('{"event":0,"error":"tower (ieta 4, iphi 0) is outside the grid of 4 x 8 towers"}\n');
+  });
+
+  it('stops at a truncated event file after writing the events before it, exit 2', async () => {
+    const csv = temp('towers.csv');
+    writeFileSync(csv, CANONICAL);
+    const events = temp('events.pb');
+    await run(importMain, ['--csv', csv, '--out', events, '-q']);
+    const bytes = readFileSync(events);
+    const cut = temp('cut.pb');
+    writeFileSync(cut, bytes.subarray(0, bytes.length - 3));
+    const r = await run(exportMain, [cut, '-q']);
+    expect(r.code).toBe(2);
+    expect(r.stdout).toBe(CANONICAL.split('\n').slice(0, 6).join('\n') + '\n');
+    expect(r.stderr).toMatch(new RegExp(`^jetlag export: ${cut.replace(/[.]/g, '\\.')}, byte \\d+: truncated record: length \\d+ but only \\d+ bytes follow; the 3 records before it were written to <stdout>\\n$`));
+  });
+
+  it('rejects an unknown format', async () => {
+    await expect(run(exportMain, ['x.pb', '--format', 'xml'])).rejects.toThrow(new UsageError('export: --format must be csv or jsonl, got "xml"'));
+  });
+});
+
+describe('jetlag export of jets', () => {
+  const jets: JetSet = {
+    count: 2, px: Float64Array.of(10, -1), py: Float64Array.of(0, 2), pz: Float64Array.of(1, 0.5), energy: Float64Array.of(10.05, 2.3),
+    pt: Float64Array.of(10, 2.23606797749979), rapidity: Float64Array.of(0.1, 0.2), phi: Float64Array.of(0, 2.0344439357957027),
+    mass: Float64Array.of(0, 0.1), towerCount: Int32Array.of(2, 1), towerStart: Int32Array.of(0, 2), towers: Int32Array.of(4, 9, 100),
+  };
+
+  async function jetsFile(): Promise<string> {
+    const path = temp('jets.pb');
+    const writer = await JetsFileWriter.open(path, { etaMin: -2.5, etaMax: 2.5, etaBins: 50, phiBins: 64 },
+      { p: -1, radius: 0.4, ptMin: 0, threshold: 0, recombination: 'e', engine: 'reference' });
+    await writer.writeJets({ event: 0, jets, clusterTimeNs: 5 });
+    await writer.writeJets({ event: 1, error: 'tower 0 has, "odd" et' });
+    await writer.close();
+    return path;
+  }
+
+  it('writes the cluster command\'s JSON lines', async () => {
+    const r = await run(exportMain, [await jetsFile(), '--format', 'jsonl', '-q']);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toBe(formatJetsLine(0, jets) + '\n' + formatErrorLine(1, 'tower 0 has, "odd" et') + '\n');
+  });
+
+  it('writes one CSV row per jet and one per invalid event', async () => {
+    const r = await run(exportMain, [await jetsFile()]);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toBe([
+      'event,pt,y,phi,m,px,py,pz,E,n,towers,error',
+      '0,10,0.1,0,0,10,0,1,10.05,2,4 9,',
+      '0,2.23606797749979,0.2,2.0344439357957027,0.1,-1,2,0.5,2.3,1,100,',
+      '1,,,,,,,,,,,"tower 0 has, ""odd"" et"',
+    ].join('\n') + '\n');
+    expect(r.stderr).toBe('jetlag export: read 2 events (1 invalid), wrote 2 jets to <stdout>\n');
+  });
+
+  it('reports an undecodable jets record, goes on, and exits 2', async () => {
+    const good = readFileSync(await jetsFile());
+    const broken = temp('broken-jets.pb');
+    // a record of 2 bytes: field 2 (px) as a varint
+    writeFileSync(broken, Buffer.concat([good, Buffer.from([2, 0x10, 0x01])]));
+    const r = await run(exportMain, [broken, '--format', 'jsonl']);
+    expect(r.code).toBe(2);
+    expect(r.stdout.split('\n')).toHaveLength(3);
+    expect(r.stderr.split('\n')[0]).toBe(`jetlag export: ${broken}, record 2, byte ${good.length}: bad jets record: at record byte 0: field 2 (px) has wire type 0 (varint), expected packed or fixed64`);
+  });
+
+  it('leaves no file when the input cannot be opened', async () => {
+    const out = temp('none.csv');
+    await expect(run(exportMain, [join(dir, 'missing.pb'), '--out', out])).rejects.toThrow(`${join(dir, 'missing.pb')}: cannot open: no such file`);
+    expect(existsSync(out)).toBe(false);
+  });
+});
