@@ -1,0 +1,147 @@
+// Benchmarks of the streamed run (node dist/bench/pool.bench.js [--quick] after npm run build):
+//   1. the pool's per-task round trip (tinybench), and events/s against the batch size K,
+//      which chose run.ts's DEFAULT_BATCH;
+//   2. 1 against 2 workers at pileup 200 (closed loop);
+//   3. the host's own cost per event (main thread: read, frame, copy, dispatch, collect; worker:
+//      decode and bin) against the clustering time per event;
+//   4. resident memory while streaming a generated file of at least 1 GiB (skipped by --quick).
+// Events are invented (the toy generator, host/generate.ts). Figures go to stdout and to
+// bench/results/pool.json (not committed). The machine is shared: quote medians and ratios.
+
+import { mkdirSync, mkdtempSync, openSync, closeSync, writeSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { performance } from 'node:perf_hooks';
+import { Bench } from 'tinybench';
+import { Piscina } from 'piscina';
+import { encodeEventRecord } from '../host/event-codec.js';
+import { encodeFileHeader } from '../host/file-header.js';
+import { generateEvents } from '../host/generate.js';
+import { delimit } from '../host/wire.js';
+import { DEFAULT_GRID } from '../host/types.js';
+import { runEvents, type RunOptions } from '../host/run.js';
+import { workerFile } from '../host/pool.js';
+import { describeMachine, type RunSummary } from '../host/summary.js';
+
+const quick = process.argv.includes('--quick');
+const dir = mkdtempSync(join(tmpdir(), 'jetlag-bench-'));
+const results: Record<string, unknown> = { machine: describeMachine() };
+
+/** Writes `events` toy events of the given pileup, cycling through `distinct` generated ones. */
+function writeToyFile(path: string, events: number, pileup: number, distinct: number): { bytes: number; meanTowers: number } {
+  const pool: { towerIndex: Int32Array; towerEt: Float64Array }[] = [];
+  for (const e of generateEvents(DEFAULT_GRID, { events: Math.min(distinct, events), pileup, seed: 2026 })) {
+    pool.push({ towerIndex: e.towerIndex, towerEt: e.towerEt });
+  }
+  const fd = openSync(path, 'w');
+  let bytes = 0;
+  const write = (chunk: Uint8Array) => { bytes += writeSync(fd, chunk); };
+  write(delimit(encodeFileHeader({ kind: 'events', grid: DEFAULT_GRID, producer: 'jetlag bench', label: 'invented toy events (Halden ring scenario)' })));
+  let towers = 0;
+  const parts: Uint8Array[] = [];
+  let partBytes = 0;
+  for (let k = 0; k < events; k++) {
+    const source = pool[k % pool.length];
+    towers += source.towerIndex.length;
+    const record = delimit(encodeEventRecord({ event: k, towerIndex: source.towerIndex, towerEt: source.towerEt }));
+    parts.push(record);
+    partBytes += record.length;
+    if (partBytes > 1 << 22) { write(Buffer.concat(parts)); parts.length = 0; partBytes = 0; }
+  }
+  if (parts.length) write(Buffer.concat(parts));
+  closeSync(fd);
+  return { bytes, meanTowers: towers / events };
+}
+
+function line(text: string): void {
+  process.stdout.write(text + '\n');
+}
+
+/** Main-thread busy time during a run (event-loop utilisation: active ms), with the summary. */
+async function measuredRun(options: RunOptions): Promise<{ summary: RunSummary; mainActiveMs: number }> {
+  const before = performance.eventLoopUtilization();
+  const summary = await runEvents(options);
+  const after = performance.eventLoopUtilization(before);
+  return { summary, mainActiveMs: after.active };
+}
+
+const median = (values: number[]) => [...values].sort((a, b) => a - b)[Math.floor(values.length / 2)];
+
+// ---- 1. per-task round trip and batch size ----------------------------------------------
+{
+  const pool = new Piscina({ filename: workerFile(), minThreads: 1, maxThreads: 1, idleTimeout: Infinity, workerData: {
+    grid: DEFAULT_GRID, settings: { p: -1, radius: 0.4, ptMin: 0, threshold: 0, recombination: 'e' }, engine: 'wasm', checkFraction: 0, checkSeed: 1, encodeJets: false,
+  } });
+  const emptyTask = () => { const buffer = new ArrayBuffer(8); return pool.run({ batchIndex: -1, count: 0, dataStart: 8, buffer }, { transferList: [buffer] }); };
+  await emptyTask();
+  const bench = new Bench({ name: 'pool round trip', time: 1000 });
+  bench.add('empty batch, one worker', emptyTask);
+  await bench.run();
+  console.table(bench.table());
+  const task = bench.tasks[0].result as unknown as { latency?: { p50?: number; mean?: number } };
+  results.roundTripMedianUs = (task.latency?.p50 ?? NaN) * 1000;
+  line(`pool round trip, median: ${(results.roundTripMedianUs as number).toFixed(1)} µs`);
+  await pool.destroy();
+}
+
+const pileupFile = join(dir, 'pileup200.events');
+const pileupEvents = quick ? 600 : 1500;
+const written = writeToyFile(pileupFile, pileupEvents, 200, 500);
+line(`pileup-200 file: ${pileupEvents} events, ${(written.bytes / 1e6).toFixed(1)} MB, mean ${written.meanTowers.toFixed(0)} towers per event`);
+const base: RunOptions = { input: pileupFile, check: { mode: 'none', fraction: 0, seed: 1 }, engine: 'wasm' };
+
+{
+  const sweep: { batch: number; eventsPerSecond: number }[] = [];
+  for (const batch of [1, 2, 4, 8, 16, 32, 64, 128]) {
+    const rates: number[] = [];
+    for (let r = 0; r < 3; r++) rates.push((await runEvents({ ...base, workers: 2, batch })).throughput.eventsPerSecond);
+    sweep.push({ batch, eventsPerSecond: median(rates) });
+    line(`batch ${String(batch).padStart(3)}: ${median(rates).toFixed(0)} events/s (median of 3, 2 workers)`);
+  }
+  results.batchSweep = sweep;
+}
+
+// ---- 2. one against two workers -----------------------------------------------------------
+{
+  const perWorkers: Record<number, number[]> = { 1: [], 2: [] };
+  for (let r = 0; r < 3; r++) {
+    for (const workers of [1, 2]) perWorkers[workers].push((await runEvents({ ...base, workers })).throughput.eventsPerSecond);
+  }
+  const one = median(perWorkers[1]);
+  const two = median(perWorkers[2]);
+  results.workers = { one, two, ratio: two / one };
+  line(`workers: 1 → ${one.toFixed(0)} events/s, 2 → ${two.toFixed(0)} events/s, ratio ${(two / one).toFixed(2)} (medians of 3)`);
+}
+
+// ---- 3. host overhead against clustering time -----------------------------------------
+{
+  const { summary, mainActiveMs } = await measuredRun({ ...base, workers: 2 });
+  const events = summary.events.read;
+  const clusterUs = summary.latency.cluster.mean_us;
+  const mainUs = (mainActiveMs * 1000) / events;
+  const workerHostUs = summary.latency.stages.decode.mean_us + summary.latency.stages.bin.mean_us;
+  const hostUs = mainUs + workerHostUs;
+  results.hostOverhead = { clusterMeanUs: clusterUs, mainThreadUsPerEvent: mainUs, workerDecodeBinUsPerEvent: workerHostUs, ratio: hostUs / clusterUs };
+  line(`host cost per event: main thread ${mainUs.toFixed(1)} µs + worker decode/bin ${workerHostUs.toFixed(1)} µs = ${hostUs.toFixed(1)} µs, ` +
+    `clustering ${clusterUs.toFixed(1)} µs: ${((100 * hostUs) / clusterUs).toFixed(1)} %`);
+}
+
+// ---- 4. resident memory while streaming >= 1 GiB --------------------------------------------
+if (!quick) {
+  const bigFile = join(dir, 'big.events');
+  const bigEvents = 120_000;
+  const big = writeToyFile(bigFile, bigEvents, 200, 500);
+  line(`big file: ${(big.bytes / 2 ** 30).toFixed(2)} GiB, ${bigEvents} events`);
+  let peakRss = 0;
+  const sampler = setInterval(() => { peakRss = Math.max(peakRss, process.memoryUsage.rss()); }, 100);
+  const startRss = process.memoryUsage.rss();
+  const summary = await runEvents({ ...base, input: bigFile, workers: 2 });
+  clearInterval(sampler);
+  results.streaming = { fileBytes: statSync(bigFile).size, events: summary.events.read, eventsPerSecond: summary.throughput.eventsPerSecond, startRssMB: startRss / 2 ** 20, peakRssMB: peakRss / 2 ** 20 };
+  line(`streaming ${(big.bytes / 2 ** 30).toFixed(2)} GiB: peak RSS ${(peakRss / 2 ** 20).toFixed(0)} MiB (at start ${(startRss / 2 ** 20).toFixed(0)} MiB), ${summary.throughput.eventsPerSecond.toFixed(0)} events/s`);
+  rmSync(bigFile);
+}
+
+rmSync(dir, { recursive: true, force: true });
+mkdirSync(new URL('../../bench/results/', import.meta.url), { recursive: true });
+writeFileSync(new URL('../../bench/results/pool.json', import.meta.url), JSON.stringify(results, null, 2) + '\n');
