@@ -5,8 +5,10 @@
 //              the candidate; agreeing / valid events is the agreeing fraction. Events that
 //              are invalid in EVENTS are counted apart and never compared.
 //   jets       above ptMin, over compared events: efficiency = matched / reference jets,
-//              fake rate = unmatched candidate jets / candidate jets (an event missing from
-//              the candidate adds nothing here; it is counted as a disagreeing event).
+//              fake rate = extra candidate jets / candidate jets, extra as tolerance-compare.ts
+//              says (unmatched, or standing on a softer reference jet it does not agree with).
+//              An event missing from the candidate adds nothing here; it counts as a
+//              disagreeing event.
 //   response   x = pt_cand / pt_ref - 1 and ΔR of matched pairs whose reference jet is above
 //              ptMin; mean and RMS exactly (RMS is the spread about the mean, the standard
 //              deviation), quantiles from a log-binned histogram (below).
@@ -133,7 +135,7 @@ class JetBin {
   matched = 0;
   agreeing = 0;
   candidateJets = 0;
-  unmatchedCandidates = 0;
+  extraCandidates = 0;
   readonly response = new DeviationHistogram();
   readonly deltaR = new DeviationHistogram();
 }
@@ -147,7 +149,7 @@ export interface BinReport {
   agreeing: number;
   efficiency: number | null;
   candidateJets: number;
-  unmatchedCandidates: number;
+  extraCandidates: number;
   fakeRate: number | null;
   response: DistributionSummary;
   deltaR: DistributionSummary;
@@ -335,9 +337,9 @@ export class ValidationAccumulator {
       const etaBin = this.etaBins[binIndex(ABS_ETA_BIN_EDGES, absEta)];
       ptBin.candidateJets++;
       etaBin.candidateJets++;
-      if (matcher.candMatch[c] < 0) {
-        ptBin.unmatchedCandidates++;
-        etaBin.unmatchedCandidates++;
+      if (matcher.candExtra[c] === 1) {
+        ptBin.extraCandidates++;
+        etaBin.extraCandidates++;
       }
     }
 
@@ -406,7 +408,7 @@ export class ValidationAccumulator {
         candidateAbove: this.candidateAbove,
         unmatchedCandidates: this.unmatchedCandidates,
         extraCandidates: this.extraCandidates,
-        fakeRate: ratio(this.unmatchedCandidates, this.candidateAbove),
+        fakeRate: ratio(this.extraCandidates, this.candidateAbove),
       },
       response: this.response.summary(1),
       deltaR: this.deltaR.summary(),
@@ -437,8 +439,8 @@ function binReports(edges: readonly number[], bins: JetBin[]): BinReport[] {
     agreeing: bin.agreeing,
     efficiency: ratio(bin.matched, bin.referenceJets),
     candidateJets: bin.candidateJets,
-    unmatchedCandidates: bin.unmatchedCandidates,
-    fakeRate: ratio(bin.unmatchedCandidates, bin.candidateJets),
+    extraCandidates: bin.extraCandidates,
+    fakeRate: ratio(bin.extraCandidates, bin.candidateJets),
     response: bin.response.summary(1),
     deltaR: bin.deltaR.summary(),
   }));
@@ -454,7 +456,8 @@ function percent(value: number | null): string {
 function short(value: number | null, digits = 4): string {
   if (value === null) return '-';
   if (value === 0) return '0';
-  return Number(value.toPrecision(digits)).toString();
+  const rounded = Number(value.toPrecision(digits));
+  return Math.abs(rounded) < 1e-3 ? rounded.toExponential(Math.max(0, digits - 1)).replace(/\.?0+e/, 'e') : rounded.toString();
 }
 
 function responseText(value: number | null): string {
@@ -473,18 +476,17 @@ function distributionLine(name: string, d: DistributionSummary, asResponse: bool
     `p01 ${show(q.p01)}  p16 ${show(q.p16)}  p50 ${show(q.p50)}  p84 ${show(q.p84)}  p99 ${show(q.p99)}  max ${show(d.max)}`;
 }
 
-function binTable(title: string, unit: string, bins: BinReport[]): string[] {
+function binTable(title: string, bins: BinReport[]): string[] {
   const rows = bins.filter((b) => b.referenceJets > 0 || b.candidateJets > 0);
   if (rows.length === 0) return [];
-  const head = ['  ' + `${title}${unit}`.padEnd(14), 'ref jets'.padStart(9), 'eff'.padStart(9), 'agree'.padStart(9),
-    'fakes'.padStart(9), 'resp p50'.padStart(12), 'resp rms'.padStart(10), 'ΔR p50'.padStart(10), 'ΔR p99'.padStart(10)].join('');
-  const lines = [head];
+  // the response as its deviation from 1, which is what differs between bins
+  const cells = (values: string[]) => '  ' + values[0].padEnd(12) + values.slice(1).map((v) => v.padStart(11)).join('');
+  const lines = [cells([title, 'ref jets', 'eff', 'agree', 'fake rate', 'resp-1 p50', 'resp rms', 'ΔR p50', 'ΔR p99'])];
   for (const b of rows) {
     const range = b.high === null ? `>= ${b.low}` : `${b.low}-${b.high}`;
-    lines.push(['  ' + range.padEnd(14), String(b.referenceJets).padStart(9), percent(b.efficiency).padStart(9),
-      percent(ratio(b.agreeing, b.referenceJets)).padStart(9), percent(b.fakeRate).padStart(9),
-      responseText(b.response.quantiles.p50).padStart(12), short(b.response.rms, 3).padStart(10),
-      short(b.deltaR.quantiles.p50, 3).padStart(10), short(b.deltaR.quantiles.p99, 3).padStart(10)].join(''));
+    const p50 = b.response.quantiles.p50;
+    lines.push(cells([range, String(b.referenceJets), percent(b.efficiency), percent(ratio(b.agreeing, b.referenceJets)), percent(b.fakeRate),
+      p50 === null ? '-' : short(p50 - 1, 3), short(b.response.rms, 3), short(b.deltaR.quantiles.p50, 3), short(b.deltaR.quantiles.p99, 3)]));
   }
   return lines;
 }
@@ -505,12 +507,12 @@ export function formatValidationReport(report: ValidationReport): string {
     ` ${e.invalidInEvents} invalid in EVENTS, not compared`);
   lines.push(`jets:     reference ${j.referenceAbove}, matched ${j.matched} (efficiency ${percent(j.efficiency)}),` +
     ` agreeing ${j.agreeing} (${percent(j.agreeingFraction)}); candidate ${j.candidateAbove},` +
-    ` unmatched ${j.unmatchedCandidates} (fake rate ${percent(j.fakeRate)}), extra ${j.extraCandidates}`);
+    ` extra ${j.extraCandidates} (fake rate ${percent(j.fakeRate)}, of which unmatched ${j.unmatchedCandidates})`);
   lines.push(distributionLine('pt response (c/r)', report.response, true));
   lines.push(distributionLine('ΔR', report.deltaR, false));
-  const pt = binTable('pt ', '[GeV]', report.byReferencePt);
+  const pt = binTable('pt [GeV]', report.byReferencePt);
   if (pt.length > 0) lines.push('by reference pt:', ...pt);
-  const eta = binTable('|η| ', '', report.byAbsEta);
+  const eta = binTable('|η|', report.byAbsEta);
   if (eta.length > 0) lines.push('by reference |η|:', ...eta);
   for (const [kind, problem] of Object.entries(report.problems)) {
     lines.push(`${kind}: ${problem.count}${problem.examples.length > 0 ? `, e.g. ${problem.examples.slice(0, 3).join('; ')}` : ''}`);
