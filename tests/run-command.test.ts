@@ -1,0 +1,107 @@
+// jetlag run and jetlag merge as commands, in-process (workers from dist/).
+import { describe, expect, it } from 'vitest';
+import { mkdtempSync, readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { PassThrough } from 'node:stream';
+import { parseArgs, UsageError } from '../host/args.js';
+import { main as runMain, runOptionsFrom, spec as runSpec } from '../host/commands/run.js';
+import { main as mergeMain } from '../host/commands/merge.js';
+import { ProgressBar } from '../host/progress.js';
+import { toyEvents, writeEventFile } from './support/run-files.js';
+
+function fakeIo(isTty = false) {
+  const stdout = new PassThrough();
+  const stderr = new PassThrough();
+  let out = '';
+  let err = '';
+  stdout.on('data', (chunk) => { out += chunk; });
+  stderr.on('data', (chunk) => { err += chunk; });
+  return { io: { stdout, stderr, stdin: new PassThrough(), isTty }, out: () => out, err: () => err };
+}
+
+const options = (argv: string[]) => runOptionsFrom(parseArgs(runSpec, ['events.jl', ...argv]));
+
+describe('jetlag run options', () => {
+  it('take --poisson as seeded open-loop arrivals', () => {
+    expect(options(['--poisson', '5000', '--seed', '9']).arrival).toEqual({ kind: 'poisson', rateHz: 5000, seed: 9 });
+  });
+
+  it('refuse --rate together with --poisson', () => {
+    expect(() => options(['--rate', '10', '--poisson', '10'])).toThrow(new UsageError('run: give --rate or --poisson, not both'));
+  });
+
+  it('read --check as all, none or a fraction', () => {
+    expect(options(['--check', 'all']).check).toMatchObject({ mode: 'all', fraction: 1 });
+    expect(options(['--check', 'none']).check).toMatchObject({ mode: 'none', fraction: 0 });
+    expect(options(['--check', '0.05']).check).toMatchObject({ mode: 'fraction', fraction: 0.05 });
+    expect(() => options(['--check', '1.5'])).toThrow('run: --check must be all, none or a fraction in [0, 1], got "1.5"');
+  });
+
+  it('read --shard k/n and refuse k >= n', () => {
+    expect(options(['--shard', '2/5']).shard).toEqual({ index: 2, count: 5 });
+    expect(() => options(['--shard', '5/5'])).toThrow('run: --shard must be k/n with 0 <= k < n, got "5/5"');
+  });
+
+  it('need --budget-us for --find-rate', () => {
+    expect(() => options(['--find-rate'])).toThrow('run: --find-rate needs --budget-us');
+  });
+
+  it('take the algorithm shorthand for p', () => {
+    expect(options(['--algorithm', 'kt', '--radius', '0.6']).settings).toMatchObject({ p: 1, radius: 0.6 });
+  });
+});
+
+describe('jetlag run and merge', () => {
+  const dir = mkdtempSync(join(tmpdir(), 'jetlag-cmd-'));
+  const file = writeEventFile(join(dir, 'toy.events'), toyEvents(60, 31, 5));
+
+  it('print the latency table and write the JSON summary, with no progress bar off a terminal', async () => {
+    const { io, out, err } = fakeIo(false);
+    const code = await runMain([file.path, '--workers', '1', '--batch', '8', '--json', join(dir, 'all.json'), '--budget-us', '50000'], io);
+    expect(code).toBe(0);
+    expect(out()).toMatch(/p50\s+p90\s+p99\s+p99\.9\s+max/);
+    expect(out()).toContain('read 60 · ok 60 · invalid 0 · failed 0');
+    expect(err()).not.toContain('\r');
+    const summary = JSON.parse(readFileSync(join(dir, 'all.json'), 'utf8'));
+    expect(Object.keys(summary.latency.endToEnd)).toEqual(['count', 'p50_us', 'p90_us', 'p99_us', 'p999_us', 'max_us', 'mean_us']);
+    expect(summary.machine.cores).toBeGreaterThan(0);
+    expect(summary.machine.node).toBe(process.version);
+    expect(typeof summary.histograms.cluster.hdr).toBe('string');
+    expect(summary.throughput.eventsPerSecond).toBeGreaterThan(0);
+  });
+
+  it('merge two shard summaries into the counts of the whole file', async () => {
+    for (const k of [0, 1]) {
+      const { io } = fakeIo();
+      expect(await runMain([file.path, '--workers', '1', '--batch', '8', '--shard', `${k}/2`, '--json', join(dir, `s${k}.json`), '-q'], io)).toBe(0);
+    }
+    const { io, out } = fakeIo();
+    expect(await mergeMain([join(dir, 's0.json'), join(dir, 's1.json'), '--json', join(dir, 'merged.json')], io)).toBe(0);
+    const merged = JSON.parse(readFileSync(join(dir, 'merged.json'), 'utf8'));
+    expect(merged.events).toEqual({ read: 60, ok: 60, invalid: 0, failed: 0 });
+    expect(merged.shards).toEqual([{ index: 0, count: 2 }, { index: 1, count: 2 }]);
+    expect(out()).toContain('shards 0,1 of 2');
+  });
+
+  it('refuse to merge a summary with itself, as bad usage naming the file', async () => {
+    const { io } = fakeIo();
+    const s0 = join(dir, 's0.json');
+    await expect(mergeMain([s0, s0], io)).rejects.toThrow(new UsageError(`merge: ${s0}: shard 0/2 is already in ${s0}`));
+  });
+});
+
+describe('the progress bar', () => {
+  it('shows events, rate and an ETA from the bytes read', () => {
+    // a quarter of the bytes in 10 s: three quarters left take 30 s
+    expect(ProgressBar.line(5000, 500, 250, 1000, 10)).toBe('[######..................]  25% 5,000 events 500/s ETA 30s');
+  });
+
+  it('draws nothing when disabled', () => {
+    const { io, err } = fakeIo();
+    const bar = new ProgressBar(io.stderr, { eventsDone: () => 1, bytesDone: () => 1 }, 10, false);
+    bar.start();
+    bar.stop();
+    expect(err()).toBe('');
+  });
+});
