@@ -53,5 +53,33 @@ export function describeDifference(event: number, difference: JetDifference): st
   if (difference.jet < 0) {
     return `event ${event}: engine gives ${difference.engineValue} jets, reference ${difference.referenceValue}`;
   }
-  return `event ${event}, jet ${difference.jet}, ${difference.field}: engine ${difference.engineValue}, reference ${difference.referenceValue}`;
+  const { engineValue, referenceValue } = difference;
+  // doubles print in their shortest round-trip form, so two different values never print
+  // alike; -0 needs its sign spelled out, and the distance in ulps says how close they are
+  const show = (x: number) => (Object.is(x, -0) ? '-0' : String(x));
+  let apart = '';
+  if ((DOUBLE_FIELDS as readonly string[]).includes(difference.field)) {
+    const ulps = ulpDistance(engineValue, referenceValue);
+    if (ulps !== null) apart = ` (${ulps} ulp${ulps === 1 ? '' : 's'} apart)`;
+  }
+  return `event ${event}, jet ${difference.jet}, ${difference.field}: engine ${show(engineValue)}, reference ${show(referenceValue)}${apart}`;
+}
+
+const ulpView = new DataView(new ArrayBuffer(8));
+
+/** a double's position on the number line counted in representable steps (-0 and 0 are one) */
+function ulpOrdinal(x: number): bigint {
+  ulpView.setFloat64(0, x);
+  const bits = ulpView.getBigInt64(0);
+  return bits < 0n ? -(bits & 0x7fffffffffffffffn) : bits;
+}
+
+/**
+ * How many representable doubles apart two finite values are (1 for neighbours, 0 for 0 and
+ * -0); null when either is not finite. Exact up to 2^53, rounded above.
+ */
+export function ulpDistance(a: number, b: number): number | null {
+  if (!Number.isFinite(a) || !Number.isFinite(b)) return null;
+  const d = ulpOrdinal(a) - ulpOrdinal(b);
+  return Number(d < 0n ? -d : d);
 }
