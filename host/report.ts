@@ -45,6 +45,7 @@ export function formatReport(summary: RunSummary): string {
   lines.push(`  latency µs  ${COLUMNS.map((col) => col.padStart(10)).join('')}`);
   lines.push(latencyRow('cluster', summary.latency.cluster));
   lines.push(latencyRow('end-to-end', summary.latency.endToEnd));
+  if (summary.latency.dispatchLag.count > 0) lines.push(latencyRow('  to dispatch', summary.latency.dispatchLag));
   lines.push(`  throughput  ${grouped(summary.throughput.eventsPerSecond)} events/s over ${summary.throughput.wallSeconds.toFixed(2)} s`);
   if (summary.budget) {
     const b = summary.budget;

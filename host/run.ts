@@ -220,8 +220,13 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
     await pool.waitForRoom();
     const sealed = builder.seal(dispatchIndex++);
     const starts = new Float64Array(sealed.task.count);
-    if (schedule.openLoop) for (let k = 0; k < starts.length; k++) starts[k] = builderStartNs[k];
-    else starts.fill(nowNs());
+    const dispatchNs = nowNs();
+    if (schedule.openLoop) {
+      for (let k = 0; k < starts.length; k++) {
+        starts[k] = builderStartNs[k];
+        tally.dispatchLag.recordNs(dispatchNs - builderStartNs[k]);
+      }
+    } else starts.fill(dispatchNs);
     builderStartNs.length = 0;
     pool.dispatch(sealed, builderFirstRecord, starts);
   };

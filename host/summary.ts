@@ -134,6 +134,8 @@ export class RunTally {
   readonly cluster = new LatencyRecorder();
   /** per event, scheduled (open loop) or dispatch (closed loop) time to its result back on the host */
   readonly endToEnd = new LatencyRecorder();
+  /** open loop: how late the host handed each event to the pool after its scheduled arrival */
+  readonly dispatchLag = new LatencyRecorder();
   readonly stages: Record<Stage, LatencyRecorder> = {
     decode: new LatencyRecorder(),
     bin: new LatencyRecorder(),
@@ -181,6 +183,7 @@ export class RunTally {
     this.check.differences.sort((a, b) => a.event - b.event);
     this.cluster.merge(other.cluster);
     this.endToEnd.merge(other.endToEnd);
+    this.dispatchLag.merge(other.dispatchLag);
     for (const stage of STAGES) this.stages[stage].merge(other.stages[stage]);
     this.multiplicity.merge(other.multiplicity);
     this.overBudget += other.overBudget;
@@ -241,6 +244,8 @@ export interface RunSummary {
   latency: {
     cluster: LatencyStats;
     endToEnd: LatencyStats;
+    /** open loop: scheduled arrival to hand-over to the pool (part of endToEnd): waiting for room in the pool, and timer lateness */
+    dispatchLag: LatencyStats;
     stages: Record<Stage, LatencyStats>;
   };
   budget: { budgetUs: number; over: number; fractionOver: number } | null;
@@ -249,6 +254,7 @@ export interface RunSummary {
   histograms: {
     cluster: EncodedLatency;
     endToEnd: EncodedLatency;
+    dispatchLag: EncodedLatency;
     stages: Record<Stage, EncodedLatency>;
     multiplicity: { bin: number; sumTowers: number; histogram: EncodedLatency }[];
   };
@@ -333,7 +339,7 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
     towers: { ...tally.towers },
     jets: tally.jets,
     check: { ...tally.check },
-    latency: { cluster: tally.cluster.stats(), endToEnd: tally.endToEnd.stats(), stages: stagesStats },
+    latency: { cluster: tally.cluster.stats(), endToEnd: tally.endToEnd.stats(), dispatchLag: tally.dispatchLag.stats(), stages: stagesStats },
     budget: budgetUs === null ? null : { budgetUs, over: tally.overBudget, fractionOver: timed === 0 ? 0 : tally.overBudget / timed },
     throughput: {
       eventsPerSecond: context.eventsPerSecond ?? (wallSeconds > 0 ? events.read / wallSeconds : 0),
@@ -344,6 +350,7 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
     histograms: {
       cluster: tally.cluster.encode(),
       endToEnd: tally.endToEnd.encode(),
+      dispatchLag: tally.dispatchLag.encode(),
       stages: stagesEncoded,
       multiplicity: tally.multiplicity.recorders.flatMap((recorder, bin) =>
         recorder ? [{ bin, sumTowers: tally.multiplicity.sumTowers[bin], histogram: recorder.encode() }] : []),
@@ -369,6 +376,7 @@ export function tallyFromSummary(summary: RunSummary, where = 'summary'): RunTal
   tally.check.differences.push(...summary.check.differences);
   tally.cluster.merge(LatencyRecorder.decode(summary.histograms.cluster, `${where}: histograms.cluster`));
   tally.endToEnd.merge(LatencyRecorder.decode(summary.histograms.endToEnd, `${where}: histograms.endToEnd`));
+  tally.dispatchLag.merge(LatencyRecorder.decode(summary.histograms.dispatchLag, `${where}: histograms.dispatchLag`));
   for (const stage of STAGES) {
     tally.stages[stage].merge(LatencyRecorder.decode(summary.histograms.stages[stage], `${where}: histograms.stages.${stage}`));
   }
