@@ -7,7 +7,7 @@
 // thread. Events whose results wait for an earlier batch before being written in input order
 // are not charged for that wait: in-order output is a property of the file, not of a trigger.
 
-import { closeSync, openSync, renameSync, rmSync, statSync, writeSync } from 'node:fs';
+import { closeSync, openSync, readSync, renameSync, rmSync, statSync, writeSync } from 'node:fs';
 import { openEventSource } from './event-source.js';
 import { InputError } from './args.js';
 import { ArrivalSchedule, nowNs, sleepUntilNs, type ArrivalMode } from './arrivals.js';
@@ -103,6 +103,16 @@ export function writeFileAtomic(path: string, text: string): void {
 
 const PROBLEM_LINES_MAX = 20;
 
+function isGzipFile(path: string): boolean {
+  const fd = openSync(path, 'r');
+  try {
+    const magic = Buffer.alloc(2);
+    return readSync(fd, magic, 0, 2, 0) === 2 && magic[0] === 0x1f && magic[1] === 0x8b;
+  } finally {
+    closeSync(fd);
+  }
+}
+
 export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const workers = options.workers ?? defaultWorkers();
   const batch = options.batch ?? DEFAULT_BATCH;
@@ -123,9 +133,12 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const records = source.records;
   const grid: Grid = source.header.grid;
 
+  // the bar's ETA compares record offsets with the file size, so it needs an uncompressed
+  // file read to its end; for gzip (offsets count inflated bytes), stdin and --events it
+  // shows events and rate only
   let bytesTotal = 0;
   if (options.input !== '-') {
-    try { bytesTotal = statSync(options.input).size; } catch { bytesTotal = 0; }
+    try { if (!isGzipFile(options.input) && options.maxEvents == null) bytesTotal = statSync(options.input).size; } catch { bytesTotal = 0; }
   }
   const tally = new RunTally();
   let problemLines = 0;
