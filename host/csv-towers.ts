@@ -52,18 +52,88 @@ export interface ReadCsvOptions {
   fileLabel?: string;
 }
 
-const EVENT_NUMBER = /^[0-9]+$/;
-const INTEGER = /^[+-]?[0-9]+$/;
-const DECIMAL = /^[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?$/;
+const CHAR_0 = 48;
+const CHAR_9 = 57;
+const CHAR_PLUS = 43;
+const CHAR_MINUS = 45;
+const CHAR_DOT = 46;
+const CHAR_COMMA = 44;
+const CHAR_E = 101;
+const CHAR_UPPER_E = 69;
+
+// Text is handled as latin1 (one character per byte), so character positions are byte
+// offsets; the field scanners below accept ASCII only, and error texts decode the field as
+// UTF-8 again to show it as written.
 
 /** Shows a field in an error text, short and on one line. */
-function quote(text: string): string {
+function quote(latin1: string): string {
+  const text = Buffer.from(latin1, 'latin1').toString('utf8');
   return JSON.stringify(text.length > 40 ? `${text.slice(0, 40)}...` : text);
 }
 
+/** digits only, at most 2^53 - 1; -1 when not an event number */
+function scanEventNumber(text: string, a: number, b: number): number {
+  if (a >= b) return -1;
+  let value = 0;
+  for (let k = a; k < b; k++) {
+    const c = text.charCodeAt(k);
+    if (c < CHAR_0 || c > CHAR_9) return -1;
+    value = value * 10 + (c - CHAR_0);
+    if (value > Number.MAX_SAFE_INTEGER) return -1;
+  }
+  return value;
+}
+
+/** [+-] digits; NaN when not an integer (values beyond 2^53 lose precision: they lie outside every grid anyway) */
+function scanInteger(text: string, a: number, b: number): number {
+  let k = a;
+  let sign = 1;
+  if (k < b) {
+    const c = text.charCodeAt(k);
+    if (c === CHAR_MINUS) { sign = -1; k++; } else if (c === CHAR_PLUS) k++;
+  }
+  if (k >= b) return NaN;
+  let value = 0;
+  for (; k < b; k++) {
+    const c = text.charCodeAt(k);
+    if (c < CHAR_0 || c > CHAR_9) return NaN;
+    value = value * 10 + (c - CHAR_0);
+  }
+  return sign * value;
+}
+
+/** [+-] (digits [. digits*] | . digits) [(e|E) [+-] digits] */
+function isDecimal(text: string, a: number, b: number): boolean {
+  let k = a;
+  if (k < b) {
+    const c = text.charCodeAt(k);
+    if (c === CHAR_PLUS || c === CHAR_MINUS) k++;
+  }
+  let digits = 0;
+  while (k < b) { const c = text.charCodeAt(k); if (c < CHAR_0 || c > CHAR_9) break; k++; digits++; }
+  if (k < b && text.charCodeAt(k) === CHAR_DOT) {
+    k++;
+    while (k < b) { const c = text.charCodeAt(k); if (c < CHAR_0 || c > CHAR_9) break; k++; digits++; }
+  }
+  if (digits === 0) return false;
+  if (k < b) {
+    const c = text.charCodeAt(k);
+    if (c !== CHAR_E && c !== CHAR_UPPER_E) return false;
+    k++;
+    if (k < b) {
+      const s = text.charCodeAt(k);
+      if (s === CHAR_PLUS || s === CHAR_MINUS) k++;
+    }
+    let exponentDigits = 0;
+    while (k < b) { const d = text.charCodeAt(k); if (d < CHAR_0 || d > CHAR_9) break; k++; exponentDigits++; }
+    if (exponentDigits === 0) return false;
+  }
+  return k === b;
+}
+
 /**
- * Builds the events from rows fed in order. Holds the event being read: its towers, row
- * offsets and first problem.
+ * Builds the events from rows fed in order. Holds the event being read: its towers (growable
+ * typed arrays), and its first problem with that row's offset.
  */
 class CsvEventBuilder {
   private readonly etaBins: number;
@@ -72,8 +142,9 @@ class CsvEventBuilder {
   private current = -1; // event number being read, -1 before the first row
   private next = 0; // next event number to yield
   private firstRowOffset = 0;
-  private towerIndex: number[] = [];
-  private towerEt: number[] = [];
+  private towerIndex = new Int32Array(1024);
+  private towerEt = new Float64Array(1024);
+  private towerCount = 0;
   private problem: string | null = null;
   private problemOffset = 0;
 
@@ -83,14 +154,14 @@ class CsvEventBuilder {
     this.seen = new Uint8Array(grid.etaBins * grid.phiBins);
   }
 
-  /** One data line (without its line end). Pushes finished events to `out`. */
-  row(line: string, offset: number, out: Pending[]): void {
-    const comma = line.indexOf(',');
-    const first = comma < 0 ? line : line.slice(0, comma);
-    if (!EVENT_NUMBER.test(first) || Number(first) > Number.MAX_SAFE_INTEGER) {
-      throw new InputError(this.label, `bad event number ${quote(first)} (the rest of the file is unreadable)`, undefined, offset);
+  /** One data line, text[a, b) without its line end, at byte `offset`. Pushes finished events to `out`. */
+  row(text: string, a: number, b: number, offset: number, out: Pending[]): void {
+    let comma = text.indexOf(',', a);
+    if (comma < 0 || comma > b) comma = b;
+    const event = scanEventNumber(text, a, comma);
+    if (event < 0) {
+      throw new InputError(this.label, `bad event number ${quote(text.slice(a, comma))} (the rest of the file is unreadable)`, undefined, offset);
     }
-    const event = Number(first);
     if (event < this.current) {
       throw new InputError(this.label, `event number ${event} after ${this.current}: numbers must not decrease (the rest of the file is unreadable)`, undefined, offset);
     }
@@ -103,51 +174,69 @@ class CsvEventBuilder {
       this.firstRowOffset = offset;
     }
     if (this.problem !== null) return; // only the first problem of an event is reported
-    const problem = this.checkRow(line);
+    const problem = this.checkRow(text, comma, b);
     if (problem !== null) {
       this.problem = problem;
       this.problemOffset = offset;
     }
   }
 
-  /** null when the row is a good tower (then it is added), else the problem. */
-  private checkRow(line: string): string | null {
-    const fields = line.split(',');
-    if (fields.length !== 4) return `row has ${fields.length} field${fields.length === 1 ? '' : 's'}, expected 4 (${CSV_HEADER})`;
-    const [, ietaText, iphiText, etText] = fields;
-    if (!INTEGER.test(ietaText)) return `ieta ${quote(ietaText)} is not an integer`;
-    if (!INTEGER.test(iphiText)) return `iphi ${quote(iphiText)} is not an integer`;
-    if (!DECIMAL.test(etText)) return `et ${quote(etText)} is not a decimal number`;
-    const ieta = Number(ietaText);
-    const iphi = Number(iphiText);
+  /** Fields after the event number: text[comma, b) starts at its comma. null when the row is a good tower (then it is added). */
+  private checkRow(text: string, comma: number, b: number): string | null {
+    // field k spans [starts[k], ends[k]); the first field (the event number) is already read
+    let fields = 1;
+    let c1 = -1, c2 = -1, c3 = -1;
+    for (let k = comma; k < b; k++) {
+      if (text.charCodeAt(k) !== CHAR_COMMA) continue;
+      fields++;
+      if (fields === 2) c1 = k; else if (fields === 3) c2 = k; else if (fields === 4) c3 = k;
+    }
+    if (fields !== 4) return `row has ${fields} field${fields === 1 ? '' : 's'}, expected 4 (${CSV_HEADER})`;
+    const ieta = scanInteger(text, c1 + 1, c2);
+    if (Number.isNaN(ieta)) return `ieta ${quote(text.slice(c1 + 1, c2))} is not an integer`;
+    const iphi = scanInteger(text, c2 + 1, c3);
+    if (Number.isNaN(iphi)) return `iphi ${quote(text.slice(c2 + 1, c3))} is not an integer`;
+    if (!isDecimal(text, c3 + 1, b)) return `et ${quote(text.slice(c3 + 1, b))} is not a decimal number`;
+    const etText = text.slice(c3 + 1, b);
     const et = Number(etText);
     if (!Number.isFinite(et)) return `et ${etText} is not finite`;
     if (!(ieta >= 0 && ieta < this.etaBins && iphi >= 0 && iphi < this.phiBins)) {
-      return `tower (ieta ${ietaText}, iphi ${iphiText}) is outside the grid of ${this.etaBins} x ${this.phiBins} towers`;
+      return `tower (ieta ${text.slice(c1 + 1, c2)}, iphi ${text.slice(c2 + 1, c3)}) is outside the grid of ${this.etaBins} x ${this.phiBins} towers`;
     }
     if (Math.abs(et) > MAX_ABS_ET) return `|et| ${etText} is above ${MAX_ABS_ET}`;
     const index = ieta * this.phiBins + iphi;
-    if (this.seen[index]) return `tower (ieta ${ietaText}, iphi ${iphiText}) repeats an earlier row of the event`;
+    if (this.seen[index]) return `tower (ieta ${text.slice(c1 + 1, c2)}, iphi ${text.slice(c2 + 1, c3)}) repeats an earlier row of the event`;
     this.seen[index] = 1;
-    this.towerIndex.push(index);
-    this.towerEt.push(et);
+    if (this.towerCount === this.towerIndex.length) this.grow();
+    this.towerIndex[this.towerCount] = index;
+    this.towerEt[this.towerCount] = et;
+    this.towerCount++;
     return null;
+  }
+
+  private grow(): void {
+    const index = new Int32Array(this.towerIndex.length * 2);
+    index.set(this.towerIndex);
+    this.towerIndex = index;
+    const et = new Float64Array(this.towerEt.length * 2);
+    et.set(this.towerEt);
+    this.towerEt = et;
   }
 
   private finishCurrent(out: Pending[]): void {
     if (this.current < 0) return;
-    for (const index of this.towerIndex) this.seen[index] = 0;
+    const count = this.towerCount;
+    for (let k = 0; k < count; k++) this.seen[this.towerIndex[k]] = 0;
     const valid = this.problem === null;
     out.push({
       event: this.current,
       offset: valid ? this.firstRowOffset : this.problemOffset,
-      towerIndex: valid ? Int32Array.from(this.towerIndex) : new Int32Array(0),
-      towerEt: valid ? Float64Array.from(this.towerEt) : new Float64Array(0),
+      towerIndex: valid ? this.towerIndex.slice(0, count) : new Int32Array(0),
+      towerEt: valid ? this.towerEt.slice(0, count) : new Float64Array(0),
       problem: this.problem,
     });
     this.next = this.current + 1;
-    this.towerIndex = [];
-    this.towerEt = [];
+    this.towerCount = 0;
     this.problem = null;
   }
 
@@ -175,12 +264,15 @@ function* expand(pending: Pending[]): Generator<CsvEvent> {
   }
 }
 
+const HEADER_WITH_BOM = '\xef\xbb\xbf' + CSV_HEADER; // the UTF-8 byte order mark, as latin1
+
 /**
  * Splits chunks into lines with their byte offsets and runs them through the header check
- * and the event builder.
+ * and the event builder. Each chunk becomes one latin1 string; a line cut by the chunk end
+ * is carried over as text.
  */
 class CsvLineSplitter {
-  private carry: Buffer | null = null; // start of a line cut by a chunk end
+  private carry = ''; // start of a line cut by a chunk end
   private carryOffset = 0;
   private consumed = 0;
   private headerSeen = false;
@@ -190,39 +282,26 @@ class CsvLineSplitter {
 
   feed(chunk: Uint8Array, out: Pending[]): void {
     const bytes = Buffer.isBuffer(chunk) ? chunk : Buffer.from(chunk.buffer, chunk.byteOffset, chunk.byteLength);
-    const base = this.consumed;
+    const textOffset = this.consumed - this.carry.length; // byte offset of text[0]
     this.consumed += bytes.length;
+    const text = this.carry + bytes.toString('latin1');
     let pos = 0;
-    if (this.carry !== null) {
-      const newline = bytes.indexOf(10);
-      if (newline < 0) {
-        this.carry = Buffer.concat([this.carry, bytes]);
-        this.checkLength(this.carry.length, this.carryOffset);
-        return;
-      }
-      const line = Buffer.concat([this.carry, bytes.subarray(0, newline)]);
-      this.carry = null;
-      this.line(line, 0, line.length, this.carryOffset, out);
+    while (pos < text.length) {
+      const newline = text.indexOf('\n', pos);
+      if (newline < 0) break;
+      this.line(text, pos, newline, textOffset + pos, out);
       pos = newline + 1;
     }
-    while (pos < bytes.length) {
-      const newline = bytes.indexOf(10, pos);
-      if (newline < 0) {
-        this.carry = Buffer.from(bytes.subarray(pos)); // own copy: the chunk may be large
-        this.carryOffset = base + pos;
-        this.checkLength(this.carry.length, this.carryOffset);
-        return;
-      }
-      this.line(bytes, pos, newline, base + pos, out);
-      pos = newline + 1;
-    }
+    this.carry = pos < text.length ? text.slice(pos) : '';
+    this.carryOffset = textOffset + pos;
+    this.checkLength(this.carry.length, this.carryOffset);
   }
 
   end(out: Pending[]): void {
-    if (this.carry !== null) {
-      const line = this.carry;
-      this.carry = null;
-      this.line(line, 0, line.length, this.carryOffset, out);
+    if (this.carry.length > 0) {
+      const text = this.carry;
+      this.carry = '';
+      this.line(text, 0, text.length, this.carryOffset, out);
     }
     if (!this.headerSeen) throw new InputError(this.label, `missing header: expected "${CSV_HEADER}", the file is empty`, undefined, 0);
     this.builder.end(out);
@@ -234,27 +313,25 @@ class CsvLineSplitter {
     }
   }
 
-  private line(bytes: Buffer, start: number, end: number, offset: number, out: Pending[]): void {
-    this.checkLength(end - start, offset);
-    if (end > start && bytes[end - 1] === 13) end--; // CRLF
-    // the field patterns are ASCII-only, so any non-ASCII text fails them; utf8 keeps error texts readable
-    let text = bytes.toString('utf8', start, end);
+  private line(text: string, a: number, b: number, offset: number, out: Pending[]): void {
+    this.checkLength(b - a, offset);
+    if (b > a && text.charCodeAt(b - 1) === 13) b--; // CRLF
     if (!this.headerSeen) {
-      if (text.startsWith('\ufeff')) text = text.slice(1);
-      if (text !== CSV_HEADER) {
-        throw new InputError(this.label, `missing header: expected "${CSV_HEADER}", got ${quote(text)}`, undefined, offset);
+      const line = text.slice(a, b);
+      if (line !== CSV_HEADER && line !== HEADER_WITH_BOM) {
+        throw new InputError(this.label, `missing header: expected "${CSV_HEADER}", got ${quote(line)}`, undefined, offset);
       }
       this.headerSeen = true;
       return;
     }
-    if (text.length === 0) {
+    if (b === a) {
       if (this.blankOffset < 0) this.blankOffset = offset;
       return;
     }
     if (this.blankOffset >= 0) {
       throw new InputError(this.label, 'bad event number "" (an empty line before more rows; the rest of the file is unreadable)', undefined, this.blankOffset);
     }
-    this.builder.row(text, offset, out);
+    this.builder.row(text, a, b, offset, out);
   }
 }
 

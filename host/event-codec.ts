@@ -167,10 +167,24 @@ export class EventRecordDecoder {
     let n = this.towerIndexCount;
     const bytes = c.bytes;
     let pos = c.pos;
+    // inline fast paths for one to three bytes (indices below 2^21: every grid of grid.ts);
+    // longer varints (negative int32 and other oddities) go through the cursor
     while (pos < limit) {
-      const b = bytes[pos];
-      if (b < 0x80) { out[n++] = b; pos++; continue; } // one-byte varint: indices 0..127
-      c.pos = pos;
+      const start = pos;
+      let b = bytes[pos++];
+      if (b < 0x80) { out[n++] = b; continue; }
+      let value = b & 0x7f;
+      if (pos < limit) {
+        b = bytes[pos++];
+        value |= (b & 0x7f) << 7;
+        if (b < 0x80) { out[n++] = value; continue; }
+        if (pos < limit) {
+          b = bytes[pos++];
+          value |= b << 14;
+          if (b < 0x80) { out[n++] = value; continue; }
+        }
+      }
+      c.pos = start;
       out[n++] = c.readInt32(limit);
       pos = c.pos;
     }
