@@ -341,6 +341,12 @@ describe('mismatched or disordered candidates are named, not a crash', () => {
     expect(stderr).toContain("--p / --algorithm -1 differs from the candidate header's p 1 (engine planted-faults)");
   });
 
+  it('grid options with an event file, which carries its own grid, are bad usage', async () => {
+    const { code, stderr } = await compare(eventsPath, await jetsCandidate(), '--eta-bins', '40');
+    expect(code).toBe(2);
+    expect(stderr).toContain('carries its own grid');
+  });
+
   it('an event file given as the candidate is bad input', async () => {
     const { code, stderr } = await compare(eventsPath, eventsPath);
     expect(code).toBe(2);

@@ -12,7 +12,7 @@
 
 import { InputError, UsageError, parseArgs, type CommandIo, type CommandSpec, type ParsedArgs } from '../args.js';
 import { openCandidate, type CandidateEvent, type CandidateSource } from '../candidate-reader.js';
-import { CLUSTER_OPTIONS, GRID_OPTIONS, clusterSettingsFrom, describeSettings, gridFrom } from '../common-options.js';
+import { CLUSTER_OPTIONS, GRID_OPTIONS, clusterSettingsFrom, describeSettings, gridFrom, hasGridOptions } from '../common-options.js';
 import { openEventSource } from '../event-source.js';
 import { EventTowerReader } from '../event-towers.js';
 import { describeGrid, sameGrid } from '../grid.js';
@@ -74,6 +74,11 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
   const candidate = await openCandidate(candidatePath);
   const events = await openEventSource(eventsPath, { grid: gridFrom(options.args, 'compare') });
   const grid = events.header.grid;
+  if (events.format === 'events-file' && hasGridOptions(options.args) && !sameGrid(gridFrom(options.args, 'compare'), grid)) {
+    await candidate.events.return(undefined as never);
+    await events.records.return(undefined as never);
+    throw new UsageError(`compare: ${events.label} carries its own grid; the grid options apply to CSV tower files only`);
+  }
   const header = candidate.header;
   if (header !== null && !sameGrid(header.grid, grid)) {
     await candidate.events.return(undefined as never);
@@ -86,6 +91,10 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
   const settings = clusterSettingsFrom(options.args, 'compare', base);
   if (header?.settings) {
     for (const [key, name] of SETTING_NAMES) {
+      if (key === 'ptMin' && settings.ptMin > header.settings.ptMin) {
+        options.note(`compare: jets must agree above --ptmin ${settings.ptMin} GeV (the candidate was made with ptmin ${header.settings.ptMin})`);
+        continue;
+      }
       if (settings[key] !== header.settings[key]) {
         options.note(`compare: ${name} ${settings[key]} differs from the candidate header's ${key} ${header.settings[key]} (engine ${header.settings.engine}); using ${settings[key]}`);
       }
