@@ -336,6 +336,7 @@ function clusterBatch(s: WorkerState, task: BatchTask): BatchResult {
 
   // phase 2: cluster the valid events, one engine call for the whole batch
   const withTowers = s.reference !== null || s.encodeJets !== null;
+  // (a JetSet view per event is made only for events that are checked or written)
   let jetsOf: (v: number) => JetSet;
   if (hasBatchApi(clusterer)) {
     const batch = clusterer.clusterBatch(valid, s.batchStart, s.batchIndex, s.batchEt, withTowers);
@@ -343,13 +344,16 @@ function clusterBatch(s: WorkerState, task: BatchTask): BatchResult {
       if (batch.status[v] !== 0) throw new Error(`engine refused event ${out.eventNumber[validEvent[v]]} that passed validation (status ${batch.status[v]})`);
       out.stageNs[validEvent[v] * STAGE_COUNT + 2] = batch.clusterNs[v];
     }
+    jetsTotal = batch.jetStart[valid] - batch.jetStart[0];
     jetsOf = (v) => batchEventJets(batch, v);
   } else {
     const sets: JetSet[] = [];
     for (let v = 0; v < valid; v++) {
       const t2 = nowNs();
-      sets.push(clusterer.cluster(s.batchIndex.subarray(s.batchStart[v], s.batchStart[v + 1]), s.batchEt.subarray(s.batchStart[v], s.batchStart[v + 1])));
+      const jets = clusterer.cluster(s.batchIndex.subarray(s.batchStart[v], s.batchStart[v + 1]), s.batchEt.subarray(s.batchStart[v], s.batchStart[v + 1]));
       out.stageNs[validEvent[v] * STAGE_COUNT + 2] = nowNs() - t2;
+      jetsTotal += jets.count;
+      sets.push(jets);
     }
     jetsOf = (v) => sets[v];
   }
@@ -364,16 +368,14 @@ function clusterBatch(s: WorkerState, task: BatchTask): BatchResult {
       if (s.encodeJets && event >= 0) jetChunks.push(s.encodeJets(event, null, 0, invalid.find((e) => e.index === k)!.reason));
       continue;
     }
-    const jets = jetsOf(v);
     const from = s.batchStart[v];
     const to = s.batchStart[v + 1];
-    v++;
-    jetsTotal += jets.count;
+    const slot = v++;
     const t3 = nowNs();
     let t4 = t3;
     if (s.reference && inCheckSample(event, config.checkFraction, config.checkSeed)) {
       const reference = s.reference.cluster(s.batchIndex.subarray(from, to), s.batchEt.subarray(from, to));
-      const difference = firstJetDifference(jets, reference);
+      const difference = firstJetDifference(jetsOf(slot), reference);
       checked++;
       if (difference === null) agreeing++;
       else differences.push({ event, ...difference });
@@ -381,7 +383,7 @@ function clusterBatch(s: WorkerState, task: BatchTask): BatchResult {
     }
     let t5 = t4;
     if (s.encodeJets) {
-      jetChunks.push(s.encodeJets(event, jets, Math.round(out.stageNs[stage + 2]), ''));
+      jetChunks.push(s.encodeJets(event, jetsOf(slot), Math.round(out.stageNs[stage + 2]), ''));
       t5 = nowNs();
     }
     if (SYNTHETIC_TIMES) {
