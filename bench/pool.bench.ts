@@ -1,4 +1,5 @@
-// Benchmarks of the streamed run (node dist/bench/pool.bench.js [--quick] after npm run build):
+// Benchmarks of the streamed run (node dist/bench/pool.bench.js [--quick | --streaming-only]
+// after npm run build):
 //   1. the pool's per-task round trip (tinybench), and events/s against the batch size K,
 //      which chose run.ts's DEFAULT_BATCH;
 //   2. 1 against 2 workers at pileup 200 (closed loop);
@@ -23,6 +24,8 @@ import { workerFile } from '../host/pool.js';
 import { describeMachine } from '../host/summary.js';
 
 const quick = process.argv.includes('--quick');
+/** only section 4 (the long streaming run) */
+const streamingOnly = process.argv.includes('--streaming-only');
 const dir = mkdtempSync(join(tmpdir(), 'jetlag-bench-'));
 const results: Record<string, unknown> = { machine: describeMachine() };
 
@@ -59,7 +62,7 @@ function line(text: string): void {
 const median = (values: number[]) => [...values].sort((a, b) => a - b)[Math.floor(values.length / 2)];
 
 // ---- 1. per-task round trip and batch size ----------------------------------------------
-{
+if (!streamingOnly) {
   const pool = new Piscina({ filename: workerFile(), minThreads: 1, maxThreads: 1, idleTimeout: Infinity, workerData: {
     grid: DEFAULT_GRID, settings: { p: -1, radius: 0.4, ptMin: 0, threshold: 0, recombination: 'e' }, engine: 'wasm', checkFraction: 0, checkSeed: 1, encodeJets: false,
   } });
@@ -81,7 +84,7 @@ const written = writeToyFile(pileupFile, pileupEvents, 200, 500);
 line(`pileup-200 file: ${pileupEvents} events, ${(written.bytes / 1e6).toFixed(1)} MB, mean ${written.meanTowers.toFixed(0)} towers per event`);
 const base: RunOptions = { input: pileupFile, check: { mode: 'none', fraction: 0, seed: 1 }, engine: 'wasm' };
 
-{
+if (!streamingOnly) {
   const sweep: { batch: number; eventsPerSecond: number }[] = [];
   for (const batch of [1, 2, 4, 8, 16, 32, 64, 128]) {
     const rates: number[] = [];
@@ -93,7 +96,7 @@ const base: RunOptions = { input: pileupFile, check: { mode: 'none', fraction: 0
 }
 
 // ---- 2. one against two workers -----------------------------------------------------------
-{
+if (!streamingOnly) {
   const perWorkers: Record<number, number[]> = { 1: [], 2: [] };
   for (let r = 0; r < 3; r++) {
     for (const workers of [1, 2]) perWorkers[workers].push((await runEvents({ ...base, workers })).throughput.eventsPerSecond);
@@ -110,7 +113,7 @@ const base: RunOptions = { input: pileupFile, check: { mode: 'none', fraction: 0
 // tally), the workers' decode, bin and result packing, piscina's messaging and GC, so it is an
 // upper bound of the host's cost. The pool's start-up and engine warm-up, measured by a run of
 // zero events, are taken off.
-{
+if (!streamingOnly) {
   const cpuSeconds = () => { const u = process.cpuUsage(); return (u.user + u.system) / 1e6; };
   const startup0 = cpuSeconds();
   await runEvents({ ...base, workers: 2, maxEvents: 0 });
