@@ -175,7 +175,8 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   const what = source.format === 'jets-file' ? 'jets' : 'towers';
   const outLabel = outPath === '-' ? '<stdout>' : outPath;
   if (unreadable) {
-    io.stderr.write(`jetlag export: ${unreadable.message}; the ${tally.events} records before it were written to ${outLabel}\n`);
+    const records = tally.events === 1 ? '1 record' : `${tally.events} records`;
+    io.stderr.write(`jetlag export: ${unreadable.message}; ${records} before it written to ${outLabel}\n`);
     return 2;
   }
   if (!quiet) {

@@ -77,7 +77,7 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   await writer.close();
   if (!quiet && invalid > PROBLEM_LINES_MAX) io.stderr.write(`jetlag import: ... and ${invalid - PROBLEM_LINES_MAX} more invalid events\n`);
   if (unreadable) {
-    io.stderr.write(`jetlag import: ${unreadable.message}; the ${events} events before it were written to ${outLabel}\n`);
+    io.stderr.write(`jetlag import: ${unreadable.message}; ${events === 1 ? '1 event' : `${events} events`} before it written to ${outLabel}\n`);
     return 2;
   }
   if (!quiet) io.stderr.write(`jetlag import: wrote ${events} events (${towers} towers, ${invalid} invalid) to ${outLabel}\n`);
