@@ -228,6 +228,7 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   let builderFirstRecord = 0;
   const builderStartNs: number[] = [];
   const startNs = nowNs();
+  let endNs = startNs;
 
   const send = async () => {
     await pool.waitForRoom();
@@ -276,6 +277,7 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
     }
     if (builder.count > 0) await send();
     await pool.drain();
+    endNs = nowNs();
   } catch (error) {
     (jetsFile as AtomicFile | null)?.abandon();
     throw error;
@@ -283,7 +285,7 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
     progress.stop();
     await pool.close();
   }
-  const wallSeconds = (nowNs() - startNs) / 1e9;
+  const wallSeconds = (endNs - startNs) / 1e9;
   tally.bytesRead = lastOffset;
   openJetsFile(engineName);
   (jetsFile as AtomicFile | null)?.commit();

@@ -249,6 +249,7 @@ export interface RunSummary {
     stages: Record<Stage, LatencyStats>;
   };
   budget: { budgetUs: number; over: number; fractionOver: number } | null;
+  /** events read / wall time from the first dispatch to the last result; bytesRead: uncompressed offset of the last record read */
   throughput: { eventsPerSecond: number; wallSeconds: number; bytesRead: number };
   multiplicity: { bins: MultiplicityBin[]; alpha: number | null; binsUsed: number };
   histograms: {
