@@ -25,24 +25,29 @@ export const LITTLE_ENDIAN_HOST = new Uint8Array(new Float64Array([1]).buffer)[7
 
 export class WireCursor {
   bytes: Uint8Array;
-  view: DataView;
   pos: number;
   end: number;
   /** position where the field being read started (its tag), for error texts */
   fieldStart: number;
+  private dataView: DataView | null = null;
 
   constructor(bytes: Uint8Array) {
     this.bytes = bytes;
-    this.view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
     this.pos = 0;
     this.end = bytes.length;
     this.fieldStart = 0;
   }
 
+  /** made on first use: packed doubles are block-copied and need none on little-endian hosts */
+  get view(): DataView {
+    this.dataView ??= new DataView(this.bytes.buffer, this.bytes.byteOffset, this.bytes.byteLength);
+    return this.dataView;
+  }
+
   reset(bytes: Uint8Array): void {
-    if (bytes.buffer !== this.bytes.buffer || bytes.byteOffset !== this.bytes.byteOffset || bytes.byteLength !== this.bytes.byteLength) {
+    if (bytes !== this.bytes) {
       this.bytes = bytes;
-      this.view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+      this.dataView = null;
     }
     this.pos = 0;
     this.end = bytes.length;

@@ -9,6 +9,7 @@ import { main as importMain } from '../host/commands/import.js';
 import { decodeEventRecord } from '../host/event-codec.js';
 import { openEventSource } from '../host/event-source.js';
 import { JetsFileWriter } from '../host/jets-codec.js';
+import { EventFileWriter } from '../host/record-writer.js';
 import { formatErrorLine, formatJetsLine } from '../host/jets-jsonl.js';
 import type { JetSet } from '../host/types.js';
 
@@ -201,6 +202,25 @@ describe('jetlag export of events', () => {
     expect(r.code).toBe(2);
     expect(r.stdout).toBe(CANONICAL.split('\n').slice(0, 6).join('\n') + '\n');
     expect(r.stderr).toMatch(new RegExp(`^jetlag export: ${cut.replace(/[.]/g, '\\.')}, byte \\d+: truncated record: length \\d+ but only \\d+ bytes follow; 3 records before it written to <stdout>\\n$`));
+  });
+
+  it('reports a garbage record inside an event file and keeps the events before and after it', async () => {
+    const events = temp('garbage.pb');
+    const writer = await EventFileWriter.open(events, { grid: { etaMin: -2.5, etaMax: 2.5, etaBins: 50, phiBins: 64 }, producer: 'test', label: '' });
+    await writer.writeEvent({ event: 0, towerIndex: [65], towerEt: [1] });
+    await writer.records.write(new Uint8Array([0x08, 0x01, 0xff, 0xff, 0xff])); // event 1, then a bad tag
+    await writer.records.write(new Uint8Array([0x07])); // wire type 7 right away: no event number
+    await writer.writeEvent({ event: 3, towerIndex: [0], towerEt: [2] });
+    await writer.close();
+    const r = await run(exportMain, [events, '--format', 'jsonl']);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toBe(
+      '{"event":0,"towers":[[1,1,1]]}\n' +
+      '{"event":1,"error":"bad event record: at record byte 2: truncated varint"}\n' +
+      '{"event":3,"towers":[[0,0,2]]}\n');
+    const lines = r.stderr.trimEnd().split('\n');
+    expect(lines[1]).toMatch(/, record 2, byte \d+: bad event record: at record byte 0: bad field tag 7 \(invalid event, written as an error line\)$/);
+    expect(lines[2]).toBe(`jetlag export: read 4 events (2 invalid), wrote 2 towers to <stdout>`);
   });
 
   it('rejects an unknown format', async () => {

@@ -1,3 +1,7 @@
+// Outside references: protobufjs 8.8.1 (npm, its reflection API on proto/jetlag.proto) reads
+// and writes the same bytes as the hand-written codec; wire-format rules (packed or unpacked
+// repeated fields, concatenated chunks, last value wins, unknown fields skipped) are those of
+// the protobuf encoding guide, https://protobuf.dev/programming-guides/encoding/ (from memory).
 import { mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';

@@ -1,3 +1,6 @@
+// Outside references: the delimited form (varint length, then the message) and varints of at
+// most 10 bytes follow the protobuf encoding guide, https://protobuf.dev/programming-guides/encoding/;
+// gzip's magic bytes 1f 8b are RFC 1952 section 2.3.1 (both from memory).
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
