@@ -127,6 +127,8 @@ describe('event sources', () => {
     expect(detectFormat(Buffer.from('0,1,2,3\n'))).toBe('csv');
     expect(detectFormat(new Uint8Array([5, 8, 1, 0x12]))).toBe('records');
     expect(detectFormat(new Uint8Array(0))).toBe('empty');
+    // a header longer than 127 bytes has a two-byte length before the signature
+    expect(detectFormat(delimit(encodeFileHeader({ kind: 'events', grid, producer: '', label: 'x'.repeat(300) })).subarray(0, 16))).toBe('records');
   });
 });
 
