@@ -368,6 +368,18 @@ describe('mismatched or disordered candidates are named, not a crash', () => {
 });
 
 describe('the report', () => {
+  it('is the same whether the reference or the engine computes the reference jets', async () => {
+    const candidate = await jetsCandidate((e, jets) => {
+      if (e % 3 === 0) jets.pt[0] *= 1.002;
+      return jets;
+    });
+    const byReference = await compareJson(candidate);
+    const byEngine = await compareJson(candidate, '--engine', 'wasm');
+    expect(byEngine.report.referenceJetsBy).toBe('wasm');
+    expect({ ...byEngine.report, referenceJetsBy: null }).toEqual({ ...byReference.report, referenceJetsBy: null });
+    expect(byReference.report.events.disagreeing).toBeGreaterThan(0);
+  });
+
   it('bins reference jets in pt and |η| so that the bins add up to the total', async () => {
     const { report } = await compareJson(await jetsCandidate());
     const sum = (bins: { referenceJets: number }[]) => bins.reduce((s, b) => s + b.referenceJets, 0);

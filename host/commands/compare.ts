@@ -16,7 +16,7 @@ import { CLUSTER_OPTIONS, GRID_OPTIONS, clusterSettingsFrom, describeSettings, g
 import { openEventSource } from '../event-source.js';
 import { EventTowerReader } from '../event-towers.js';
 import { describeGrid, sameGrid } from '../grid.js';
-import { ReferenceClusterer } from '../reference.js';
+import { makeClusterer, parseEngineName, type EngineName } from '../clusterers.js';
 import { writeFileAtomic } from '../run.js';
 import { DEFAULT_TOLERANCE, ToleranceMatcher, checkToleranceSettings, type ToleranceSettings } from '../tolerance-compare.js';
 import { DEFAULT_SETTINGS, type ClusterSettings, type Grid } from '../types.js';
@@ -35,6 +35,7 @@ export const spec: CommandSpec = {
     { name: 'angle-tol', kind: 'number', argument: '<dR>', description: `... and when its distance in (y, phi) <= this (default: ${DEFAULT_TOLERANCE.angleTol})` },
     { name: 'require', kind: 'number', argument: '<fraction>', description: `exit 1 when the fraction of agreeing events is below this (default: ${DEFAULT_REQUIRE})` },
     { name: 'json', kind: 'string', argument: '<file>', description: 'write the report as JSON here; - for stdout, which moves the text report to stderr (default: none)' },
+    { name: 'engine', kind: 'string', argument: '<reference|wasm>', description: 'what computes the reference jets: the reference itself, or the engine, which the project holds to the very same bits (jetlag run --check all shows it) and is several times faster (default: reference)' },
     { name: 'worst', kind: 'integer', argument: '<n>', description: 'list this many of the events furthest from agreeing (default: 10)' },
     ...CLUSTER_OPTIONS.map((o) => (o.name === 'ptmin'
       ? { ...o, description: 'jets with pt >= this must agree; softer ones take part in matching only (default: the candidate header\'s, else 0)' }
@@ -48,6 +49,8 @@ export interface CompareOptions {
   args: ParsedArgs;
   tolerance: Omit<ToleranceSettings, 'ptMin'>;
   worst: number;
+  /** what computes the reference jets (default: the reference) */
+  engine?: EngineName;
   /** notes for stderr (setting overrides, candidate without settings) */
   note: (line: string) => void;
 }
@@ -109,8 +112,8 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
   const tolerance: ToleranceSettings = { ...options.tolerance, ptMin: settings.ptMin };
   const matcher = new ToleranceMatcher(tolerance);
   const accumulator = new ValidationAccumulator(tolerance, options.worst);
-  const reference = new ReferenceClusterer(grid, { ...settings, ptMin: 0 });
-  reference.withTowers = false;
+  const reference = makeClusterer(options.engine ?? 'reference', grid, { ...settings, ptMin: 0 });
+  if ('withTowers' in reference) (reference as { withTowers: boolean }).withTowers = false;
   const towerReader = new EventTowerReader(grid);
   const empty: CandidateEvent = {
     event: null, offset: 0, count: 0, pt: new Float64Array(0), rapidity: new Float64Array(0), phi: new Float64Array(0),
@@ -255,14 +258,15 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   const json = args.values.json as string | undefined;
   const text = json === '-' ? io.stderr : io.stdout;
 
-  const result = await compareFiles(eventsPath, candidatePath, { args, tolerance, worst, note: (line) => io.stderr.write(line + '\n') });
+  const engine = parseEngineName((args.values.engine as string | undefined) ?? 'reference', 'compare');
+  const result = await compareFiles(eventsPath, candidatePath, { args, tolerance, worst, engine, note: (line) => io.stderr.write(line + '\n') });
   const { report } = result;
   const fraction = report.events.agreeingFraction;
   const passed = fraction !== null && fraction >= require && result.inputError === null;
 
-  const engine = result.candidate.engine !== null ? `, engine ${result.candidate.engine}` : '';
-  text.write(`compare: ${candidatePath} (${result.candidate.format}${engine}) against the reference on ${eventsPath}\n`);
-  text.write(`settings: ${describeSettings(result.settings)}; grid ${describeGrid(result.grid)}\n`);
+  const candidateEngine = result.candidate.engine !== null ? `, engine ${result.candidate.engine}` : '';
+  text.write(`compare: ${candidatePath} (${result.candidate.format}${candidateEngine}) against the reference on ${eventsPath}\n`);
+  text.write(`settings: ${describeSettings(result.settings)}; grid ${describeGrid(result.grid)}${engine === 'reference' ? '' : `; reference jets by ${engine}`}\n`);
   text.write(formatValidationReport(report));
   const verdict = fraction === null
     ? 'no valid events to compare'
@@ -275,6 +279,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
       files: { events: eventsPath, candidate: candidatePath },
       candidate: result.candidate,
       settings: result.settings,
+      referenceJetsBy: engine,
       grid: result.grid,
       require,
       passed,
