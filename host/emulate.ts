@@ -9,7 +9,10 @@
 //                    range (et below about 1e-19 GeV or above about 1.8e19 GeV) drops too.
 //   {lsbGeV: L}      tower energies quantised to multiples of L GeV (round to nearest, ties
 //                    towards +infinity, as Math.round does), towers quantised to 0 or below
-//                    dropped, then the reference clusters in double. Trigger hardware stores
+//                    dropped, then the reference clusters in double; its threshold applies to
+//                    the quantised energies, as hardware comparing counts would (so with a
+//                    threshold on a multiple of L, towers up to L/2 above it round down onto
+//                    it and drop: a bias `jetlag compare` shows). Trigger hardware stores
 //                    tower energies as integers of a fixed least significant bit (fact of the
 //                    trade, common practice).
 //

@@ -121,6 +121,12 @@ describe('fixed-LSB emulation', () => {
     expect([...set.towers]).toEqual([5]);
   });
 
+  it('applies the threshold to the quantised energy: 0.6 GeV rounds onto a 0.5 GeV threshold and drops, 0.63 GeV rounds up and stays', () => {
+    const withThreshold = makeEmulatedClusterer(DEFAULT_GRID, { ...settings, threshold: 0.5 }, { lsbGeV });
+    const set = withThreshold.cluster(Int32Array.of(5, 900, 1700), Float64Array.of(12, 0.6, 0.63));
+    expect([...set.towers].sort((a, b) => a - b)).toEqual([5, 1700]);
+  });
+
   it('moves jet pt away from the reference on generated events', () => {
     const matcher = new ToleranceMatcher({ ...DEFAULT_TOLERANCE, ptMin: 20 });
     const disagreeing = events.filter((e, n) => !matcher.match(referenceJets[n], clusterer.cluster(e.towerIndex, e.towerEt))).length;
