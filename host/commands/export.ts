@@ -5,9 +5,9 @@
 //               place for an invalid event or for empty events after the last tower: invalid
 //               events are reported on stderr and left out.
 // events, jsonl {"event":n,"towers":[[ieta,iphi,et],...]} or {"event":n,"error":"..."}
-// jets, CSV     event,pt,y,phi,m,px,py,pz,E,n,towers,error: one row per jet (towers: the
-//               constituent indices separated by spaces, empty when not stored); an invalid
-//               event is one row with only its number and its error text
+// jets, CSV     event,pt,y,phi,m: one row per jet, the CSV form `jetlag compare` reads as a
+//               candidate; CSV has no place for an invalid event (reported on stderr, left
+//               out). Four-vectors and constituents: use jsonl.
 // jets, jsonl   the line form of `jetlag cluster --format jsonl` (jets-jsonl.ts)
 // Numbers are written with String(x), so every double reads back identical.
 // Exit 2 when the file is unreadable (after writing everything before the problem) or a
@@ -39,10 +39,8 @@ export const spec: CommandSpec = {
 
 const PROBLEM_LINES_MAX = 20;
 
-/** a CSV field: quoted when it holds a comma, a quote or a line end */
-function csvText(text: string): string {
-  return /[",\r\n]/.test(text) ? `"${text.replace(/"/g, '""')}"` : text;
-}
+/** the jets CSV columns: the CSV form `jetlag compare` reads (candidate-reader.ts) */
+export const JETS_CSV_HEADER = 'event,pt,y,phi,m';
 
 interface Tally {
   events: number;
@@ -102,19 +100,16 @@ async function exportEvents(source: RecordSource, format: string, out: TextFileW
   }
 }
 
-function jetCsvRows(event: number, jets: JetSet, hasTowers: boolean): string {
+function jetCsvRows(event: number, jets: JetSet): string {
   let text = '';
   for (let k = 0; k < jets.count; k++) {
-    const start = jets.towerStart[k];
-    const towers = hasTowers ? Array.prototype.join.call(jets.towers.subarray(start, start + jets.towerCount[k]), ' ') : '';
-    text += `${event},${jsonNumber(jets.pt[k])},${jsonNumber(jets.rapidity[k])},${jsonNumber(jets.phi[k])},${jsonNumber(jets.mass[k])},` +
-      `${jsonNumber(jets.px[k])},${jsonNumber(jets.py[k])},${jsonNumber(jets.pz[k])},${jsonNumber(jets.energy[k])},${jets.towerCount[k]},${towers},\n`;
+    text += `${event},${jsonNumber(jets.pt[k])},${jsonNumber(jets.rapidity[k])},${jsonNumber(jets.phi[k])},${jsonNumber(jets.mass[k])}\n`;
   }
   return text;
 }
 
 async function exportJets(source: RecordSource, format: string, out: TextFileWriter, tally: Tally, problems: ProblemLines): Promise<void> {
-  if (format === 'csv') await out.write('event,pt,y,phi,m,px,py,pz,E,n,towers,error\n');
+  if (format === 'csv') await out.write(`${JETS_CSV_HEADER}\n`);
   let record = -1;
   for await (const raw of source.records) {
     record++;
@@ -134,12 +129,16 @@ async function exportJets(source: RecordSource, format: string, out: TextFileWri
     }
     if (decoded.error !== '') {
       tally.invalid++;
-      await out.write(format === 'csv' ? `${decoded.event},,,,,,,,,,,${csvText(decoded.error)}\n` : formatErrorLine(decoded.event, decoded.error) + '\n');
+      if (format === 'csv') {
+        problems.add(`${source.label}, event ${decoded.event}, byte ${raw.offset}: ${decoded.error} (invalid event, no CSV rows written)`);
+      } else {
+        await out.write(formatErrorLine(decoded.event, decoded.error) + '\n');
+      }
       continue;
     }
     tally.rows += decoded.jets.count;
     await out.write(format === 'csv'
-      ? jetCsvRows(decoded.event, decoded.jets, decoded.hasTowers)
+      ? jetCsvRows(decoded.event, decoded.jets)
       : formatJetsLine(decoded.event, decoded.jets, decoded.hasTowers) + '\n');
   }
 }
