@@ -45,6 +45,16 @@ describe('jetlag import and export on the command line', () => {
     expect(result.stderr).toMatch(/^jetlag export: cut\.pb, byte \d+: truncated record: length \d+ but only \d+ bytes follow; 1 record before it written to <stdout>\n$/);
   });
 
+  it('readRecords reads stdin for -', () => {
+    const reader = join(import.meta.dirname, '..', 'dist', 'host', 'record-reader.js');
+    const script = `import { readRecords } from ${JSON.stringify(reader)};\n` +
+      'const sizes = []; for await (const r of readRecords("-")) sizes.push(r.bytes.length + "@" + r.offset); console.log(sizes.join(" "));';
+    const input = Buffer.from([3, 1, 2, 3, 0, 1, 9]);
+    const result = spawnSync(process.execPath, ['--input-type=module', '-e', script], { input });
+    expect(result.stderr.toString()).toBe('');
+    expect(result.stdout.toString()).toBe('3@0 0@4 1@5\n');
+  });
+
   it('a missing required option exits 2 with one usage line', () => {
     const result = jetlag(['import', '--out', 'x.pb']);
     expect(result.code).toBe(2);
