@@ -5,7 +5,8 @@
 //   encodeEventRecord(fields): Uint8Array           message bytes (no length prefix)
 //   new EventRecordDecoder()                         reusable scratch, grows on demand
 //     .decode(bytes): void                           throws Error("at record byte N: ...")
-//     .event, .error and the five arrays below with their counts, valid until the next decode
+//     .event (.hasEvent: the field was read), .error and the five arrays below with their
+//     counts, valid until the next decode
 //   decodeEventRecord(bytes): DecodedEvent           one-off decode into owned exact arrays
 //
 // Data layout of the decoder's scratch (capacity >= count, only [0, count) is meaningful):

@@ -157,6 +157,27 @@ describe('CSV tower files: unreadable rest', () => {
     expect(error).toBe('towers.csv, byte 27: bad event number "" (an empty line before more rows; the rest of the file is unreadable)');
   });
 
+  it('stops at truncated gzip, keeping the events read before the cut', async () => {
+    const text = HEADER + Array.from({ length: 20000 }, (_, k) => `${Math.floor(k / 10)},${k % 50},${Math.floor(k / 50) % 64},${(k * 7919) % 1000 / 8}`).join('\n') + '\n';
+    const zipped = gzipSync(Buffer.from(text));
+    const dir = mkdtempSync(join(tmpdir(), 'jetlag-csv-cut-'));
+    const path = join(dir, 'cut.csv.gz');
+    writeFileSync(path, zipped.subarray(0, Math.floor(zipped.length / 2)));
+    const seen: number[] = [];
+    let message = '';
+    try {
+      for await (const e of readCsvTowers(path, { grid, fileLabel: 'cut.csv.gz' })) {
+        expect(e.problem).toBeNull();
+        seen.push(e.event);
+      }
+    } catch (error) {
+      message = (error as Error).message;
+    }
+    expect(seen.length).toBeGreaterThan(10);
+    expect(seen).toEqual(seen.map((_, k) => k));
+    expect(message).toMatch(/^cut\.csv\.gz, byte \d+: gzip data is truncated \(unexpected end of file\); offsets count uncompressed bytes$/);
+  });
+
   it('reports the events before an unreadable line when reading a stream', async () => {
     const text = HEADER + '0,0,0,1\n1,0,0,1\n2,0,0,1\n1,0,0,1\n';
     const seen: number[] = [];
