@@ -28,6 +28,12 @@
 //     outside the grid (checked separately: ieta * phiBins + iphi alone could land on
 //     another tower), then |et| above 1e150, then a repeated tower.
 //   - flat tower index = ieta * phiBins + iphi (spec section 1).
+//
+// Data layout: each chunk is one latin1 string (character k = byte k, so positions are byte
+// offsets); lines and fields are index ranges into it, never split into arrays. The event
+// being read keeps towerIndex Int32Array and towerEt Float64Array (grown by doubling, first
+// towerCount entries used) and `seen`, a Uint8Array with one flag per grid tower, cleared
+// tower by tower when the event ends.
 
 import { InputError } from './args.js';
 import { MAX_ABS_ET } from './grid.js';

@@ -17,6 +17,8 @@
 //     callers that want no promise per record.
 //
 // Memory: at most one chunk plus one partial record (bounded by maxRecordBytes) is held.
+// Framer state between chunks: a length varint cut by a chunk end (value so far, byte count)
+// or a record body cut by a chunk end (its own Uint8Array of the full length, bytes filled).
 // Yielded bytes: a record lying inside one input chunk is a view (subarray) of that chunk, no
 // copy; a record spanning chunks is copied once into its own buffer. The bytes are never
 // overwritten afterwards, so they may be retained; but a view keeps its whole chunk alive,
