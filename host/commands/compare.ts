@@ -108,8 +108,10 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
     if (settings.ptMin < header.settings.ptMin) {
       options.note(`compare: the candidate kept only jets with pt >= ${header.settings.ptMin} GeV, so reference jets in [${settings.ptMin}, ${header.settings.ptMin}) GeV will be unmatched`);
     }
-  } else if (!CLUSTER_OPTIONS.some((o) => options.args.values[o.name] !== undefined)) {
-    options.note(`compare: the candidate (${candidate.format}) names no algorithm settings; the reference uses ${describeSettings(settings)} (give --algorithm, --radius, ... to change)`);
+  } else {
+    // a wrong setting here fails every event, so say which ones were used
+    options.note(`compare: the candidate (${candidate.format}) names no algorithm settings; the reference uses ${describeSettings(settings)}` +
+      ` from the options and defaults (threshold ${settings.threshold} GeV; give --algorithm, --radius, --threshold ... as the candidate was made)`);
   }
 
   const tolerance: ToleranceSettings = { ...options.tolerance, ptMin: settings.ptMin };
