@@ -235,6 +235,13 @@ describe('hand-made candidates', () => {
     expect(report.events.agreeing).toBe(EVENT_COUNT);
   });
 
+  it('CSV, which carries no settings, gets a note naming the settings the reference used', async () => {
+    const path = temp('candidate.csv');
+    writeFileSync(path, csvOf(referenceJets));
+    const { stderr } = await compareJson(path, '--threshold', '0.2');
+    expect(stderr).toContain('the candidate (csv) names no algorithm settings; the reference uses anti-kt R=0.4 E-scheme ptmin=20 threshold=0.2');
+  });
+
   it('CSV without a jet above ptMin fails that event', async () => {
     const { event, jet } = findJet(() => true);
     const path = temp('candidate.csv');
