@@ -8,9 +8,10 @@
 //     with no rows is an empty event). An invalid event is yielded with its problem and the
 //     byte offset of the offending row; the events around it go on. A missing header, a bad
 //     or decreasing event number, or a line longer than 1 MiB makes the rest unreadable:
-//     the events completed before it are yielded, then InputError("<file>, byte N: ...")
-//     is thrown (the event whose rows were being read at that point is not yielded: its rows
-//     may go on further down).
+//     every event whose rows all come before the offending line is yielded (the event being
+//     read included: rows of one event are together, so a row with another number ends it;
+//     spec: "the events before it are kept"), then InputError("<file>, byte N: ...") is
+//     thrown. A line longer than 1 MiB drops the event being read, whose rows may go on.
 //   parseCsvTowersText(text, grid): for tests and small inputs, the same on a whole string.
 //
 // Readings of the spec, decided here:
@@ -166,9 +167,11 @@ class CsvEventBuilder {
     if (comma < 0 || comma > b) comma = b;
     const event = scanEventNumber(text, a, comma);
     if (event < 0) {
+      this.finishCurrent(out);
       throw new InputError(this.label, `bad event number ${quote(text.slice(a, comma))} (the rest of the file is unreadable)`, undefined, offset);
     }
     if (event < this.current) {
+      this.finishCurrent(out);
       throw new InputError(this.label, `event number ${event} after ${this.current}: numbers must not decrease (the rest of the file is unreadable)`, undefined, offset);
     }
     if (event > this.current) {
@@ -244,6 +247,12 @@ class CsvEventBuilder {
     this.next = this.current + 1;
     this.towerCount = 0;
     this.problem = null;
+  }
+
+  /** Before the rest of the file becomes unreadable: the event being read is complete. */
+  finishBeforeUnreadable(out: Pending[]): void {
+    this.finishCurrent(out);
+    this.current = -1;
   }
 
   /** At end of input. */
@@ -335,6 +344,7 @@ class CsvLineSplitter {
       return;
     }
     if (this.blankOffset >= 0) {
+      this.builder.finishBeforeUnreadable(out);
       throw new InputError(this.label, 'bad event number "" (an empty line before more rows; the rest of the file is unreadable)', undefined, this.blankOffset);
     }
     this.builder.row(text, a, b, offset, out);

@@ -99,8 +99,8 @@ describe('jetlag import', () => {
     const out = temp('events.pb');
     const r = await run(importMain, ['--csv', csv, '--out', out, '--quiet']);
     expect(r.code).toBe(2);
-    expect(r.stderr).toBe(`jetlag import: ${csv}, byte 43: event number 1 after 2: numbers must not decrease (the rest of the file is unreadable); 2 events before it written to ${out}\n`);
-    expect((await recordsOf(out)).events.map((e) => e.event)).toEqual([0, 1]);
+    expect(r.stderr).toBe(`jetlag import: ${csv}, byte 43: event number 1 after 2: numbers must not decrease (the rest of the file is unreadable); 3 events before it written to ${out}\n`);
+    expect((await recordsOf(out)).events.map((e) => e.event)).toEqual([0, 1, 2]);
   });
 
   it('reads stdin and writes stdout with -, gzip on request', async () => {
