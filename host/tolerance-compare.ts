@@ -71,11 +71,16 @@ export function checkToleranceSettings(settings: ToleranceSettings): void {
  * may report φ in (-π, π] or even unwrapped).
  */
 export function deltaR(yA: number, phiA: number, yB: number, phiB: number): number {
+  return Math.sqrt(deltaR2(yA, phiA, yB, phiB));
+}
+
+/** ΔR squared, as deltaR takes it */
+export function deltaR2(yA: number, phiA: number, yB: number, phiB: number): number {
   let dphi = Math.abs(phiA - phiB);
   if (dphi >= TWO_PI) dphi = dphi % TWO_PI;
   if (dphi > Math.PI) dphi = TWO_PI - dphi;
   const dy = yA - yB;
-  return Math.sqrt(dy * dy + dphi * dphi);
+  return dy * dy + dphi * dphi;
 }
 
 export class ToleranceMatcher {
@@ -169,17 +174,21 @@ export class ToleranceMatcher {
       const r = order[k];
       const y = refY[r];
       const phi = refPhi[r];
+      // the closest unmatched candidate by squared distance (no square root per pair), then
+      // the radius on its ΔR: sqrt is monotone, so if the closest fails no other passes
       let best = NONE;
-      let bestDeltaR = matchR;
+      let bestDeltaR2 = Infinity;
       for (let c = 0; c < candCount; c++) {
         if (candMatch[c] !== NONE) continue;
-        const distance = deltaR(candY[c], candPhi[c], y, phi);
+        const distance2 = deltaR2(candY[c], candPhi[c], y, phi);
         // strictly closer wins, so equal distances go to the smaller candidate number
-        if (distance < bestDeltaR) {
+        if (distance2 < bestDeltaR2) {
           best = c;
-          bestDeltaR = distance;
+          bestDeltaR2 = distance2;
         }
       }
+      const bestDeltaR = Math.sqrt(bestDeltaR2);
+      if (!(bestDeltaR < matchR)) best = NONE;
       refMatch[r] = best;
       const above = refPt[r] >= ptMin;
       if (above) refAbove++;
