@@ -78,7 +78,13 @@ const SETTING_NAMES: [keyof ClusterSettings, string][] = [
 /** Reads both files side by side and gathers the report. */
 export async function compareFiles(eventsPath: string, candidatePath: string, options: CompareOptions): Promise<CompareResult> {
   const candidate = await openCandidate(candidatePath);
-  const events = await openEventSource(eventsPath, { grid: gridFrom(options.args, 'compare') });
+  let events: Awaited<ReturnType<typeof openEventSource>>;
+  try {
+    events = await openEventSource(eventsPath, { grid: gridFrom(options.args, 'compare') });
+  } catch (error) {
+    await candidate.events.return(undefined as never);
+    throw error;
+  }
   const grid = events.header.grid;
   if (events.format === 'events-file' && hasGridOptions(options.args) && !sameGrid(gridFrom(options.args, 'compare'), grid)) {
     await candidate.events.return(undefined as never);
