@@ -144,7 +144,7 @@ export class BatchPool {
     const runs: Promise<unknown>[] = [];
     for (let k = 0; k < tasks; k++) {
       const buffer = new ArrayBuffer(8);
-      runs.push(this.piscina.run({ batchIndex: -1, count: 0, dataStart: 8, buffer } satisfies BatchTask, { transferList: [buffer] }));
+      runs.push(this.piscina.run({ batchIndex: -1, count: 0, dataStart: 8, buffer, warmUp: true } satisfies BatchTask, { transferList: [buffer] }));
     }
     await Promise.all(runs);
   }

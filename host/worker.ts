@@ -45,6 +45,8 @@ export interface BatchTask {
   count: number;
   dataStart: number;
   buffer: ArrayBuffer;
+  /** an empty batch that warms the engine up (pool start) */
+  warmUp?: boolean;
 }
 
 export interface InvalidEntry {
@@ -189,7 +191,7 @@ export default async function runBatch(task: BatchTask): Promise<unknown> {
     state.batchStart = new Int32Array(task.count + 1);
   }
   if (task.count === 0) {
-    warmUp(state);
+    if (task.warmUp) warmUp(state);
     return null;
   }
   try {
