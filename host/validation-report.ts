@@ -491,8 +491,11 @@ function binTable(title: string, bins: BinReport[]): string[] {
   return lines;
 }
 
+/** jets listed per worst event in the terminal text */
+const WORST_JETS_SHOWN = 4;
+
 function jetText(jet: { pt: number; y: number; phi: number } | null): string {
-  return jet === null ? 'none' : `pt ${short(jet.pt, 6)} y ${short(jet.y, 5)} phi ${short(jet.phi, 5)}`;
+  return jet === null ? 'none' : `pt ${jet.pt.toFixed(2)} y ${jet.y.toFixed(3)} phi ${jet.phi.toFixed(3)}`;
 }
 
 /** The report as terminal text (diagnostics go to stderr, this goes to stdout). */
@@ -518,15 +521,18 @@ export function formatValidationReport(report: ValidationReport): string {
     lines.push(`${kind}: ${problem.count}${problem.examples.length > 0 ? `, e.g. ${problem.examples.slice(0, 3).join('; ')}` : ''}`);
   }
   if (report.worstEvents.length > 0) {
-    lines.push(`worst events (${report.worstEvents.length}):`);
+    lines.push(`worst events (${report.worstEvents.length}), the jets that do not agree:`);
     for (const w of report.worstEvents) {
-      const shown = w.jets.slice(0, 3).map((d) => {
+      const count = (status: JetDisagreement['status']) => w.jets.filter((d) => d.status === status).length;
+      const parts = [[count('unmatched'), 'unmatched'], [count('outside tolerance'), 'outside tolerance'], [count('extra'), 'extra']]
+        .filter(([n]) => (n as number) > 0).map(([n, what]) => `${n} ${what}`);
+      lines.push(`  event ${w.event}: ${parts.join(', ')}`);
+      for (const d of w.jets.slice(0, WORST_JETS_SHOWN)) {
         const label = d.referenceJet !== null ? `ref jet ${d.referenceJet}` : `candidate jet ${d.candidateJet}`;
-        const numbers = d.ptRatio !== null ? ` (pt ratio ${responseText(d.ptRatio)}, ΔR ${short(d.deltaR, 3)})` : '';
-        return `${label} ${d.status}: ref ${jetText(d.reference)}, candidate ${jetText(d.candidate)}${numbers}`;
-      });
-      const more = w.jets.length > 3 ? `; and ${w.jets.length - 3} more` : '';
-      lines.push(`  event ${w.event}: ${shown.join('; ')}${more}`);
+        const numbers = d.ptRatio !== null ? `  pt ratio ${responseText(d.ptRatio)}  ΔR ${short(d.deltaR, 3)}` : '';
+        lines.push(`    ${`${label} ${d.status}`.padEnd(31)}ref ${jetText(d.reference).padEnd(32)}candidate ${jetText(d.candidate).padEnd(32)}${numbers}`.trimEnd());
+      }
+      if (w.jets.length > WORST_JETS_SHOWN) lines.push(`    ... and ${w.jets.length - WORST_JETS_SHOWN} more (all in the JSON report)`);
     }
   }
   return lines.join('\n') + '\n';
