@@ -9,7 +9,8 @@
 // Events are invented (the toy generator, host/generate.ts). Figures go to stdout and to
 // bench/results/pool.json (not committed). The machine is shared: quote medians and ratios.
 
-import { mkdirSync, mkdtempSync, openSync, closeSync, readFileSync, writeSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, openSync, closeSync, readdirSync, readFileSync, writeSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { Worker } from 'node:worker_threads';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Bench } from 'tinybench';
@@ -97,15 +98,51 @@ if (!streamingOnly) {
 }
 
 // ---- 2. one against two workers -----------------------------------------------------------
+// Beside events/s: CPU seconds of all threads per event (from /proc/self/task), and what the
+// machine gives two busy threads at that moment (two spinning worker threads against one), so
+// a ratio measured on a shared machine can be read against the cores actually free.
+function threadCpuSeconds(): number {
+  let ticks = 0;
+  try {
+    for (const task of readdirSync('/proc/self/task')) {
+      const stat = readFileSync(`/proc/self/task/${task}/stat`, 'utf8');
+      const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+      ticks += Number(fields[11]) + Number(fields[12]);
+    }
+  } catch {
+    return 0;
+  }
+  return ticks / 100;
+}
+async function spinScaling(): Promise<number> {
+  const source = 'const { parentPort } = require("node:worker_threads"); let x = 0; const t0 = Date.now(); for (let i = 0; i < 2e8; i++) x = (x + i * 7) % 1000003; parentPort.postMessage(Date.now() - t0 + x * 0);';
+  const spin = (n: number) => Promise.all(Array.from({ length: n }, () => new Promise<number>((resolve) => {
+    const worker = new Worker(source, { eval: true });
+    worker.once('message', (ms: number) => { resolve(ms); void worker.terminate(); });
+  })));
+  const one = (await spin(1))[0];
+  const two = await spin(2);
+  return (2 * one) / Math.max(...two);
+}
 if (!streamingOnly) {
   const perWorkers: Record<number, number[]> = { 1: [], 2: [] };
+  const cpuPerEvent: Record<number, number[]> = { 1: [], 2: [] };
+  const machine: number[] = [];
   for (let r = 0; r < 3; r++) {
-    for (const workers of [1, 2]) perWorkers[workers].push((await runEvents({ ...base, workers })).throughput.eventsPerSecond);
+    machine.push(await spinScaling());
+    for (const workers of [1, 2]) {
+      const before = threadCpuSeconds();
+      const summary = await runEvents({ ...base, workers });
+      cpuPerEvent[workers].push(((threadCpuSeconds() - before) * 1e6) / summary.events.read);
+      perWorkers[workers].push(summary.throughput.eventsPerSecond);
+    }
   }
   const one = median(perWorkers[1]);
   const two = median(perWorkers[2]);
-  results.workers = { one, two, ratio: two / one };
-  line(`workers: 1 → ${one.toFixed(0)} events/s, 2 → ${two.toFixed(0)} events/s, ratio ${(two / one).toFixed(2)} (medians of 3)`);
+  results.workers = { one, two, ratio: two / one, cpuUsPerEvent: { one: median(cpuPerEvent[1]), two: median(cpuPerEvent[2]) }, machineTwoThreadScaling: median(machine) };
+  line(`workers: 1 → ${one.toFixed(0)} events/s, 2 → ${two.toFixed(0)} events/s, ratio ${(two / one).toFixed(2)} (medians of 3); ` +
+    `CPU per event ${median(cpuPerEvent[1]).toFixed(0)} µs with 1, ${median(cpuPerEvent[2]).toFixed(0)} µs with 2; ` +
+    `two spinning threads got ${median(machine).toFixed(2)}× one at the time`);
 }
 
 // ---- 3. host overhead against clustering time -----------------------------------------
