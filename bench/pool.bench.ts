@@ -60,6 +60,20 @@ function line(text: string): void {
   process.stdout.write(text + '\n');
 }
 
+/** CPU seconds of every thread of this process so far (Linux /proc; 0 elsewhere). */
+function threadCpuSeconds(): number {
+  let ticks = 0;
+  try {
+    for (const task of readdirSync('/proc/self/task')) {
+      const stat = readFileSync(`/proc/self/task/${task}/stat`, 'utf8');
+      const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+      ticks += Number(fields[11]) + Number(fields[12]);
+    }
+  } catch {
+    return 0;
+  }
+  return ticks / 100;
+}
 const median = (values: number[]) => [...values].sort((a, b) => a - b)[Math.floor(values.length / 2)];
 
 // ---- 1. per-task round trip and batch size ----------------------------------------------
@@ -86,13 +100,25 @@ const written = writeToyFile(pileupFile, pileupEvents, 200, 500);
 line(`pileup-200 file: ${pileupEvents} events, ${(written.bytes / 1e6).toFixed(1)} MB, mean ${written.meanTowers.toFixed(0)} towers per event`);
 const base: RunOptions = { input: pileupFile, check: { mode: 'none', fraction: 0, seed: 1 }, engine: 'wasm' };
 
+// CPU seconds of all threads per event, against K: what a batch amortises (the per-task cost),
+// and unlike events/s it does not move when other processes take the cores
 if (!streamingOnly) {
-  const sweep: { batch: number; eventsPerSecond: number }[] = [];
+  // the CPU of starting the pool and warming its engines, taken off each run
+  const startupBefore = threadCpuSeconds();
+  await runEvents({ ...base, workers: 2, maxEvents: 0 });
+  const startupCpu = threadCpuSeconds() - startupBefore;
+  const sweep: { batch: number; eventsPerSecond: number; cpuUsPerEvent: number }[] = [];
   for (const batch of [1, 2, 4, 8, 16, 32, 64, 128]) {
     const rates: number[] = [];
-    for (let r = 0; r < 3; r++) rates.push((await runEvents({ ...base, workers: 2, batch })).throughput.eventsPerSecond);
-    sweep.push({ batch, eventsPerSecond: median(rates) });
-    line(`batch ${String(batch).padStart(3)}: ${median(rates).toFixed(0)} events/s (median of 3, 2 workers)`);
+    const cpu: number[] = [];
+    for (let r = 0; r < 3; r++) {
+      const before = threadCpuSeconds();
+      const summary = await runEvents({ ...base, workers: 2, batch });
+      cpu.push(((threadCpuSeconds() - before - startupCpu) * 1e6) / summary.events.read);
+      rates.push(summary.throughput.eventsPerSecond);
+    }
+    sweep.push({ batch, eventsPerSecond: median(rates), cpuUsPerEvent: median(cpu) });
+    line(`batch ${String(batch).padStart(3)}: ${median(rates).toFixed(0)} events/s, ${median(cpu).toFixed(0)} µs CPU per event (medians of 3, 2 workers)`);
   }
   results.batchSweep = sweep;
 }
@@ -101,19 +127,6 @@ if (!streamingOnly) {
 // Beside events/s: CPU seconds of all threads per event (from /proc/self/task), and what the
 // machine gives two busy threads at that moment (two spinning worker threads against one), so
 // a ratio measured on a shared machine can be read against the cores actually free.
-function threadCpuSeconds(): number {
-  let ticks = 0;
-  try {
-    for (const task of readdirSync('/proc/self/task')) {
-      const stat = readFileSync(`/proc/self/task/${task}/stat`, 'utf8');
-      const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
-      ticks += Number(fields[11]) + Number(fields[12]);
-    }
-  } catch {
-    return 0;
-  }
-  return ticks / 100;
-}
 async function spinScaling(): Promise<number> {
   const source = 'const { parentPort } = require("node:worker_threads"); let x = 0; const t0 = Date.now(); for (let i = 0; i < 2e8; i++) x = (x + i * 7) % 1000003; parentPort.postMessage(Date.now() - t0 + x * 0);';
   const spin = (n: number) => Promise.all(Array.from({ length: n }, () => new Promise<number>((resolve) => {
