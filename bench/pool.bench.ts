@@ -9,7 +9,7 @@
 // Events are invented (the toy generator, host/generate.ts). Figures go to stdout and to
 // bench/results/pool.json (not committed). The machine is shared: quote medians and ratios.
 
-import { mkdirSync, mkdtempSync, openSync, closeSync, readdirSync, readFileSync, writeSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, openSync, closeSync, readFileSync, writeSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { Worker } from 'node:worker_threads';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -60,20 +60,12 @@ function line(text: string): void {
   process.stdout.write(text + '\n');
 }
 
-/** CPU seconds of every thread of this process so far (Linux /proc; 0 elsewhere). */
+/** CPU seconds of every thread of this process so far, finished worker threads included (getrusage). */
 function threadCpuSeconds(): number {
-  let ticks = 0;
-  try {
-    for (const task of readdirSync('/proc/self/task')) {
-      const stat = readFileSync(`/proc/self/task/${task}/stat`, 'utf8');
-      const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
-      ticks += Number(fields[11]) + Number(fields[12]);
-    }
-  } catch {
-    return 0;
-  }
-  return ticks / 100;
+  const usage = process.cpuUsage();
+  return (usage.user + usage.system) / 1e6;
 }
+
 const median = (values: number[]) => [...values].sort((a, b) => a - b)[Math.floor(values.length / 2)];
 
 // ---- 1. per-task round trip and batch size ----------------------------------------------
@@ -124,7 +116,7 @@ if (!streamingOnly) {
 }
 
 // ---- 2. one against two workers -----------------------------------------------------------
-// Beside events/s: CPU seconds of all threads per event (from /proc/self/task), and what the
+// Beside events/s: CPU seconds of all threads per event (process.cpuUsage), and what the
 // machine gives two busy threads at that moment (two spinning worker threads against one), so
 // a ratio measured on a shared machine can be read against the cores actually free.
 async function spinScaling(): Promise<number> {
