@@ -42,15 +42,34 @@ export interface CheckedDifference extends JetDifference {
 }
 
 /**
- * Per-event clustering time against tower multiplicity N (towers that entered clustering).
- * Bin 0 holds N = 0, bin b >= 1 holds 2^(b-1) <= N < 2^b.
+ * Lower edges of the multiplicity bins: four per doubling of N (ceil(2^(j/4)), repeats
+ * dropped), so that even a file whose events all have similar N spans a few bins for the fit.
+ * Bin 0 holds N = 0; bin b >= 1 holds MULTIPLICITY_EDGES[b-1] <= N < MULTIPLICITY_EDGES[b].
  */
+export const MULTIPLICITY_EDGES: readonly number[] = (() => {
+  const edges: number[] = [];
+  for (let j = 0; j <= 4 * 23; j++) {
+    const edge = Math.ceil(2 ** (j / 4) - 1e-9);
+    if (edges[edges.length - 1] !== edge) edges.push(edge);
+  }
+  return edges;
+})();
+
+/** Per-event clustering time against tower multiplicity N (towers that entered clustering). */
 export class MultiplicityBins {
   readonly recorders: (LatencyRecorder | undefined)[] = [];
   readonly sumTowers: number[] = [];
 
   static binOf(towers: number): number {
-    return towers <= 0 ? 0 : 32 - Math.clz32(towers);
+    if (towers <= 0) return 0;
+    // the last edge not above N, by bisection
+    let lo = 0;
+    let hi = MULTIPLICITY_EDGES.length - 1;
+    while (lo < hi) {
+      const mid = (lo + hi + 1) >> 1;
+      if (MULTIPLICITY_EDGES[mid] <= towers) lo = mid; else hi = mid - 1;
+    }
+    return lo + 1;
   }
 
   record(towers: number, clusterNs: number): void {
@@ -97,14 +116,17 @@ export interface MultiplicityFit {
 const FIT_MIN_EVENTS = 3;
 const FIT_MIN_TOWERS = 8;
 
-/** Least-squares line through (ln mean N, ln mean time) of the usable bins. */
+/**
+ * Least-squares line through (ln mean N, ln median time) of the usable bins. The median, not
+ * the mean: a worker descheduled by the system adds a tail that would tilt the line.
+ */
 export function fitMultiplicity(bins: readonly MultiplicityBin[]): MultiplicityFit {
   const xs: number[] = [];
   const ys: number[] = [];
   for (const bin of bins) {
-    if (bin.count < FIT_MIN_EVENTS || bin.meanTowers < FIT_MIN_TOWERS || !(bin.mean_us > 0)) continue;
+    if (bin.count < FIT_MIN_EVENTS || bin.meanTowers < FIT_MIN_TOWERS || !(bin.p50_us > 0)) continue;
     xs.push(Math.log(bin.meanTowers));
-    ys.push(Math.log(bin.mean_us));
+    ys.push(Math.log(bin.p50_us));
   }
   if (xs.length < 2) return { alpha: null, binsUsed: xs.length };
   const n = xs.length;
@@ -288,7 +310,7 @@ export interface RenderContext {
 
 function bucketRange(bin: number): [number, number] {
   if (bin === 0) return [0, 0];
-  return [2 ** (bin - 1), 2 ** bin - 1];
+  return [MULTIPLICITY_EDGES[bin - 1], (MULTIPLICITY_EDGES[bin] ?? Infinity) - 1];
 }
 
 export function multiplicityTable(bins: MultiplicityBins): MultiplicityBin[] {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { describeMachine, fitMultiplicity, mergeSummaries, renderSummary, RunTally, type RunConfiguration, type RunSummary } from '../host/summary.js';
+import { describeMachine, fitMultiplicity, mergeSummaries, MULTIPLICITY_EDGES, MultiplicityBins, renderSummary, RunTally, type RunConfiguration, type RunSummary } from '../host/summary.js';
 import { formatReport } from '../host/report.js';
 
 
@@ -102,5 +102,17 @@ describe('run summaries', () => {
     expect(text).toContain(`read 3,000 · ok ${summary.events.ok.toLocaleString('en-US')} · invalid ${summary.events.invalid} · failed 0`);
     expect(text).toMatch(/p50\s+p90\s+p99\s+p99\.9\s+max/);
     expect(text).toContain(`500 µs: ${summary.budget!.over.toLocaleString('en-US')} events over`);
+  });
+});
+
+describe('multiplicity bins', () => {
+  it('put every N in the bin whose edges hold it, four bins per doubling', () => {
+    for (let towers = 1; towers < 5000; towers++) {
+      const bin = MultiplicityBins.binOf(towers);
+      expect(MULTIPLICITY_EDGES[bin - 1]).toBeLessThanOrEqual(towers);
+      expect(towers).toBeLessThan(MULTIPLICITY_EDGES[bin]);
+    }
+    expect(MultiplicityBins.binOf(0)).toBe(0);
+    expect(MULTIPLICITY_EDGES.filter((edge) => edge >= 256 && edge < 512)).toEqual([256, 305, 363, 431]);
   });
 });
