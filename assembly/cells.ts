@@ -1,7 +1,8 @@
 // One cell per tower of the grid; a cell holds at most one jet. At the start every tower sits in
 // its own cell; a merged jet takes the cell that contains its (y, phi) when that cell is free,
 // else the nearer of its parents' cells. How far jets sit from their cell centres is tracked
-// (driftY, driftPhi: the largest offsets this event), so searches stay exact.
+// (driftY, driftPhi: the largest offsets this event; rowDriftY, rowDriftPhi: the same per grid
+// row), so searches stay exact.
 //
 // Per cell c (see layout.ts): cellY cellPhi cellW (the jet's weight w), cellNnDR2 cellNnKey (the
 // jet's nearest neighbour by the key of clustering-spec.md section 4, its dR2 and (w*dR2)*invR2;
@@ -13,8 +14,9 @@
 
 import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellNn, cellWide,
   pointHead, pointNext, pointPrev, etaCentre, phiCentre, etaBins, phiBins, jetY, jetPhi, jetKt2,
+  rowDriftY, rowDriftPhi, cellRow, cellCol,
   getF64, setF64, getI32, setI32 } from './layout';
-import { invR2, etaMin, etaPitch, phiPitch, PI, TWO_PI, BEAM } from './settings';
+import { invR2, etaMin, invEtaPitch, invPhiPitch, PI, TWO_PI, BEAM } from './settings';
 import { weightOf, needsWideSearch } from './kinematics';
 import { setCandidate, setEmptyCandidate } from './tournament';
 
@@ -32,6 +34,9 @@ export function initCells(): void {
     setI32(cellNn, c, -1);
     setI32(pointHead, c, -1);
     setI32(cellWide, c, 0);
+    const row = c / phiBins;
+    setI32(cellRow, c, row);
+    setI32(cellCol, c, c - row * phiBins);
   }
 }
 
@@ -40,24 +45,26 @@ export function resetDrift(): void {
   driftPhi = 0;
   driftNorm = 0;
   wideCount = 0;
+  memory.fill(rowDriftY, 0, <usize>etaBins << 3);
+  memory.fill(rowDriftPhi, 0, <usize>etaBins << 3);
 }
 
 // @ts-ignore: decorator
 @inline export function centreOffsetY(c: i32, y: f64): f64 {
-  return abs<f64>(y - getF64(etaCentre, c / phiBins));
+  return abs<f64>(y - getF64(etaCentre, getI32(cellRow, c)));
 }
 
 // @ts-ignore: decorator
 @inline export function centreOffsetPhi(c: i32, phi: f64): f64 {
-  let d = abs<f64>(phi - getF64(phiCentre, c % phiBins));
-  if (d > PI) d = TWO_PI - d;
-  return d;
+  const d = abs<f64>(phi - getF64(phiCentre, getI32(cellCol, c)));
+  return select<f64>(TWO_PI - d, d, d > PI);
 }
 
 /** The cell whose area contains (y, phi), clamped to the grid; -1 for a non-finite position. */
 export function containingCell(y: f64, phi: f64): i32 {
-  const u = floor<f64>((y - etaMin) / etaPitch);
-  const v = floor<f64>(phi / phiPitch);
+  // any cell would do (drift is tracked); the containing one keeps drift small
+  const u = floor<f64>((y - etaMin) * invEtaPitch);
+  const v = floor<f64>(phi * invPhiPitch);
   if (!(u == u) || !(v == v) || abs<f64>(u) > 1e9 || abs<f64>(v) > 1e9) return -1;
   const row = min<i32>(max<i32>(<i32>u, 0), etaBins - 1);
   const col = min<i32>(max<i32>(<i32>v, 0), phiBins - 1);
@@ -82,10 +89,15 @@ export function placeJet(c: i32, jet: i32): void {
   wideCount += wide;
   const dy = centreOffsetY(c, y);
   const dphi = centreOffsetPhi(c, phi);
-  if (dy > driftY || dphi > driftPhi) {
-    driftY = max<f64>(driftY, dy);
-    driftPhi = max<f64>(driftPhi, dphi);
-    driftNorm = sqrt<f64>(driftY * driftY + driftPhi * driftPhi);
+  if (dy > 0 || dphi > 0) {
+    const row = getI32(cellRow, c);
+    if (dy > getF64(rowDriftY, row)) setF64(rowDriftY, row, dy);
+    if (dphi > getF64(rowDriftPhi, row)) setF64(rowDriftPhi, row, dphi);
+    if (dy > driftY || dphi > driftPhi) {
+      driftY = max<f64>(driftY, dy);
+      driftPhi = max<f64>(driftPhi, dphi);
+      driftNorm = sqrt<f64>(driftY * driftY + driftPhi * driftPhi);
+    }
   }
 }
 

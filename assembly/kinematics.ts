@@ -32,7 +32,7 @@ export function needsWideSearch(w: f64): bool {
 // @ts-ignore: decorator
 @inline export function deltaR2(y1: f64, phi1: f64, y2: f64, phi2: f64): f64 {
   let dphi = abs<f64>(phi1 - phi2);
-  if (dphi > PI) dphi = TWO_PI - dphi;
+  dphi = select<f64>(TWO_PI - dphi, dphi, dphi > PI); // the spec's "if dphi > pi", without a branch
   const dy = y1 - y2;
   return dy * dy + dphi * dphi;
 }

@@ -8,10 +8,13 @@
 //            outPx outPy outPz outE outPt outY outPhi outMass f64[IN]
 //            outTowerCount outTowerStart outTowers i32[IN]               (read by the host)
 //   event    evIndex i32[C]  evEt f64[C]  sortIndex i32[C]  sortEt f64[C]  radixCount i32[2048]
-//   cells    cellY cellPhi cellW cellNnDR2 cellNnKey f64[C]  candValue f64[P]
-//            cellJet cellNn pointHead pointNext pointPrev cellWide i32[C]  candLo candHi i32[P]
-//   tree     tree i32[2P]     (P = power of two >= C; node n < P holds the winning leaf of its
-//                              subtree, tree[P + c] = c; leaves c >= C stay empty)
+//   cells    cellY cellPhi cellW cellNnDR2 cellNnKey f64[C]
+//            cellJet cellNn pointHead pointNext pointPrev cellWide cellRow cellCol i32[C]
+//            candLo candHi i32[P]
+//   rows     rowDriftY rowDriftPhi f64[etaBins]
+//   tree     tree i32[2P]  nodeValue f64[2P]   (P = power of two >= C; node n < P holds the
+//            winning leaf of its subtree and its measure; tree[P + c] = c, and candValue =
+//            nodeValue + P is the leaves' measure; leaves c >= C stay empty)
 //   jets     jetPx jetPy jetPz jetE jetKt2 jetY jetPhi f64[2C]  jetInto jetLabel i32[2C]
 //   finals   finalJet finalOrder finalScratch i32[C]  finalPt f64[C]  redo i32[C]
 //   offsets  offDr offDc i32[O]  offDist f64[O]  offPerm offScratch offTmpI i32[O]  offTmpF f64[O]
@@ -79,8 +82,13 @@ export let pointPrev: usize = 0;
 export let candLo: usize = 0;
 export let candHi: usize = 0;
 export let cellWide: usize = 0;
+export let cellRow: usize = 0;
+export let cellCol: usize = 0;
 
 export let tree: usize = 0;
+export let nodeValue: usize = 0;
+export let rowDriftY: usize = 0;
+export let rowDriftPhi: usize = 0;
 
 export let jetPx: usize = 0;
 export let jetPy: usize = 0;
@@ -178,7 +186,6 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   cellW = take(cells << 3);
   cellNnDR2 = take(cells << 3);
   cellNnKey = take(cells << 3);
-  candValue = take(<usize>p << 3);
   cellJet = take(cells << 2);
   cellNn = take(cells << 2);
   pointHead = take(cells << 2);
@@ -187,8 +194,14 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   candLo = take(<usize>p << 2);
   candHi = take(<usize>p << 2);
   cellWide = take(cells << 2);
+  cellRow = take(cells << 2);
+  cellCol = take(cells << 2);
 
+  rowDriftY = take(<usize>etaCount << 3);
+  rowDriftPhi = take(<usize>etaCount << 3);
   tree = take(<usize>p << 3); // 2P entries of i32
+  nodeValue = take(<usize>p << 4);
+  candValue = nodeValue + (<usize>p << 3);
 
   jetPx = take(jets << 3);
   jetPy = take(jets << 3);

@@ -7,7 +7,7 @@
 // finalJet i32[finalCount]: the final jets in the order they became final. redo i32: the cells
 // whose neighbour went away in the current step.
 
-import { evIndex, evEt, cellJet, cellNn, candHi, jetInto, jetY, jetPhi, finalJet, redo,
+import { evIndex, evEt, cellJet, cellNn, candHi, jetInto, jetY, jetPhi, finalJet, redo, treeLeaves,
   getF64, getI32, setI32 } from './layout';
 import { BEAM } from './settings';
 import { loadTower, mergeJets } from './kinematics';
@@ -83,7 +83,10 @@ export function clusterTowers(n: i32): void {
     placeJet(getI32(evIndex, t), t);
   }
   for (let t = 0; t < n; t++) findNeighbour(getI32(evIndex, t));
-  buildTree();
+  // few towers: replay their paths only (the tree is valid while every leaf is empty)
+  if (n * (32 - clz<i32>(treeLeaves)) < treeLeaves) {
+    for (let t = 0; t < n; t++) updateTree(getI32(evIndex, t));
+  } else buildTree();
   let live = n;
   while (live > 0) {
     const c = treeWinner();

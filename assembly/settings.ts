@@ -22,6 +22,8 @@ export let etaMin: f64 = 0;
 /** approximate row and column pitch, for choosing cells only */
 export let etaPitch: f64 = 0;
 export let phiPitch: f64 = 0;
+export let invEtaPitch: f64 = 0;
+export let invPhiPitch: f64 = 0;
 
 export function configure(p: f64, radius: f64, ptMinGeV: f64, thresholdGeV: f64, wta: i32,
   etaLow: f64, etaHigh: f64, etaCount: i32, phiCount: i32): void {
@@ -36,4 +38,6 @@ export function configure(p: f64, radius: f64, ptMinGeV: f64, thresholdGeV: f64,
   etaMin = etaLow;
   etaPitch = (etaHigh - etaLow) / <f64>etaCount;
   phiPitch = TWO_PI / <f64>phiCount;
+  invEtaPitch = 1 / etaPitch;
+  invPhiPitch = 1 / phiPitch;
 }

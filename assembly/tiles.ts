@@ -7,17 +7,19 @@
 // - ordered: cell offsets (offDr, offDc) sorted by the distance between cell centres (offDist,
 //   a lower bound), visited nearest first; stops once no farther cell can hold a jet as close
 //   as the best so far, allowing for how far jets sit from their cell centres (drift).
-// - window: every cell whose centre lies within reach + drift of the jet, row by row; the φ
-//   range wraps at the seam and is cut into at most two contiguous runs.
+// - window: row by row, the cells whose centre lies within reach + that row's drift of the jet
+//   (a circle, not a square); the φ range wraps at the seam and is cut into at most two
+//   contiguous runs.
 // - all cells (wide jets).
 // A new jet scans its window once: it finds its own neighbour and offers itself to each jet
 // there, which takes it only when it is strictly nearer by that jet's key (ties go to the older
 // jet, as the new one has the largest index).
 
-import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellWide,
+import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellWide, cellRow, cellCol, etaCentre,
+  rowDriftY, rowDriftPhi,
   etaBins, phiBins, offDr, offDc, offDist, offPerm, offScratch, offTmpI, offTmpF, OFFSET_LIMIT,
   getF64, setF64, getI32, setI32 } from './layout';
-import { invR2, reach2, reach, etaMin, etaPitch, phiPitch, BEAM } from './settings';
+import { invR2, reach2, reach, etaMin, etaPitch, phiPitch, invEtaPitch, invPhiPitch, BEAM, PI, TWO_PI } from './settings';
 import { deltaR2 } from './kinematics';
 import { driftY, driftPhi, driftNorm, wideCount, centreOffsetY, centreOffsetPhi, setNeighbour } from './cells';
 import { updateTree } from './tournament';
@@ -120,8 +122,8 @@ function searchOrdered(c: i32): bool {
   const y = getF64(cellY, c);
   const phi = getF64(cellPhi, c);
   const w = getF64(cellW, c);
-  const row = c / phiBins;
-  const col = c - row * phiBins;
+  const row = getI32(cellRow, c);
+  const col = getI32(cellCol, c);
   const dyq = centreOffsetY(c, y);
   const dpq = centreOffsetPhi(c, phi);
   const slack = sqrt<f64>(dyq * dyq + dpq * dpq) + driftNorm + 1e-12;
@@ -138,19 +140,33 @@ function searchOrdered(c: i32): bool {
     else if (cc >= colCount) cc -= colCount;
     const q = r * colCount + cc;
     const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
-    if (!(d <= reach2)) continue; // empty cells have y = +Inf
-    if (offerBest(q, d, (w * d) * invR2)) limit = min<f64>(limit, sqrt<f64>(d) * (1 + 1e-8));
+    const key = (w * d) * invR2;
+    // one branch, rarely taken: empty cells have y = +Inf, so d and key are +Inf
+    if ((d <= reach2) & (key <= bestKey)) {
+      if (offerBest(q, d, key)) limit = min<f64>(limit, sqrt<f64>(d) * (1 + 1e-8));
+    }
   }
   return offReach - slack > limit;
 }
 
-/** Sets the window of cells that can hold a jet within the reach of (y, phi). */
-function setWindow(y: f64, phi: f64): void {
-  const ry = (reach + driftY) / etaPitch;
-  const rp = (reach + driftPhi) / phiPitch;
-  const u = (y - etaMin) / etaPitch - 0.5;
-  const r0 = floor<f64>(u - ry);
-  const r1 = ceil<f64>(u + ry);
+/**
+ * The window of cells that can hold a jet within the reach of (y, phi): rows whose centre lies
+ * within reach + that row's drift, and in each row the columns within the circle's half-width
+ * at that row's nearest possible y, plus the row's drift in phi. scanWindow() walks it.
+ */
+let winY: f64 = 0;
+let winPhi: f64 = 0;
+let winU: f64 = 0;
+let winV: f64 = 0;
+
+function openWindow(y: f64, phi: f64): void {
+  winY = y;
+  winPhi = phi;
+  winU = (y - etaMin) * invEtaPitch - 0.5;
+  winV = phi * invPhiPitch - 0.5;
+  const ry = (reach + driftY) * invEtaPitch * (1 + 1e-9) + 1e-9;
+  const r0 = ceil<f64>(winU - ry);
+  const r1 = floor<f64>(winU + ry);
   if (r0 == r0 && r1 == r1) {
     winRow0 = <i32>max<f64>(r0, 0);
     winRow1 = <i32>min<f64>(r1, <f64>(etaBins - 1));
@@ -158,19 +174,29 @@ function setWindow(y: f64, phi: f64): void {
     winRow0 = 0;
     winRow1 = etaBins - 1;
   }
-  const v = phi / phiPitch - 0.5;
-  const c0 = floor<f64>(v - rp);
-  const c1 = ceil<f64>(v + rp);
+}
+
+/** Sets the runs of row r; false when no cell of the row can hold a jet within the reach. */
+function rowRuns(r: i32): bool {
+  let dy = abs<f64>(winY - getF64(etaCentre, r)) - getF64(rowDriftY, r);
+  if (dy > reach) return false;
+  if (!(dy > 0)) dy = 0; // also a non-finite y: the whole row
+  const half = (sqrt<f64>(max<f64>(reach * reach - dy * dy, 0)) + getF64(rowDriftPhi, r)) * invPhiPitch * (1 + 1e-9) + 1e-9;
+  const c0 = ceil<f64>(winV - half);
+  const c1 = floor<f64>(winV + half);
   runB0 = 0;
   runB1 = -1;
   if (!(c1 - c0 + 1 < <f64>phiBins)) {
     runA0 = 0;
     runA1 = phiBins - 1;
-    return;
+    return true;
   }
+  if (c1 < c0) return false;
   const length = <i32>(c1 - c0) + 1;
-  let first = <i32>c0 % phiBins;
+  // c0 lies within one turn of the grid's columns, since the run is shorter than a turn
+  let first = <i32>c0;
   if (first < 0) first += phiBins;
+  else if (first >= phiBins) first -= phiBins;
   runA0 = first;
   if (first + length <= phiBins) {
     runA1 = first + length - 1;
@@ -178,6 +204,7 @@ function setWindow(y: f64, phi: f64): void {
     runA1 = phiBins - 1;
     runB1 = first + length - 1 - phiBins;
   }
+  return true;
 }
 
 function searchWindowRun(c: i32, y: f64, phi: f64, w: f64, from: i32, to: i32): void {
@@ -192,8 +219,9 @@ function searchWindow(c: i32): void {
   const y = getF64(cellY, c);
   const phi = getF64(cellPhi, c);
   const w = getF64(cellW, c);
-  setWindow(y, phi);
+  openWindow(y, phi);
   for (let r = winRow0; r <= winRow1; r++) {
+    if (!rowRuns(r)) continue;
     const base = r * phiBins;
     searchWindowRun(c, y, phi, w, base + runA0, base + runA1);
     if (runB1 >= runB0) searchWindowRun(c, y, phi, w, base + runB0, base + runB1);
@@ -231,17 +259,74 @@ export function findNeighbour(c: i32): void {
   }
 }
 
-function scanRun(ck: i32, y: f64, phi: f64, w: f64, wide: bool, from: i32, to: i32): void {
-  for (let q = from; q <= to; q++) {
-    if (q == ck) continue;
-    const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
-    if (d <= reach2) {
-      offerBest(q, d, (w * d) * invR2);
-      if (d < getF64(cellNnDR2, q)) offerNewJet(q, ck, d);
-    } else if (wide && getI32(cellJet, q) >= 0) {
-      offerBest(q, d, (w * d) * invR2);
-      if (getI32(cellWide, q) != 0 && d < getF64(cellNnDR2, q)) offerNewJet(q, ck, d);
+/**
+ * Cells from..to of a new jet's window, two at a time (the new jet's own cell reads y = +Inf
+ * meanwhile). dR2 is the spec's sequence of operations, lane by lane. Each lane keeps its best
+ * (key, jet, dR2, cell) with vector selects, so the jet's own search has no branch; the single
+ * branch, rarely taken, is for a cell that takes the new jet as its neighbour.
+ */
+function scanRun(ck: i32, y: f64, phi: f64, w: f64, from: i32, to: i32): void {
+  const ys = f64x2.splat(y);
+  const phis = f64x2.splat(phi);
+  const ws = f64x2.splat(w);
+  const inv = f64x2.splat(invR2);
+  const reachs = f64x2.splat(reach2);
+  const pis = f64x2.splat(PI);
+  const twoPis = f64x2.splat(TWO_PI);
+  const two = i64x2.splat(2);
+  let bestK = f64x2.splat(Infinity);
+  let bestJ = i64x2.splat(BEAM);
+  let bestD = f64x2.splat(Infinity);
+  let bestQ = i64x2.splat(-1);
+  let qs = i64x2.replace_lane(i64x2.splat(<i64>from), 1, <i64>(from + 1));
+  let q = from;
+  for (; q < to; q += 2) {
+    const at = <usize>q << 3;
+    const dy = f64x2.sub(ys, v128.load(cellY + at));
+    let dphi = f64x2.abs(f64x2.sub(phis, v128.load(cellPhi + at)));
+    dphi = v128.bitselect(f64x2.sub(twoPis, dphi), dphi, f64x2.gt(dphi, pis));
+    const d = f64x2.add(f64x2.mul(dy, dy), f64x2.mul(dphi, dphi));
+    const key = f64x2.mul(f64x2.mul(ws, d), inv);
+    const within = f64x2.le(d, reachs);
+    const jets = i64x2.extend_low_i32x4_s(v128.load64_zero(cellJet + (<usize>q << 2)));
+    const better = v128.and(within, v128.or(f64x2.lt(key, bestK),
+      v128.and(f64x2.eq(key, bestK), i64x2.lt_s(jets, bestJ))));
+    bestK = v128.bitselect(key, bestK, better);
+    bestJ = v128.bitselect(jets, bestJ, better);
+    bestD = v128.bitselect(d, bestD, better);
+    bestQ = v128.bitselect(qs, bestQ, better);
+    qs = i64x2.add(qs, two);
+    if (v128.any_true(v128.and(within, f64x2.lt(d, v128.load(cellNnDR2 + at))))) {
+      offerIfNearer(q, ck, f64x2.extract_lane(d, 0));
+      offerIfNearer(q + 1, ck, f64x2.extract_lane(d, 1));
     }
+  }
+  for (let lane: u8 = 0; lane < 2; lane++) {
+    const bq = <i32>(lane == 0 ? i64x2.extract_lane(bestQ, 0) : i64x2.extract_lane(bestQ, 1));
+    if (bq >= 0) {
+      offerBest(bq, lane == 0 ? f64x2.extract_lane(bestD, 0) : f64x2.extract_lane(bestD, 1),
+        lane == 0 ? f64x2.extract_lane(bestK, 0) : f64x2.extract_lane(bestK, 1));
+    }
+  }
+  if (q == to) {
+    const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
+    if (d <= reach2) offerBest(q, d, (w * d) * invR2);
+    offerIfNearer(q, ck, d);
+  }
+}
+
+// @ts-ignore: decorator
+@inline function offerIfNearer(q: i32, ck: i32, d: f64): void {
+  if ((d <= reach2) & (d < getF64(cellNnDR2, q))) offerNewJet(q, ck, d);
+}
+
+/** Every live cell, for a new jet whose neighbour must be sought among all jets. */
+function scanAll(ck: i32, y: f64, phi: f64, w: f64): void {
+  for (let q = 0; q < cellTotal; q++) {
+    if (q == ck || getI32(cellJet, q) < 0) continue;
+    const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
+    offerBest(q, d, (w * d) * invR2);
+    if (d < getF64(cellNnDR2, q) && (d <= reach2 || getI32(cellWide, q) != 0)) offerNewJet(q, ck, d);
   }
 }
 
@@ -256,14 +341,17 @@ export function scanNewJet(ck: i32): void {
   const wide = getI32(cellWide, ck) != 0;
   resetBest();
   if (wide) {
-    scanRun(ck, y, phi, w, true, 0, cellTotal - 1);
+    scanAll(ck, y, phi, w);
   } else {
-    setWindow(y, phi);
+    setF64(cellY, ck, Infinity); // not its own neighbour
+    openWindow(y, phi);
     for (let r = winRow0; r <= winRow1; r++) {
+      if (!rowRuns(r)) continue;
       const base = r * phiBins;
-      scanRun(ck, y, phi, w, false, base + runA0, base + runA1);
-      if (runB1 >= runB0) scanRun(ck, y, phi, w, false, base + runB0, base + runB1);
+      scanRun(ck, y, phi, w, base + runA0, base + runA1);
+      if (runB1 >= runB0) scanRun(ck, y, phi, w, base + runB0, base + runB1);
     }
+    setF64(cellY, ck, y);
   }
   const bc = bestCell;
   const bd = bestDR2;

@@ -1,19 +1,18 @@
 // The smallest candidate of all cells, kept in a tournament tree (a complete binary tree over the
-// P leaves; every inner node holds the leaf that wins its subtree). A changed leaf replays only
-// its path to the root, and stops early once the path's winner is unchanged.
+// P leaves; every inner node holds the leaf that wins its subtree, and that leaf's measure so a
+// match mostly needs no look-up). A changed leaf replays only its path to the root, and stops
+// early once the path's winner is unchanged.
 //
-// Leaf c holds cell c's candidate as three words: candValue f64, candLo i32, candHi i32 — the
-// measure, then the smaller and the larger jet index (candHi = BEAM for a beam candidate). The
-// order is that of clustering-spec.md section 4 step 1. An empty leaf is (+Inf, BEAM, BEAM),
-// after every real candidate, even one whose measure overflowed to +Inf.
+// Leaf c holds cell c's candidate as three words: candValue f64 (= nodeValue[P + c]), candLo
+// i32, candHi i32 — the measure, then the smaller and the larger jet index (candHi = BEAM for a
+// beam candidate). The order is that of clustering-spec.md section 4 step 1. An empty leaf is
+// (+Inf, BEAM, BEAM), after every real candidate, even one whose measure overflowed to +Inf.
 
-import { tree, treeLeaves, candValue, candLo, candHi, getF64, setF64, getI32, setI32 } from './layout';
+import { tree, nodeValue, treeLeaves, candValue, candLo, candHi, getF64, setF64, getI32, setI32 } from './layout';
 import { BEAM } from './settings';
 
 // @ts-ignore: decorator
-@inline function before(a: i32, b: i32): bool {
-  const va = getF64(candValue, a);
-  const vb = getF64(candValue, b);
+@inline function before(va: f64, a: i32, vb: f64, b: i32): bool {
   if (va != vb) return va < vb;
   const la = getI32(candLo, a);
   const lb = getI32(candLo, b);
@@ -43,26 +42,44 @@ export function initTree(): void {
   buildTree();
 }
 
-/** Replays every match, bottom up; once per event after the first candidates are set. */
+/** Replays every match, bottom up. With all leaves empty any winner is right, so the tree is
+ * valid between events whatever it holds. */
 export function buildTree(): void {
   for (let n = treeLeaves - 1; n >= 1; n--) {
-    const l = getI32(tree, n << 1);
-    const r = getI32(tree, (n << 1) + 1);
-    setI32(tree, n, before(r, l) ? r : l);
+    const l = n << 1;
+    const r = l + 1;
+    const vl = getF64(nodeValue, l);
+    const vr = getF64(nodeValue, r);
+    const il = getI32(tree, l);
+    const ir = getI32(tree, r);
+    if (before(vr, ir, vl, il)) {
+      setI32(tree, n, ir);
+      setF64(nodeValue, n, vr);
+    } else {
+      setI32(tree, n, il);
+      setF64(nodeValue, n, vl);
+    }
   }
 }
 
 /** Leaf c changed: replay its path. */
 export function updateTree(c: i32): void {
-  let n = (treeLeaves + c) >> 1;
-  while (n >= 1) {
-    const l = getI32(tree, n << 1);
-    const r = getI32(tree, (n << 1) + 1);
-    const win = before(r, l) ? r : l;
-    const old = getI32(tree, n);
-    setI32(tree, n, win);
-    if (win == old && old != c) return;
+  let n = treeLeaves + c;
+  let id = c;
+  let v = getF64(nodeValue, n);
+  while (n > 1) {
+    const s = n ^ 1;
+    const sv = getF64(nodeValue, s);
+    const sid = getI32(tree, s);
+    if (before(sv, sid, v, id)) {
+      id = sid;
+      v = sv;
+    }
     n >>= 1;
+    const old = getI32(tree, n);
+    if (old == id && id != c) return;
+    setI32(tree, n, id);
+    setF64(nodeValue, n, v);
   }
 }
 

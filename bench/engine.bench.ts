@@ -1,0 +1,147 @@
+// Engine against reference: µs per event on the default grid for N = 100, 300, 1000, 3200
+// towers (plus ~850-tower pileup events, the size the native figures in the engine notes were
+// taken at), anti-kt, Cambridge/Aachen and kt at R = 0.4. Prints a table and writes the same
+// figures to bench/results/engine.json. Events are invented (tests/support/random-events.ts).
+//
+//   npm run bench            (builds first)
+//   node dist/bench/engine.bench.js --quick
+
+import { mkdirSync, writeFileSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { cpus } from 'node:os';
+import { Bench } from 'tinybench';
+import { WasmClusterer } from '../host/engine.js';
+import { ReferenceClusterer } from '../host/reference.js';
+import { DEFAULT_GRID, type ClusterSettings, type Clusterer } from '../host/types.js';
+import { makeRandom, randomEvent, type TowerArrays } from '../tests/support/random-events.js';
+
+const quick = process.argv.includes('--quick');
+const SIZES = [100, 300, 850, 1000, 3200];
+const FIT_SIZES = [300, 1000, 3200];
+const ALGORITHMS = [
+  { name: 'anti-kt', p: -1 },
+  { name: 'C/A', p: 0 },
+  { name: 'kt', p: 1 },
+];
+const RADIUS = 0.4;
+const POOL = 48;
+
+interface Row {
+  algorithm: string;
+  towers: number;
+  referenceMedianUs: number;
+  referenceP99Us: number;
+  engineMedianUs: number;
+  engineP99Us: number;
+  /** the engine's own per-event clock (inside the module, threshold to written jets) */
+  engineInsideMedianUs: number;
+  speedup: number;
+}
+
+function eventPool(towers: number, seed: number): TowerArrays[] {
+  const random = makeRandom(seed);
+  const pool: TowerArrays[] = [];
+  for (let k = 0; k < POOL; k++) pool.push(randomEvent(DEFAULT_GRID, { towers, hardJets: 1 + Math.floor(random() * 4) }, random));
+  return pool;
+}
+
+async function timeClusterer(clusterer: Clusterer, pool: TowerArrays[], timeMs: number, iterations: number): Promise<{ median: number; p99: number }> {
+  let next = 0;
+  const bench = new Bench({ time: timeMs, iterations, warmupTime: Math.min(200, timeMs / 4), warmupIterations: 2 });
+  bench.add(clusterer.name, () => {
+    const event = pool[next++ % pool.length];
+    clusterer.cluster(event.towerIndex, event.towerEt);
+  });
+  await bench.run();
+  const result = bench.tasks[0].result;
+  if (result.state !== 'completed') throw new Error(`benchmark of ${clusterer.name} did not complete: ${result.state}`);
+  return { median: result.latency.p50 * 1000, p99: result.latency.p99 * 1000 };
+}
+
+/** the engine's own per-event clock over the pool, clustered as one batch, repeated */
+function insideMedianUs(engine: WasmClusterer, pool: TowerArrays[]): number {
+  const starts = new Int32Array(pool.length + 1);
+  pool.forEach((event, k) => { starts[k + 1] = starts[k] + event.towerIndex.length; });
+  const index = new Int32Array(starts[pool.length]);
+  const et = new Float64Array(starts[pool.length]);
+  pool.forEach((event, k) => { index.set(event.towerIndex, starts[k]); et.set(event.towerEt, starts[k]); });
+  const times: number[] = [];
+  for (let round = 0; round < (quick ? 2 : 6); round++) {
+    const batch = engine.clusterBatch(pool.length, starts, index, et, true);
+    if (round > 0) times.push(...batch.clusterNs);
+  }
+  times.sort((a, b) => a - b);
+  return times[Math.floor(times.length / 2)] / 1000;
+}
+
+/** least-squares slope of log(time) against log(N) */
+function fitExponent(points: { towers: number; us: number }[]): number {
+  const xs = points.map((q) => Math.log(q.towers));
+  const ys = points.map((q) => Math.log(q.us));
+  const mx = xs.reduce((a, b) => a + b, 0) / xs.length;
+  const my = ys.reduce((a, b) => a + b, 0) / ys.length;
+  let sxy = 0;
+  let sxx = 0;
+  for (let k = 0; k < xs.length; k++) {
+    sxy += (xs[k] - mx) * (ys[k] - my);
+    sxx += (xs[k] - mx) ** 2;
+  }
+  return sxy / sxx;
+}
+
+const rows: Row[] = [];
+const exponents: Record<string, number> = {};
+for (const algorithm of ALGORITHMS) {
+  const settings: ClusterSettings = { p: algorithm.p, radius: RADIUS, ptMin: 0, threshold: 0, recombination: 'e' };
+  const engine = new WasmClusterer(DEFAULT_GRID, settings);
+  const reference = new ReferenceClusterer(DEFAULT_GRID, settings);
+  for (const towers of SIZES) {
+    const pool = eventPool(towers, 17 + towers);
+    const referenceTime = await timeClusterer(reference, pool, quick ? 200 : towers >= 1000 ? 3000 : 1000, quick ? 3 : 10);
+    const engineTime = await timeClusterer(engine, pool, quick ? 200 : 1500, quick ? 10 : 200);
+    rows.push({
+      algorithm: algorithm.name,
+      towers,
+      referenceMedianUs: referenceTime.median,
+      referenceP99Us: referenceTime.p99,
+      engineMedianUs: engineTime.median,
+      engineP99Us: engineTime.p99,
+      engineInsideMedianUs: insideMedianUs(engine, pool),
+      speedup: referenceTime.median / engineTime.median,
+    });
+  }
+  exponents[algorithm.name] = fitExponent(rows.filter((r) => r.algorithm === algorithm.name && FIT_SIZES.includes(r.towers))
+    .map((r) => ({ towers: r.towers, us: r.engineMedianUs })));
+}
+
+const format = (us: number) => (us >= 1000 ? us.toFixed(0) : us.toPrecision(3));
+console.log(`engine vs reference, default grid (50 x 64), R = ${RADIUS}, E-scheme; µs per event (median / p99)`);
+console.table(rows.map((r) => ({
+  algorithm: r.algorithm,
+  towers: r.towers,
+  'reference median': format(r.referenceMedianUs),
+  'reference p99': format(r.referenceP99Us),
+  'engine median': format(r.engineMedianUs),
+  'engine p99': format(r.engineP99Us),
+  'engine inside': format(r.engineInsideMedianUs),
+  'ratio': `${r.speedup.toFixed(0)}x`,
+})));
+for (const [name, alpha] of Object.entries(exponents)) {
+  console.log(`${name}: engine time ~ N^${alpha.toFixed(2)} (fit over N = ${FIT_SIZES.join(', ')})`);
+}
+
+const here = dirname(fileURLToPath(import.meta.url));
+const resultsDir = join(here, '..', '..', 'bench', 'results');
+mkdirSync(resultsDir, { recursive: true });
+writeFileSync(join(resultsDir, 'engine.json'), JSON.stringify({
+  date: new Date().toISOString(),
+  node: process.version,
+  cpu: cpus()[0]?.model ?? 'unknown',
+  grid: DEFAULT_GRID,
+  radius: RADIUS,
+  quick,
+  rows,
+  exponents,
+}, null, 2) + '\n');
+console.log(`written ${join(resultsDir, 'engine.json')}`);
