@@ -1,4 +1,4 @@
-// Benchmarks of the streamed run (node dist/bench/pool.bench.js [--quick | --streaming-only]
+// Benchmarks of the streamed run (node dist/bench/pool.bench.js [--quick | --no-streaming | --streaming-only]
 // after npm run build):
 //   1. the pool's per-task round trip (tinybench), and events/s against the batch size K,
 //      which chose run.ts's DEFAULT_BATCH;
@@ -25,6 +25,8 @@ import { workerFile } from '../host/pool.js';
 import { describeMachine } from '../host/summary.js';
 
 const quick = process.argv.includes('--quick');
+/** sections 1-3 at full size, without the long streaming run */
+const noStreaming = process.argv.includes('--no-streaming');
 /** only section 4 (the long streaming run) */
 const streamingOnly = process.argv.includes('--streaming-only');
 const dir = mkdtempSync(join(tmpdir(), 'jetlag-bench-'));
@@ -190,7 +192,7 @@ if (!streamingOnly) {
 }
 
 // ---- 4. resident memory while streaming >= 1 GiB --------------------------------------------
-if (!quick) {
+if (!quick && !noStreaming) {
   const bigFile = join(dir, 'big.events');
   const bigEvents = 120_000;
   const big = writeToyFile(bigFile, bigEvents, 200, 500);
