@@ -56,7 +56,7 @@ export interface RunOptions {
   signal?: AbortSignal;
   /** progress bar output, when wanted */
   progress?: NodeJS.WritableStream | null;
-  /** one line per problem (invalid event, failed batch, check difference), up to a limit */
+  /** one line per problem (invalid event, failed batch, check difference); the caller limits them */
   onProblem?: (line: string) => void;
   /** batches out at once (default 2 per worker, so a worker never waits for the host) */
   maxInFlight?: number;
@@ -103,8 +103,6 @@ export function writeFileAtomic(path: string, text: string): void {
   }
 }
 
-const PROBLEM_LINES_MAX = 20;
-
 function isGzipFile(path: string): boolean {
   const fd = openSync(path, 'r');
   try {
@@ -143,9 +141,8 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
     try { if (!isGzipFile(options.input) && options.maxEvents == null) bytesTotal = statSync(options.input).size; } catch { bytesTotal = 0; }
   }
   const tally = new RunTally();
-  let problemLines = 0;
   const problem = (line: string) => {
-    if (options.onProblem && problemLines++ < PROBLEM_LINES_MAX) options.onProblem(line);
+    if (options.onProblem) options.onProblem(line);
   };
   let engineName = options.engine === 'reference' ? 'reference' : 'wasm';
   let jetsFile: AtomicFile | null = null;

@@ -4,11 +4,14 @@
 import { UsageError, parseArgs, type CommandIo, type CommandMain, type CommandSpec, type ParsedArgs } from '../args.js';
 import { CLUSTER_OPTIONS, GRID_OPTIONS, clusterSettingsFrom, gridFrom } from '../common-options.js';
 import { DEFAULT_BATCH, DEFAULT_CHECK, findRate, inputErrorOf, runEvents, scanWorkers, writeFileAtomic, type CheckOption, type RunOptions } from '../run.js';
-import { describeMachine, type RunSummary } from '../summary.js';
+import { describeMachine, LISTED_MAX, type RunSummary } from '../summary.js';
 import { formatReport } from '../report.js';
 import type { ArrivalMode } from '../arrivals.js';
 
 export { runEvents } from '../run.js';
+
+/** problem lines (invalid events, failed batches, check differences) written to stderr */
+const PROBLEM_LINES_MAX = 20;
 
 export const spec: CommandSpec = {
   name: 'run',
@@ -116,13 +119,17 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
     io.stderr.write('jetlag run: interrupted, finishing the batches in flight (Ctrl-C again to quit now)\n');
   };
   process.on('SIGINT', onSigint);
+  let problems = 0;
+  const onProblem = (line: string) => {
+    if (problems++ < PROBLEM_LINES_MAX) io.stderr.write(`jetlag: ${line}\n`);
+  };
   let summary: RunSummary;
   try {
     summary = await runEvents({
       ...options,
       signal: controller.signal,
       progress: io.isTty && !options.quiet ? io.stderr : null,
-      onProblem: (line) => io.stderr.write(`jetlag: ${line}\n`),
+      onProblem,
     });
     if (!summary.partial && options.scanWorkers) {
       summary.scanWorkers = await scanWorkers({ ...options, signal: controller.signal }, describeMachine().cores);
@@ -135,8 +142,8 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   }
   if (options.json) writeFileAtomic(options.json, JSON.stringify(summary, null, 2) + '\n');
   io.stdout.write(formatReport(summary));
-  if (summary.invalidEvents.length < summary.events.invalid) {
-    io.stderr.write(`jetlag: ${summary.events.invalid} invalid events, the first ${summary.invalidEvents.length} listed in the summary\n`);
+  if (problems > PROBLEM_LINES_MAX) {
+    io.stderr.write(`jetlag: ${problems - PROBLEM_LINES_MAX} more problems not shown (invalid events ${summary.events.invalid}, failed ${summary.events.failed}, disagreeing ${summary.check.disagreeing}); the --json summary lists up to ${LISTED_MAX} invalid events and failed batches\n`);
   }
   const inputError = inputErrorOf(summary);
   if (inputError) {
