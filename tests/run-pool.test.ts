@@ -1,9 +1,9 @@
 // The streamed run with real worker threads (compiled worker from dist/: `npm run build:host`).
 import { afterEach, beforeAll, describe, expect, it } from 'vitest';
-import { mkdtempSync, readdirSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { runEvents } from '../host/run.js';
+import { inputErrorOf, runEvents } from '../host/run.js';
 import { BatchBuilder, BatchPool, type BatchOutcome } from '../host/pool.js';
 import { mergeSummaries } from '../host/summary.js';
 import { EventTowerReader } from '../host/event-towers.js';
@@ -66,6 +66,18 @@ describe('a streamed run', () => {
       return { event: k, record: k, offset: written.offsets[k], reason: result.ok ? 'valid?' : result.problem };
     });
     expect(summary.invalidEvents).toEqual(expected);
+  });
+
+  it('keeps every event before a truncated record, and names the file and byte offset of the break', async () => {
+    const whole = readFileSync(file.path);
+    const cut = join(dir, 'cut.events');
+    writeFileSync(cut, whole.subarray(0, file.offsets[50] + 7));
+    const summary = await runEvents({ input: cut, workers: 2, batch: 8 });
+    expect(summary.events).toEqual({ read: 50, ok: 50, invalid: 0, failed: 0 });
+    expect(summary.partial).toBe(true);
+    const error = inputErrorOf(summary);
+    expect(error?.offset).toBe(file.offsets[50]);
+    expect(error?.message).toContain(`${cut}, byte ${file.offsets[50]}:`);
   });
 
   it('marks the events of a batch whose worker throws as failed, with the reason, and finishes the run', async () => {
