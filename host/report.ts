@@ -49,7 +49,7 @@ export function formatReport(summary: RunSummary): string {
   lines.push(`  throughput  ${grouped(summary.throughput.eventsPerSecond)} events/s over ${summary.throughput.wallSeconds.toFixed(2)} s`);
   if (summary.budget) {
     const b = summary.budget;
-    lines.push(`  budget      ${b.budgetUs} µs: ${grouped(b.over)} events over (${(b.fractionOver * 100).toFixed(3)} %)`);
+    lines.push(`  budget      ${b.budgetUs} µs on ${b.measuredOn}: ${grouped(b.over)} events over (${(b.fractionOver * 100).toFixed(3)} %)`);
   } else {
     lines.push('  budget      none set (--budget-us)');
   }

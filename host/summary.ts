@@ -166,7 +166,10 @@ export class RunTally {
     encode: new LatencyRecorder(),
   };
   readonly multiplicity = new MultiplicityBins();
-  /** events whose end-to-end latency exceeded the budget (exact count, not from buckets) */
+  /**
+   * events over the budget (exact count, not from buckets): open loop, their end-to-end latency
+   * from the scheduled arrival; closed loop (no arrivals), their own time in the worker
+   */
   overBudget = 0;
 
   addInvalid(entry: InvalidEvent): void {
@@ -270,7 +273,8 @@ export interface RunSummary {
     dispatchLag: LatencyStats;
     stages: Record<Stage, LatencyStats>;
   };
-  budget: { budgetUs: number; over: number; fractionOver: number } | null;
+  /** measuredOn: 'end-to-end' (open loop) or 'worker time' (closed loop: decode to encode of the event itself) */
+  budget: { budgetUs: number; measuredOn: 'end-to-end' | 'worker time'; over: number; fractionOver: number } | null;
   /** events read / wall time from the first dispatch to the last result; bytesRead: uncompressed offset of the last record read */
   throughput: { eventsPerSecond: number; wallSeconds: number; bytesRead: number };
   multiplicity: { bins: MultiplicityBin[]; alpha: number | null; binsUsed: number };
@@ -363,7 +367,12 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
     jets: tally.jets,
     check: { ...tally.check },
     latency: { cluster: tally.cluster.stats(), endToEnd: tally.endToEnd.stats(), dispatchLag: tally.dispatchLag.stats(), stages: stagesStats },
-    budget: budgetUs === null ? null : { budgetUs, over: tally.overBudget, fractionOver: timed === 0 ? 0 : tally.overBudget / timed },
+    budget: budgetUs === null ? null : {
+      budgetUs,
+      measuredOn: context.configuration.arrival.mode === 'closed' ? 'worker time' : 'end-to-end',
+      over: tally.overBudget,
+      fractionOver: timed === 0 ? 0 : tally.overBudget / timed,
+    },
     throughput: {
       eventsPerSecond: context.eventsPerSecond ?? (wallSeconds > 0 ? events.read / wallSeconds : 0),
       wallSeconds,

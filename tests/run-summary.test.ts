@@ -101,7 +101,7 @@ describe('run summaries', () => {
     const text = formatReport(summary);
     expect(text).toContain(`read 3,000 · ok ${summary.events.ok.toLocaleString('en-US')} · invalid ${summary.events.invalid} · failed 0`);
     expect(text).toMatch(/p50\s+p90\s+p99\s+p99\.9\s+max/);
-    expect(text).toContain(`500 µs: ${summary.budget!.over.toLocaleString('en-US')} events over`);
+    expect(text).toContain(`500 µs on worker time: ${summary.budget!.over.toLocaleString("en-US")} events over`);
   });
 });
 
