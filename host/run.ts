@@ -18,6 +18,7 @@ import { ProgressBar } from './progress.js';
 import { DEFAULT_SETTINGS, type ClusterSettings, type Grid } from './types.js';
 import { describeDifference } from './bit-exact.js';
 import { encodeJetsFileHeader } from './jets-codec.js';
+import { ReproWriter } from './repro-writer.js';
 
 /**
  * Default events per batch, chosen with bench/pool.bench.ts on this 2-core machine (pileup-200
@@ -50,6 +51,8 @@ export interface RunOptions {
   out?: string | null;
   /** grid of a CSV tower file (an event file carries its own) */
   grid?: Grid;
+  /** event file of the events on which the engine and the reference disagree (repro-writer.ts) */
+  repro?: string | null;
   /** stop after this many event records (of the whole file, before sharding) */
   maxEvents?: number | null;
   /** aborting stops reading; what is in flight is drained and the summary is marked partial */
@@ -161,6 +164,9 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
     jetsFile.write(encodeJetsFileHeader(grid, { ...settings, engine }, { producer: 'jetlag 0.1.0 run', label: source.header.label }));
   };
 
+  const repro = options.repro ? await ReproWriter.open(options.repro, { grid, source: label, engine: options.engine === 'reference' ? 'reference' : 'wasm' }) : null;
+  const reproPending: Promise<void>[] = [];
+
   const deliver = (outcome: BatchOutcome) => {
     const { count, result } = outcome;
     tally.read += count;
@@ -211,6 +217,16 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
     for (const difference of result.differences) {
       tally.addDifference(difference);
       problem(`${label}: check: ${describeDifference(difference.event, difference)}`);
+    }
+    if (repro) {
+      for (const { event, bytes } of result.disagreeing) {
+        try {
+          const pending = repro.writeRecord(event, bytes);
+          if (pending) reproPending.push(pending);
+        } catch (error) {
+          problem(`${label}, event ${event}: not written to ${options.repro}: ${(error as Error).message}`);
+        }
+      }
     }
     if (options.out && result.jetsBytes) {
       openJetsFile(result.engine);
@@ -283,10 +299,15 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
     endNs = nowNs();
   } catch (error) {
     (jetsFile as AtomicFile | null)?.abandon();
+    await repro?.abort();
     throw error;
   } finally {
     progress.stop();
     await pool.close();
+  }
+  if (repro) {
+    await Promise.all(reproPending);
+    await repro.close();
   }
   const wallSeconds = (endNs - startNs) / 1e9;
   tally.bytesRead = lastOffset;

@@ -61,6 +61,8 @@ export interface BatchResult {
   buffer: ArrayBuffer;
   invalid: InvalidEntry[];
   differences: (JetDifference & { event: number })[];
+  /** the record bytes of each disagreeing event, for a repro file */
+  disagreeing: { event: number; bytes: Uint8Array }[];
   checked: number;
   agreeing: number;
   jets: number;
@@ -109,6 +111,8 @@ export function inCheckSample(event: number, fraction: number, seed: number): bo
 //   JETLAG_TEST_FAULT=throw:B   batch B throws inside the worker
 //   JETLAG_TEST_FAULT=exit:B    the worker thread exits while running batch B
 //   JETLAG_TEST_FAULT=stall:B:MS  batch B sleeps MS milliseconds before it starts
+//   JETLAG_TEST_PERTURB_EVENT=E  the engine's first jet of event E gets its pt one ulp higher,
+//                                so the check has a disagreement to find
 //   JETLAG_TEST_SYNTHETIC_TIMES=1  stage times are a fixed function of the event, not measured,
 //                                  so two runs over the same events record identical values
 interface PlantedFault { kind: 'throw' | 'exit' | 'stall'; batch: number; ms: number }
@@ -121,6 +125,16 @@ function plantedFault(): PlantedFault | null {
 }
 const FAULT = plantedFault();
 const SYNTHETIC_TIMES = process.env.JETLAG_TEST_SYNTHETIC_TIMES === '1';
+const PERTURB_EVENT = process.env.JETLAG_TEST_PERTURB_EVENT === undefined ? -1 : Number(process.env.JETLAG_TEST_PERTURB_EVENT);
+
+/** The jets with the first jet's pt moved up by one ulp (test switch above). */
+function perturbed(jets: JetSet): JetSet {
+  if (jets.count === 0) return jets;
+  const pt = Float64Array.from(jets.pt);
+  const bits = new BigInt64Array(pt.buffer, 0, 1);
+  bits[0] += 1n;
+  return { ...jets, pt };
+}
 
 // ---- per-worker state, made on the first batch ------------------------------------------
 interface WorkerState {
@@ -256,6 +270,7 @@ function clusterBatch(s: WorkerState, task: BatchTask): BatchResult {
   const threshold = config.settings.threshold;
   const invalid: InvalidEntry[] = [];
   const differences: BatchResult['differences'] = [];
+  const disagreeing: BatchResult['disagreeing'] = [];
   const jetChunks: Uint8Array[] = [];
   let checked = 0;
   let agreeing = 0;
@@ -348,6 +363,7 @@ function clusterBatch(s: WorkerState, task: BatchTask): BatchResult {
     }
     jetsTotal = batch.jetStart[valid] - batch.jetStart[0];
     jetsOf = (v) => batchEventJets(batch, v);
+    if (PERTURB_EVENT >= 0) jetsOf = (v) => (out.eventNumber[validEvent[v]] === PERTURB_EVENT ? perturbed(batchEventJets(batch, v)) : batchEventJets(batch, v));
   } else {
     const sets: JetSet[] = [];
     for (let v = 0; v < valid; v++) {
@@ -380,7 +396,10 @@ function clusterBatch(s: WorkerState, task: BatchTask): BatchResult {
       const difference = firstJetDifference(jetsOf(slot), reference);
       checked++;
       if (difference === null) agreeing++;
-      else differences.push({ event, ...difference });
+      else {
+        differences.push({ event, ...difference });
+        disagreeing.push({ event, bytes: data.slice(recordStart[k], recordStart[k + 1]) });
+      }
       t4 = nowNs();
     }
     let t5 = t4;
@@ -416,6 +435,7 @@ function clusterBatch(s: WorkerState, task: BatchTask): BatchResult {
     buffer,
     invalid,
     differences,
+    disagreeing,
     checked,
     agreeing,
     jets: jetsTotal,

@@ -46,6 +46,18 @@ describe('a streamed run', () => {
     expect(summary.check.agreeing).toBe(events.length);
   });
 
+  it('counts a planted disagreement and writes that event, as read, to the repro file', async () => {
+    restore.push(withEnv('JETLAG_TEST_PERTURB_EVENT', String(events[7].event)));
+    const repro = join(dir, 'repro.events');
+    const summary = await runEvents({ input: file.path, workers: 2, batch: 16, check: { mode: 'all', fraction: 1, seed: 1 }, repro, engine: 'wasm' });
+    expect(summary.check).toMatchObject({ checked: events.length, agreeing: events.length - 1, disagreeing: 1 });
+    expect(summary.check.differences).toEqual([expect.objectContaining({ event: events[7].event, jet: 0, field: 'pt' })]);
+    const source = await openRecordFile(repro);
+    const written: Uint8Array[] = [];
+    for await (const record of source.records) written.push(record.bytes);
+    expect(written.map((bytes) => Buffer.from(bytes).toString('hex'))).toEqual([Buffer.from(encodeEventRecord(events[7])).toString('hex')]);
+  });
+
   it('counts invalid events and lists each with its event number, byte offset and the reason event-towers.ts gives', async () => {
     const bad = [
       { event: 0, towerIndex: [5, 9], towerEt: [1.5, 2] },
