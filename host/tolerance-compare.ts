@@ -7,7 +7,8 @@
 //   ΔR is measured in (y, φ) as reported, with the azimuth taken the short way round whatever
 //   range the candidate reports φ in.
 //   The event agrees when every reference jet with pt >= ptMin agrees and the candidate has
-//   no extra jet with pt >= ptMin. "Extra" is read as: unmatched, or matched to a reference jet
+//   no extra jet with pt >= ptMin (a candidate jet whose pt is NaN counts as one: it is not
+//   below ptMin). "Extra" is read as: unmatched, or matched to a reference jet
 //   below ptMin that it does not agree with (else a hard fake standing on a soft reference
 //   jet would pass).
 //
@@ -220,7 +221,8 @@ export class ToleranceMatcher {
     let candAboveUnmatched = 0;
     let candAboveExtra = 0;
     for (let c = 0; c < candCount; c++) {
-      if (!(candPt[c] >= ptMin)) continue;
+      // a NaN pt is not shown to lie below ptMin, so it must not slip through as soft
+      if (candPt[c] < ptMin) continue;
       candAbove++;
       const r = candMatch[c];
       if (r === NONE) {

@@ -326,7 +326,7 @@ export class ValidationAccumulator {
     }
     for (let c = 0; c < candidate.count; c++) {
       const pt = candidate.pt[c];
-      if (!(pt >= ptMin)) continue;
+      if (pt < ptMin) continue; // NaN counts, as in tolerance-compare.ts
       const y = candidate.rapidity[c];
       let absEta = Math.abs(y);
       if (candidateMass !== null && candidateMass[c] > 0) {
