@@ -61,7 +61,12 @@ export function clusterSettingsFrom(args: ParsedArgs, command: string, base: Clu
 }
 
 export function checkSettings(settings: ClusterSettings, command: string): void {
-  if (!(settings.radius > 0) || !Number.isFinite(settings.radius)) throw new UsageError(`${command}: --radius must be a positive finite number, got ${settings.radius}`);
+  // invR2 = 1 / (R * R) (spec section 3) must be finite: below about 7.5e-155 it is infinite,
+  // every measure infinite or NaN, and the engine refuses such an R; one rule for every engine
+  const radius = settings.radius;
+  if (!(radius > 0) || !Number.isFinite(radius) || !Number.isFinite(1 / (radius * radius))) {
+    throw new UsageError(`${command}: --radius must be a positive finite number with 1 / R² finite (R above about 7.5e-155), got ${radius}`);
+  }
   if (!Number.isFinite(settings.p)) throw new UsageError(`${command}: --p must be finite, got ${settings.p}`);
   if (!(settings.ptMin >= 0)) throw new UsageError(`${command}: --ptmin must be >= 0, got ${settings.ptMin}`);
   if (!(settings.threshold >= 0) || !Number.isFinite(settings.threshold)) throw new UsageError(`${command}: --threshold must be a finite number >= 0, got ${settings.threshold}`);
