@@ -163,7 +163,7 @@ describe('the pool', () => {
   });
 
   it('delivers results in input order when a later batch finishes first', async () => {
-    restore.push(withEnv('JETLAG_TEST_FAULT', 'stall:0:300'));
+    restore.push(withEnv('JETLAG_TEST_FAULT', 'stall:0:800'));
     const delivered: number[] = [];
     const finishedNs: number[] = [];
     const eventNumbers: number[] = [];
