@@ -85,7 +85,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
         const towers = reader.read(record.bytes);
         if (!towers.ok) {
           invalid++;
-          const where = towers.event !== undefined ? `event ${towers.event}` : `record ${events}`;
+          const where = towers.event !== undefined ? `event ${towers.event}` : `record ${events - 1}`;
           if (shownProblems++ < PROBLEM_LINES_MAX) io.stderr.write(`jetlag cluster: ${source.label}, ${where}, byte ${record.offset}: ${towers.problem}\n`);
           const event = towers.event ?? -1;
           if (event >= 0) {
