@@ -2,7 +2,9 @@
 // its own cell; a merged jet takes the cell that contains its (y, phi) when that cell is free,
 // else the nearer of its parents' cells. How far jets sit from their cell centres is tracked
 // (driftY, driftPhi: the largest offsets this event; rowDriftY, rowDriftPhi: the same per grid
-// row), so searches stay exact.
+// row), and the live jets off their centre are listed (driftList), so searches stay exact:
+// while that list is short, searches treat every other jet as sitting at its cell centre and
+// look at the listed ones directly.
 //
 // Per cell c (see layout.ts): cellY cellPhi cellW (the jet's weight w), cellNnDR2 cellNnKey (the
 // jet's nearest neighbour by the key of clustering-spec.md section 4, its dR2 and (w*dR2)*invR2;
@@ -14,7 +16,7 @@
 
 import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellNn, cellWide,
   pointHead, pointNext, pointPrev, etaCentre, phiCentre, etaBins, phiBins, jetY, jetPhi, jetKt2,
-  rowDriftY, rowDriftPhi, cellRow, cellCol,
+  rowDriftY, rowDriftPhi, cellRow, cellCol, driftList, driftSlot,
   getF64, setF64, getI32, setI32 } from './layout';
 import { invR2, etaMin, invEtaPitch, invPhiPitch, PI, TWO_PI, BEAM } from './settings';
 import { weightOf, needsWideSearch } from './kinematics';
@@ -24,9 +26,17 @@ export let wideCount: i32 = 0;
 export let driftY: f64 = 0;
 export let driftPhi: f64 = 0;
 export let driftNorm: f64 = 0;
+/** live jets off their cell centre: driftList[0..driftCount), driftSlot[c] = position or -1 */
+export let driftCount: i32 = 0;
 
 /** Called once per engine. */
 export function initCells(): void {
+  for (let c = cellTotal; c < cellTotal + 2; c++) {
+    setI32(cellJet, c, -1);
+    setF64(cellY, c, Infinity);
+    setF64(cellPhi, c, 0);
+    setF64(cellNnDR2, c, Infinity);
+  }
   for (let c = 0; c < cellTotal; c++) {
     setI32(cellJet, c, -1);
     setF64(cellY, c, Infinity);
@@ -37,6 +47,7 @@ export function initCells(): void {
     const row = c / phiBins;
     setI32(cellRow, c, row);
     setI32(cellCol, c, c - row * phiBins);
+    setI32(driftSlot, c, -1);
   }
 }
 
@@ -44,6 +55,7 @@ export function resetDrift(): void {
   driftY = 0;
   driftPhi = 0;
   driftNorm = 0;
+  driftCount = 0;
   wideCount = 0;
   memory.fill(rowDriftY, 0, <usize>etaBins << 3);
   memory.fill(rowDriftPhi, 0, <usize>etaBins << 3);
@@ -90,6 +102,8 @@ export function placeJet(c: i32, jet: i32): void {
   const dy = centreOffsetY(c, y);
   const dphi = centreOffsetPhi(c, phi);
   if (dy > 0 || dphi > 0) {
+    setI32(driftSlot, c, driftCount);
+    setI32(driftList, driftCount++, c);
     const row = getI32(cellRow, c);
     if (dy > getF64(rowDriftY, row)) setF64(rowDriftY, row, dy);
     if (dphi > getF64(rowDriftPhi, row)) setF64(rowDriftPhi, row, dphi);
@@ -103,6 +117,13 @@ export function placeJet(c: i32, jet: i32): void {
 
 /** Cell c becomes empty; its lists must already be detached. */
 export function clearCell(c: i32): void {
+  const slot = getI32(driftSlot, c);
+  if (slot >= 0) {
+    const last = getI32(driftList, --driftCount);
+    setI32(driftList, slot, last);
+    setI32(driftSlot, last, slot);
+    setI32(driftSlot, c, -1);
+  }
   wideCount -= getI32(cellWide, c);
   setI32(cellWide, c, 0);
   setI32(cellJet, c, -1);

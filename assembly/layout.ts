@@ -10,6 +10,7 @@
 //   event    evIndex i32[C]  evEt f64[C]  sortIndex i32[C]  sortEt f64[C]  radixCount i32[2048]
 //   cells    cellY cellPhi cellW cellNnDR2 cellNnKey f64[C]
 //            cellJet cellNn pointHead pointNext pointPrev cellWide cellRow cellCol i32[C]
+//            driftList driftSlot i32[C]   (the cells whose jet is off its cell centre)
 //            candLo candHi i32[P]
 //   rows     rowDriftY rowDriftPhi f64[etaBins]
 //   tree     tree i32[2P]  nodeValue f64[2P]   (P = power of two >= C; node n < P holds the
@@ -20,7 +21,8 @@
 //   offsets  offDr offDc i32[O]  offDist f64[O]  offPerm offScratch offTmpI i32[O]  offTmpF f64[O]
 //            (O = OFFSET_LIMIT; the last four only while the offsets are sorted)
 //
-// IN is the batch tower capacity, EV the batch event capacity. Cell c = ieta * phiBins + iphi;
+// IN is the batch tower capacity, EV the batch event capacity. cellY, cellPhi, cellNnDR2 and
+// cellJet have two more entries, always empty, so the vector scan may read a pair past a run. Cell c = ieta * phiBins + iphi;
 // an empty cell has cellY = +Infinity and cellJet = -1.
 
 // @ts-ignore: decorator
@@ -84,6 +86,8 @@ export let candHi: usize = 0;
 export let cellWide: usize = 0;
 export let cellRow: usize = 0;
 export let cellCol: usize = 0;
+export let driftList: usize = 0;
+export let driftSlot: usize = 0;
 
 export let tree: usize = 0;
 export let nodeValue: usize = 0;
@@ -181,12 +185,12 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   sortEt = take(cells << 3);
   radixCount = take(<usize>RADIX_BUCKETS << 2);
 
-  cellY = take(cells << 3);
-  cellPhi = take(cells << 3);
+  cellY = take((cells + 2) << 3);
+  cellPhi = take((cells + 2) << 3);
   cellW = take(cells << 3);
-  cellNnDR2 = take(cells << 3);
+  cellNnDR2 = take((cells + 2) << 3);
   cellNnKey = take(cells << 3);
-  cellJet = take(cells << 2);
+  cellJet = take((cells + 2) << 2);
   cellNn = take(cells << 2);
   pointHead = take(cells << 2);
   pointNext = take(cells << 2);
@@ -196,6 +200,8 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   cellWide = take(cells << 2);
   cellRow = take(cells << 2);
   cellCol = take(cells << 2);
+  driftList = take(cells << 2);
+  driftSlot = take(cells << 2);
 
   rowDriftY = take(<usize>etaCount << 3);
   rowDriftPhi = take(<usize>etaCount << 3);

@@ -16,14 +16,17 @@
 // jet, as the new one has the largest index).
 
 import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellWide, cellRow, cellCol, etaCentre,
-  rowDriftY, rowDriftPhi,
+  rowDriftY, rowDriftPhi, driftList,
   etaBins, phiBins, offDr, offDc, offDist, offPerm, offScratch, offTmpI, offTmpF, OFFSET_LIMIT,
   getF64, setF64, getI32, setI32 } from './layout';
 import { invR2, reach2, reach, etaMin, etaPitch, phiPitch, invEtaPitch, invPhiPitch, BEAM, PI, TWO_PI } from './settings';
 import { deltaR2 } from './kinematics';
-import { driftY, driftPhi, driftNorm, wideCount, centreOffsetY, centreOffsetPhi, setNeighbour } from './cells';
+import { driftY, driftPhi, driftNorm, driftCount, wideCount, centreOffsetY, centreOffsetPhi, setNeighbour } from './cells';
 import { updateTree } from './tournament';
 import { sortPermutation } from './sort';
+
+// @ts-ignore: decorator
+@inline const LIST_MAX: i32 = 32;
 
 let offCount: i32 = 0;
 /** every offset whose centre distance is at most this is in the list */
@@ -126,8 +129,21 @@ function searchOrdered(c: i32): bool {
   const col = getI32(cellCol, c);
   const dyq = centreOffsetY(c, y);
   const dpq = centreOffsetPhi(c, phi);
-  const slack = sqrt<f64>(dyq * dyq + dpq * dpq) + driftNorm + 1e-12;
   let limit = reach;
+  let others = driftNorm;
+  if (driftCount <= LIST_MAX) {
+    // the jets off their centres directly; the walk below then only has to be exact for jets
+    // at their centres
+    others = 0;
+    for (let k = 0; k < driftCount; k++) {
+      const q = getI32(driftList, k);
+      if (q == c) continue;
+      const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
+      if (d <= reach2) offerBest(q, d, (w * d) * invR2);
+    }
+    if (bestCell >= 0) limit = min<f64>(limit, sqrt<f64>(bestDR2) * (1 + 1e-8));
+  }
+  const slack = sqrt<f64>(dyq * dyq + dpq * dpq) + others + 1e-12;
   const n = offCount;
   const rowCount = <u32>etaBins;
   const colCount = phiBins;
@@ -159,12 +175,15 @@ let winPhi: f64 = 0;
 let winU: f64 = 0;
 let winV: f64 = 0;
 
-function openWindow(y: f64, phi: f64): void {
+let winDrift: bool = true;
+
+function openWindow(y: f64, phi: f64, drift: bool): void {
   winY = y;
   winPhi = phi;
+  winDrift = drift;
   winU = (y - etaMin) * invEtaPitch - 0.5;
   winV = phi * invPhiPitch - 0.5;
-  const ry = (reach + driftY) * invEtaPitch * (1 + 1e-9) + 1e-9;
+  const ry = (reach + (drift ? driftY : 0)) * invEtaPitch * (1 + 1e-9) + 1e-9;
   const r0 = ceil<f64>(winU - ry);
   const r1 = floor<f64>(winU + ry);
   if (r0 == r0 && r1 == r1) {
@@ -181,7 +200,12 @@ function rowRuns(r: i32): bool {
   let dy = abs<f64>(winY - getF64(etaCentre, r)) - getF64(rowDriftY, r);
   if (dy > reach) return false;
   if (!(dy > 0)) dy = 0; // also a non-finite y: the whole row
-  const half = (sqrt<f64>(max<f64>(reach * reach - dy * dy, 0)) + getF64(rowDriftPhi, r)) * invPhiPitch * (1 + 1e-9) + 1e-9;
+  return columnRuns((sqrt<f64>(max<f64>(reach * reach - dy * dy, 0)) + getF64(rowDriftPhi, r)) * invPhiPitch);
+}
+
+/** Sets the runs of the columns within `halfColumns` columns of the window's phi. */
+function columnRuns(halfColumns: f64): bool {
+  const half = halfColumns * (1 + 1e-9) + 1e-9;
   const c0 = ceil<f64>(winV - half);
   const c1 = floor<f64>(winV + half);
   runB0 = 0;
@@ -219,7 +243,7 @@ function searchWindow(c: i32): void {
   const y = getF64(cellY, c);
   const phi = getF64(cellPhi, c);
   const w = getF64(cellW, c);
-  openWindow(y, phi);
+  openWindow(y, phi, true);
   for (let r = winRow0; r <= winRow1; r++) {
     if (!rowRuns(r)) continue;
     const base = r * phiBins;
@@ -260,12 +284,14 @@ export function findNeighbour(c: i32): void {
 }
 
 /**
- * Cells from..to of a new jet's window, two at a time (the new jet's own cell reads y = +Inf
- * meanwhile). dR2 is the spec's sequence of operations, lane by lane. Each lane keeps its best
- * (key, jet, dR2, cell) with vector selects, so the jet's own search has no branch; the single
- * branch, rarely taken, is for a cell that takes the new jet as its neighbour.
+ * The cells of a new jet's window, two at a time (the new jet's own cell reads y = +Inf
+ * meanwhile; a pair may reach one cell past a run, which only adds a real cell or an empty pad).
+ * dR2 is the spec's sequence of operations, lane by lane. Each lane keeps its best (key, jet,
+ * dR2, cell) with vector selects, so the jet's own search has no branch; the single branch,
+ * rarely taken, is for a cell that takes the new jet as its neighbour. rectangle: the same
+ * columns in every row (jets at their centres), else per-row runs with the rows' drift.
  */
-function scanRun(ck: i32, y: f64, phi: f64, w: f64, from: i32, to: i32): void {
+function scanWindow(ck: i32, y: f64, phi: f64, w: f64, rectangle: bool): void {
   const ys = f64x2.splat(y);
   const phis = f64x2.splat(phi);
   const ws = f64x2.splat(w);
@@ -273,46 +299,44 @@ function scanRun(ck: i32, y: f64, phi: f64, w: f64, from: i32, to: i32): void {
   const reachs = f64x2.splat(reach2);
   const pis = f64x2.splat(PI);
   const twoPis = f64x2.splat(TWO_PI);
-  const two = i64x2.splat(2);
+  const laneOne = i64x2.replace_lane(i64x2.splat(0), 1, 1);
   let bestK = f64x2.splat(Infinity);
   let bestJ = i64x2.splat(BEAM);
   let bestD = f64x2.splat(Infinity);
   let bestQ = i64x2.splat(-1);
-  let qs = i64x2.replace_lane(i64x2.splat(<i64>from), 1, <i64>(from + 1));
-  let q = from;
-  for (; q < to; q += 2) {
-    const at = <usize>q << 3;
-    const dy = f64x2.sub(ys, v128.load(cellY + at));
-    let dphi = f64x2.abs(f64x2.sub(phis, v128.load(cellPhi + at)));
-    dphi = v128.bitselect(f64x2.sub(twoPis, dphi), dphi, f64x2.gt(dphi, pis));
-    const d = f64x2.add(f64x2.mul(dy, dy), f64x2.mul(dphi, dphi));
-    const key = f64x2.mul(f64x2.mul(ws, d), inv);
-    const within = f64x2.le(d, reachs);
-    const jets = i64x2.extend_low_i32x4_s(v128.load64_zero(cellJet + (<usize>q << 2)));
-    const better = v128.and(within, v128.or(f64x2.lt(key, bestK),
-      v128.and(f64x2.eq(key, bestK), i64x2.lt_s(jets, bestJ))));
-    bestK = v128.bitselect(key, bestK, better);
-    bestJ = v128.bitselect(jets, bestJ, better);
-    bestD = v128.bitselect(d, bestD, better);
-    bestQ = v128.bitselect(qs, bestQ, better);
-    qs = i64x2.add(qs, two);
-    if (v128.any_true(v128.and(within, f64x2.lt(d, v128.load(cellNnDR2 + at))))) {
-      offerIfNearer(q, ck, f64x2.extract_lane(d, 0));
-      offerIfNearer(q + 1, ck, f64x2.extract_lane(d, 1));
+  for (let r = winRow0; r <= winRow1; r++) {
+    if (!rectangle && !rowRuns(r)) continue;
+    const base = r * phiBins;
+    for (let run = 0; run < 2; run++) {
+      let q = base + (run == 0 ? runA0 : runB0);
+      const to = base + (run == 0 ? runA1 : runB1);
+      for (; q <= to; q += 2) {
+        const at = <usize>q << 3;
+        const dy = f64x2.sub(ys, v128.load(cellY + at));
+        let dphi = f64x2.abs(f64x2.sub(phis, v128.load(cellPhi + at)));
+        dphi = v128.bitselect(f64x2.sub(twoPis, dphi), dphi, f64x2.gt(dphi, pis));
+        const d = f64x2.add(f64x2.mul(dy, dy), f64x2.mul(dphi, dphi));
+        const key = f64x2.mul(f64x2.mul(ws, d), inv);
+        const within = f64x2.le(d, reachs);
+        const jets = i64x2.extend_low_i32x4_s(v128.load64_zero(cellJet + (<usize>q << 2)));
+        const better = v128.and(within, v128.or(f64x2.lt(key, bestK),
+          v128.and(f64x2.eq(key, bestK), i64x2.lt_s(jets, bestJ))));
+        bestK = v128.bitselect(key, bestK, better);
+        bestJ = v128.bitselect(jets, bestJ, better);
+        bestD = v128.bitselect(d, bestD, better);
+        bestQ = v128.bitselect(i64x2.add(i64x2.splat(<i64>q), laneOne), bestQ, better);
+        if (v128.any_true(v128.and(within, f64x2.lt(d, v128.load(cellNnDR2 + at))))) {
+          offerIfNearer(q, ck, f64x2.extract_lane(d, 0));
+          offerIfNearer(q + 1, ck, f64x2.extract_lane(d, 1));
+        }
+      }
+      if (runB1 < runB0) break;
     }
   }
-  for (let lane: u8 = 0; lane < 2; lane++) {
-    const bq = <i32>(lane == 0 ? i64x2.extract_lane(bestQ, 0) : i64x2.extract_lane(bestQ, 1));
-    if (bq >= 0) {
-      offerBest(bq, lane == 0 ? f64x2.extract_lane(bestD, 0) : f64x2.extract_lane(bestD, 1),
-        lane == 0 ? f64x2.extract_lane(bestK, 0) : f64x2.extract_lane(bestK, 1));
-    }
-  }
-  if (q == to) {
-    const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
-    if (d <= reach2) offerBest(q, d, (w * d) * invR2);
-    offerIfNearer(q, ck, d);
-  }
+  const q0 = <i32>i64x2.extract_lane(bestQ, 0);
+  if (q0 >= 0) offerBest(q0, f64x2.extract_lane(bestD, 0), f64x2.extract_lane(bestK, 0));
+  const q1 = <i32>i64x2.extract_lane(bestQ, 1);
+  if (q1 >= 0) offerBest(q1, f64x2.extract_lane(bestD, 1), f64x2.extract_lane(bestK, 1));
 }
 
 // @ts-ignore: decorator
@@ -344,12 +368,20 @@ export function scanNewJet(ck: i32): void {
     scanAll(ck, y, phi, w);
   } else {
     setF64(cellY, ck, Infinity); // not its own neighbour
-    openWindow(y, phi);
-    for (let r = winRow0; r <= winRow1; r++) {
-      if (!rowRuns(r)) continue;
-      const base = r * phiBins;
-      scanRun(ck, y, phi, w, base + runA0, base + runA1);
-      if (runB1 >= runB0) scanRun(ck, y, phi, w, base + runB0, base + runB1);
+    if (driftCount <= LIST_MAX) {
+      // jets at their centres: one rectangle of rows and columns; the listed ones directly
+      openWindow(y, phi, false);
+      if (columnRuns(reach * invPhiPitch)) scanWindow(ck, y, phi, w, true);
+      for (let k = 0; k < driftCount; k++) {
+        const q = getI32(driftList, k);
+        if (q == ck) continue;
+        const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
+        if (d <= reach2) offerBest(q, d, (w * d) * invR2);
+        offerIfNearer(q, ck, d);
+      }
+    } else {
+      openWindow(y, phi, true);
+      scanWindow(ck, y, phi, w, false);
     }
     setF64(cellY, ck, y);
   }

@@ -210,6 +210,11 @@ export class WasmClusterer implements Clusterer {
     };
   }
 
+  /** Size of the module's linear memory; it is reserved once and must not grow per event. */
+  memoryBytes(): number {
+    return this.exports.memory.buffer.byteLength;
+  }
+
   private currentViews(): Views {
     if (this.views.buffer !== this.exports.memory.buffer) this.views = this.makeViews();
     return this.views;
