@@ -83,6 +83,38 @@ export function containingCell(y: f64, phi: f64): i32 {
   return row * phiBins + col;
 }
 
+/**
+ * The free cell for a jet at (y, phi): the containing cell, else the free one of its eight
+ * neighbours nearest to the jet, else `fallback`. Any cell would be exact; near ones keep the
+ * drift, and so the searches, small.
+ */
+export function freeCellNear(y: f64, phi: f64, fallback: i32): i32 {
+  const c = containingCell(y, phi);
+  if (c < 0) return fallback;
+  if (getI32(cellJet, c) < 0) return c;
+  const row = getI32(cellRow, c);
+  const col = getI32(cellCol, c);
+  let best = fallback;
+  let bestOffset = centreOffsetY(fallback, y) + centreOffsetPhi(fallback, phi);
+  for (let dr = -1; dr <= 1; dr++) {
+    const r = row + dr;
+    if (r < 0 || r >= etaBins) continue;
+    for (let dc = -1; dc <= 1; dc++) {
+      let cc = col + dc;
+      if (cc < 0) cc += phiBins;
+      else if (cc >= phiBins) cc -= phiBins;
+      const q = r * phiBins + cc;
+      if (getI32(cellJet, q) >= 0) continue;
+      const offset = centreOffsetY(q, y) + centreOffsetPhi(q, phi);
+      if (offset < bestOffset) {
+        best = q;
+        bestOffset = offset;
+      }
+    }
+  }
+  return best;
+}
+
 /** Jet `jet` moves into the empty cell c, with no neighbour yet. */
 export function placeJet(c: i32, jet: i32): void {
   const y = getF64(jetY, jet);

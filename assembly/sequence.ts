@@ -11,7 +11,7 @@ import { evIndex, evEt, cellJet, cellNn, candHi, jetInto, jetY, jetPhi, finalJet
   getF64, getI32, setI32 } from './layout';
 import { BEAM } from './settings';
 import { loadTower, mergeJets } from './kinematics';
-import { resetDrift, placeJet, clearCell, unlink, detachPointers, containingCell,
+import { resetDrift, placeJet, clearCell, unlink, detachPointers, freeCellNear,
   centreOffsetY, centreOffsetPhi } from './cells';
 import { findNeighbour, scanNewJet } from './tiles';
 import { buildTree, updateTree, treeWinner } from './tournament';
@@ -55,15 +55,12 @@ function merge(ca: i32, cb: i32): void {
   clearCell(ca);
   clearCell(cb);
 
-  // the free cell that contains the new jet, else the nearer parent cell
+  // a free cell near the new jet; failing that, the nearer parent cell
   const y = getF64(jetY, k);
   const phi = getF64(jetPhi, k);
-  let ck = containingCell(y, phi);
-  if (ck < 0 || getI32(cellJet, ck) >= 0) {
-    const da = centreOffsetY(ca, y) + centreOffsetPhi(ca, phi);
-    const db = centreOffsetY(cb, y) + centreOffsetPhi(cb, phi);
-    ck = db < da ? cb : ca;
-  }
+  const da = centreOffsetY(ca, y) + centreOffsetPhi(ca, phi);
+  const db = centreOffsetY(cb, y) + centreOffsetPhi(cb, phi);
+  const ck = freeCellNear(y, phi, db < da ? cb : ca);
   placeJet(ck, k);
   scanNewJet(ck);
   updateTree(ck);
