@@ -5,6 +5,10 @@ import { GRID_OPTIONS, gridFrom } from '../common-options.js';
 import { generateEvents } from '../generate.js';
 import { EventFileWriter } from '../record-writer.js';
 
+/** largest --pileup and --hard-jets accepted (see main) */
+export const MAX_PILEUP = 100_000;
+export const MAX_HARD_JETS = 10_000;
+
 export const spec: CommandSpec = {
   name: 'generate',
   summary: 'Write a file of invented demo events: a few hard jets, Poisson pileup and tower noise (toy generator, not physics data).',
@@ -32,9 +36,12 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   const seed = (args.values.seed as number | undefined) ?? 1;
   const maxHardJets = (args.values['hard-jets'] as number | undefined) ?? 4;
   if (events < 0) throw new UsageError(`generate: --events must be >= 0, got ${events}`);
-  if (!(pileup >= 0)) throw new UsageError(`generate: --pileup must be >= 0, got ${pileup}`);
+  // an event is held whole while it is made, and a raw event of mean pileup MU is about
+  // 120 * MU bytes: above these limits a record outgrows the readers' default cap (64 MiB)
+  // or the generator its memory, so they are refused up front
+  if (!(pileup >= 0 && pileup <= MAX_PILEUP)) throw new UsageError(`generate: --pileup must be in 0..${MAX_PILEUP}, got ${pileup}`);
   if (seed < 0 || seed > 0xffffffff) throw new UsageError(`generate: --seed must be in 0..4294967295, got ${seed}`);
-  if (maxHardJets < 1) throw new UsageError(`generate: --hard-jets must be >= 1, got ${maxHardJets}`);
+  if (maxHardJets < 1 || maxHardJets > MAX_HARD_JETS) throw new UsageError(`generate: --hard-jets must be in 1..${MAX_HARD_JETS}, got ${maxHardJets}`);
   const grid = gridFrom(args, 'generate');
   const raw = Boolean(args.values.raw);
   const label = (args.values.label as string | undefined) ??
