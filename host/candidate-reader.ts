@@ -3,7 +3,9 @@
 // either way, detected by record-reader.ts):
 //
 //   jets file   our own (proto/jetlag.proto): the header carries grid, settings and engine.
-//               Every event has a record; an event with no record is missing.
+//               Every event has a record; an event with no record is missing. Only pt, y,
+//               phi (of equal lengths) and optionally mass are read; px, py, pz, e and the
+//               constituents may be left out.
 //   JSON lines  the first non-blank byte is '{': one object per line, as `jetlag cluster`
 //               writes them (jets-jsonl.ts): {"event":n,"jets":[{"pt":…,"y":…,"phi":…,"m":…}]}
 //               or {"event":n,"error":"…"}; other keys are ignored. Every event has a line
@@ -152,18 +154,24 @@ async function* jetsFileEvents(records: AsyncGenerator<{ bytes: Uint8Array; offs
       yield emptyEvent(null, record.offset, `bad jets record: ${(error as Error).message}`);
       continue;
     }
-    if (decoded.problem !== '') {
-      yield emptyEvent(decoded.event, record.offset, `inconsistent jets record: ${decoded.problem}`);
-      continue;
-    }
     if (decoded.error !== '') {
       yield emptyEvent(decoded.event, record.offset, `the candidate reports the event invalid: ${decoded.error}`);
       continue;
     }
+    // tolerance mode reads pt, y, phi (and mass when given), so an outside implementation
+    // may write only those; the record is judged on them alone
     const jets = decoded.jets;
+    const count = jets.pt.length;
+    const hasMass = jets.mass.length === count;
+    if (jets.rapidity.length !== count || jets.phi.length !== count || !(hasMass || jets.mass.length === 0)) {
+      const problem = decoded.problem !== '' ? decoded.problem
+        : `pt has ${count} values, y ${jets.rapidity.length}, phi ${jets.phi.length}, mass ${jets.mass.length}`;
+      yield emptyEvent(decoded.event, record.offset, `inconsistent jets record: ${problem}`);
+      continue;
+    }
     yield {
-      event: decoded.event, offset: record.offset, count: jets.count, pt: jets.pt, rapidity: jets.rapidity, phi: jets.phi,
-      mass: jets.mass, hasMass: true, error: '',
+      event: decoded.event, offset: record.offset, count, pt: jets.pt, rapidity: jets.rapidity, phi: jets.phi,
+      mass: hasMass ? jets.mass : new Float64Array(count), hasMass, error: '',
     };
   }
 }
