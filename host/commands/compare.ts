@@ -261,6 +261,7 @@ function toleranceFrom(args: ParsedArgs): Omit<ToleranceSettings, 'ptMin'> {
 export async function main(argv: string[], io: CommandIo): Promise<number> {
   const args = parseArgs(spec, argv);
   const [eventsPath, candidatePath] = args.positionals;
+  if (eventsPath === '-' && candidatePath === '-') throw new UsageError('compare: EVENTS and CANDIDATE cannot both be - (stdin); give at least one as a file');
   const tolerance = toleranceFrom(args);
   const require = (args.values.require as number | undefined) ?? DEFAULT_REQUIRE;
   if (!(require >= 0 && require <= 1)) throw new UsageError(`compare: --require must be a fraction in [0, 1], got ${require}`);
