@@ -3,11 +3,16 @@
 // events, CSV   event,ieta,iphi,et, one row per tower in record order (what import reads
 //               back); raw deposits are binned onto the header's grid first. CSV has no
 //               place for an invalid event or for empty events after the last tower: invalid
-//               events are reported on stderr and left out.
+//               events are reported on stderr and left out. CSV rows of an event come
+//               together and event numbers never decrease (spec section 1), so an event
+//               with rows whose number is not above the last one written (a file out of
+//               order, or with an event twice) is reported and left out too: the CSV stays
+//               readable and means what the file meant.
 // events, jsonl {"event":n,"towers":[[ieta,iphi,et],...]} or {"event":n,"error":"..."}
 // jets, CSV     event,pt,y,phi,m: one row per jet, the CSV form `jetlag compare` reads as a
 //               candidate; CSV has no place for an invalid event (reported on stderr, left
-//               out). Four-vectors and constituents: use jsonl.
+//               out); an event out of order is left out as for events. Four-vectors and
+//               constituents: use jsonl.
 // jets, jsonl   the line form of `jetlag cluster --format jsonl` (jets-jsonl.ts)
 // Numbers are written with String(x), so every double reads back identical.
 // Exit 2 when the file is unreadable (after writing everything before the problem) or a
@@ -47,6 +52,21 @@ interface Tally {
   rows: number;
   invalid: number;
   broken: number;
+  /** CSV: events with rows left out because their number is not above the last written */
+  outOfOrder: number;
+  /** CSV: number of the last event that has rows in the output, -1 before the first */
+  lastCsvEvent: number;
+}
+
+/** CSV only: true when the rows of `event` can follow those written so far; else counts and reports it. */
+function csvOrderAllows(event: number, tally: Tally, problems: ProblemLines, where: string): boolean {
+  if (event > tally.lastCsvEvent) {
+    tally.lastCsvEvent = event;
+    return true;
+  }
+  tally.outOfOrder++;
+  problems.add(`${where}: event ${event} after event ${tally.lastCsvEvent} cannot follow it in CSV, whose event numbers must increase (left out)`);
+  return false;
 }
 
 class ProblemLines {
@@ -81,6 +101,7 @@ async function exportEvents(source: RecordSource, format: string, out: TextFileW
       continue;
     }
     const { event, towerIndex, towerEt } = result;
+    if (format === 'csv' && towerIndex.length > 0 && !csvOrderAllows(event, tally, problems, `${source.label}, event ${event}, byte ${record.offset}`)) continue;
     tally.rows += towerIndex.length;
     if (format === 'csv') {
       let text = '';
@@ -136,6 +157,7 @@ async function exportJets(source: RecordSource, format: string, out: TextFileWri
       }
       continue;
     }
+    if (format === 'csv' && decoded.jets.count > 0 && !csvOrderAllows(decoded.event, tally, problems, `${source.label}, event ${decoded.event}, byte ${raw.offset}`)) continue;
     tally.rows += decoded.jets.count;
     await out.write(format === 'csv'
       ? jetCsvRows(decoded.event, decoded.jets)
@@ -156,7 +178,7 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
 
   const source = await openRecordFile(input === '-' ? io.stdin : input, { grid, maxRecordBytes, fileLabel: input === '-' ? '<stdin>' : input });
   const out = await TextFileWriter.open(outPath, { stdout: io.stdout });
-  const tally: Tally = { events: 0, rows: 0, invalid: 0, broken: 0 };
+  const tally: Tally = { events: 0, rows: 0, invalid: 0, broken: 0, outOfOrder: 0, lastCsvEvent: -1 };
   const problems = new ProblemLines(io, quiet);
   let unreadable: InputError | null = null;
   try {
@@ -180,7 +202,8 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   }
   if (!quiet) {
     io.stderr.write(`jetlag export: read ${tally.events} events (${tally.invalid} invalid` +
-      `${tally.broken > 0 ? `, ${tally.broken} unreadable records` : ''}), wrote ${tally.rows} ${what} to ${outLabel}\n`);
+      `${tally.broken > 0 ? `, ${tally.broken} unreadable records` : ''}` +
+      `${tally.outOfOrder > 0 ? `, ${tally.outOfOrder} out of order left out` : ''}), wrote ${tally.rows} ${what} to ${outLabel}\n`);
   }
   return tally.broken > 0 ? 2 : 0;
 };
