@@ -33,6 +33,16 @@ export interface WriterOptions {
   stdout?: NodeJS.WritableStream;
 }
 
+/** One line naming the output that cannot be written; keeps the system's error code. */
+function cannotWrite(path: string, error: NodeJS.ErrnoException): Error {
+  const reason = error.code === 'ENOENT' ? 'no such directory'
+    : error.code === 'EISDIR' ? 'it is a directory'
+    : error.code === 'EACCES' ? 'permission denied'
+    : error.message;
+  const code = error.code && reason !== error.message ? ` (${error.code})` : '';
+  return Object.assign(new Error(`cannot write ${path}: ${reason}${code}`), { code: error.code });
+}
+
 /**
  * An output file written under a temporary name and renamed into place by close(); '-' is
  * stdout. write() returns a promise when the stream asks to wait (backpressure).
@@ -65,7 +75,7 @@ export class OutputFile {
     const file = createWriteStream(tempPath);
     await new Promise<void>((resolve, reject) => {
       file.once('open', () => resolve());
-      file.once('error', reject);
+      file.once('error', (error) => reject(cannotWrite(path, error)));
     });
     if (!options.gzip) return new OutputFile(file, file, tempPath, path);
     const gzip = createGzip();
@@ -109,7 +119,13 @@ export class OutputFile {
     this.sink.end();
     await done;
     if (this.failure) { await this.dropTemp(); throw this.failure; }
-    await rename(this.tempPath!, this.finalPath!);
+    try {
+      await rename(this.tempPath!, this.finalPath!);
+    } catch (error) {
+      // e.g. the target is a directory: the temporary file must not stay behind
+      await this.dropTemp();
+      throw cannotWrite(this.finalPath!, error as NodeJS.ErrnoException);
+    }
   }
 
   /** Drops the temporary file (stdout: nothing to undo). */
