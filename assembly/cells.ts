@@ -31,12 +31,6 @@ export let driftCount: i32 = 0;
 
 /** Called once per engine. */
 export function initCells(): void {
-  for (let c = cellTotal; c < cellTotal + 2; c++) {
-    setI32(cellJet, c, -1);
-    setF64(cellY, c, Infinity);
-    setF64(cellPhi, c, 0);
-    setF64(cellNnDR2, c, Infinity);
-  }
   for (let c = 0; c < cellTotal; c++) {
     setI32(cellJet, c, -1);
     setF64(cellY, c, Infinity);

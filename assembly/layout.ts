@@ -21,8 +21,7 @@
 //   offsets  offDr offDc i32[O]  offDist f64[O]  offPerm offScratch offTmpI i32[O]  offTmpF f64[O]
 //            (O = OFFSET_LIMIT; the last four only while the offsets are sorted)
 //
-// IN is the batch tower capacity, EV the batch event capacity. cellY, cellPhi, cellNnDR2 and
-// cellJet have two more entries, always empty, so the vector scan may read a pair past a run. Cell c = ieta * phiBins + iphi;
+// IN is the batch tower capacity, EV the batch event capacity. Cell c = ieta * phiBins + iphi;
 // an empty cell has cellY = +Infinity and cellJet = -1.
 
 // @ts-ignore: decorator
@@ -185,12 +184,12 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   sortEt = take(cells << 3);
   radixCount = take(<usize>RADIX_BUCKETS << 2);
 
-  cellY = take((cells + 2) << 3);
-  cellPhi = take((cells + 2) << 3);
+  cellY = take(cells << 3);
+  cellPhi = take(cells << 3);
   cellW = take(cells << 3);
-  cellNnDR2 = take((cells + 2) << 3);
+  cellNnDR2 = take(cells << 3);
   cellNnKey = take(cells << 3);
-  cellJet = take((cells + 2) << 2);
+  cellJet = take(cells << 2);
   cellNn = take(cells << 2);
   pointHead = take(cells << 2);
   pointNext = take(cells << 2);

@@ -19,7 +19,7 @@ import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellWi
   rowDriftY, rowDriftPhi, driftList,
   etaBins, phiBins, offDr, offDc, offDist, offPerm, offScratch, offTmpI, offTmpF, OFFSET_LIMIT,
   getF64, setF64, getI32, setI32 } from './layout';
-import { invR2, reach2, reach, etaMin, etaPitch, phiPitch, invEtaPitch, invPhiPitch, BEAM, PI, TWO_PI } from './settings';
+import { invR2, reach2, reach, etaMin, etaPitch, phiPitch, invEtaPitch, invPhiPitch, BEAM } from './settings';
 import { deltaR2 } from './kinematics';
 import { driftY, driftPhi, driftNorm, driftCount, wideCount, centreOffsetY, centreOffsetPhi, setNeighbour } from './cells';
 import { updateTree } from './tournament';
@@ -288,59 +288,30 @@ export function findNeighbour(c: i32): void {
 }
 
 /**
- * The cells of a new jet's window, two at a time (the new jet's own cell reads y = +Inf
- * meanwhile; a pair may reach one cell past a run, which only adds a real cell or an empty pad).
- * dR2 is the spec's sequence of operations, lane by lane. Each lane keeps its best (key, jet,
- * dR2, cell) with vector selects, so the jet's own search has no branch; the single branch,
- * rarely taken, is for a cell that takes the new jet as its neighbour. rectangle: the same
- * columns in every row (jets at their centres), else per-row runs with the rows' drift.
+ * The cells of a new jet's window (the new jet's own cell reads y = +Inf meanwhile), each with
+ * one rarely taken branch per question: is it the new jet's best so far, does it take the new
+ * jet as its neighbour (each cell keeps its neighbour's dR2, so that is one comparison). Empty
+ * cells have y = +Inf, so dR2 = +Inf answers both. rectangle: the same columns in every row
+ * (jets at their centres), else per-row runs with the rows' drift.
+ * Measured: a 128-bit vector version of this loop (two cells a step, per-lane best kept with
+ * selects) ran as many instructions and no faster, so the loop stays scalar.
  */
 function scanWindow(ck: i32, y: f64, phi: f64, w: f64, rectangle: bool): void {
-  const ys = f64x2.splat(y);
-  const phis = f64x2.splat(phi);
-  const ws = f64x2.splat(w);
-  const inv = f64x2.splat(invR2);
-  const reachs = f64x2.splat(reach2);
-  const pis = f64x2.splat(PI);
-  const twoPis = f64x2.splat(TWO_PI);
-  const laneOne = i64x2.replace_lane(i64x2.splat(0), 1, 1);
-  let bestK = f64x2.splat(Infinity);
-  let bestJ = i64x2.splat(BEAM);
-  let bestD = f64x2.splat(Infinity);
-  let bestQ = i64x2.splat(-1);
   for (let r = winRow0; r <= winRow1; r++) {
     if (!rectangle && !rowRuns(r)) continue;
     const base = r * phiBins;
     for (let run = 0; run < 2; run++) {
-      let q = base + (run == 0 ? runA0 : runB0);
+      const from = base + (run == 0 ? runA0 : runB0);
       const to = base + (run == 0 ? runA1 : runB1);
-      for (; q <= to; q += 2) {
-        const at = <usize>q << 3;
-        const dy = f64x2.sub(ys, v128.load(cellY + at));
-        let dphi = f64x2.abs(f64x2.sub(phis, v128.load(cellPhi + at)));
-        dphi = v128.bitselect(f64x2.sub(twoPis, dphi), dphi, f64x2.gt(dphi, pis));
-        const d = f64x2.add(f64x2.mul(dy, dy), f64x2.mul(dphi, dphi));
-        const key = f64x2.mul(f64x2.mul(ws, d), inv);
-        const within = f64x2.le(d, reachs);
-        const jets = i64x2.extend_low_i32x4_s(v128.load64_zero(cellJet + (<usize>q << 2)));
-        const better = v128.and(within, v128.or(f64x2.lt(key, bestK),
-          v128.and(f64x2.eq(key, bestK), i64x2.lt_s(jets, bestJ))));
-        bestK = v128.bitselect(key, bestK, better);
-        bestJ = v128.bitselect(jets, bestJ, better);
-        bestD = v128.bitselect(d, bestD, better);
-        bestQ = v128.bitselect(i64x2.add(i64x2.splat(<i64>q), laneOne), bestQ, better);
-        if (v128.any_true(v128.and(within, f64x2.lt(d, v128.load(cellNnDR2 + at))))) {
-          offerIfNearer(q, ck, f64x2.extract_lane(d, 0));
-          offerIfNearer(q + 1, ck, f64x2.extract_lane(d, 1));
-        }
+      for (let q = from; q <= to; q++) {
+        const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
+        const key = (w * d) * invR2;
+        if ((d <= reach2) & (key <= bestKey)) offerBest(q, d, key);
+        if ((d <= reach2) & (d < getF64(cellNnDR2, q))) offerNewJet(q, ck, d);
       }
       if (runB1 < runB0) break;
     }
   }
-  const q0 = <i32>i64x2.extract_lane(bestQ, 0);
-  if (q0 >= 0) offerBest(q0, f64x2.extract_lane(bestD, 0), f64x2.extract_lane(bestK, 0));
-  const q1 = <i32>i64x2.extract_lane(bestQ, 1);
-  if (q1 >= 0) offerBest(q1, f64x2.extract_lane(bestD, 1), f64x2.extract_lane(bestK, 1));
 }
 
 // @ts-ignore: decorator
