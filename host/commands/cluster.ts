@@ -76,6 +76,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
 
   let events = 0;
   let invalid = 0;
+  let outsideAcceptance = 0; // raw deposits outside the grid's eta range: reported, not an error (spec section 1)
   let shownProblems = 0;
   let unreadable: InputError | null = null;
   try {
@@ -94,6 +95,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
           }
           continue;
         }
+        outsideAcceptance += towers.outsideAcceptance;
         const started = process.hrtime.bigint();
         const jets = clusterer.cluster(towers.towerIndex, towers.towerEt);
         const clusterTimeNs = Number(process.hrtime.bigint() - started);
@@ -117,7 +119,8 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     return 2;
   }
   if (!quiet) {
-    io.stderr.write(`jetlag cluster: ${events} events (${events - invalid} clustered, ${invalid} invalid) with ${engineName}, ${describeSettings(settings)}\n`);
+    const outside = outsideAcceptance > 0 ? `; ${outsideAcceptance} raw deposit${outsideAcceptance === 1 ? '' : 's'} outside the eta acceptance` : '';
+    io.stderr.write(`jetlag cluster: ${events} events (${events - invalid} clustered, ${invalid} invalid) with ${engineName}, ${describeSettings(settings)}${outside}\n`);
   }
   return 0;
 }

@@ -56,6 +56,8 @@ interface Tally {
   outOfOrder: number;
   /** CSV: number of the last event that has rows in the output, -1 before the first */
   lastCsvEvent: number;
+  /** raw deposits outside the grid's eta range, binned nowhere (reported, spec section 1) */
+  outsideAcceptance: number;
 }
 
 /** CSV only: true when the rows of `event` can follow those written so far; else counts and reports it. */
@@ -101,6 +103,7 @@ async function exportEvents(source: RecordSource, format: string, out: TextFileW
       continue;
     }
     const { event, towerIndex, towerEt } = result;
+    tally.outsideAcceptance += result.outsideAcceptance;
     if (format === 'csv' && towerIndex.length > 0 && !csvOrderAllows(event, tally, problems, `${source.label}, event ${event}, byte ${record.offset}`)) continue;
     tally.rows += towerIndex.length;
     if (format === 'csv') {
@@ -178,7 +181,7 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
 
   const source = await openRecordFile(input === '-' ? io.stdin : input, { grid, maxRecordBytes, fileLabel: input === '-' ? '<stdin>' : input });
   const out = await TextFileWriter.open(outPath, { stdout: io.stdout });
-  const tally: Tally = { events: 0, rows: 0, invalid: 0, broken: 0, outOfOrder: 0, lastCsvEvent: -1 };
+  const tally: Tally = { events: 0, rows: 0, invalid: 0, broken: 0, outOfOrder: 0, lastCsvEvent: -1, outsideAcceptance: 0 };
   const problems = new ProblemLines(io, quiet);
   let unreadable: InputError | null = null;
   try {
@@ -203,7 +206,8 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   if (!quiet) {
     io.stderr.write(`jetlag export: read ${tally.events} events (${tally.invalid} invalid` +
       `${tally.broken > 0 ? `, ${tally.broken} unreadable records` : ''}` +
-      `${tally.outOfOrder > 0 ? `, ${tally.outOfOrder} out of order left out` : ''}), wrote ${tally.rows} ${what} to ${outLabel}\n`);
+      `${tally.outOfOrder > 0 ? `, ${tally.outOfOrder} out of order left out` : ''}` +
+      `${tally.outsideAcceptance > 0 ? `, ${tally.outsideAcceptance} raw deposits outside the eta acceptance` : ''}), wrote ${tally.rows} ${what} to ${outLabel}\n`);
   }
   return tally.broken > 0 ? 2 : 0;
 };
