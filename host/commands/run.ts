@@ -15,7 +15,7 @@ const PROBLEM_LINES_MAX = 20;
 
 export const spec: CommandSpec = {
   name: 'run',
-  summary: 'Stream an event file through a pool of workers, cluster every event and report per-event latency.',
+  summary: 'Stream an event file through a pool of workers, cluster every event and report per-event latency.\nExit code 1 also when a batch of events failed in a worker; 130 when interrupted (the summary is then marked partial).',
   usage: 'jetlag run <events> [options]',
   positionals: { min: 1, max: 1 },
   options: [
