@@ -10,6 +10,7 @@ import { UsageError, parseArgs, type CommandIo, type CommandSpec } from '../args
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../types.js';
 import { EventFileWriter } from '../record-writer.js';
 import { generateEvents } from '../generate.js';
+import { MAX_PILEUP } from './generate.js';
 import { formatReport } from '../report.js';
 import { runEvents } from '../run.js';
 
@@ -35,6 +36,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   const budgetUs = (args.values['budget-us'] as number | undefined) ?? 1000;
   const fraction = (args.values.check as number | undefined) ?? 0.02;
   if (events < 1) throw new UsageError(`demo: --events must be >= 1, got ${events}`);
+  if (!(pileup >= 0 && pileup <= MAX_PILEUP)) throw new UsageError(`demo: --pileup must be in 0..${MAX_PILEUP}, got ${pileup}`);
   if (!(fraction >= 0 && fraction <= 1)) throw new UsageError(`demo: --check must be a fraction in [0, 1], got ${fraction}`);
   const keep = args.values.keep as string | undefined;
   const directory = keep ?? mkdtempSync(join(tmpdir(), 'jetlag-demo-'));
