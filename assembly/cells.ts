@@ -16,7 +16,7 @@
 
 import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellNn, cellWide,
   pointHead, pointNext, pointPrev, etaCentre, phiCentre, etaBins, phiBins, jetY, jetPhi, jetKt2,
-  rowDriftY, rowDriftPhi, cellRow, cellCol, driftList, driftSlot,
+  rowDriftY, rowDriftPhi, cellRow, cellCol, driftList, driftSlot, occupied, rowWords,
   getF64, setF64, getI32, setI32 } from './layout';
 import { invR2, etaMin, invEtaPitch, invPhiPitch, PI, TWO_PI, BEAM } from './settings';
 import { weightOf, needsWideSearch } from './kinematics';
@@ -109,8 +109,15 @@ export function freeCellNear(y: f64, phi: f64, fallback: i32): i32 {
   return best;
 }
 
+// @ts-ignore: decorator
+@inline function occupancyWord(c: i32): usize {
+  return occupied + ((<usize>(getI32(cellRow, c) * rowWords + (getI32(cellCol, c) >> 6))) << 3);
+}
+
 /** Jet `jet` moves into the empty cell c, with no neighbour yet. */
 export function placeJet(c: i32, jet: i32): void {
+  const word = occupancyWord(c);
+  store<u64>(word, load<u64>(word) | (<u64>1 << <u64>(getI32(cellCol, c) & 63)));
   const y = getF64(jetY, jet);
   const phi = getF64(jetPhi, jet);
   const w = weightOf(getF64(jetKt2, jet));
@@ -143,6 +150,8 @@ export function placeJet(c: i32, jet: i32): void {
 
 /** Cell c becomes empty; its lists must already be detached. */
 export function clearCell(c: i32): void {
+  const word = occupancyWord(c);
+  store<u64>(word, load<u64>(word) & ~(<u64>1 << <u64>(getI32(cellCol, c) & 63)));
   const slot = getI32(driftSlot, c);
   if (slot >= 0) {
     const last = getI32(driftList, --driftCount);

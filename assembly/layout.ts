@@ -12,7 +12,8 @@
 //            cellJet cellNn pointHead pointNext pointPrev cellWide cellRow cellCol i32[C]
 //            driftList driftSlot i32[C]   (the cells whose jet is off its cell centre)
 //            candLo candHi i32[P]
-//   rows     rowDriftY rowDriftPhi f64[etaBins]
+//   rows     rowDriftY rowDriftPhi f64[etaBins]  occupied u64[etaBins * rowWords]  (bit iphi of row
+//            ieta set while cell (ieta, iphi) holds a jet; rowWords = ceil(phiBins / 64))
 //   tree     tree i32[2P]  nodeValue f64[2P]   (P = power of two >= C; node n < P holds the
 //            winning leaf of its subtree and its measure; tree[P + c] = c, and candValue =
 //            nodeValue + P is the leaves' measure; leaves c >= C stay empty)
@@ -91,6 +92,8 @@ export let driftSlot: usize = 0;
 export let tree: usize = 0;
 export let nodeValue: usize = 0;
 export let rowDriftY: usize = 0;
+export let occupied: usize = 0;
+export let rowWords: i32 = 0;
 export let rowDriftPhi: usize = 0;
 
 export let jetPx: usize = 0;
@@ -202,6 +205,8 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   driftList = take(cells << 2);
   driftSlot = take(cells << 2);
 
+  rowWords = (phiCount + 63) >> 6;
+  occupied = take(<usize>(etaCount * rowWords) << 3);
   rowDriftY = take(<usize>etaCount << 3);
   rowDriftPhi = take(<usize>etaCount << 3);
   tree = take(<usize>p << 3); // 2P entries of i32
