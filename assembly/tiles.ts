@@ -152,6 +152,7 @@ function searchOrdered(c: i32): bool {
   const n = offCount;
   const rowCount = <u32>etaBins;
   const colCount = phiBins;
+  const words = rowWords;
   for (let o = 0; o < n; o++) {
     if (getF64(offDist, o) - slack > limit) return true;
     const r = row + getI32(offDr, o);
@@ -159,6 +160,8 @@ function searchOrdered(c: i32): bool {
     let cc = col + getI32(offDc, o);
     if (cc < 0) cc += colCount;
     else if (cc >= colCount) cc -= colCount;
+    // empty cells are skipped by their occupancy bit, before any arithmetic
+    if (((load<u64>(occupied + (<usize>(r * words + (cc >> 6)) << 3)) >> <u64>(cc & 63)) & 1) == 0) continue;
     const q = r * colCount + cc;
     const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
     const key = (w * d) * invR2;
