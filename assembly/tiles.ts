@@ -9,7 +9,7 @@
 //   as the best so far, allowing for how far jets sit from their cell centres (drift).
 // - window: row by row, the cells whose centre lies within reach + that row's drift of the jet
 //   (a circle, not a square); the φ range wraps at the seam and is cut into at most two
-//   contiguous runs.
+//   contiguous runs, whose occupied cells are found from the rows' occupancy bits.
 // - all cells (wide jets).
 // A new jet scans its window once: it finds its own neighbour and offers itself to each jet
 // there, which takes it only when it is strictly nearer by that jet's key (ties go to the older
@@ -26,8 +26,10 @@ import { driftY, driftPhi, driftNorm, driftCount, wideCount, centreOffsetY, cent
 import { updateTree } from './tournament';
 import { sortPermutation } from './sort';
 
-// the listed jets are looked at directly while at most this many (measured: a new jet's window
-// gains up to about 32, a search from scratch only up to about 8, against widening by the drift)
+// the listed jets are looked at directly while at most this many, else windows and bounds widen
+// by the drift. Measured: without the list anti-kt at 3200 towers took 4.9 ms, with it 2.9 ms;
+// 12, 32 or 64 made no measurable difference for windows; searches from scratch did better
+// widening once more than about 8 are listed (959 against 1096 µs, anti-kt at 850 towers)
 // @ts-ignore: decorator
 @inline const LIST_MAX: i32 = 32;
 // @ts-ignore: decorator
