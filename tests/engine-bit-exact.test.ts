@@ -113,6 +113,27 @@ describe('the engine matches the reference bit for bit', () => {
     expect(failures).toEqual([]);
   });
 
+  it('on a grid reaching |eta| = 40, where merged jets get infinite or undefined rapidities', () => {
+    const grid: Grid = { etaMin: -40, etaMax: 40, etaBins: 80, phiBins: 16 };
+    const failures: string[] = [];
+    let nonFinite = 0;
+    let seed = 500;
+    for (const p of [-1, 0, 1]) {
+      for (const radius of [0.4, 1.5]) {
+        const random = makeRandom(seed++);
+        const events = Array.from({ length: 10 }, (_, k) => randomEvent(grid, { towers: 300, hardJets: 1, region: k % 2 ? 'edges' : 'anywhere' }, random));
+        const settings = settingsOf(p, radius, 'e', 0);
+        const reference = new ReferenceClusterer(grid, settings);
+        for (const event of events) {
+          if (reference.cluster(event.towerIndex, event.towerEt).rapidity.some((y) => !Number.isFinite(y))) nonFinite++;
+        }
+        failures.push(...compare(grid, settings, events));
+      }
+    }
+    expect(nonFinite).toBeGreaterThan(0);
+    expect(failures).toEqual([]);
+  }, 60_000);
+
   it('over at least 3000 events in all', () => {
     expect(compared).toBeGreaterThanOrEqual(3000);
   });
