@@ -9,7 +9,8 @@
 
 import { closeSync, openSync, readSync, renameSync, rmSync, statSync, writeSync } from 'node:fs';
 import { openEventSource } from './event-source.js';
-import { InputError } from './args.js';
+import { InputError, UsageError } from './args.js';
+import { loadEngineModule, WasmClusterer } from './engine.js';
 import { ArrivalSchedule, nowNs, sleepUntilNs, type ArrivalMode } from './arrivals.js';
 import { BatchBuilder, BatchPool, type BatchOutcome } from './pool.js';
 import { resultViews, STAGE_COUNT, STATUS_OK, type WorkerConfig } from './worker.js';
@@ -135,6 +136,16 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const source = await openEventSource(options.input, { fileLabel: label, grid: options.grid });
   const records = source.records;
   const grid: Grid = source.header.grid;
+  if ((options.engine ?? 'wasm') === 'wasm') {
+    // refuse up front, in one line, what the workers' engines would refuse (or a missing
+    // build), rather than failing every batch or timing some other clusterer
+    const module = loadEngineModule(); // a missing build says so itself
+    try {
+      new WasmClusterer(grid, settings, { module });
+    } catch (error) {
+      throw new UsageError(`run: the engine cannot cluster with these settings: ${(error as Error).message}`);
+    }
+  }
 
   // the bar's ETA compares record offsets with the file size, so it needs an uncompressed
   // file read to its end; for gzip (offsets count inflated bytes), stdin and --events it
@@ -152,7 +163,7 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const config: WorkerConfig = {
     grid,
     settings,
-    engine: options.engine ?? 'auto',
+    engine: options.engine ?? 'wasm',
     checkFraction: check.mode === 'all' ? 1 : check.mode === 'none' ? 0 : check.fraction,
     checkSeed: check.seed,
     encodeJets: Boolean(options.out),

@@ -31,8 +31,8 @@ export const STATUS_INVALID = 1;
 export interface WorkerConfig {
   grid: Grid;
   settings: ClusterSettings;
-  /** 'wasm' (the engine; falls back to the reference only when asked with 'auto') or 'reference' */
-  engine: 'wasm' | 'reference' | 'auto';
+  /** 'wasm' (the engine) or 'reference'; never swapped silently for the other */
+  engine: 'wasm' | 'reference';
   /** fraction of events compared with the reference: 1 all, 0 none */
   checkFraction: number;
   checkSeed: number;
@@ -156,13 +156,7 @@ let state: WorkerState | null = null;
 
 function makeClusterer(config: WorkerConfig): Clusterer {
   if (config.engine === 'reference') return new ReferenceClusterer(config.grid, config.settings);
-  try {
-    return new WasmClusterer(config.grid, config.settings);
-  } catch (error) {
-    // 'auto' only: the engine is not built (or refuses these settings); the reference stands in
-    if (config.engine === 'auto') return new ReferenceClusterer(config.grid, config.settings);
-    throw error;
-  }
+  return new WasmClusterer(config.grid, config.settings);
 }
 
 function makeState(config: WorkerConfig): WorkerState {
