@@ -270,3 +270,16 @@ export class EventFileWriter {
     return this.records.abort();
   }
 }
+
+/** A whole small text file (a JSON summary): temporary name, renamed when complete; '-' is stdout. */
+export async function writeTextFile(path: string, text: string, options: WriterOptions = {}): Promise<void> {
+  const file = await OutputFile.open(path, options);
+  try {
+    const pending = file.write(Buffer.from(text, 'utf8'));
+    if (pending) await pending;
+    await file.close();
+  } catch (error) {
+    await file.abort();
+    throw error;
+  }
+}

@@ -7,7 +7,7 @@
 // thread. Events whose results wait for an earlier batch before being written in input order
 // are not charged for that wait: in-order output is a property of the file, not of a trigger.
 
-import { closeSync, openSync, readSync, renameSync, rmSync, statSync, writeSync } from 'node:fs';
+import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { openEventSource } from './event-source.js';
 import { InputError, UsageError } from './args.js';
 import { loadEngineModule, WasmClusterer } from './engine.js';
@@ -20,6 +20,7 @@ import { DEFAULT_SETTINGS, type ClusterSettings, type Grid } from './types.js';
 import { describeDifference } from './bit-exact.js';
 import { encodeJetsFileHeader } from './jets-codec.js';
 import { ReproWriter } from './repro-writer.js';
+import { OutputFile } from './record-writer.js';
 
 /**
  * Default events per batch, chosen with bench/pool.bench.ts on this 2-core machine (pileup-200
@@ -70,41 +71,6 @@ export const DEFAULT_CHECK: CheckOption = { mode: 'fraction', fraction: 0.01, se
 
 function defaultWorkers(): number {
   return describeMachine().cores;
-}
-
-/** Writes to `${path}.tmp-<pid>` and renames when complete, so a reader never sees half a file. */
-export class AtomicFile {
-  readonly temporary: string;
-  private fd: number | null;
-  constructor(readonly path: string) {
-    this.temporary = `${path}.tmp-${process.pid}`;
-    this.fd = openSync(this.temporary, 'w');
-  }
-  write(bytes: Uint8Array): void {
-    let at = 0;
-    while (at < bytes.length) at += writeSync(this.fd!, bytes, at, bytes.length - at);
-  }
-  commit(): void {
-    closeSync(this.fd!);
-    this.fd = null;
-    renameSync(this.temporary, this.path);
-  }
-  abandon(): void {
-    if (this.fd !== null) closeSync(this.fd);
-    this.fd = null;
-    rmSync(this.temporary, { force: true });
-  }
-}
-
-export function writeFileAtomic(path: string, text: string): void {
-  const file = new AtomicFile(path);
-  try {
-    file.write(Buffer.from(text, 'utf8'));
-    file.commit();
-  } catch (error) {
-    file.abandon();
-    throw error;
-  }
 }
 
 function isGzipFile(path: string): boolean {
@@ -159,7 +125,6 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
     if (options.onProblem) options.onProblem(line);
   };
   let engineName = options.engine === 'reference' ? 'reference' : 'wasm';
-  let jetsFile: AtomicFile | null = null;
   const config: WorkerConfig = {
     grid,
     settings,
@@ -168,12 +133,13 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
     checkSeed: check.seed,
     encodeJets: Boolean(options.out),
   };
-  // the jets file is opened on the first result, when the workers' engine is known
-  const openJetsFile = (engine: string) => {
-    if (jetsFile || !options.out) return;
-    jetsFile = new AtomicFile(options.out);
-    jetsFile.write(encodeJetsFileHeader(grid, { ...settings, engine }, { producer: 'jetlag 0.1.0 run', label: source.header.label }));
-  };
+  // opened before the run, so an output that cannot be written costs no run; written under a
+  // temporary name and renamed when complete ('-' is stdout)
+  const jetsFile = options.out ? await OutputFile.open(options.out) : null;
+  let jetsPending: Promise<void> | undefined;
+  if (jetsFile) {
+    jetsPending = jetsFile.write(encodeJetsFileHeader(grid, { ...settings, engine: engineName }, { producer: 'jetlag 0.1.0 run', label: source.header.label }));
+  }
 
   const repro = options.repro ? await ReproWriter.open(options.repro, { grid, source: label, engine: options.engine === 'reference' ? 'reference' : 'wasm' }) : null;
   const reproPending: Promise<void>[] = [];
@@ -239,9 +205,10 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
         }
       }
     }
-    if (options.out && result.jetsBytes) {
-      openJetsFile(result.engine);
-      jetsFile!.write(result.jetsBytes);
+    if (jetsFile && result.jetsBytes) {
+      // the stream queues what it cannot take yet; the reader waits on this before the next batch
+      const pending = jetsFile.write(result.jetsBytes);
+      if (pending) jetsPending = pending;
     }
   };
 
@@ -261,6 +228,7 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   let endNs = startNs;
 
   const send = async () => {
+    if (jetsPending) { await jetsPending; jetsPending = undefined; }
     await pool.waitForRoom();
     const sealed = builder.seal(dispatchIndex++);
     const starts = new Float64Array(sealed.task.count);
@@ -308,8 +276,9 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
     if (builder.count > 0) await send();
     await pool.drain();
     endNs = nowNs();
+    if (jetsPending) await jetsPending;
   } catch (error) {
-    (jetsFile as AtomicFile | null)?.abandon();
+    await jetsFile?.abort();
     await repro?.abort();
     throw error;
   } finally {
@@ -322,8 +291,7 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   }
   const wallSeconds = (endNs - startNs) / 1e9;
   tally.bytesRead = lastOffset;
-  openJetsFile(engineName);
-  (jetsFile as AtomicFile | null)?.commit();
+  await jetsFile?.close();
 
   const configuration: RunConfiguration = {
     file: label,

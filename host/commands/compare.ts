@@ -20,7 +20,7 @@ import { openEventSource } from '../event-source.js';
 import { EventTowerReader } from '../event-towers.js';
 import { describeGrid, sameGrid } from '../grid.js';
 import { makeClusterer, parseEngineName, type EngineName } from '../clusterers.js';
-import { writeFileAtomic } from '../run.js';
+import { writeTextFile } from '../record-writer.js';
 import { DEFAULT_TOLERANCE, ToleranceMatcher, checkToleranceSettings, type ToleranceSettings } from '../tolerance-compare.js';
 import { DEFAULT_SETTINGS, type ClusterSettings, type Grid } from '../types.js';
 import { ValidationAccumulator, formatValidationReport, type ValidationReport } from '../validation-report.js';
@@ -300,7 +300,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     };
     const body = JSON.stringify(document, null, 2) + '\n';
     if (json === '-') io.stdout.write(body);
-    else writeFileAtomic(json, body);
+    else await writeTextFile(json, body);
   }
   if (result.inputError !== null) {
     io.stderr.write(`jetlag: ${result.inputError.message}\n`);

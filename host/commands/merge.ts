@@ -6,7 +6,7 @@ import { readFileSync } from 'node:fs';
 import { InputError, UsageError, parseArgs, type CommandIo, type CommandMain, type CommandSpec } from '../args.js';
 import { mergeSummaries, type RunSummary } from '../summary.js';
 import { formatReport } from '../report.js';
-import { writeFileAtomic } from '../run.js';
+import { writeTextFile } from '../record-writer.js';
 
 export const spec: CommandSpec = {
   name: 'merge',
@@ -43,7 +43,7 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
     throw new UsageError(`merge: ${(error as Error).message}`);
   }
   const json = args.values.json as string | undefined;
-  if (json) writeFileAtomic(json, JSON.stringify(merged, null, 2) + '\n');
+  if (json) await writeTextFile(json, JSON.stringify(merged, null, 2) + '\n');
   if (args.values.quiet !== true) io.stdout.write(formatReport(merged));
   const count = merged.configuration.shard.count;
   if (merged.shards.length < count) {

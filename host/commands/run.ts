@@ -3,9 +3,10 @@
 
 import { UsageError, parseArgs, type CommandIo, type CommandMain, type CommandSpec, type ParsedArgs } from '../args.js';
 import { CLUSTER_OPTIONS, GRID_OPTIONS, clusterSettingsFrom, gridFrom } from '../common-options.js';
-import { DEFAULT_BATCH, DEFAULT_CHECK, findRate, inputErrorOf, runEvents, scanWorkers, writeFileAtomic, type CheckOption, type RunOptions } from '../run.js';
+import { DEFAULT_BATCH, DEFAULT_CHECK, findRate, inputErrorOf, runEvents, scanWorkers, type CheckOption, type RunOptions } from '../run.js';
 import { describeMachine, LISTED_MAX, type RunSummary } from '../summary.js';
 import { formatReport } from '../report.js';
+import { writeTextFile } from '../record-writer.js';
 import type { ArrivalMode } from '../arrivals.js';
 
 export { runEvents } from '../run.js';
@@ -142,8 +143,9 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   } finally {
     process.off('SIGINT', onSigint);
   }
-  if (options.json) writeFileAtomic(options.json, JSON.stringify(summary, null, 2) + '\n');
-  io.stdout.write(formatReport(summary));
+  if (options.json) await writeTextFile(options.json, JSON.stringify(summary, null, 2) + '\n', { stdout: io.stdout });
+  // with the jets or the summary on stdout, the text report goes to stderr
+  (options.out === '-' || options.json === '-' ? io.stderr : io.stdout).write(formatReport(summary));
   if (problems > PROBLEM_LINES_MAX) {
     io.stderr.write(`jetlag: ${problems - PROBLEM_LINES_MAX} more problems not shown (invalid events ${summary.events.invalid}, failed ${summary.events.failed}, disagreeing ${summary.check.disagreeing}); the --json summary lists up to ${LISTED_MAX} invalid events and failed batches\n`);
   }
