@@ -1,6 +1,6 @@
 // The command line as users meet it: real subprocesses of the compiled CLI (npm test builds it).
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync, rmSync, writeFileSync, existsSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
@@ -123,5 +123,35 @@ describe('generate then cluster', () => {
     const result = jetlag('cluster', 'garbage.jetlag', '--out', 'never.jets');
     expect(result.code).toBe(2);
     expect(existsSync(join(directory, 'never.jets'))).toBe(false);
+  });
+});
+
+describe('run outputs', () => {
+  it('--out - writes the jets file to stdout and the report to stderr', () => {
+    expect(jetlag('generate', '--events', '6', '--pileup', '30', '--seed', '12', '--out', 'r.jetlag').code).toBe(0);
+    const result = spawnSync(process.execPath, [cli, 'run', 'r.jetlag', '--out', '-', '--quiet', '--workers', '1'], { cwd: directory });
+    expect(result.status).toBe(0);
+    const stdout = result.stdout as Buffer;
+    // a jets file starts with its header record: length varint, then the signature field "jetlag"
+    const signatureAt = stdout.indexOf(Buffer.from([0x0a, 0x06, ...Buffer.from('jetlag')]));
+    expect(signatureAt === 1 || signatureAt === 2).toBe(true);
+    expect(result.stderr.toString()).toContain('read 6 · ok 6');
+    expect(existsSync(join(directory, '-'))).toBe(false);
+  });
+
+  it('an --out that cannot be written is refused before the run, leaving no temporary file', () => {
+    mkdirSync(join(directory, 'a-directory'), { recursive: true });
+    const before = readdirSync(directory).length;
+    const result = jetlag('run', 'r.jetlag', '--out', 'a-directory', '--quiet');
+    expect(result.code).toBe(2);
+    expect(result.stderr.trim().split('\n')).toHaveLength(1);
+    expect(result.stderr).toContain('a-directory');
+    expect(readdirSync(directory).length).toBe(before);
+  });
+
+  it('--engine wasm never falls back to the reference: the report names the engine that ran', () => {
+    const result = jetlag('run', 'r.jetlag', '--quiet', '--workers', '1');
+    expect(result.code).toBe(0);
+    expect(result.stdout).toContain('· wasm ·');
   });
 });
