@@ -310,6 +310,8 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
     shard,
     maxEvents: options.maxEvents ?? null,
     out: options.out ?? null,
+    // what tells one input from another when shards are merged (paths differ between nodes)
+    input: { label: source.header.label, records: partialReason === null ? ordinal : null },
   };
   const summary = renderSummary(tally, {
     configuration,

@@ -248,6 +248,8 @@ export interface RunConfiguration {
   shard: { index: number; count: number };
   maxEvents: number | null;
   out: string | null;
+  /** the input's header label, and its number of event records when read to its end */
+  input: { label: string; records: number | null };
 }
 
 export interface RunSummary {
@@ -423,8 +425,8 @@ export function tallyFromSummary(summary: RunSummary, where = 'summary'): RunTal
 
 /** What must agree between summaries for their sum to mean anything. */
 function mergeKey(configuration: RunConfiguration): string {
-  const { grid, settings, batch, arrival, budgetUs, check, engine } = configuration;
-  return JSON.stringify({ grid, settings, batch, arrival, budgetUs, check, engine, shardCount: configuration.shard.count });
+  const { grid, settings, batch, arrival, budgetUs, check, engine, maxEvents } = configuration;
+  return JSON.stringify({ grid, settings, batch, arrival, budgetUs, check, engine, maxEvents, shardCount: configuration.shard.count, input: configuration.input?.label });
 }
 
 /**
@@ -434,8 +436,14 @@ function mergeKey(configuration: RunConfiguration): string {
  */
 export function mergeSummaries(summaries: readonly { name: string; summary: RunSummary }[]): RunSummary {
   if (summaries.length === 0) throw new Error('merge: no summaries given');
+  for (const { name, summary } of summaries) {
+    if (summary?.format !== 'jetlag-run-summary' || summary.version !== 1 || typeof summary.configuration !== 'object') {
+      throw new Error(`${name}: not a jetlag run summary (format ${JSON.stringify(summary?.format)})`);
+    }
+  }
   const first = summaries[0];
   const key = mergeKey(first.summary.configuration);
+  let records: number | null = null;
   const seen = new Map<number, string>();
   const tally = new RunTally();
   let eventsPerSecond = 0;
@@ -448,8 +456,13 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
       throw new Error(`${name}: not a jetlag run summary (format ${JSON.stringify(summary?.format)})`);
     }
     if (mergeKey(summary.configuration) !== key) {
-      throw new Error(`${name}: configuration differs from ${first.name} (grid, settings, batch, arrivals, budget, check, engine and shard count must agree)`);
+      throw new Error(`${name}: configuration differs from ${first.name} (input label, grid, settings, batch, arrivals, budget, check, engine, --events and shard count must agree)`);
     }
+    const own = summary.configuration.input?.records ?? null;
+    if (own !== null && records !== null && own !== records) {
+      throw new Error(`${name}: its input has ${own} event records, the input of an earlier summary ${records}: not the same file`);
+    }
+    records ??= own;
     for (const shard of summary.shards) {
       const other = seen.get(shard.index);
       if (other !== undefined) throw new Error(`${name}: shard ${shard.index}/${shard.count} is already in ${other}`);
@@ -466,7 +479,13 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
       if (!machines.some((m) => JSON.stringify(m) === JSON.stringify(machine))) machines.push(machine);
     }
   }
-  const shards = [...seen.keys()].sort((a, b) => a - b).map((index) => ({ index, count: first.summary.configuration.shard.count }));
+  const shardCount = first.summary.configuration.shard.count;
+  const shards = [...seen.keys()].sort((a, b) => a - b).map((index) => ({ index, count: shardCount }));
+  if (shards.length < shardCount) {
+    const missing = Array.from({ length: shardCount }, (_, k) => k).filter((k) => !seen.has(k));
+    partial = true;
+    reasons.push(`shards ${missing.join(', ')} of ${shardCount} are not in the inputs`);
+  }
   return renderSummary(tally, {
     configuration: { ...first.summary.configuration, file: summaries.map((s) => s.summary.configuration.file).filter((f, k, all) => all.indexOf(f) === k).join(',') },
     shards,

@@ -10,7 +10,7 @@ import { writeTextFile } from '../record-writer.js';
 
 export const spec: CommandSpec = {
   name: 'merge',
-  summary: 'Add the JSON summaries of sharded runs (jetlag run --shard k/n --json ...) into one summary.',
+  summary: 'Add the JSON summaries of sharded runs (jetlag run --shard k/n --json ...) into one summary; exits 1 when shards are missing or a shard was partial.',
   usage: 'jetlag merge <summary.json>... [--json <file>]',
   positionals: { min: 1, max: Number.MAX_SAFE_INTEGER },
   options: [
@@ -45,10 +45,10 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   const json = args.values.json as string | undefined;
   if (json) await writeTextFile(json, JSON.stringify(merged, null, 2) + '\n');
   if (args.values.quiet !== true) io.stdout.write(formatReport(merged));
-  const count = merged.configuration.shard.count;
-  if (merged.shards.length < count) {
-    const missing = Array.from({ length: count }, (_, k) => k).filter((k) => !merged.shards.some((s) => s.index === k));
-    io.stderr.write(`jetlag merge: shards ${missing.join(', ')} of ${count} are not in the inputs\n`);
+  if (merged.partial) {
+    // a summary of part of the file must not pass for the whole
+    io.stderr.write(`jetlag merge: partial: ${merged.partialReason}\n`);
+    return 1;
   }
   return 0;
 };
