@@ -155,3 +155,43 @@ describe('run outputs', () => {
     expect(result.stdout).toContain('· wasm ·');
   });
 });
+
+describe('merge of shard summaries', () => {
+  function shard(file: string, k: number, n: number) {
+    const result = jetlag('run', file, '--shard', `${k}/${n}`, '--batch', '4', '--check', 'none', '--quiet', '--workers', '1', '--json', `${file}-${k}.json`);
+    expect(result.code).toBe(0);
+    return `${file}-${k}.json`;
+  }
+
+  it('adds every shard into a complete summary whose counts are those of the whole file', () => {
+    expect(jetlag('generate', '--events', '25', '--pileup', '20', '--seed', '21', '--out', 'm.jetlag').code).toBe(0);
+    const parts = [shard('m.jetlag', 0, 2), shard('m.jetlag', 1, 2)];
+    const result = jetlag('merge', ...parts, '--json', 'm-all.json', '--quiet');
+    expect(result.code).toBe(0);
+    const merged = JSON.parse(readFileSync(join(directory, 'm-all.json'), 'utf8'));
+    expect(merged.partial).toBe(false);
+    expect(merged.events.read).toBe(25);
+  });
+
+  it('marks the summary partial and exits 1 when a shard is missing', () => {
+    const result = jetlag('merge', 'm.jetlag-0.json', '--json', 'm-half.json', '--quiet');
+    expect(result.code).toBe(1);
+    const merged = JSON.parse(readFileSync(join(directory, 'm-half.json'), 'utf8'));
+    expect(merged.partial).toBe(true);
+    expect(merged.partialReason).toContain('shards 1 of 2');
+  });
+
+  it('refuses shards of two different inputs', () => {
+    expect(jetlag('generate', '--events', '9', '--pileup', '20', '--seed', '22', '--out', 'other.jetlag').code).toBe(0);
+    const result = jetlag('merge', 'm.jetlag-0.json', shard('other.jetlag', 1, 2), '--quiet');
+    expect(result.code).toBe(2);
+    expect(result.stderr).toContain('configuration differs');
+  });
+
+  it('names a JSON file that is not a run summary', () => {
+    writeFileSync(join(directory, 'foreign.json'), '{}');
+    const result = jetlag('merge', 'foreign.json');
+    expect(result.code).toBe(2);
+    expect(result.stderr.trim()).toBe('jetlag merge: foreign.json: not a jetlag run summary (format undefined)');
+  });
+});
