@@ -22,15 +22,18 @@ export interface EncodedLatency {
   hdr: string;
 }
 
-/** The figures trigger engineers read, in microseconds. */
+/**
+ * The figures trigger engineers read, in microseconds. With no events measured every figure
+ * is null, never 0: a reader must not take "nothing measured" for "within any budget".
+ */
 export interface LatencyStats {
   count: number;
-  p50_us: number;
-  p90_us: number;
-  p99_us: number;
-  p999_us: number;
-  max_us: number;
-  mean_us: number;
+  p50_us: number | null;
+  p90_us: number | null;
+  p99_us: number | null;
+  p999_us: number | null;
+  max_us: number | null;
+  mean_us: number | null;
 }
 
 function newHistogram(): Histogram {
@@ -86,6 +89,9 @@ export class LatencyRecorder {
   }
 
   stats(): LatencyStats {
+    if (this.count === 0) {
+      return { count: 0, p50_us: null, p90_us: null, p99_us: null, p999_us: null, max_us: null, mean_us: null };
+    }
     return {
       count: this.count,
       p50_us: this.percentileNs(50) / 1000,

@@ -15,7 +15,7 @@ function micros(value: number): string {
 function latencyRow(label: string, stats: LatencyStats): string {
   if (stats.count === 0) return `  ${label.padEnd(12)}${'—'.padStart(10)}`;
   const cells = [stats.p50_us, stats.p90_us, stats.p99_us, stats.p999_us, stats.max_us, stats.mean_us];
-  return `  ${label.padEnd(12)}${cells.map((v) => micros(v).padStart(10)).join('')}`;
+  return `  ${label.padEnd(12)}${cells.map((v) => (v === null ? '—' : micros(v)).padStart(10)).join('')}`;
 }
 
 function algorithmName(p: number): string {

@@ -340,9 +340,9 @@ export async function findRate(options: RunOptions, closedLoop: RunSummary, budg
     const arrival: ArrivalMode = poisson ? { kind: 'poisson', rateHz, seed: 1 } : { kind: 'fixed', rateHz };
     const summary = await runEvents({ ...options, arrival, out: null, progress: null, onProblem: undefined });
     const p99 = summary.latency.endToEnd.p99_us;
-    return { rateHz, p99_us: p99, withinBudget: summary.latency.endToEnd.count > 0 && p99 <= budgetUs, events: summary.events.read };
+    return { rateHz, p99_us: p99, withinBudget: p99 !== null && p99 <= budgetUs, events: summary.events.read };
   };
-  const results: { rateHz: number; p99_us: number; withinBudget: boolean; events: number }[] = [];
+  const results: { rateHz: number; p99_us: number | null; withinBudget: boolean; events: number }[] = [];
   let low = ceiling * 0.02;
   let high = ceiling;
   const lowTrial = await runAt(low);
@@ -363,7 +363,7 @@ export async function findRate(options: RunOptions, closedLoop: RunSummary, budg
 
 /** --scan-workers: closed-loop events/s for 1 .. cores workers. */
 export async function scanWorkers(options: RunOptions, cores: number) {
-  const points: { workers: number; eventsPerSecond: number; speedup: number; cluster_p50_us: number; endToEnd_p99_us: number }[] = [];
+  const points: { workers: number; eventsPerSecond: number; speedup: number; cluster_p50_us: number | null; endToEnd_p99_us: number | null }[] = [];
   for (let workers = 1; workers <= cores; workers++) {
     const summary = await runEvents({ ...options, workers, arrival: { kind: 'closed' }, out: null, progress: null, onProblem: undefined });
     const eventsPerSecond = summary.throughput.eventsPerSecond;

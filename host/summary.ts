@@ -295,11 +295,11 @@ export interface FindRateResult {
   budgetUs: number;
   /** highest rate tried whose end-to-end p99 stayed within the budget; null if none did */
   rateHz: number | null;
-  trials: { rateHz: number; p99_us: number; withinBudget: boolean; events: number }[];
+  trials: { rateHz: number; p99_us: number | null; withinBudget: boolean; events: number }[];
 }
 
 export interface ScanWorkersResult {
-  points: { workers: number; eventsPerSecond: number; speedup: number; cluster_p50_us: number; endToEnd_p99_us: number }[];
+  points: { workers: number; eventsPerSecond: number; speedup: number; cluster_p50_us: number | null; endToEnd_p99_us: number | null }[];
 }
 
 export interface RenderContext {
