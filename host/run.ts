@@ -25,10 +25,13 @@ import { OutputFile } from './record-writer.js';
 /**
  * Default events per batch, chosen with bench/pool.bench.ts on this 2-core machine (pileup-200
  * toy events, ~920 towers, 2 workers; CPU time of all threads per event, medians of 3, which
- * other processes on the shared machine do not move the way they move events/s):
- * K = 1: 2000 µs, 2: 2110, 4: 1771, 8: 1950, 16: 1608, 32: 1453, 64: 1457, 128: 1429. The
- * per-task cost is paid off from 32 on; larger batches only lengthen the closed-loop wait.
- * An open-loop run sends whatever is due, up to K, so K does not delay its events.
+ * other processes on the shared machine move less than they move events/s). Two runs:
+ *   K =        1     2     4     8    16    32    64   128
+ *   run A   2000  2110  1771  1950  1608  1453  1457  1429  µs (600 events)
+ *   run B   1751  1668  1451  1410  1397  1437  1302  1292  µs (1500 events)
+ * The per-task cost (pool round trip 19-54 µs median, tinybench) is paid off from 16-32 on;
+ * larger batches only lengthen the closed-loop wait. An open-loop run sends whatever is due,
+ * up to K, so K does not delay its events.
  */
 export const DEFAULT_BATCH = 32;
 
