@@ -29,6 +29,7 @@ import { UsageError } from './args.js';
 import { makeGridTables, selectTowers, type GridTables } from './grid.js';
 import { ReferenceClusterer } from './reference.js';
 import type { ClusterSettings, Clusterer, Grid, JetSet } from './types.js';
+import { allocateJetSet } from './jet-set.js';
 
 export type EmulationMode = 'f32' | { lsbGeV: number };
 
@@ -352,20 +353,7 @@ export class SinglePrecisionClusterer implements Clusterer {
       }
       finals[m] = j;
     }
-    const jets: JetSet = {
-      count,
-      px: new Float64Array(count),
-      py: new Float64Array(count),
-      pz: new Float64Array(count),
-      energy: new Float64Array(count),
-      pt: new Float64Array(count),
-      rapidity: new Float64Array(count),
-      phi: new Float64Array(count),
-      mass: new Float64Array(count),
-      towerCount: new Int32Array(count),
-      towerStart: new Int32Array(count),
-      towers: new Int32Array(0),
-    };
+    const jets = allocateJetSet(count);
     let towerTotal = 0;
     for (let k = 0; k < count; k++) {
       const j = finals[k];

@@ -20,6 +20,7 @@ import { encodeFileHeader, type FileHeader, type JetsFileSettings } from './file
 import { RecordFileWriter, type WriterOptions } from './record-writer.js';
 import type { Grid, JetSet } from './types.js';
 import { delimit, ProtoWriter, WireCursor, WIRE_FIXED64, WIRE_LENGTH_DELIMITED, WIRE_VARINT, wireTypeName } from './wire.js';
+import { allocateJetSet } from './jet-set.js';
 
 export interface JetsRecordFields {
   event: number;
@@ -41,11 +42,7 @@ export interface DecodedJets {
 }
 
 export function emptyJetSet(): JetSet {
-  return {
-    count: 0, px: new Float64Array(0), py: new Float64Array(0), pz: new Float64Array(0), energy: new Float64Array(0),
-    pt: new Float64Array(0), rapidity: new Float64Array(0), phi: new Float64Array(0), mass: new Float64Array(0),
-    towerCount: new Int32Array(0), towerStart: new Int32Array(0), towers: new Int32Array(0),
-  };
+  return allocateJetSet(0);
 }
 
 const DOUBLE_FIELDS = ['px', 'py', 'pz', 'e', 'pt', 'y', 'phi', 'mass'] as const; // fields 2..9

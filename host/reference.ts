@@ -11,6 +11,7 @@
 
 import { makeGridTables, selectTowers, type GridTables } from './grid.js';
 import type { ClusterSettings, Clusterer, Grid, JetSet } from './types.js';
+import { allocateJetSet } from './jet-set.js';
 
 const TWO_PI = 2 * Math.PI;
 /** the beam B in tie-breaks: larger than every jet index */
@@ -242,20 +243,7 @@ export function clusterReference(
   });
 
   const count = kept.length;
-  const jets: JetSet = {
-    count,
-    px: new Float64Array(count),
-    py: new Float64Array(count),
-    pz: new Float64Array(count),
-    energy: new Float64Array(count),
-    pt: new Float64Array(count),
-    rapidity: new Float64Array(count),
-    phi: new Float64Array(count),
-    mass: new Float64Array(count),
-    towerCount: new Int32Array(count),
-    towerStart: new Int32Array(count),
-    towers: new Int32Array(0),
-  };
+  const jets = allocateJetSet(count);
   let towerTotal = 0;
   for (let n = 0; n < count; n++) {
     const j = kept[n];

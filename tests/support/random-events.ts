@@ -10,18 +10,8 @@ export interface TowerArrays {
   towerEt: Float64Array;
 }
 
-/** splitmix32: a small seeded generator of doubles in [0, 1). */
-export function makeRandom(seed: number): () => number {
-  let state = seed >>> 0;
-  return () => {
-    state = (state + 0x9e3779b9) >>> 0;
-    let z = state;
-    z = Math.imul(z ^ (z >>> 16), 0x85ebca6b);
-    z = Math.imul(z ^ (z >>> 13), 0xc2b2ae35);
-    z ^= z >>> 16;
-    return (z >>> 0) / 4294967296;
-  };
-}
+// the project's one seeded generator (splitmix32), shared with the demo events
+export { makeRandom } from '../../host/generate.js';
 
 export type Region = 'anywhere' | 'seam' | 'edges' | 'patch';
 
