@@ -30,10 +30,10 @@
 // in JSON lines, where null (how our writer stores a NaN) reads back as NaN.
 
 import { InputError } from './args.js';
-import { detectFormat } from './event-source.js';
+import { peekInput } from './event-source.js';
 import { decodeFileHeader, type FileHeader } from './file-header.js';
 import { decodeJetsRecord } from './jets-codec.js';
-import { framedRecords, inputLabel, readChunks } from './record-reader.js';
+import { framedRecords, inputLabel } from './record-reader.js';
 
 export type CandidateFormat = 'jets-file' | 'jsonl' | 'csv';
 
@@ -72,7 +72,6 @@ export const CANDIDATE_CSV_HEADERS = ['event,pt,y,phi', 'event,pt,y,phi,m'] as c
 /** a JSON line or CSV row longer than this makes the rest unreadable */
 export const MAX_CANDIDATE_LINE_BYTES = 64 * 1024 * 1024;
 
-const PREFIX_BYTES = 16;
 const EVENT_NUMBER = /^[0-9]+$/;
 const DECIMAL = /^[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?$/;
 
@@ -87,27 +86,10 @@ function quote(text: string): string {
 
 export async function openCandidate(input: string | NodeJS.ReadableStream, options: CandidateOptions = {}): Promise<CandidateSource> {
   const label = inputLabel(input, options.fileLabel);
-  const chunks = readChunks(input, label);
-  const peeked: Uint8Array[] = [];
-  let peekedBytes = 0;
-  try {
-    while (peekedBytes < PREFIX_BYTES) {
-      const step = await chunks.next();
-      if (step.done) break;
-      peeked.push(step.value);
-      peekedBytes += step.value.length;
-    }
-  } catch (error) {
-    await chunks.return(undefined);
-    throw error;
-  }
-  const prefix = peeked.length === 1 ? peeked[0] : Buffer.concat(peeked);
-  const kind = detectFormat(prefix.subarray(0, PREFIX_BYTES));
+  const { prefix, kind, chunks: all } = await peekInput(input, label);
   if (kind === 'empty') {
-    await chunks.return(undefined);
     throw new InputError(label, 'empty file: not a jets file, JSON lines or CSV of jets', undefined, 0);
   }
-  const all = rejoin(peeked, chunks);
   if (kind === 'records') {
     const records = framedRecords(all, label, options.maxRecordBytes);
     const first = await records.next();
@@ -132,18 +114,6 @@ export async function openCandidate(input: string | NodeJS.ReadableStream, optio
   return { label, format: 'csv', header: null, absentMeansEmpty: true, events: csvEvents(lines(all, label), label) };
 }
 
-async function* rejoin(peeked: Uint8Array[], rest: AsyncGenerator<Uint8Array>): AsyncGenerator<Uint8Array> {
-  try {
-    for (const chunk of peeked) yield chunk;
-    while (true) {
-      const step = await rest.next();
-      if (step.done) return;
-      yield step.value;
-    }
-  } finally {
-    await rest.return(undefined);
-  }
-}
 
 async function* jetsFileEvents(records: AsyncGenerator<{ bytes: Uint8Array; offset: number }>): AsyncGenerator<CandidateEvent> {
   for await (const record of records) {

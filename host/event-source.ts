@@ -72,6 +72,39 @@ export function detectFormat(prefix: Uint8Array): 'records' | 'csv' | 'empty' {
   return 'csv';
 }
 
+export interface PeekedInput {
+  /** the first bytes (up to 16), for telling formats apart */
+  prefix: Uint8Array;
+  kind: 'records' | 'csv' | 'empty';
+  /** every chunk of the input, the peeked ones included; closes the source when abandoned */
+  chunks: AsyncGenerator<Uint8Array>;
+}
+
+/**
+ * Opens an input and reads just enough to tell what it holds (detectFormat), without losing
+ * the bytes read: the chunks come back whole. An empty input is closed here.
+ */
+export async function peekInput(input: string | NodeJS.ReadableStream, label: string): Promise<PeekedInput> {
+  const source = readChunks(input, label);
+  const peeked: Uint8Array[] = [];
+  let peekedBytes = 0;
+  try {
+    while (peekedBytes < PREFIX_BYTES) {
+      const step = await source.next();
+      if (step.done) break;
+      peeked.push(step.value);
+      peekedBytes += step.value.length;
+    }
+  } catch (error) {
+    await source.return(undefined);
+    throw error;
+  }
+  const prefix = (peeked.length === 1 ? peeked[0] : Buffer.concat(peeked)).subarray(0, PREFIX_BYTES);
+  const kind = detectFormat(prefix);
+  if (kind === 'empty') await source.return(undefined);
+  return { prefix, kind, chunks: rejoin(peeked, source) };
+}
+
 /** The chunks again: the peeked prefix, then the rest; closes the source when abandoned. */
 async function* rejoin(peeked: Uint8Array[], rest: AsyncGenerator<Uint8Array>): AsyncGenerator<Uint8Array> {
   try {
@@ -98,27 +131,10 @@ async function* csvRecords(chunks: AsyncGenerator<Uint8Array>, grid: Grid, label
 
 export async function openRecordFile(input: string | NodeJS.ReadableStream, options: OpenOptions = {}): Promise<RecordSource> {
   const label = inputLabel(input, options.fileLabel);
-  const chunks = readChunks(input, label);
-  const peeked: Uint8Array[] = [];
-  let peekedBytes = 0;
-  try {
-    while (peekedBytes < PREFIX_BYTES) {
-      const step = await chunks.next();
-      if (step.done) break;
-      peeked.push(step.value);
-      peekedBytes += step.value.length;
-    }
-  } catch (error) {
-    await chunks.return(undefined);
-    throw error;
-  }
-  const prefix = peeked.length === 1 ? peeked[0] : Buffer.concat(peeked);
-  const format = detectFormat(prefix.subarray(0, PREFIX_BYTES));
+  const { kind: format, chunks: all } = await peekInput(input, label);
   if (format === 'empty') {
-    await chunks.return(undefined);
     throw new InputError(label, 'empty file: neither an event file (no header record) nor a CSV tower file (no header line)', undefined, 0);
   }
-  const all = rejoin(peeked, chunks);
   if (format === 'csv') {
     const grid = options.grid ?? { ...DEFAULT_GRID };
     const header: FileHeader = { kind: 'events', grid, producer: CSV_PRODUCER, label: '', formatVersion: FORMAT_VERSION };
