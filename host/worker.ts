@@ -217,6 +217,8 @@ export default async function runBatch(task: BatchTask): Promise<unknown> {
 
 /** synthetic warm-up events: towers on every third cell, energies from a fixed sequence */
 const WARM_UP_CALLS = 30;
+const WARM_UP_TOWERS = 1100;
+const WARM_UP_TOWERS_REFERENCE = 200;
 
 /**
  * Runs the clusterer on synthetic events so the JIT has compiled its hot code before timing
@@ -224,7 +226,10 @@ const WARM_UP_CALLS = 30;
  * steady state, not on the first events of a cold engine.
  */
 function warmUp(s: WorkerState): void {
-  const towers = Math.max(1, Math.floor(s.tables.towerTotal / 3));
+  // bounded, so start-up does not grow with the grid (a 512 x 512 grid took 44 s unbounded);
+  // a third of the default grid's towers, a typical pileup event; the O(N^2) reference less
+  const limit = s.clusterer instanceof ReferenceClusterer ? WARM_UP_TOWERS_REFERENCE : WARM_UP_TOWERS;
+  const towers = Math.max(1, Math.min(limit, Math.floor(s.tables.towerTotal / 3)));
   const towerIndex = new Int32Array(towers);
   const towerEt = new Float64Array(towers);
   let x = 12345;
