@@ -333,7 +333,7 @@ class CsvLineSplitter {
     if (b > a && text.charCodeAt(b - 1) === 13) b--; // CRLF
     if (!this.headerSeen) {
       const line = text.slice(a, b);
-      if (line !== CSV_HEADER && line !== HEADER_WITH_BOM) {
+      if (line !== CSV_HEADER && line !== HEADER_WITH_BOM && !isSpacedHeader(line)) {
         throw new InputError(this.label, `missing header: expected "${CSV_HEADER}", got ${quote(line)}`, undefined, offset);
       }
       this.headerSeen = true;
@@ -392,4 +392,10 @@ export function parseCsvTowersText(text: string, grid: Grid, label = '<text>'): 
     return { events: [...expand(pending)], error };
   }
   return { events: [...expand(pending)], error: null };
+}
+
+/** The header with spaces or tabs around its names (`event, ieta, iphi, et`) is the header too. */
+function isSpacedHeader(line: string): boolean {
+  const names = (line.startsWith('\xef\xbb\xbf') ? line.slice(3) : line).split(',').map((name) => name.trim());
+  return names.join(',') === CSV_HEADER;
 }

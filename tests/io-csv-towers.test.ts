@@ -47,6 +47,13 @@ describe('CSV tower files: good input', () => {
     }
   });
 
+  it('accepts the header with spaces around its names, and still refuses other names', () => {
+    const spaced = parse('event, ieta, iphi, et\n0,1,2,3\n');
+    expect(spaced.error).toBeNull();
+    expect(spaced.events.map((e) => e.event)).toEqual([0]);
+    expect(parse('event, eta, phi, et\n0,1,2,3\n').error).toContain('missing header');
+  });
+
   it('accepts CRLF line ends, a byte order mark, a last line without its end, and empty lines at the end', () => {
     const text = '\ufeffevent,ieta,iphi,et\r\n0,0,1,2\r\n1,0,2,3\r\n\r\n\n';
     const { events, error } = parse(text);
