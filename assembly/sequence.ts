@@ -13,7 +13,7 @@ import { BEAM } from './settings';
 import { loadTower, mergeJets } from './kinematics';
 import { resetDrift, placeJet, clearCell, unlink, detachPointers, freeCellNear,
   centreOffsetY, centreOffsetPhi } from './cells';
-import { findNeighbour, scanNewJet } from './tiles';
+import { findNeighbour, scanNewJet, setSeedCell } from './tiles';
 import { buildTree, updateTree, treeWinner } from './tournament';
 
 export let finalCount: i32 = 0;
@@ -66,7 +66,9 @@ function merge(ca: i32, cb: i32): void {
   updateTree(ck);
   if (ca != ck) updateTree(ca);
   if (cb != ck) updateTree(cb);
+  setSeedCell(ck);
   redoSearches(count, ck);
+  setSeedCell(-1);
 }
 
 /** Clusters the n towers in evIndex/evEt; the final jets end up in finalJet[0..finalCount). */

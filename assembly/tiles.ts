@@ -35,6 +35,13 @@ import { sortPermutation } from './sort';
 // @ts-ignore: decorator
 @inline const LIST_MAX_SEARCH: i32 = 8;
 
+/** the cell of the step's new jet while the jets that lost their neighbour search again, else -1 */
+export let seedCell: i32 = -1;
+
+export function setSeedCell(c: i32): void {
+  seedCell = c;
+}
+
 let offCount: i32 = 0;
 /** every offset whose centre distance is at most this is in the list */
 let offReach: f64 = 0;
@@ -149,6 +156,13 @@ function searchOrdered(c: i32): bool {
       if (d <= reach2) offerBest(q, d, (w * d) * invR2);
     }
     if (bestCell >= 0) limit = min<f64>(limit, sqrt<f64>(bestDR2) * (1 + 1e-8));
+  } else if (seedCell >= 0 && seedCell != c) {
+    // the new jet of this step is the likely neighbour: offered first, it bounds the walk at once
+    const d = deltaR2(y, phi, getF64(cellY, seedCell), getF64(cellPhi, seedCell));
+    if (d <= reach2) {
+      offerBest(seedCell, d, (w * d) * invR2);
+      limit = min<f64>(limit, sqrt<f64>(d) * (1 + 1e-8));
+    }
   }
   const slack = sqrt<f64>(dyq * dyq + dpq * dpq) + others + 1e-12;
   const n = offCount;
