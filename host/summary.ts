@@ -275,7 +275,7 @@ export interface RunSummary {
     dispatchLag: LatencyStats;
     stages: Record<Stage, LatencyStats>;
   };
-  /** measuredOn: 'end-to-end' (open loop) or 'worker time' (closed loop: decode to encode of the event itself) */
+  /** measuredOn: 'end-to-end' (open loop) or 'worker time' (closed loop: decode to encode of the event itself, the reference check left out) */
   budget: { budgetUs: number; measuredOn: 'end-to-end' | 'worker time'; over: number; fractionOver: number } | null;
   /** events read / wall time from the first dispatch to the last result; bytesRead: uncompressed offset of the last record read */
   throughput: { eventsPerSecond: number; wallSeconds: number; bytesRead: number };
