@@ -30,10 +30,10 @@
 // in JSON lines, where null (how our writer stores a NaN) reads back as NaN.
 
 import { InputError } from './args.js';
-import { peekInput } from './event-source.js';
-import { decodeFileHeader, type FileHeader } from './file-header.js';
+import { peekInput, readFileHeader } from './event-source.js';
+import type { FileHeader } from './file-header.js';
 import { decodeJetsRecord } from './jets-codec.js';
-import { framedRecords, inputLabel } from './record-reader.js';
+import { inputLabel } from './record-reader.js';
 
 export type CandidateFormat = 'jets-file' | 'jsonl' | 'csv';
 
@@ -91,19 +91,10 @@ export async function openCandidate(input: string | NodeJS.ReadableStream, optio
     throw new InputError(label, 'empty file: not a jets file, JSON lines or CSV of jets', undefined, 0);
   }
   if (kind === 'records') {
-    const records = framedRecords(all, label, options.maxRecordBytes);
-    const first = await records.next();
-    if (first.done) throw new InputError(label, 'no header record', undefined, 0);
-    let header: FileHeader;
-    try {
-      header = decodeFileHeader(first.value.bytes);
-    } catch (error) {
-      await records.return(undefined);
-      throw new InputError(label, `bad file header: ${(error as Error).message}`, undefined, first.value.offset);
-    }
+    const { header, records } = await readFileHeader(all, label, options.maxRecordBytes);
     if (header.kind !== 'jets') {
       await records.return(undefined);
-      throw new InputError(label, 'this is an event file, expected a candidate\'s jets (a jets file, JSON lines or CSV of jets)', undefined, first.value.offset);
+      throw new InputError(label, 'this is an event file, expected a candidate\'s jets (a jets file, JSON lines or CSV of jets)', undefined, 0);
     }
     return { label, format: 'jets-file', header, absentMeansEmpty: false, events: jetsFileEvents(records) };
   }

@@ -72,6 +72,23 @@ export function detectFormat(prefix: Uint8Array): 'records' | 'csv' | 'empty' {
   return 'csv';
 }
 
+/** The header record of a record file, then the records after it. */
+export async function readFileHeader(
+  chunks: AsyncIterable<Uint8Array>,
+  label: string,
+  maxRecordBytes?: number,
+): Promise<{ header: FileHeader; records: AsyncGenerator<RawRecord> }> {
+  const records = framedRecords(chunks, label, maxRecordBytes);
+  const first = await records.next();
+  if (first.done) throw new InputError(label, 'no header record', undefined, 0);
+  try {
+    return { header: decodeFileHeader(first.value.bytes), records };
+  } catch (error) {
+    await records.return(undefined);
+    throw new InputError(label, `bad file header: ${(error as Error).message}`, undefined, first.value.offset);
+  }
+}
+
 export interface PeekedInput {
   /** the first bytes (up to 16), for telling formats apart */
   prefix: Uint8Array;
@@ -140,16 +157,7 @@ export async function openRecordFile(input: string | NodeJS.ReadableStream, opti
     const header: FileHeader = { kind: 'events', grid, producer: CSV_PRODUCER, label: '', formatVersion: FORMAT_VERSION };
     return { label, format: 'csv', header, records: csvRecords(all, grid, label) };
   }
-  const records = framedRecords(all, label, options.maxRecordBytes);
-  const first = await records.next();
-  if (first.done) throw new InputError(label, 'no header record', undefined, 0);
-  let header: FileHeader;
-  try {
-    header = decodeFileHeader(first.value.bytes);
-  } catch (error) {
-    await records.return(undefined);
-    throw new InputError(label, `bad file header: ${(error as Error).message}`, undefined, first.value.offset);
-  }
+  const { header, records } = await readFileHeader(all, label, options.maxRecordBytes);
   return { label, format: header.kind === 'events' ? 'events-file' : 'jets-file', header, records };
 }
 
