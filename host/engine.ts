@@ -39,8 +39,12 @@ interface EngineExports {
   neighbourTable(): number;
 }
 
-/** The jets of a batch of events, in flat arrays: event e's jets are jetStart[e]..jetStart[e+1]. */
-export interface BatchJets {
+/**
+ * The jets of a batch of events, in flat arrays: event e's jets are jetStart[e]..jetStart[e+1].
+ * The per-jet arrays are JetSet's; towerStart points into the whole batch's towers (empty when
+ * clustered without them).
+ */
+export interface BatchJets extends Omit<JetSet, 'count'> {
   eventCount: number;
   jetStart: Int32Array;
   /** clustering time of each event inside the engine (threshold to written jets), ns */
@@ -49,18 +53,6 @@ export interface BatchJets {
   clustered: Int32Array;
   /** ENGINE_OK, or ENGINE_INDEX_OUTSIDE / ENGINE_INDEX_REPEATED for an invalid event (no jets) */
   status: Int32Array;
-  px: Float64Array;
-  py: Float64Array;
-  pz: Float64Array;
-  energy: Float64Array;
-  pt: Float64Array;
-  rapidity: Float64Array;
-  phi: Float64Array;
-  mass: Float64Array;
-  towerCount: Int32Array;
-  /** into towers (the whole batch's); empty towers when clustered without them */
-  towerStart: Int32Array;
-  towers: Int32Array;
 }
 
 /** The package root: the directory above this file holding asconfig.json (host/ or dist/host/). */

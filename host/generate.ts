@@ -13,6 +13,7 @@
 // Every random number comes from one seeded generator, so a seed gives the same file anywhere.
 
 import { binDeposits, makeGridTables, type GridTables } from './grid.js';
+import type { DecodedEvent } from './event-codec.js';
 import type { Grid } from './types.js';
 
 export interface GeneratorSettings {
@@ -26,16 +27,8 @@ export interface GeneratorSettings {
   raw?: boolean;
 }
 
-export interface GeneratedEvent {
-  event: number;
-  /** binned towers (raw = false) */
-  towerIndex: Int32Array;
-  towerEt: Float64Array;
-  /** raw deposits (raw = true) */
-  depositEta: Float64Array;
-  depositPhi: Float64Array;
-  depositEt: Float64Array;
-}
+/** binned towers (raw = false) or raw deposits (raw = true), the other arrays empty */
+export type GeneratedEvent = Omit<DecodedEvent, 'error'>;
 
 /** deposits per pileup interaction (mean of a Poisson) and their mean et in GeV */
 const PILEUP_DEPOSITS_MEAN = 5;

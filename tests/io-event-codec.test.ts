@@ -7,22 +7,12 @@ import { decodeEventRecord, encodeEventRecord, EventRecordDecoder } from '../hos
 import { decodeFileHeader, encodeFileHeader, looksLikeFileHeader, type FileHeader } from '../host/file-header.js';
 import { loadJetlagSchema } from '../host/proto-schema.js';
 import { ProtoWriter } from '../host/wire.js';
+import { seededRandom as makeRandom } from './support/small-events.js';
 
 const schema = loadJetlagSchema();
 const EventRecord = schema.lookupType('jetlag.EventRecord');
 const FileHeaderType = schema.lookupType('jetlag.FileHeader');
 
-/** small deterministic generator (mulberry32) so failures reproduce */
-function makeRandom(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function randomDouble(rand: () => number): number {
   const kind = rand();

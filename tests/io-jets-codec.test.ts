@@ -13,19 +13,10 @@ import { formatErrorLine, formatJetsLine } from '../host/jets-jsonl.js';
 import { loadJetlagSchema } from '../host/proto-schema.js';
 import { RecordFramer } from '../host/record-reader.js';
 import type { JetSet } from '../host/types.js';
+import { seededRandom as makeRandom } from './support/small-events.js';
 
 const JetsRecord = loadJetlagSchema().lookupType('jetlag.JetsRecord');
 
-function makeRandom(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function randomJets(rand: () => number, withTowers: boolean): JetSet {
   const count = Math.floor(rand() * 6);
