@@ -17,6 +17,7 @@
 import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellNn, cellWide,
   pointHead, pointNext, pointPrev, etaCentre, phiCentre, etaBins, phiBins, jetY, jetPhi, jetKt2,
   rowDriftY, rowDriftPhi, cellRow, cellCol, driftList, driftSlot, occupied, rowWords,
+  padRows, padCols, padStride, padTotal, padY, padPhi, padCell, cellPad,
   getF64, setF64, getI32, setI32 } from './layout';
 import { invR2, etaMin, invEtaPitch, invPhiPitch, PI, TWO_PI, BEAM } from './settings';
 import { weightOf, needsWideSearch } from './kinematics';
@@ -42,6 +43,37 @@ export function initCells(): void {
     setI32(cellRow, c, row);
     setI32(cellCol, c, c - row * phiBins);
     setI32(driftSlot, c, -1);
+  }
+}
+
+/** Called once per engine, after reservePadding(): every padded cell empty, the maps set. */
+export function initPadding(): void {
+  for (let q = 0; q < padTotal; q++) {
+    setF64(padY, q, Infinity);
+    setF64(padPhi, q, 0);
+    const row = q / padStride - padRows;
+    let col = (q % padStride - padCols) % phiBins;
+    if (col < 0) col += phiBins;
+    setI32(padCell, q, row >= 0 && row < etaBins ? row * phiBins + col : -1);
+  }
+  for (let c = 0; c < cellTotal; c++) {
+    setI32(cellPad, c, (getI32(cellRow, c) + padRows) * padStride + getI32(cellCol, c) + padCols);
+  }
+}
+
+/** Cell c's y and phi into its padded cell and the copies of it past the row's other end. */
+function writePadded(c: i32, y: f64, phi: f64): void {
+  const q = getI32(cellPad, c);
+  setF64(padY, q, y);
+  setF64(padPhi, q, phi);
+  const col = getI32(cellCol, c);
+  for (let cc = col + phiBins; cc < phiBins + padCols; cc += phiBins) {
+    setF64(padY, q + cc - col, y);
+    setF64(padPhi, q + cc - col, phi);
+  }
+  for (let cc = col - phiBins; cc >= -padCols; cc -= phiBins) {
+    setF64(padY, q + cc - col, y);
+    setF64(padPhi, q + cc - col, phi);
   }
 }
 
@@ -124,6 +156,7 @@ export function placeJet(c: i32, jet: i32): void {
   setI32(cellJet, c, jet);
   setF64(cellY, c, y);
   setF64(cellPhi, c, phi);
+  writePadded(c, y, phi);
   setF64(cellW, c, w);
   setI32(cellNn, c, -1);
   setF64(cellNnDR2, c, Infinity);
@@ -164,6 +197,7 @@ export function clearCell(c: i32): void {
   setI32(cellJet, c, -1);
   setF64(cellY, c, Infinity);
   setF64(cellPhi, c, 0);
+  writePadded(c, Infinity, 0);
   setEmptyCandidate(c);
 }
 

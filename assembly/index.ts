@@ -7,7 +7,7 @@ import { reserve, getI32, setI32, setF64, inStart, outJetStart, outNs, outCluste
   outTowers, etaCentre, sinhEta, coshEta, phiCentre, cosPhi, sinPhi, inIndex, inEt, outPx, outPy,
   outPz, outE, outPt, outY, outPhi, outMass, outTowerCount, outTowerStart, etaBins, phiBins } from './layout';
 import { configure } from './settings';
-import { initCells } from './cells';
+import { initCells, initPadding } from './cells';
 import { initTree } from './tournament';
 import { buildOffsets } from './tiles';
 import { initInput, selectTowers } from './input';
@@ -23,13 +23,16 @@ export function setup(etaCount: i32, phiCount: i32, towerCapacity: i32, eventCap
   return reserve(etaCount, phiCount, towerCapacity, eventCapacity) ? 1 : 0;
 }
 
-/** Fixes the algorithm; once, after setup(). wta: 0 E-scheme, 1 winner-take-all. */
-export function configureEngine(p: f64, radius: f64, ptMin: f64, threshold: f64, wta: i32, etaLow: f64, etaHigh: f64): void {
+/** Fixes the algorithm; once, after setup(). wta: 0 E-scheme, 1 winner-take-all. Returns 0 when
+ * memory cannot grow for the padded rows the search reach needs. */
+export function configureEngine(p: f64, radius: f64, ptMin: f64, threshold: f64, wta: i32, etaLow: f64, etaHigh: f64): i32 {
   configure(p, radius, ptMin, threshold, wta, etaLow, etaHigh, etaBins, phiBins);
   initCells();
   initTree();
   initInput();
-  buildOffsets();
+  if (!buildOffsets()) return 0;
+  initPadding();
+  return 1;
 }
 
 /** Pointer of a region, by the number used in host/engine.ts. */

@@ -19,8 +19,14 @@
 //            nodeValue + P is the leaves' measure; leaves c >= C stay empty)
 //   jets     jetPx jetPy jetPz jetE jetKt2 jetY jetPhi f64[2C]  jetInto jetLabel i32[2C]
 //   finals   finalJet finalOrder finalScratch i32[C]  finalPt f64[C]  redo i32[C]
-//   offsets  offDr offDc i32[O]  offDist f64[O]  offPerm offScratch offTmpI i32[O]  offTmpF f64[O]
-//            (O = OFFSET_LIMIT; the last four only while the offsets are sorted)
+//   offsets  offDr offDc offStep i32[O]  offDist f64[O]  offPerm offScratch offTmpI i32[O]
+//            offTmpF f64[O]   (O = OFFSET_LIMIT; the last four only while the offsets are sorted)
+//   padded   padY padPhi f64[Q]  padCell i32[Q]  cellPad i32[C]   (reserved by configureEngine:
+//            the cells' y and phi again, in rows of padStride = phiBins + 2 * padCols with
+//            padRows empty rows above and below and each row's first and last padCols cells
+//            copied past its other end, so that every search offset from every cell is one flat
+//            step (offStep) with no bounds or seam test; Q = (etaBins + 2 * padRows) * padStride.
+//            padCell: the real cell of a padded one (-1 in the empty rows), cellPad the inverse)
 //
 // IN is the batch tower capacity, EV the batch event capacity. Cell c = ieta * phiBins + iphi;
 // an empty cell has cellY = +Infinity and cellJet = -1.
@@ -119,6 +125,16 @@ export let offPerm: usize = 0;
 export let offScratch: usize = 0;
 export let offTmpI: usize = 0;
 export let offTmpF: usize = 0;
+export let offStep: usize = 0;
+
+export let padRows: i32 = 0;
+export let padCols: i32 = 0;
+export let padStride: i32 = 0;
+export let padTotal: i32 = 0;
+export let padY: usize = 0;
+export let padPhi: usize = 0;
+export let padCell: usize = 0;
+export let cellPad: usize = 0;
 
 // @ts-ignore: decorator
 @inline export function getF64(base: usize, i: i32): f64 { return load<f64>(base + (<usize>i << 3)); }
@@ -130,6 +146,8 @@ export let offTmpF: usize = 0;
 @inline export function setI32(base: usize, i: i32, v: i32): void { store<i32>(base + (<usize>i << 2), v); }
 
 let cursor: usize = 0;
+/** where the padded regions start (the end of reserve()'s regions) */
+let paddedStart: usize = 0;
 
 function take(bytes: usize): usize {
   const at = cursor;
@@ -236,11 +254,33 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   offScratch = take(<usize>OFFSET_LIMIT << 2);
   offTmpI = take(<usize>OFFSET_LIMIT << 2);
   offTmpF = take(<usize>OFFSET_LIMIT << 3);
+  offStep = take(<usize>OFFSET_LIMIT << 2);
+  paddedStart = cursor;
+  return growTo(cursor);
+}
 
+function growTo(end: usize): bool {
   const have = <usize>memory.size() << 16;
-  if (cursor > have) {
-    const pages = <i32>((cursor - have + 0xffff) >> 16);
+  if (end > have) {
+    const pages = <i32>((end - have + 0xffff) >> 16);
     if (memory.grow(pages) < 0) return false;
   }
   return true;
+}
+
+/** Lays out the padded rows for offsets up to `rows` rows and `cols` columns away; false when
+ * memory cannot grow that far. Called once per engine, by configureEngine(). */
+export function reservePadding(rows: i32, cols: i32): bool {
+  padRows = rows;
+  padCols = cols;
+  padStride = phiBins + 2 * cols;
+  const total = <usize>(etaBins + 2 * rows) * <usize>padStride;
+  if (total > 0x7fffffff >> 3) return false;
+  padTotal = <i32>total;
+  cursor = paddedStart;
+  padY = take(total << 3);
+  padPhi = take(total << 3);
+  padCell = take(total << 2);
+  cellPad = take(<usize>cellTotal << 2);
+  return growTo(cursor);
 }

@@ -6,7 +6,8 @@
 // Three ways to search, all exact:
 // - ordered: cell offsets (offDr, offDc) sorted by the distance between cell centres (offDist,
 //   a lower bound), visited nearest first; stops once no farther cell can hold a jet as close
-//   as the best so far, allowing for how far jets sit from their cell centres (drift).
+//   as the best so far, allowing for how far jets sit from their cell centres (drift). The walk
+//   reads the padded rows (layout.ts), where an offset is one flat step (offStep).
 // - window: row by row, the cells whose centre lies within reach + that row's drift of the jet
 //   (a circle, not a square); the φ range wraps at the seam and is cut into at most two
 //   contiguous runs, whose occupied cells are found from the rows' occupancy bits.
@@ -19,6 +20,7 @@ import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellWi
   occupied, rowWords,
   rowDriftY, rowDriftPhi, driftList,
   etaBins, phiBins, offDr, offDc, offDist, offPerm, offScratch, offTmpI, offTmpF, OFFSET_LIMIT,
+  offStep, padY, padPhi, padCell, cellPad, padStride, reservePadding,
   getF64, setF64, getI32, setI32 } from './layout';
 import { invR2, reach2, reach, etaMin, etaPitch, phiPitch, invEtaPitch, invPhiPitch, BEAM } from './settings';
 import { deltaR2 } from './kinematics';
@@ -59,8 +61,9 @@ let runA1: i32 = -1;
 let runB0: i32 = 0;
 let runB1: i32 = -1;
 
-/** Called once per engine, after configure(). */
-export function buildOffsets(): void {
+/** Called once per engine, after configure(); reserves the padded rows the offsets reach (false
+ * when memory cannot grow). */
+export function buildOffsets(): bool {
   const pitch = max<f64>(etaPitch, phiPitch);
   const dcLow = -((phiBins - 1) >> 1);
   const dcHigh = phiBins >> 1;
@@ -96,14 +99,23 @@ export function buildOffsets(): void {
   sortPermutation(offPerm, offScratch, n, offTmpF, 0);
   // centres can sit a few ulp off the ideal lattice: shave the bound a little
   const ulpScale = 1e-15 * (abs<f64>(etaMin) + abs<f64>(etaMin + etaPitch * <f64>etaBins) + 8);
+  let rowReach = 0;
+  let colReach = 0;
   for (let o = 0; o < n; o++) {
     const from = getI32(offPerm, o);
     const packed = getI32(offTmpI, from);
-    setI32(offDr, o, packed >> 16);
-    setI32(offDc, o, <i32>(<i16>(packed & 0xffff)));
+    const dr = packed >> 16;
+    const dc = <i32>(<i16>(packed & 0xffff));
+    setI32(offDr, o, dr);
+    setI32(offDc, o, dc);
     setF64(offDist, o, getF64(offTmpF, from) * (1 - 1e-9) - 4 * ulpScale);
+    rowReach = max<i32>(rowReach, abs<i32>(dr));
+    colReach = max<i32>(colReach, abs<i32>(dc));
   }
   offCount = n;
+  if (!reservePadding(rowReach, colReach)) return false;
+  for (let o = 0; o < n; o++) setI32(offStep, o, getI32(offDr, o) * padStride + getI32(offDc, o));
+  return true;
 }
 
 function centreDistance(dr: i32, dc: i32): f64 {
@@ -139,8 +151,6 @@ function searchOrdered(c: i32): bool {
   const y = getF64(cellY, c);
   const phi = getF64(cellPhi, c);
   const w = getF64(cellW, c);
-  const row = getI32(cellRow, c);
-  const col = getI32(cellCol, c);
   const dyq = centreOffsetY(c, y);
   const dpq = centreOffsetPhi(c, phi);
   let limit = reach;
@@ -166,24 +176,25 @@ function searchOrdered(c: i32): bool {
   }
   const slack = sqrt<f64>(dyq * dyq + dpq * dpq) + others + 1e-12;
   const n = offCount;
-  const rowCount = <u32>etaBins;
-  const colCount = phiBins;
-  const words = rowWords;
+  const from = getI32(cellPad, c);
+  // bases and settings in locals: the loop reads no global
+  const steps = offStep;
+  const dists = offDist;
+  const ys = padY;
+  const phis = padPhi;
+  const r2 = reach2;
+  const scale = invR2;
+  let bound = bestKey;
   for (let o = 0; o < n; o++) {
-    if (getF64(offDist, o) - slack > limit) return true;
-    const r = row + getI32(offDr, o);
-    if (<u32>r >= rowCount) continue;
-    let cc = col + getI32(offDc, o);
-    if (cc < 0) cc += colCount;
-    else if (cc >= colCount) cc -= colCount;
-    // empty cells are skipped by their occupancy bit, before any arithmetic
-    if (((load<u64>(occupied + (<usize>(r * words + (cc >> 6)) << 3)) >> <u64>(cc & 63)) & 1) == 0) continue;
-    const q = r * colCount + cc;
-    const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
-    const key = (w * d) * invR2;
-    // one branch, rarely taken: empty cells have y = +Inf, so d and key are +Inf
-    if ((d <= reach2) & (key <= bestKey)) {
-      if (offerBest(q, d, key)) limit = min<f64>(limit, sqrt<f64>(d) * (1 + 1e-8));
+    if (getF64(dists, o) - slack > limit) return true;
+    // one flat step in the padded rows: cells beyond the grid's edges and empty cells read
+    // y = +Inf, so d and key are +Inf and the one branch below, rarely taken, is not
+    const q = from + getI32(steps, o);
+    const d = deltaR2(y, phi, getF64(ys, q), getF64(phis, q));
+    const key = (w * d) * scale;
+    if ((d <= r2) & (key <= bound)) {
+      if (offerBest(getI32(padCell, q), d, key)) limit = min<f64>(limit, sqrt<f64>(d) * (1 + 1e-8));
+      bound = bestKey;
     }
   }
   return offReach - slack > limit;

@@ -45,41 +45,46 @@ export function initTree(): void {
 /** Replays every match, bottom up. With all leaves empty any winner is right, so the tree is
  * valid between events whatever it holds. */
 export function buildTree(): void {
+  const ids = tree;
+  const values = nodeValue;
   for (let n = treeLeaves - 1; n >= 1; n--) {
     const l = n << 1;
     const r = l + 1;
-    const vl = getF64(nodeValue, l);
-    const vr = getF64(nodeValue, r);
-    const il = getI32(tree, l);
-    const ir = getI32(tree, r);
+    const vl = getF64(values, l);
+    const vr = getF64(values, r);
+    const il = getI32(ids, l);
+    const ir = getI32(ids, r);
     if (before(vr, ir, vl, il)) {
-      setI32(tree, n, ir);
-      setF64(nodeValue, n, vr);
+      setI32(ids, n, ir);
+      setF64(values, n, vr);
     } else {
-      setI32(tree, n, il);
-      setF64(nodeValue, n, vl);
+      setI32(ids, n, il);
+      setF64(values, n, vl);
     }
   }
 }
 
 /** Leaf c changed: replay its path. */
 export function updateTree(c: i32): void {
+  // the bases in locals: a global is read again after every store and call
+  const ids = tree;
+  const values = nodeValue;
   let n = treeLeaves + c;
   let id = c;
-  let v = getF64(nodeValue, n);
+  let v = getF64(values, n);
   while (n > 1) {
     const s = n ^ 1;
-    const sv = getF64(nodeValue, s);
-    const sid = getI32(tree, s);
+    const sv = getF64(values, s);
+    const sid = getI32(ids, s);
     if (before(sv, sid, v, id)) {
       id = sid;
       v = sv;
     }
     n >>= 1;
-    const old = getI32(tree, n);
+    const old = getI32(ids, n);
     if (old == id && id != c) return;
-    setI32(tree, n, id);
-    setF64(nodeValue, n, v);
+    setI32(ids, n, id);
+    setF64(values, n, v);
   }
 }
 

@@ -33,7 +33,7 @@ const REGION = {
 interface EngineExports {
   memory: WebAssembly.Memory;
   setup(etaBins: number, phiBins: number, towerCapacity: number, eventCapacity: number): number;
-  configureEngine(p: number, radius: number, ptMin: number, threshold: number, wta: number, etaMin: number, etaMax: number): void;
+  configureEngine(p: number, radius: number, ptMin: number, threshold: number, wta: number, etaMin: number, etaMax: number): number;
   region(id: number): number;
   clusterBatch(eventCount: number, withTowers: number): number;
   neighbourTable(): number;
@@ -174,7 +174,9 @@ export class WasmClusterer implements Clusterer {
     }
     writeGridTables(this.exports.memory, (id) => this.exports.region(id), this.tables);
     const s = this.settings;
-    this.exports.configureEngine(s.p, s.radius, s.ptMin, s.threshold, s.recombination === 'wta' ? 1 : 0, grid.etaMin, grid.etaMax);
+    if (!this.exports.configureEngine(s.p, s.radius, s.ptMin, s.threshold, s.recombination === 'wta' ? 1 : 0, grid.etaMin, grid.etaMax)) {
+      throw new Error(`engine: cannot reserve memory for the search rows of R = ${s.radius} on a grid of ${this.tables.towerTotal} towers`);
+    }
     this.views = this.makeViews();
   }
 
