@@ -2,9 +2,9 @@
 // its own cell; a merged jet takes the cell that contains its (y, phi) when that cell is free,
 // else the nearer of its parents' cells. How far jets sit from their cell centres is tracked
 // (driftY, driftPhi: the largest offsets this event; rowDriftY, rowDriftPhi: the same per grid
-// row), and the live jets off their centre are listed (driftList), so searches stay exact:
-// while that list is short, searches treat every other jet as sitting at its cell centre and
-// look at the listed ones directly.
+// row), and the live jets outside their own cell's area are listed (driftList), so searches stay
+// exact: while that list is short, searches widen their windows by half a cell (settings.ts
+// insideY, insidePhi), which finds every other jet, and look at the listed ones directly.
 //
 // Per cell c (see layout.ts): cellY cellPhi cellW (the jet's weight w), cellNnDR2 cellNnKey (the
 // jet's nearest neighbour by the key of clustering-spec.md section 4, its dR2 and (w*dR2)*invR2;
@@ -19,7 +19,7 @@ import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellNn
   rowDriftY, rowDriftPhi, cellRow, cellCol, driftList, driftSlot, occupied, rowWords,
   padRows, padCols, padStride, padTotal, padY, padPhi, padCell, cellPad,
   getF64, setF64, getI32, setI32 } from './layout';
-import { invR2, etaMin, invEtaPitch, invPhiPitch, PI, TWO_PI, BEAM } from './settings';
+import { invR2, etaMin, invEtaPitch, invPhiPitch, insideY, insidePhi, PI, TWO_PI, BEAM } from './settings';
 import { weightOf, needsWideSearch } from './kinematics';
 import { setCandidate, setEmptyCandidate } from './tournament';
 
@@ -168,8 +168,10 @@ export function placeJet(c: i32, jet: i32): void {
   const dy = centreOffsetY(c, y);
   const dphi = centreOffsetPhi(c, phi);
   if (dy > 0 || dphi > 0) {
-    setI32(driftSlot, c, driftCount);
-    setI32(driftList, driftCount++, c);
+    if (dy > insideY || dphi > insidePhi) {
+      setI32(driftSlot, c, driftCount);
+      setI32(driftList, driftCount++, c);
+    }
     const row = getI32(cellRow, c);
     if (dy > getF64(rowDriftY, row)) setF64(rowDriftY, row, dy);
     if (dphi > getF64(rowDriftPhi, row)) setF64(rowDriftPhi, row, dphi);

@@ -24,6 +24,11 @@ export let etaPitch: f64 = 0;
 export let phiPitch: f64 = 0;
 export let invEtaPitch: f64 = 0;
 export let invPhiPitch: f64 = 0;
+/** a jet at most this far from its cell centre in y and in phi lies in its cell's own area: such
+ * jets are found by windows widened by these, and only the others are listed (cells.ts) */
+export let insideY: f64 = 0;
+export let insidePhi: f64 = 0;
+export let insideNorm: f64 = 0;
 
 export function configure(p: f64, radius: f64, ptMinGeV: f64, thresholdGeV: f64, wta: i32,
   etaLow: f64, etaHigh: f64, etaCount: i32, phiCount: i32): void {
@@ -40,4 +45,7 @@ export function configure(p: f64, radius: f64, ptMinGeV: f64, thresholdGeV: f64,
   phiPitch = TWO_PI / <f64>phiCount;
   invEtaPitch = 1 / etaPitch;
   invPhiPitch = 1 / phiPitch;
+  insideY = 0.5 * etaPitch;
+  insidePhi = 0.5 * phiPitch;
+  insideNorm = Math.sqrt(insideY * insideY + insidePhi * insidePhi) * (1 + 1e-9);
 }

@@ -22,7 +22,7 @@ import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellWi
   etaBins, phiBins, offDr, offDc, offDist, offPerm, offScratch, offTmpI, offTmpF, OFFSET_LIMIT,
   offStep, padY, padPhi, padCell, cellPad, padStride, reservePadding,
   getF64, setF64, getI32, setI32 } from './layout';
-import { invR2, reach2, reach, etaMin, etaPitch, phiPitch, invEtaPitch, invPhiPitch, BEAM } from './settings';
+import { invR2, reach2, reach, etaMin, etaPitch, phiPitch, invEtaPitch, invPhiPitch, insideY, insidePhi, insideNorm, BEAM } from './settings';
 import { deltaR2 } from './kinematics';
 import { driftY, driftPhi, driftNorm, driftCount, wideCount, centreOffsetY, centreOffsetPhi, setNeighbour } from './cells';
 import { updateTree } from './tournament';
@@ -156,9 +156,9 @@ function searchOrdered(c: i32): bool {
   let limit = reach;
   let others = driftNorm;
   if (driftCount <= LIST_MAX_SEARCH) {
-    // the jets off their centres directly; the walk below then only has to be exact for jets
-    // at their centres
-    others = 0;
+    // the jets outside their cells' areas directly; the walk below then only has to be exact
+    // for jets within half a cell of their centres
+    others = min<f64>(driftNorm, insideNorm);
     for (let k = 0; k < driftCount; k++) {
       const q = getI32(driftList, k);
       if (q == c) continue;
@@ -210,15 +210,13 @@ let winPhi: f64 = 0;
 let winU: f64 = 0;
 let winV: f64 = 0;
 
-let winDrift: bool = true;
-
-function openWindow(y: f64, phi: f64, drift: bool): void {
+/** widen: how far jets may sit from their cell centres in y */
+function openWindow(y: f64, phi: f64, widen: f64): void {
   winY = y;
   winPhi = phi;
-  winDrift = drift;
   winU = (y - etaMin) * invEtaPitch - 0.5;
   winV = phi * invPhiPitch - 0.5;
-  const ry = (reach + (drift ? driftY : 0)) * invEtaPitch * (1 + 1e-9) + 1e-9;
+  const ry = (reach + widen) * invEtaPitch * (1 + 1e-9) + 1e-9;
   const r0 = ceil<f64>(winU - ry);
   const r1 = floor<f64>(winU + ry);
   if (r0 == r0 && r1 == r1) {
@@ -278,7 +276,7 @@ function searchWindow(c: i32): void {
   const y = getF64(cellY, c);
   const phi = getF64(cellPhi, c);
   const w = getF64(cellW, c);
-  openWindow(y, phi, true);
+  openWindow(y, phi, driftY);
   for (let r = winRow0; r <= winRow1; r++) {
     if (!rowRuns(r)) continue;
     const base = r * phiBins;
@@ -385,9 +383,10 @@ export function scanNewJet(ck: i32): void {
   } else {
     setF64(cellY, ck, Infinity); // not its own neighbour
     if (driftCount <= LIST_MAX) {
-      // jets at their centres: one rectangle of rows and columns; the listed ones directly
-      openWindow(y, phi, false);
-      if (columnRuns(reach * invPhiPitch)) scanWindow(ck, y, phi, w, true);
+      // jets within half a cell of their centres: one rectangle of rows and columns widened by
+      // that; the listed ones directly
+      openWindow(y, phi, min<f64>(driftY, insideY));
+      if (columnRuns((reach + min<f64>(driftPhi, insidePhi)) * invPhiPitch)) scanWindow(ck, y, phi, w, true);
       for (let k = 0; k < driftCount; k++) {
         const q = getI32(driftList, k);
         if (q == ck) continue;
@@ -396,7 +395,7 @@ export function scanNewJet(ck: i32): void {
         offerIfNearer(q, ck, d);
       }
     } else {
-      openWindow(y, phi, true);
+      openWindow(y, phi, driftY);
       scanWindow(ck, y, phi, w, false);
     }
     setF64(cellY, ck, y);
