@@ -17,7 +17,7 @@
 import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellNn, cellWide,
   pointHead, pointNext, pointPrev, etaCentre, phiCentre, etaBins, phiBins, jetY, jetPhi, jetKt2,
   rowDriftY, rowDriftPhi, cellRow, cellCol, driftList, driftSlot, occupied, rowWords,
-  padRows, padCols, padStride, padTotal, padY, padPhi, padCell, cellPad,
+  padRows, padCols, padStride, padTotal, padY, padPhi, padCell, cellPad, padBits, padRowBytes,
   getF64, setF64, getI32, setI32 } from './layout';
 import { invR2, etaMin, invEtaPitch, invPhiPitch, insideY, insidePhi, PI, TWO_PI, BEAM } from './settings';
 import { weightOf, needsWideSearch } from './kinematics';
@@ -59,21 +59,34 @@ export function initPadding(): void {
   for (let c = 0; c < cellTotal; c++) {
     setI32(cellPad, c, (getI32(cellRow, c) + padRows) * padStride + getI32(cellCol, c) + padCols);
   }
+  memory.fill(padBits, 0, <usize>(etaBins + 2 * padRows) * <usize>padRowBytes);
 }
 
-/** Cell c's y and phi into its padded cell and the copies of it past the row's other end. */
-function writePadded(c: i32, y: f64, phi: f64): void {
+// @ts-ignore: decorator
+@inline function setPaddedBit(row: usize, column: i32, on: bool): void {
+  const word = row + (<usize>(column >> 6) << 3);
+  const bit = <u64>1 << <u64>(column & 63);
+  store<u64>(word, on ? load<u64>(word) | bit : load<u64>(word) & ~bit);
+}
+
+/** Cell c's y, phi and occupancy into its padded cell and the copies of it past the row's other
+ * end. */
+function writePadded(c: i32, y: f64, phi: f64, on: bool): void {
   const q = getI32(cellPad, c);
+  const col = getI32(cellCol, c);
+  const bits = padBits + <usize>(getI32(cellRow, c) + padRows) * <usize>padRowBytes;
   setF64(padY, q, y);
   setF64(padPhi, q, phi);
-  const col = getI32(cellCol, c);
+  setPaddedBit(bits, col + padCols, on);
   for (let cc = col + phiBins; cc < phiBins + padCols; cc += phiBins) {
     setF64(padY, q + cc - col, y);
     setF64(padPhi, q + cc - col, phi);
+    setPaddedBit(bits, cc + padCols, on);
   }
   for (let cc = col - phiBins; cc >= -padCols; cc -= phiBins) {
     setF64(padY, q + cc - col, y);
     setF64(padPhi, q + cc - col, phi);
+    setPaddedBit(bits, cc + padCols, on);
   }
 }
 
@@ -156,7 +169,7 @@ export function placeJet(c: i32, jet: i32): void {
   setI32(cellJet, c, jet);
   setF64(cellY, c, y);
   setF64(cellPhi, c, phi);
-  writePadded(c, y, phi);
+  writePadded(c, y, phi, true);
   setF64(cellW, c, w);
   setI32(cellNn, c, -1);
   setF64(cellNnDR2, c, Infinity);
@@ -199,7 +212,7 @@ export function clearCell(c: i32): void {
   setI32(cellJet, c, -1);
   setF64(cellY, c, Infinity);
   setF64(cellPhi, c, 0);
-  writePadded(c, Infinity, 0);
+  writePadded(c, Infinity, 0, false);
   setEmptyCandidate(c);
 }
 

@@ -27,6 +27,9 @@
 //            copied past its other end, so that every search offset from every cell is one flat
 //            step (offStep) with no bounds or seam test; Q = (etaBins + 2 * padRows) * padStride.
 //            padCell: the real cell of a padded one (-1 in the empty rows), cellPad the inverse)
+//            padBits u64[(etaBins + 2 * padRows) * padRowBytes / 8]   (bit k of padded row r set
+//            while padded cell (r, k) holds a jet; 8 spare bytes per row, so that any run of up
+//            to 57 columns is one unaligned load)
 //
 // IN is the batch tower capacity, EV the batch event capacity. Cell c = ieta * phiBins + iphi;
 // an empty cell has cellY = +Infinity and cellJet = -1.
@@ -135,6 +138,8 @@ export let padY: usize = 0;
 export let padPhi: usize = 0;
 export let padCell: usize = 0;
 export let cellPad: usize = 0;
+export let padBits: usize = 0;
+export let padRowBytes: i32 = 0;
 
 // @ts-ignore: decorator
 @inline export function getF64(base: usize, i: i32): f64 { return load<f64>(base + (<usize>i << 3)); }
@@ -282,5 +287,7 @@ export function reservePadding(rows: i32, cols: i32): bool {
   padPhi = take(total << 3);
   padCell = take(total << 2);
   cellPad = take(<usize>cellTotal << 2);
+  padRowBytes = (((padStride + 63) >> 6) << 3) + 8;
+  padBits = take(<usize>(etaBins + 2 * rows) * <usize>padRowBytes);
   return growTo(cursor);
 }

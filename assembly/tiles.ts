@@ -20,7 +20,7 @@ import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellWi
   occupied, rowWords,
   rowDriftY, rowDriftPhi, driftList,
   etaBins, phiBins, offDr, offDc, offDist, offPerm, offScratch, offTmpI, offTmpF, OFFSET_LIMIT,
-  offStep, padY, padPhi, padCell, cellPad, padStride, reservePadding,
+  offStep, padY, padPhi, padCell, cellPad, padStride, padRows, padCols, padBits, padRowBytes, reservePadding,
   getF64, setF64, getI32, setI32 } from './layout';
 import { invR2, reach2, reach, etaMin, etaPitch, phiPitch, invEtaPitch, invPhiPitch, insideY, insidePhi, insideNorm, BEAM } from './settings';
 import { deltaR2 } from './kinematics';
@@ -353,6 +353,46 @@ function scanWindow(ck: i32, y: f64, phi: f64, w: f64, rectangle: bool): void {
   }
 }
 
+/**
+ * The new jet's window as one rectangle in the padded rows, for jets within (widenY, widenPhi) of
+ * their cell centres: rows as openWindow() gives them, and in every row the same run of padded
+ * columns, whose occupied cells come from one unaligned load of the row's bits (no seam, no word
+ * loop). false when the run does not fit (longer than 57 columns or the padding); the caller
+ * then scans the window by the rows' own bits.
+ */
+function scanRectangle(ck: i32, y: f64, phi: f64, w: f64, widenY: f64, widenPhi: f64): bool {
+  const half = (reach + widenPhi) * invPhiPitch * (1 + 1e-9) + 1e-9;
+  const v = phi * invPhiPitch - 0.5;
+  const c0 = ceil<f64>(v - half);
+  const c1 = floor<f64>(v + half);
+  if (!(c1 - c0 + 1 < <f64>min<i32>(phiBins, 58))) return false; // also a non-finite phi
+  if (c1 < c0) return true; // no column within reach
+  const p0 = <i32>c0 + padCols;
+  const p1 = <i32>c1 + padCols;
+  if (p0 < 0 || p1 >= padStride) return false;
+  openWindow(y, phi, widenY);
+  const mask = (<u64>1 << <u64>(p1 - p0 + 1)) - 1;
+  const shift = <u64>(p0 & 7);
+  const bitsBase = padBits + <usize>(p0 >> 3);
+  const rowBytes = <usize>padRowBytes;
+  const stride = padStride;
+  const row1 = winRow1;
+  for (let r = winRow0; r <= row1; r++) {
+    let bits = (load<u64>(bitsBase + <usize>(r + padRows) * rowBytes) >> shift) & mask;
+    const start = (r + padRows) * stride + p0;
+    while (bits != 0) {
+      // the real cell: the new jet's own reads y = +Inf meanwhile
+      const q = getI32(padCell, start + <i32>ctz<u64>(bits));
+      bits &= bits - 1;
+      const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
+      const key = (w * d) * invR2;
+      if ((d <= reach2) & (key <= bestKey)) offerBest(q, d, key);
+      if ((d <= reach2) & (d < getF64(cellNnDR2, q))) offerNewJet(q, ck, d);
+    }
+  }
+  return true;
+}
+
 // @ts-ignore: decorator
 @inline function offerIfNearer(q: i32, ck: i32, d: f64): void {
   if ((d <= reach2) & (d < getF64(cellNnDR2, q))) offerNewJet(q, ck, d);
@@ -385,8 +425,12 @@ export function scanNewJet(ck: i32): void {
     if (driftCount <= LIST_MAX) {
       // jets within half a cell of their centres: one rectangle of rows and columns widened by
       // that; the listed ones directly
-      openWindow(y, phi, min<f64>(driftY, insideY));
-      if (columnRuns((reach + min<f64>(driftPhi, insidePhi)) * invPhiPitch)) scanWindow(ck, y, phi, w, true);
+      const widenY = min<f64>(driftY, insideY);
+      const widenPhi = min<f64>(driftPhi, insidePhi);
+      if (!scanRectangle(ck, y, phi, w, widenY, widenPhi)) {
+        openWindow(y, phi, widenY);
+        if (columnRuns((reach + widenPhi) * invPhiPitch)) scanWindow(ck, y, phi, w, true);
+      }
       for (let k = 0; k < driftCount; k++) {
         const q = getI32(driftList, k);
         if (q == ck) continue;
