@@ -17,7 +17,7 @@
 import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellNn, cellWide,
   pointHead, pointNext, pointPrev, etaCentre, phiCentre, etaBins, phiBins, jetY, jetPhi, jetKt2,
   rowDriftY, rowDriftPhi, cellRow, cellCol, driftList, driftSlot, occupied, rowWords,
-  padRows, padCols, padStride, padTotal, padY, padPhi, padCell, cellPad, padBits, padRowBytes,
+  padRows, padCols, padStride, padTotal, padY, padPhi, padCell, cellPad, padBits, padRowBytes, cellSlot, slotCell,
   getF64, setF64, getI32, setI32 } from './layout';
 import { invR2, etaMin, invEtaPitch, invPhiPitch, insideY, insidePhi, PI, TWO_PI, BEAM } from './settings';
 import { weightOf, needsWideSearch } from './kinematics';
@@ -159,7 +159,13 @@ export function freeCellNear(y: f64, phi: f64, fallback: i32): i32 {
   return occupied + ((<usize>(getI32(cellRow, c) * rowWords + (getI32(cellCol, c) >> 6))) << 3);
 }
 
-/** Jet `jet` moves into the empty cell c, with no neighbour yet. */
+/** Slot s (the tournament's leaf) belongs to cell c from now on. */
+export function assignSlot(c: i32, s: i32): void {
+  setI32(cellSlot, c, s);
+  setI32(slotCell, s, c);
+}
+
+/** Jet `jet` moves into the empty cell c, with no neighbour yet (its slot is the caller's). */
 export function placeJet(c: i32, jet: i32): void {
   const word = occupancyWord(c);
   store<u64>(word, load<u64>(word) | (<u64>1 << <u64>(getI32(cellCol, c) & 63)));
@@ -196,7 +202,7 @@ export function placeJet(c: i32, jet: i32): void {
   }
 }
 
-/** Cell c becomes empty; its lists must already be detached. */
+/** Cell c becomes empty (its slot's candidate too); its lists must already be detached. */
 export function clearCell(c: i32): void {
   const word = occupancyWord(c);
   store<u64>(word, load<u64>(word) & ~(<u64>1 << <u64>(getI32(cellCol, c) & 63)));
@@ -213,7 +219,7 @@ export function clearCell(c: i32): void {
   setF64(cellY, c, Infinity);
   setF64(cellPhi, c, 0);
   writePadded(c, Infinity, 0, false);
-  setEmptyCandidate(c);
+  setEmptyCandidate(getI32(cellSlot, c));
 }
 
 /** Takes c out of the list of the cell it points at. */
@@ -276,9 +282,9 @@ export function refreshCandidate(c: i32): void {
     const d = (min<f64>(w, getF64(cellW, q)) * getF64(cellNnDR2, c)) * invR2;
     // on equal measures the pair comes first: its smaller index is <= i and its larger < BEAM
     if (d <= w) {
-      setCandidate(c, d, min<i32>(i, j), max<i32>(i, j));
+      setCandidate(getI32(cellSlot, c), d, min<i32>(i, j), max<i32>(i, j));
       return;
     }
   }
-  setCandidate(c, w, i, BEAM);
+  setCandidate(getI32(cellSlot, c), w, i, BEAM);
 }

@@ -11,12 +11,12 @@
 //   cells    cellY cellPhi cellW cellNnDR2 cellNnKey f64[C]
 //            cellJet cellNn pointHead pointNext pointPrev cellWide cellRow cellCol i32[C]
 //            driftList driftSlot i32[C]   (the cells whose jet is off its cell centre)
-//            candLo candHi i32[P]
+//            candLo candHi i32[P]  (per slot, tournament.ts)  cellSlot slotCell i32[C]
 //   rows     rowDriftY rowDriftPhi f64[etaBins]  occupied u64[etaBins * rowWords]  (bit iphi of row
 //            ieta set while cell (ieta, iphi) holds a jet; rowWords = ceil(phiBins / 64))
-//   tree     tree i32[2P]  nodeValue f64[2P]   (P = power of two >= C; node n < P holds the
-//            winning leaf of its subtree and its measure; tree[P + c] = c, and candValue =
-//            nodeValue + P is the leaves' measure; leaves c >= C stay empty)
+//   tree     tree i32[2P]  nodeValue f64[2P]   (P = power of two >= C; per event a tree of
+//            L <= P leaves, L the power of two >= its towers: node n < L holds the winning slot of
+//            its subtree and its measure, tree[L + s] = s and nodeValue[L + s] slot s's measure)
 //   jets     jetPx jetPy jetPz jetE jetKt2 jetY jetPhi f64[2C]  jetInto jetLabel i32[2C]
 //   finals   finalJet finalOrder finalScratch i32[C]  finalPt f64[C]  redo i32[C]
 //   offsets  offDr offDc offStep i32[O]  offDist f64[O]  offPerm offScratch offTmpI i32[O]
@@ -84,7 +84,6 @@ export let cellPhi: usize = 0;
 export let cellW: usize = 0;
 export let cellNnDR2: usize = 0;
 export let cellNnKey: usize = 0;
-export let candValue: usize = 0;
 export let cellJet: usize = 0;
 export let cellNn: usize = 0;
 export let pointHead: usize = 0;
@@ -92,6 +91,8 @@ export let pointNext: usize = 0;
 export let pointPrev: usize = 0;
 export let candLo: usize = 0;
 export let candHi: usize = 0;
+export let cellSlot: usize = 0;
+export let slotCell: usize = 0;
 export let cellWide: usize = 0;
 export let cellRow: usize = 0;
 export let cellCol: usize = 0;
@@ -222,6 +223,8 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   pointPrev = take(cells << 2);
   candLo = take(<usize>p << 2);
   candHi = take(<usize>p << 2);
+  cellSlot = take(cells << 2);
+  slotCell = take(cells << 2);
   cellWide = take(cells << 2);
   cellRow = take(cells << 2);
   cellCol = take(cells << 2);
@@ -234,7 +237,6 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   rowDriftPhi = take(<usize>etaCount << 3);
   tree = take(<usize>p << 3); // 2P entries of i32
   nodeValue = take(<usize>p << 4);
-  candValue = nodeValue + (<usize>p << 3);
 
   jetPx = take(jets << 3);
   jetPy = take(jets << 3);

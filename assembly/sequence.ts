@@ -7,14 +7,14 @@
 // finalJet i32[finalCount]: the final jets in the order they became final. redo i32: the cells
 // whose neighbour went away in the current step.
 
-import { evIndex, evEt, cellJet, cellNn, candHi, jetInto, jetY, jetPhi, finalJet, redo, treeLeaves,
-  getF64, getI32, setI32 } from './layout';
+import { evIndex, evEt, cellJet, cellNn, candHi, jetInto, jetY, jetPhi, finalJet, redo, cellSlot,
+  slotCell, getF64, getI32, setI32 } from './layout';
 import { BEAM } from './settings';
 import { loadTower, mergeJets } from './kinematics';
-import { resetDrift, placeJet, clearCell, unlink, detachPointers, freeCellNear,
+import { resetDrift, placeJet, clearCell, unlink, detachPointers, freeCellNear, assignSlot,
   centreOffsetY, centreOffsetPhi } from './cells';
 import { findNeighbour, scanNewJet, setSeedCell } from './tiles';
-import { buildTree, updateTree, treeWinner } from './tournament';
+import { startTree, buildTree, updateTree, treeWinner } from './tournament';
 
 export let finalCount: i32 = 0;
 export let jetCount: i32 = 0;
@@ -24,7 +24,7 @@ function redoSearches(count: i32, skip: i32): void {
     const c = getI32(redo, k);
     if (c == skip || getI32(cellJet, c) < 0) continue;
     findNeighbour(c);
-    updateTree(c);
+    updateTree(getI32(cellSlot, c));
   }
 }
 
@@ -33,7 +33,7 @@ function finish(c: i32): void {
   const count = detachPointers(c, redo, 0);
   unlink(c);
   clearCell(c);
-  updateTree(c);
+  updateTree(getI32(cellSlot, c));
   redoSearches(count, -1);
 }
 
@@ -61,11 +61,15 @@ function merge(ca: i32, cb: i32): void {
   const da = centreOffsetY(ca, y) + centreOffsetPhi(ca, phi);
   const db = centreOffsetY(cb, y) + centreOffsetPhi(cb, phi);
   const ck = freeCellNear(y, phi, db < da ? cb : ca);
+  // the new jet takes one parent's slot; the other stays empty for the rest of the event
+  const sa = getI32(cellSlot, ca);
+  const sb = getI32(cellSlot, cb);
+  const sk = min<i32>(sa, sb);
+  assignSlot(ck, sk);
   placeJet(ck, k);
   scanNewJet(ck);
-  updateTree(ck);
-  if (ca != ck) updateTree(ca);
-  if (cb != ck) updateTree(cb);
+  updateTree(sk);
+  updateTree(sa ^ sb ^ sk);
   setSeedCell(ck);
   redoSearches(count, ck);
   setSeedCell(-1);
@@ -74,22 +78,22 @@ function merge(ca: i32, cb: i32): void {
 /** Clusters the n towers in evIndex/evEt; the final jets end up in finalJet[0..finalCount). */
 export function clusterTowers(n: i32): void {
   resetDrift();
+  startTree(n);
   finalCount = 0;
   jetCount = n;
   for (let t = 0; t < n; t++) {
     loadTower(t, getI32(evIndex, t), getF64(evEt, t));
     setI32(jetInto, t, -1);
+    assignSlot(getI32(evIndex, t), t);
     placeJet(getI32(evIndex, t), t);
   }
   for (let t = 0; t < n; t++) findNeighbour(getI32(evIndex, t));
-  // few towers: replay their paths only (the tree is valid while every leaf is empty)
-  if (n * (32 - clz<i32>(treeLeaves)) < treeLeaves) {
-    for (let t = 0; t < n; t++) updateTree(getI32(evIndex, t));
-  } else buildTree();
+  buildTree();
   let live = n;
   while (live > 0) {
-    const c = treeWinner();
-    if (getI32(candHi, c) == BEAM) {
+    const s = treeWinner();
+    const c = getI32(slotCell, s);
+    if (getI32(candHi, s) == BEAM) {
       finish(c);
     } else {
       merge(c, getI32(cellNn, c));
@@ -102,8 +106,10 @@ export function clusterTowers(n: i32): void {
  * the reach) into out; the cells are left empty. */
 export function firstNeighbours(n: i32, out: usize): void {
   resetDrift();
+  startTree(n);
   for (let t = 0; t < n; t++) {
     loadTower(t, getI32(evIndex, t), getF64(evEt, t));
+    assignSlot(getI32(evIndex, t), t);
     placeJet(getI32(evIndex, t), t);
   }
   for (let t = 0; t < n; t++) findNeighbour(getI32(evIndex, t));

@@ -20,7 +20,7 @@ import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellWi
   occupied, rowWords,
   rowDriftY, rowDriftPhi, driftList,
   etaBins, phiBins, offDr, offDc, offDist, offPerm, offScratch, offTmpI, offTmpF, OFFSET_LIMIT,
-  offStep, padY, padPhi, padCell, cellPad, padStride, padRows, padCols, padBits, padRowBytes, reservePadding,
+  cellSlot, offStep, padY, padPhi, padCell, cellPad, padStride, padRows, padCols, padBits, padRowBytes, reservePadding,
   getF64, setF64, getI32, setI32 } from './layout';
 import { invR2, reach2, reach, etaMin, etaPitch, phiPitch, invEtaPitch, invPhiPitch, insideY, insidePhi, insideNorm, BEAM } from './settings';
 import { deltaR2 } from './kinematics';
@@ -312,7 +312,7 @@ export function findNeighbour(c: i32): void {
   const key = (getF64(cellW, q) * d) * invR2;
   if (key < getF64(cellNnKey, q)) {
     setNeighbour(q, ck, d, key);
-    updateTree(q);
+    updateTree(getI32(cellSlot, q));
   }
 }
 
