@@ -210,13 +210,13 @@ let winPhi: f64 = 0;
 let winU: f64 = 0;
 let winV: f64 = 0;
 
-/** widen: how far jets may sit from their cell centres in y */
-function openWindow(y: f64, phi: f64, widen: f64): void {
+/** the rows within radius + widen of y (widen: how far jets may sit from their cell centres in y) */
+function openWindow(y: f64, phi: f64, radius: f64, widen: f64): void {
   winY = y;
   winPhi = phi;
   winU = (y - etaMin) * invEtaPitch - 0.5;
   winV = phi * invPhiPitch - 0.5;
-  const ry = (reach + widen) * invEtaPitch * (1 + 1e-9) + 1e-9;
+  const ry = (radius + widen) * invEtaPitch * (1 + 1e-9) + 1e-9;
   const r0 = ceil<f64>(winU - ry);
   const r1 = floor<f64>(winU + ry);
   if (r0 == r0 && r1 == r1) {
@@ -276,7 +276,7 @@ function searchWindow(c: i32): void {
   const y = getF64(cellY, c);
   const phi = getF64(cellPhi, c);
   const w = getF64(cellW, c);
-  openWindow(y, phi, driftY);
+  openWindow(y, phi, reach, driftY);
   for (let r = winRow0; r <= winRow1; r++) {
     if (!rowRuns(r)) continue;
     const base = r * phiBins;
@@ -296,13 +296,86 @@ function searchAll(c: i32): void {
   }
 }
 
+/**
+ * A search from scratch once jets have moved (not the first table): the listed jets and the
+ * step's new jet first, then one box in the padded rows around the jet, as wide as the best so
+ * far (or the reach) plus how far unlisted jets can sit from their cell centres. false when the
+ * box does not fit in the padding or too many jets are listed.
+ * Measured: against the walk over ordered offsets, whose bound must allow half a cell diagonal
+ * for every other jet, the box visits only occupied cells and widens by half a cell per axis.
+ */
+function searchBox(c: i32): bool {
+  if (driftCount > LIST_MAX) return false;
+  const y = getF64(cellY, c);
+  const phi = getF64(cellPhi, c);
+  const w = getF64(cellW, c);
+  for (let k = 0; k < driftCount; k++) {
+    const q = getI32(driftList, k);
+    if (q == c) continue;
+    const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
+    if (d <= reach2) offerBest(q, d, (w * d) * invR2);
+  }
+  if (seedCell >= 0 && seedCell != c) {
+    const d = deltaR2(y, phi, getF64(cellY, seedCell), getF64(cellPhi, seedCell));
+    if (d <= reach2) offerBest(seedCell, d, (w * d) * invR2);
+  }
+  // an equal key can come from a slightly larger dR2, hence the margin
+  const radius = bestCell >= 0 ? min<f64>(reach, sqrt<f64>(bestDR2) * (1 + 1e-8) + 1e-12) : reach;
+  if (!boxColumns(phi, radius, min<f64>(driftPhi, insidePhi))) return false;
+  const p0 = boxFirst;
+  const p1 = boxLast;
+  if (p1 < p0) return true;
+  openWindow(y, phi, radius, min<f64>(driftY, insideY));
+  const mask = (<u64>1 << <u64>(p1 - p0 + 1)) - 1;
+  const shift = <u64>(p0 & 7);
+  const bitsBase = padBits + <usize>(p0 >> 3);
+  const rowBytes = <usize>padRowBytes;
+  const stride = padStride;
+  const row1 = winRow1;
+  const r2 = reach2;
+  const scale = invR2;
+  let bc = bestCell;
+  let bj = bestJet;
+  let bd = bestDR2;
+  let bk = bestKey;
+  for (let r = winRow0; r <= row1; r++) {
+    let bits = (load<u64>(bitsBase + <usize>(r + padRows) * rowBytes) >> shift) & mask;
+    const start = (r + padRows) * stride + p0;
+    while (bits != 0) {
+      const q = getI32(padCell, start + <i32>ctz<u64>(bits));
+      bits &= bits - 1;
+      const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
+      const key = (w * d) * scale;
+      if ((d <= r2) & (key <= bk) & (q != c)) {
+        const j = getI32(cellJet, q);
+        if (key < bk || (key == bk && j < bj)) {
+          bc = q;
+          bj = j;
+          bd = d;
+          bk = key;
+        }
+      }
+    }
+  }
+  bestCell = bc;
+  bestJet = bj;
+  bestDR2 = bd;
+  bestKey = bk;
+  return true;
+}
+
 /** Finds cell c's neighbour from scratch and sets it (the tree is the caller's). */
 export function findNeighbour(c: i32): void {
   resetBest();
   if (getI32(cellWide, c) != 0) searchAll(c);
-  else if (!searchOrdered(c)) {
+  else if (driftNorm > 0 && searchBox(c)) {
+    // found in the box
+  } else {
     resetBest();
-    searchWindow(c);
+    if (!searchOrdered(c)) {
+      resetBest();
+      searchWindow(c);
+    }
   }
   setNeighbour(c, bestCell, bestDR2, bestKey);
 }
@@ -360,17 +433,34 @@ function scanWindow(ck: i32, y: f64, phi: f64, w: f64, rectangle: bool): void {
  * loop). false when the run does not fit (longer than 57 columns or the padding); the caller
  * then scans the window by the rows' own bits.
  */
-function scanRectangle(ck: i32, y: f64, phi: f64, w: f64, widenY: f64, widenPhi: f64): bool {
-  const half = (reach + widenPhi) * invPhiPitch * (1 + 1e-9) + 1e-9;
+// the padded columns of the current box: boxFirst..boxLast
+let boxFirst: i32 = 0;
+let boxLast: i32 = -1;
+
+/** The padded columns within radius + widen of phi, as one run; false when it does not fit. */
+function boxColumns(phi: f64, radius: f64, widen: f64): bool {
+  const half = (radius + widen) * invPhiPitch * (1 + 1e-9) + 1e-9;
   const v = phi * invPhiPitch - 0.5;
   const c0 = ceil<f64>(v - half);
   const c1 = floor<f64>(v + half);
   if (!(c1 - c0 + 1 < <f64>min<i32>(phiBins, 58))) return false; // also a non-finite phi
+  boxFirst = 0;
+  boxLast = -1;
   if (c1 < c0) return true; // no column within reach
   const p0 = <i32>c0 + padCols;
   const p1 = <i32>c1 + padCols;
   if (p0 < 0 || p1 >= padStride) return false;
-  openWindow(y, phi, widenY);
+  boxFirst = p0;
+  boxLast = p1;
+  return true;
+}
+
+function scanRectangle(ck: i32, y: f64, phi: f64, w: f64, widenY: f64, widenPhi: f64): bool {
+  if (!boxColumns(phi, reach, widenPhi)) return false;
+  const p0 = boxFirst;
+  const p1 = boxLast;
+  if (p1 < p0) return true;
+  openWindow(y, phi, reach, widenY);
   const mask = (<u64>1 << <u64>(p1 - p0 + 1)) - 1;
   const shift = <u64>(p0 & 7);
   const bitsBase = padBits + <usize>(p0 >> 3);
@@ -428,7 +518,7 @@ export function scanNewJet(ck: i32): void {
       const widenY = min<f64>(driftY, insideY);
       const widenPhi = min<f64>(driftPhi, insidePhi);
       if (!scanRectangle(ck, y, phi, w, widenY, widenPhi)) {
-        openWindow(y, phi, widenY);
+        openWindow(y, phi, reach, widenY);
         if (columnRuns((reach + widenPhi) * invPhiPitch)) scanWindow(ck, y, phi, w, true);
       }
       for (let k = 0; k < driftCount; k++) {
@@ -439,7 +529,7 @@ export function scanNewJet(ck: i32): void {
         offerIfNearer(q, ck, d);
       }
     } else {
-      openWindow(y, phi, driftY);
+      openWindow(y, phi, reach, driftY);
       scanWindow(ck, y, phi, w, false);
     }
     setF64(cellY, ck, y);
