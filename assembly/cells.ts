@@ -17,7 +17,7 @@
 import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellNn, cellWide,
   pointHead, pointNext, pointPrev, etaCentre, phiCentre, etaBins, phiBins, jetY, jetPhi, jetKt2,
   rowDriftY, rowDriftPhi, cellRow, cellCol, driftList, driftSlot, occupied, rowWords,
-  padRows, padCols, padStride, padTotal, padY, padPhi, padCell, cellPad, padBits, padRowBytes, cellSlot, slotCell,
+  padRows, padCols, padStride, padTotal, padY, padPhi, padCell, cellPad, padBits, padRowBytes, bitStep, cellSlot, slotCell,
   getF64, setF64, getI32, setI32 } from './layout';
 import { invR2, etaMin, invEtaPitch, invPhiPitch, insideY, insidePhi, PI, TWO_PI, BEAM } from './settings';
 import { weightOf, needsWideSearch } from './kinematics';
@@ -60,6 +60,9 @@ export function initPadding(): void {
     setI32(cellPad, c, (getI32(cellRow, c) + padRows) * padStride + getI32(cellCol, c) + padCols);
   }
   memory.fill(padBits, 0, <usize>(etaBins + 2 * padRows) * <usize>padRowBytes);
+  for (let width = 1; width < 58; width++) {
+    for (let k = 0; k < 64; k++) setI32(bitStep, width * 64 + k, (k / width) * padStride + k % width);
+  }
 }
 
 // @ts-ignore: decorator

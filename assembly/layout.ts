@@ -30,6 +30,8 @@
 //            padBits u64[(etaBins + 2 * padRows) * padRowBytes / 8]   (bit k of padded row r set
 //            while padded cell (r, k) holds a jet; 8 spare bytes per row, so that any run of up
 //            to 57 columns is one unaligned load)
+//            bitStep i32[58 * 64]   (bitStep[width * 64 + k] = (k / width) * padStride + k % width:
+//            bit k of several rows' runs of `width` columns packed into one word, as a padded step)
 //
 // IN is the batch tower capacity, EV the batch event capacity. Cell c = ieta * phiBins + iphi;
 // an empty cell has cellY = +Infinity and cellJet = -1.
@@ -141,6 +143,7 @@ export let padCell: usize = 0;
 export let cellPad: usize = 0;
 export let padBits: usize = 0;
 export let padRowBytes: i32 = 0;
+export let bitStep: usize = 0;
 
 // @ts-ignore: decorator
 @inline export function getF64(base: usize, i: i32): f64 { return load<f64>(base + (<usize>i << 3)); }
@@ -291,5 +294,6 @@ export function reservePadding(rows: i32, cols: i32): bool {
   cellPad = take(<usize>cellTotal << 2);
   padRowBytes = (((padStride + 63) >> 6) << 3) + 8;
   padBits = take(<usize>(etaBins + 2 * rows) * <usize>padRowBytes);
+  bitStep = take(58 * 64 * 4);
   return growTo(cursor);
 }

@@ -20,7 +20,7 @@ import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellWi
   occupied, rowWords,
   rowDriftY, rowDriftPhi, driftList,
   etaBins, phiBins, offDr, offDc, offDist, offPerm, offScratch, offTmpI, offTmpF, OFFSET_LIMIT,
-  cellSlot, offStep, padY, padPhi, padCell, cellPad, padStride, padRows, padCols, padBits, padRowBytes, reservePadding,
+  cellSlot, bitStep, offStep, padY, padPhi, padCell, cellPad, padStride, padRows, padCols, padBits, padRowBytes, reservePadding,
   getF64, setF64, getI32, setI32 } from './layout';
 import { invR2, reach2, reach, etaMin, etaPitch, phiPitch, invEtaPitch, invPhiPitch, insideY, insidePhi, insideNorm, BEAM } from './settings';
 import { deltaR2 } from './kinematics';
@@ -326,10 +326,10 @@ function searchBox(c: i32): bool {
   const p1 = boxLast;
   if (p1 < p0) return true;
   openWindow(y, phi, radius, min<f64>(driftY, insideY));
-  const mask = (<u64>1 << <u64>(p1 - p0 + 1)) - 1;
-  const shift = <u64>(p0 & 7);
-  const bitsBase = padBits + <usize>(p0 >> 3);
-  const rowBytes = <usize>padRowBytes;
+  const width = p1 - p0 + 1;
+  const mask = (<u64>1 << <u64>width) - 1;
+  const steps = bitStep + (<usize>(width << 6) << 2);
+  const group = rowsPerWord(width);
   const stride = padStride;
   const row1 = winRow1;
   const r2 = reach2;
@@ -338,11 +338,11 @@ function searchBox(c: i32): bool {
   let bj = bestJet;
   let bd = bestDR2;
   let bk = bestKey;
-  for (let r = winRow0; r <= row1; r++) {
-    let bits = (load<u64>(bitsBase + <usize>(r + padRows) * rowBytes) >> shift) & mask;
+  for (let r = winRow0; r <= row1; r += group) {
+    let bits = packedRows(r, min<i32>(r + group - 1, row1), p0, width, mask);
     const start = (r + padRows) * stride + p0;
     while (bits != 0) {
-      const q = getI32(padCell, start + <i32>ctz<u64>(bits));
+      const q = getI32(padCell, start + getI32(steps, <i32>ctz<u64>(bits)));
       bits &= bits - 1;
       const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
       const key = (w * d) * scale;
@@ -455,24 +455,48 @@ function boxColumns(phi: f64, radius: f64, widen: f64): bool {
   return true;
 }
 
+// @ts-ignore: decorator
+@inline function rowsPerWord(width: i32): i32 {
+  return 64 / width;
+}
+
+/**
+ * The occupancy of rows r..last of the box's columns (p0, width wide) packed into one word, row
+ * after row: one loop over the set bits then covers several rows, so its exit (a branch no
+ * predictor learns) is taken once per word, not once per row.
+ */
+// @ts-ignore: decorator
+@inline function packedRows(r: i32, last: i32, p0: i32, width: i32, mask: u64): u64 {
+  const bitsBase = padBits + <usize>(p0 >> 3);
+  const rowBytes = <usize>padRowBytes;
+  const shift = <u64>(p0 & 7);
+  let bits: u64 = 0;
+  let at: u64 = 0;
+  for (let row = r; row <= last; row++) {
+    bits |= ((load<u64>(bitsBase + <usize>(row + padRows) * rowBytes) >> shift) & mask) << at;
+    at += <u64>width;
+  }
+  return bits;
+}
+
 function scanRectangle(ck: i32, y: f64, phi: f64, w: f64, widenY: f64, widenPhi: f64): bool {
   if (!boxColumns(phi, reach, widenPhi)) return false;
   const p0 = boxFirst;
   const p1 = boxLast;
   if (p1 < p0) return true;
   openWindow(y, phi, reach, widenY);
-  const mask = (<u64>1 << <u64>(p1 - p0 + 1)) - 1;
-  const shift = <u64>(p0 & 7);
-  const bitsBase = padBits + <usize>(p0 >> 3);
-  const rowBytes = <usize>padRowBytes;
+  const width = p1 - p0 + 1;
+  const mask = (<u64>1 << <u64>width) - 1;
+  const steps = bitStep + (<usize>(width << 6) << 2);
+  const group = rowsPerWord(width);
   const stride = padStride;
   const row1 = winRow1;
-  for (let r = winRow0; r <= row1; r++) {
-    let bits = (load<u64>(bitsBase + <usize>(r + padRows) * rowBytes) >> shift) & mask;
+  for (let r = winRow0; r <= row1; r += group) {
+    let bits = packedRows(r, min<i32>(r + group - 1, row1), p0, width, mask);
     const start = (r + padRows) * stride + p0;
     while (bits != 0) {
       // the real cell: the new jet's own reads y = +Inf meanwhile
-      const q = getI32(padCell, start + <i32>ctz<u64>(bits));
+      const q = getI32(padCell, start + getI32(steps, <i32>ctz<u64>(bits)));
       bits &= bits - 1;
       const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
       const key = (w * d) * invR2;
