@@ -24,6 +24,8 @@ import { weightOf, needsWideSearch } from './kinematics';
 import { setCandidate, setEmptyCandidate } from './tournament';
 
 export let wideCount: i32 = 0;
+/** cells holding a jet */
+export let liveCells: i32 = 0;
 export let driftY: f64 = 0;
 export let driftPhi: f64 = 0;
 export let driftNorm: f64 = 0;
@@ -99,6 +101,7 @@ export function resetDrift(): void {
   driftNorm = 0;
   driftCount = 0;
   wideCount = 0;
+  liveCells = 0;
   memory.fill(rowDriftY, 0, <usize>etaBins << 3);
   memory.fill(rowDriftPhi, 0, <usize>etaBins << 3);
 }
@@ -187,6 +190,7 @@ export function placeJet(c: i32, jet: i32): void {
   const wide = needsWideSearch(w) ? 1 : 0;
   setI32(cellWide, c, wide);
   wideCount += wide;
+  liveCells++;
   const dy = centreOffsetY(c, y);
   const dphi = centreOffsetPhi(c, phi);
   if (dy > 0 || dphi > 0) {
@@ -217,6 +221,7 @@ export function clearCell(c: i32): void {
     setI32(driftSlot, c, -1);
   }
   wideCount -= getI32(cellWide, c);
+  liveCells--;
   setI32(cellWide, c, 0);
   setI32(cellJet, c, -1);
   setF64(cellY, c, Infinity);

@@ -24,7 +24,7 @@ import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellWi
   getF64, setF64, getI32, setI32 } from './layout';
 import { invR2, reach2, reach, etaMin, etaPitch, phiPitch, invEtaPitch, invPhiPitch, insideY, insidePhi, insideNorm, BEAM } from './settings';
 import { deltaR2 } from './kinematics';
-import { driftY, driftPhi, driftNorm, driftCount, wideCount, centreOffsetY, centreOffsetPhi, setNeighbour } from './cells';
+import { driftY, driftPhi, driftNorm, driftCount, wideCount, liveCells, centreOffsetY, centreOffsetPhi, setNeighbour } from './cells';
 import { updateTree } from './tournament';
 import { sortPermutation } from './sort';
 
@@ -45,6 +45,8 @@ export function setSeedCell(c: i32): void {
 }
 
 let offCount: i32 = 0;
+/** the typical nearest-neighbour distance on a full grid (a cell pitch, a little more) */
+let nearGuess: f64 = 0;
 /** every offset whose centre distance is at most this is in the list */
 let offReach: f64 = 0;
 
@@ -113,6 +115,7 @@ export function buildOffsets(): bool {
     colReach = max<i32>(colReach, abs<i32>(dc));
   }
   offCount = n;
+  nearGuess = 1.2 * max<f64>(etaPitch, phiPitch);
   if (!reservePadding(rowReach, colReach)) return false;
   for (let o = 0; o < n; o++) setI32(offStep, o, getI32(offDr, o) * padStride + getI32(offDc, o));
   return true;
@@ -319,8 +322,26 @@ function searchBox(c: i32): bool {
     const d = deltaR2(y, phi, getF64(cellY, seedCell), getF64(cellPhi, seedCell));
     if (d <= reach2) offerBest(seedCell, d, (w * d) * invR2);
   }
-  // an equal key can come from a slightly larger dR2, hence the margin
-  const radius = bestCell >= 0 ? min<f64>(reach, sqrt<f64>(bestDR2) * (1 + 1e-8) + 1e-12) : reach;
+  // a first box as wide as the typical neighbour distance at this occupancy: enough when the
+  // best lies inside it; else one box as wide as the best so far (or the reach)
+  const guess = nearGuess * sqrt<f64>(<f64>cellTotal / <f64>max<i32>(liveCells, 1));
+  if (guess < bestRadius()) {
+    if (!scanBox(c, y, phi, w, guess)) return false;
+    if (bestCell >= 0 && bestRadius() <= guess) return true;
+  }
+  return scanBox(c, y, phi, w, bestRadius());
+}
+
+/** The radius that holds every jet whose key can beat or tie the best so far (an equal key can
+ * come from a slightly larger dR2, hence the margin), or the reach. */
+// @ts-ignore: decorator
+@inline function bestRadius(): f64 {
+  return bestCell >= 0 ? min<f64>(reach, sqrt<f64>(bestDR2) * (1 + 1e-8) + 1e-12) : reach;
+}
+
+/** Offers every jet in the box of padded rows within radius (plus how far unlisted jets can sit
+ * from their centres) of cell c's jet; false when the box does not fit in the padding. */
+function scanBox(c: i32, y: f64, phi: f64, w: f64, radius: f64): bool {
   if (!boxColumns(phi, radius, min<f64>(driftPhi, insidePhi))) return false;
   const p0 = boxFirst;
   const p1 = boxLast;
@@ -368,7 +389,7 @@ function searchBox(c: i32): bool {
 export function findNeighbour(c: i32): void {
   resetBest();
   if (getI32(cellWide, c) != 0) searchAll(c);
-  else if (driftNorm > 0 && searchBox(c)) {
+  else if (driftNorm > 0 && centreOffsetY(c, getF64(cellY, c)) + centreOffsetPhi(c, getF64(cellPhi, c)) > 0 && searchBox(c)) {
     // found in the box
   } else {
     resetBest();
