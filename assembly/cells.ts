@@ -251,9 +251,9 @@ export function detachPointers(q: i32, stack: usize, count: i32): i32 {
   while (c >= 0) {
     const next = getI32(pointNext, c);
     setI32(cellNn, c, -1);
-    // -Inf until its search from scratch: a new jet's offer (d < cellNnDR2) would be redone anyway
+    // -Inf until its search from scratch: a new jet's offer (d < cellNnDR2) would be redone anyway.
+    // cellNnKey keeps the lost neighbour's key for the search's shortcut (sequence.ts)
     setF64(cellNnDR2, c, -Infinity);
-    setF64(cellNnKey, c, Infinity);
     setI32(stack, count++, c);
     c = next;
   }

@@ -7,11 +7,11 @@
 // finalJet i32[finalCount]: the final jets in the order they became final. redo i32: the cells
 // whose neighbour went away in the current step.
 
-import { evIndex, evEt, cellJet, cellNn, candHi, jetInto, jetY, jetPhi, finalJet, redo, cellSlot,
-  slotCell, getF64, getI32, setI32 } from './layout';
-import { BEAM } from './settings';
-import { loadTower, mergeJets } from './kinematics';
-import { resetDrift, placeJet, clearCell, unlink, detachPointers, freeCellNear, assignSlot,
+import { evIndex, evEt, cellJet, cellNn, cellY, cellPhi, cellW, cellNnKey, candHi, jetInto, jetY,
+  jetPhi, finalJet, redo, cellSlot, slotCell, getF64, getI32, setI32 } from './layout';
+import { BEAM, invR2 } from './settings';
+import { loadTower, mergeJets, deltaR2 } from './kinematics';
+import { resetDrift, placeJet, clearCell, unlink, detachPointers, freeCellNear, assignSlot, setNeighbour,
   centreOffsetY, centreOffsetPhi } from './cells';
 import { findNeighbour, scanNewJet, setSeedCell } from './tiles';
 import { startTree, buildTree, updateTree, treeWinner } from './tournament';
@@ -19,10 +19,25 @@ import { startTree, buildTree, updateTree, treeWinner } from './tournament';
 export let finalCount: i32 = 0;
 export let jetCount: i32 = 0;
 
-function redoSearches(count: i32, skip: i32): void {
+/**
+ * The jets in redo[0..count) lost their neighbour; each searches again, except that a jet whose
+ * key to the step's new jet (in cell `seed`, or -1) is strictly below its lost neighbour's key
+ * takes the new jet at once: every other jet was already after the lost neighbour in its order
+ * (its neighbour was exact), so none can come before the new jet.
+ */
+function redoSearches(count: i32, seed: i32): void {
   for (let k = 0; k < count; k++) {
     const c = getI32(redo, k);
-    if (c == skip || getI32(cellJet, c) < 0) continue;
+    if (c == seed || getI32(cellJet, c) < 0) continue;
+    if (seed >= 0) {
+      const d = deltaR2(getF64(cellY, c), getF64(cellPhi, c), getF64(cellY, seed), getF64(cellPhi, seed));
+      const key = (getF64(cellW, c) * d) * invR2;
+      if (key < getF64(cellNnKey, c)) {
+        setNeighbour(c, seed, d, key);
+        updateTree(getI32(cellSlot, c));
+        continue;
+      }
+    }
     findNeighbour(c);
     updateTree(getI32(cellSlot, c));
   }
