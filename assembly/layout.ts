@@ -10,7 +10,7 @@
 //   event    evIndex i32[C]  evEt f64[C]  sortIndex i32[C]  sortEt f64[C]  radixCount i32[2048]
 //   cells    cellY cellPhi cellW cellNnDR2 cellNnKey f64[C]
 //            cellJet cellNn pointHead pointNext pointPrev cellWide cellRow cellCol i32[C]
-//            driftList driftSlot i32[C]   (the cells whose jet is off its cell centre)
+//            driftList driftSlot i32[C]   (the cells whose jet lies outside its cell's own area)
 //            candLo candHi i32[P]  (per slot, tournament.ts)  cellSlot slotCell i32[C]
 //   rows     rowDriftY rowDriftPhi f64[etaBins]  occupied u64[etaBins * rowWords]  (bit iphi of row
 //            ieta set while cell (ieta, iphi) holds a jet; rowWords = ceil(phiBins / 64))
