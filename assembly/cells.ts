@@ -16,7 +16,7 @@
 
 import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellNn, cellWide,
   pointHead, pointNext, pointPrev, etaCentre, phiCentre, etaBins, phiBins, jetY, jetPhi, jetKt2,
-  rowDriftY, rowDriftPhi, cellRow, cellCol, driftList, driftSlot, occupied, rowWords,
+  rowDriftY, rowDriftPhi, cellRow, cellCol, driftList, driftSlot, cellCopyStep,
   padRows, padCols, padStride, padTotal, padY, padPhi, padCell, cellPad, padBits, padRowBytes, bitStep, cellSlot, slotCell,
   getF64, setF64, getI32, setI32 } from './layout';
 import { invR2, etaMin, invEtaPitch, invPhiPitch, insideY, insidePhi, PI, TWO_PI, BEAM } from './settings';
@@ -59,7 +59,9 @@ export function initPadding(): void {
     setI32(padCell, q, row >= 0 && row < etaBins ? row * phiBins + col : -1);
   }
   for (let c = 0; c < cellTotal; c++) {
-    setI32(cellPad, c, (getI32(cellRow, c) + padRows) * padStride + getI32(cellCol, c) + padCols);
+    const col = getI32(cellCol, c);
+    setI32(cellPad, c, (getI32(cellRow, c) + padRows) * padStride + col + padCols);
+    setI32(cellCopyStep, c, col < padCols ? phiBins : col >= phiBins - padCols ? -phiBins : 0);
   }
   memory.fill(padBits, 0, <usize>(etaBins + 2 * padRows) * <usize>padRowBytes);
   for (let width = 1; width < 58; width++) {
@@ -74,25 +76,20 @@ export function initPadding(): void {
   store<u64>(word, on ? load<u64>(word) | bit : load<u64>(word) & ~bit);
 }
 
-/** Cell c's y, phi and occupancy into its padded cell and the copies of it past the row's other
- * end. */
+/** Cell c's y, phi and occupancy into its padded cell and its copy past the row's other end
+ * (a cell has at most one, since padCols <= phiBins / 2; a cell without one writes its own cell
+ * twice, which spares a branch). */
 function writePadded(c: i32, y: f64, phi: f64, on: bool): void {
   const q = getI32(cellPad, c);
-  const col = getI32(cellCol, c);
+  const step = getI32(cellCopyStep, c);
+  const column = getI32(cellCol, c) + padCols;
   const bits = padBits + <usize>(getI32(cellRow, c) + padRows) * <usize>padRowBytes;
   setF64(padY, q, y);
   setF64(padPhi, q, phi);
-  setPaddedBit(bits, col + padCols, on);
-  for (let cc = col + phiBins; cc < phiBins + padCols; cc += phiBins) {
-    setF64(padY, q + cc - col, y);
-    setF64(padPhi, q + cc - col, phi);
-    setPaddedBit(bits, cc + padCols, on);
-  }
-  for (let cc = col - phiBins; cc >= -padCols; cc -= phiBins) {
-    setF64(padY, q + cc - col, y);
-    setF64(padPhi, q + cc - col, phi);
-    setPaddedBit(bits, cc + padCols, on);
-  }
+  setF64(padY, q + step, y);
+  setF64(padPhi, q + step, phi);
+  setPaddedBit(bits, column, on);
+  setPaddedBit(bits, column + step, on);
 }
 
 export function resetDrift(): void {
@@ -160,11 +157,6 @@ export function freeCellNear(y: f64, phi: f64, fallback: i32): i32 {
   return best;
 }
 
-// @ts-ignore: decorator
-@inline function occupancyWord(c: i32): usize {
-  return occupied + ((<usize>(getI32(cellRow, c) * rowWords + (getI32(cellCol, c) >> 6))) << 3);
-}
-
 /** Slot s (the tournament's leaf) belongs to cell c from now on. */
 export function assignSlot(c: i32, s: i32): void {
   setI32(cellSlot, c, s);
@@ -173,8 +165,6 @@ export function assignSlot(c: i32, s: i32): void {
 
 /** Jet `jet` moves into the empty cell c, with no neighbour yet (its slot is the caller's). */
 export function placeJet(c: i32, jet: i32): void {
-  const word = occupancyWord(c);
-  store<u64>(word, load<u64>(word) | (<u64>1 << <u64>(getI32(cellCol, c) & 63)));
   const y = getF64(jetY, jet);
   const phi = getF64(jetPhi, jet);
   const w = weightOf(getF64(jetKt2, jet));
@@ -211,8 +201,6 @@ export function placeJet(c: i32, jet: i32): void {
 
 /** Cell c becomes empty (its slot's candidate too); its lists must already be detached. */
 export function clearCell(c: i32): void {
-  const word = occupancyWord(c);
-  store<u64>(word, load<u64>(word) & ~(<u64>1 << <u64>(getI32(cellCol, c) & 63)));
   const slot = getI32(driftSlot, c);
   if (slot >= 0) {
     const last = getI32(driftList, --driftCount);

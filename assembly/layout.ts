@@ -12,8 +12,7 @@
 //            cellJet cellNn pointHead pointNext pointPrev cellWide cellRow cellCol i32[C]
 //            driftList driftSlot i32[C]   (the cells whose jet lies outside its cell's own area)
 //            candLo candHi i32[P]  (per slot, tournament.ts)  cellSlot slotCell i32[C]
-//   rows     rowDriftY rowDriftPhi f64[etaBins]  occupied u64[etaBins * rowWords]  (bit iphi of row
-//            ieta set while cell (ieta, iphi) holds a jet; rowWords = ceil(phiBins / 64))
+//   rows     rowDriftY rowDriftPhi f64[etaBins]
 //   tree     tree i32[2P]  nodeValue f64[2P]   (P = power of two >= C; per event a tree of
 //            L <= P leaves, L the power of two >= its towers: node n < L holds the winning slot of
 //            its subtree and its measure, tree[L + s] = s and nodeValue[L + s] slot s's measure)
@@ -26,7 +25,8 @@
 //            padRows empty rows above and below and each row's first and last padCols cells
 //            copied past its other end, so that every search offset from every cell is one flat
 //            step (offStep) with no bounds or seam test; Q = (etaBins + 2 * padRows) * padStride.
-//            padCell: the real cell of a padded one (-1 in the empty rows), cellPad the inverse)
+//            padCell: the real cell of a padded one (-1 in the empty rows), cellPad the inverse,
+//            cellCopyStep i32[C]: from a cell's padded cell to its copy (+-phiBins, 0: none))
 //            padBits u64[(etaBins + 2 * padRows) * padRowBytes / 8]   (bit k of padded row r set
 //            while padded cell (r, k) holds a jet; 8 spare bytes per row, so that any run of up
 //            to 57 columns is one unaligned load)
@@ -104,8 +104,6 @@ export let driftSlot: usize = 0;
 export let tree: usize = 0;
 export let nodeValue: usize = 0;
 export let rowDriftY: usize = 0;
-export let occupied: usize = 0;
-export let rowWords: i32 = 0;
 export let rowDriftPhi: usize = 0;
 
 export let jetPx: usize = 0;
@@ -141,6 +139,7 @@ export let padY: usize = 0;
 export let padPhi: usize = 0;
 export let padCell: usize = 0;
 export let cellPad: usize = 0;
+export let cellCopyStep: usize = 0;
 export let padBits: usize = 0;
 export let padRowBytes: i32 = 0;
 export let bitStep: usize = 0;
@@ -234,8 +233,6 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   driftList = take(cells << 2);
   driftSlot = take(cells << 2);
 
-  rowWords = (phiCount + 63) >> 6;
-  occupied = take(<usize>(etaCount * rowWords) << 3);
   rowDriftY = take(<usize>etaCount << 3);
   rowDriftPhi = take(<usize>etaCount << 3);
   tree = take(<usize>p << 3); // 2P entries of i32
@@ -292,6 +289,7 @@ export function reservePadding(rows: i32, cols: i32): bool {
   padPhi = take(total << 3);
   padCell = take(total << 2);
   cellPad = take(<usize>cellTotal << 2);
+  cellCopyStep = take(<usize>cellTotal << 2);
   padRowBytes = (((padStride + 63) >> 6) << 3) + 8;
   padBits = take(<usize>(etaBins + 2 * rows) * <usize>padRowBytes);
   bitStep = take(58 * 64 * 4);

@@ -10,14 +10,13 @@
 //   reads the padded rows (layout.ts), where an offset is one flat step (offStep).
 // - window: row by row, the cells whose centre lies within reach + that row's drift of the jet
 //   (a circle, not a square); the φ range wraps at the seam and is cut into at most two
-//   contiguous runs, whose occupied cells are found from the rows' occupancy bits.
+//   contiguous runs, whose occupied cells are found from the padded rows' occupancy bits.
 // - all cells (wide jets).
 // A new jet scans its window once: it finds its own neighbour and offers itself to each jet
 // there, which takes it only when it is strictly nearer by that jet's key (ties go to the older
 // jet, as the new one has the largest index).
 
 import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellWide, cellRow, cellCol, etaCentre,
-  occupied, rowWords,
   rowDriftY, rowDriftPhi, driftList,
   etaBins, phiBins, offDr, offDc, offDist, offPerm, offScratch, offTmpI, offTmpF, OFFSET_LIMIT,
   cellSlot, bitStep, offStep, padY, padPhi, padCell, cellPad, padStride, padRows, padCols, padBits, padRowBytes, reservePadding,
@@ -423,11 +422,12 @@ export function findNeighbour(c: i32): void {
 function scanWindow(ck: i32, y: f64, phi: f64, w: f64, rectangle: bool): void {
   for (let r = winRow0; r <= winRow1; r++) {
     if (!rectangle && !rowRuns(r)) continue;
-    const base = r * phiBins;
-    const words = occupied + (<usize>(r * rowWords) << 3);
+    // the row's real columns in its padded bits start at padded column padCols
+    const base = r * phiBins - padCols;
+    const words = padBits + <usize>(r + padRows) * <usize>padRowBytes;
     for (let run = 0; run < 2; run++) {
-      const from = run == 0 ? runA0 : runB0;
-      const to = run == 0 ? runA1 : runB1;
+      const from = (run == 0 ? runA0 : runB0) + padCols;
+      const to = (run == 0 ? runA1 : runB1) + padCols;
       for (let word = from >> 6; word <= to >> 6; word++) {
         let bits = load<u64>(words + (<usize>word << 3));
         const first = word << 6;

@@ -101,6 +101,26 @@ describe('the engine matches the reference bit for bit', () => {
     expect(failures.slice(0, 5)).toEqual([]);
   }, 60_000);
 
+  it('on a fine phi grid, where a new jet\'s window spans more than one 64-bit word of a row', () => {
+    // 256 columns: at R = 1.5 a window is about 123 columns wide, too wide for the one-load
+    // rectangle, so the row-by-row scan over several words of occupancy bits takes over
+    const grid: Grid = { etaMin: -2, etaMax: 2, etaBins: 12, phiBins: 256 };
+    const failures: string[] = [];
+    let seed = 3100;
+    for (const p of [-1, 0, 1]) {
+      for (const radius of [0.8, 1.5]) {
+        const random = makeRandom(seed++);
+        const events = [
+          randomEvent(grid, { towers: 300, hardJets: 2 }, random),
+          randomEvent(grid, { towers: 200, region: 'seam', hardJets: 1 }, random),
+          randomEvent(grid, { towers: 150, ties: true }, random),
+        ];
+        failures.push(...compare(grid, settingsOf(p, radius, 'e', 0), events));
+      }
+    }
+    expect(failures).toEqual([]);
+  }, 60_000);
+
   it('with a threshold that drops towers, and with towers in any input order', () => {
     const failures: string[] = [];
     const random = makeRandom(4242);
