@@ -1,7 +1,8 @@
 // Engine against reference: µs per event on the default grid for N = 100, 300, 1000, 3200
 // towers (plus ~850-tower pileup events, the size the native figures in the engine notes were
-// taken at), anti-kt, Cambridge/Aachen and kt at R = 0.4. Prints a table and writes the same
-// figures to bench/results/engine.json. Events are invented (tests/support/random-events.ts).
+// taken at), anti-kt, Cambridge/Aachen and kt at R = 0.4, each timed in slices spread over the
+// run. Prints a table and writes the same figures to bench/results/engine.json. Events are
+// invented (tests/support/random-events.ts).
 //
 //   npm run bench            (builds first)
 //   node dist/bench/engine.bench.js --quick
@@ -46,9 +47,10 @@ function eventPool(towers: number, seed: number): TowerArrays[] {
   return pool;
 }
 
-async function timeClusterer(clusterer: Clusterer, pool: TowerArrays[], timeMs: number, iterations: number): Promise<{ median: number; p99: number }> {
-  let next = 0;
-  const bench = new Bench({ time: timeMs, iterations, warmupTime: Math.min(200, timeMs / 4), warmupIterations: 2 });
+/** µs per event of `timeMs` (at least `iterations` events) of the pool, cycling from event `from` */
+async function timeSamples(clusterer: Clusterer, pool: TowerArrays[], timeMs: number, iterations: number, from: number): Promise<number[]> {
+  let next = from;
+  const bench = new Bench({ time: timeMs, iterations, warmupTime: Math.min(100, timeMs / 4), warmupIterations: 2, retainSamples: true });
   bench.add(clusterer.name, () => {
     const event = pool[next++ % pool.length];
     clusterer.cluster(event.towerIndex, event.towerEt);
@@ -56,7 +58,11 @@ async function timeClusterer(clusterer: Clusterer, pool: TowerArrays[], timeMs: 
   await bench.run();
   const result = bench.tasks[0].result;
   if (result.state !== 'completed') throw new Error(`benchmark of ${clusterer.name} did not complete: ${result.state}`);
-  return { median: result.latency.p50 * 1000, p99: result.latency.p99 * 1000 };
+  return Array.from(result.latency.samples ?? [], (ms) => ms * 1000);
+}
+
+function quantile(sorted: number[], q: number): number {
+  return sorted[Math.min(sorted.length - 1, Math.floor(q * sorted.length))];
 }
 
 /** the engine's own per-event clock over the pool, clustered as one batch, repeated */
@@ -90,27 +96,60 @@ function fitExponent(points: { towers: number; us: number }[]): number {
   return sxy / sxx;
 }
 
-const rows: Row[] = [];
-const exponents: Record<string, number> = {};
+// Every configuration is timed in ROUNDS slices spread over the whole run, and its figures come
+// from all its slices together: the machine's speed wanders by up to 1.6x over a minute (other
+// work on the host), and a configuration timed in one stretch would carry whatever phase it met
+// into the ratios and the fitted exponents.
+const ROUNDS = quick ? 2 : 6;
+interface Config {
+  algorithm: string;
+  towers: number;
+  engine: WasmClusterer;
+  reference: ReferenceClusterer;
+  pool: TowerArrays[];
+  engineUs: number[];
+  referenceUs: number[];
+}
+const pools = new Map(SIZES.map((towers) => [towers, eventPool(towers, 17 + towers)]));
+const configs: Config[] = [];
 for (const algorithm of ALGORITHMS) {
   const settings: ClusterSettings = { p: algorithm.p, radius: RADIUS, ptMin: 0, threshold: 0, recombination: 'e' };
   const engine = new WasmClusterer(DEFAULT_GRID, settings);
   const reference = new ReferenceClusterer(DEFAULT_GRID, settings);
   for (const towers of SIZES) {
-    const pool = eventPool(towers, 17 + towers);
-    const referenceTime = await timeClusterer(reference, pool, quick ? 200 : towers >= 1000 ? 3000 : 1000, quick ? 3 : 10);
-    const engineTime = await timeClusterer(engine, pool, quick ? 200 : 1500, quick ? 10 : 200);
-    rows.push({
-      algorithm: algorithm.name,
-      towers,
-      referenceMedianUs: referenceTime.median,
-      referenceP99Us: referenceTime.p99,
-      engineMedianUs: engineTime.median,
-      engineP99Us: engineTime.p99,
-      engineInsideMedianUs: insideMedianUs(engine, pool),
-      speedup: referenceTime.median / engineTime.median,
-    });
+    configs.push({ algorithm: algorithm.name, towers, engine, reference, pool: pools.get(towers)!, engineUs: [], referenceUs: [] });
   }
+}
+for (let round = 0; round < ROUNDS; round++) {
+  // every other round backwards, so no configuration always follows the same one
+  const order = round % 2 === 0 ? configs : [...configs].reverse();
+  for (const config of order) {
+    const from = round * 7;
+    const referenceMs = (quick ? 200 : config.towers >= 1000 ? 3000 : 1000) / ROUNDS;
+    config.referenceUs.push(...await timeSamples(config.reference, config.pool, referenceMs, 2, from));
+    config.engineUs.push(...await timeSamples(config.engine, config.pool, (quick ? 200 : 1500) / ROUNDS, quick ? 5 : 40, from));
+  }
+}
+
+const rows: Row[] = [];
+const exponents: Record<string, number> = {};
+for (const config of configs) {
+  const engineUs = [...config.engineUs].sort((a, b) => a - b);
+  const referenceUs = [...config.referenceUs].sort((a, b) => a - b);
+  const engineMedian = quantile(engineUs, 0.5);
+  const referenceMedian = quantile(referenceUs, 0.5);
+  rows.push({
+    algorithm: config.algorithm,
+    towers: config.towers,
+    referenceMedianUs: referenceMedian,
+    referenceP99Us: quantile(referenceUs, 0.99),
+    engineMedianUs: engineMedian,
+    engineP99Us: quantile(engineUs, 0.99),
+    engineInsideMedianUs: insideMedianUs(config.engine, config.pool),
+    speedup: referenceMedian / engineMedian,
+  });
+}
+for (const algorithm of ALGORITHMS) {
   exponents[algorithm.name] = fitExponent(rows.filter((r) => r.algorithm === algorithm.name && FIT_SIZES.includes(r.towers))
     .map((r) => ({ towers: r.towers, us: r.engineMedianUs })));
 }
