@@ -341,15 +341,13 @@ function searchBox(c: i32): bool {
 /** Offers every jet in the box of padded rows within radius (plus how far unlisted jets can sit
  * from their centres) of cell c's jet; false when the box does not fit in the padding. */
 function scanBox(c: i32, y: f64, phi: f64, w: f64, radius: f64): bool {
-  if (!boxColumns(phi, radius, min<f64>(driftPhi, insidePhi))) return false;
+  const opened = openBox(y, phi, radius, min<f64>(driftY, insideY), min<f64>(driftPhi, insidePhi));
+  if (opened <= 0) return opened == 0;
   const p0 = boxFirst;
-  const p1 = boxLast;
-  if (p1 < p0) return true;
-  openWindow(y, phi, radius, min<f64>(driftY, insideY));
-  const width = p1 - p0 + 1;
-  const mask = (<u64>1 << <u64>width) - 1;
-  const steps = bitStep + (<usize>(width << 6) << 2);
-  const group = rowsPerWord(width);
+  const width = boxLast - p0 + 1;
+  const mask = boxMask;
+  const steps = boxSteps;
+  const group = boxGroup;
   const stride = padStride;
   const row1 = winRow1;
   const r2 = reach2;
@@ -476,6 +474,27 @@ function boxColumns(phi: f64, radius: f64, widen: f64): bool {
   return true;
 }
 
+// the box's packed-row scan: the mask of its width, the steps of that width, rows per word
+let boxMask: u64 = 0;
+let boxSteps: usize = 0;
+let boxGroup: i32 = 1;
+
+/**
+ * The box of padded rows within radius of (y, phi), widened by widenY and widenPhi for jets off
+ * their centres: its rows (openWindow), its columns (boxFirst..boxLast) and the packing of its
+ * rows into words. -1 when it does not fit in the padding, 0 when no column is within reach.
+ */
+function openBox(y: f64, phi: f64, radius: f64, widenY: f64, widenPhi: f64): i32 {
+  if (!boxColumns(phi, radius, widenPhi)) return -1;
+  if (boxLast < boxFirst) return 0;
+  openWindow(y, phi, radius, widenY);
+  const width = boxLast - boxFirst + 1;
+  boxMask = (<u64>1 << <u64>width) - 1;
+  boxSteps = bitStep + (<usize>(width << 6) << 2);
+  boxGroup = rowsPerWord(width);
+  return 1;
+}
+
 // @ts-ignore: decorator
 @inline function rowsPerWord(width: i32): i32 {
   return 64 / width;
@@ -501,15 +520,13 @@ function boxColumns(phi: f64, radius: f64, widen: f64): bool {
 }
 
 function scanRectangle(ck: i32, y: f64, phi: f64, w: f64, widenY: f64, widenPhi: f64): bool {
-  if (!boxColumns(phi, reach, widenPhi)) return false;
+  const opened = openBox(y, phi, reach, widenY, widenPhi);
+  if (opened <= 0) return opened == 0;
   const p0 = boxFirst;
-  const p1 = boxLast;
-  if (p1 < p0) return true;
-  openWindow(y, phi, reach, widenY);
-  const width = p1 - p0 + 1;
-  const mask = (<u64>1 << <u64>width) - 1;
-  const steps = bitStep + (<usize>(width << 6) << 2);
-  const group = rowsPerWord(width);
+  const width = boxLast - p0 + 1;
+  const mask = boxMask;
+  const steps = boxSteps;
+  const group = boxGroup;
   const stride = padStride;
   const row1 = winRow1;
   for (let r = winRow0; r <= row1; r += group) {
