@@ -343,42 +343,7 @@ function searchBox(c: i32): bool {
 function scanBox(c: i32, y: f64, phi: f64, w: f64, radius: f64): bool {
   const opened = openBox(y, phi, radius, min<f64>(driftY, insideY), min<f64>(driftPhi, insidePhi));
   if (opened <= 0) return opened == 0;
-  const p0 = boxFirst;
-  const width = boxLast - p0 + 1;
-  const mask = boxMask;
-  const steps = boxSteps;
-  const group = boxGroup;
-  const stride = padStride;
-  const row1 = winRow1;
-  const r2 = reach2;
-  const scale = invR2;
-  let bc = bestCell;
-  let bj = bestJet;
-  let bd = bestDR2;
-  let bk = bestKey;
-  for (let r = winRow0; r <= row1; r += group) {
-    let bits = packedRows(r, min<i32>(r + group - 1, row1), p0, width, mask);
-    const start = (r + padRows) * stride + p0;
-    while (bits != 0) {
-      const q = getI32(padCell, start + getI32(steps, <i32>ctz<u64>(bits)));
-      bits &= bits - 1;
-      const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
-      const key = (w * d) * scale;
-      if ((d <= r2) & (key <= bk) & (q != c)) {
-        const j = getI32(cellJet, q);
-        if (key < bk || (key == bk && j < bj)) {
-          bc = q;
-          bj = j;
-          bd = d;
-          bk = key;
-        }
-      }
-    }
-  }
-  bestCell = bc;
-  bestJet = bj;
-  bestDR2 = bd;
-  bestKey = bk;
+  scanOpenBox(c, y, phi, w, false);
   return true;
 }
 
@@ -522,6 +487,16 @@ function openBox(y: f64, phi: f64, radius: f64, widenY: f64, widenPhi: f64): i32
 function scanRectangle(ck: i32, y: f64, phi: f64, w: f64, widenY: f64, widenPhi: f64): bool {
   const opened = openBox(y, phi, reach, widenY, widenPhi);
   if (opened <= 0) return opened == 0;
+  scanOpenBox(ck, y, phi, w, true);
+  return true;
+}
+
+/**
+ * The occupied cells of the open box, several rows' bits packed into one word: each a candidate
+ * for cell c's neighbour, and with `offers` (c holds the step's new jet, whose own cell reads
+ * y = +Inf meanwhile) offered the new jet when it is nearer than their own neighbour.
+ */
+function scanOpenBox(c: i32, y: f64, phi: f64, w: f64, offers: bool): void {
   const p0 = boxFirst;
   const width = boxLast - p0 + 1;
   const mask = boxMask;
@@ -533,16 +508,14 @@ function scanRectangle(ck: i32, y: f64, phi: f64, w: f64, widenY: f64, widenPhi:
     let bits = packedRows(r, min<i32>(r + group - 1, row1), p0, width, mask);
     const start = (r + padRows) * stride + p0;
     while (bits != 0) {
-      // the real cell: the new jet's own reads y = +Inf meanwhile
       const q = getI32(padCell, start + getI32(steps, <i32>ctz<u64>(bits)));
       bits &= bits - 1;
       const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
       const key = (w * d) * invR2;
-      if ((d <= reach2) & (key <= bestKey)) offerBest(q, d, key);
-      if ((d <= reach2) & (d < getF64(cellNnDR2, q))) offerNewJet(q, ck, d);
+      if ((d <= reach2) & (key <= bestKey) & (q != c)) offerBest(q, d, key);
+      if (offers && (d <= reach2) & (d < getF64(cellNnDR2, q))) offerNewJet(q, c, d);
     }
   }
-  return true;
 }
 
 // @ts-ignore: decorator
