@@ -148,6 +148,17 @@ function centreDistance(dr: i32, dc: i32): f64 {
   return false;
 }
 
+/** The listed jets (outside their cells' areas) as candidates for cell c's neighbour. */
+// @ts-ignore: decorator
+@inline function offerListed(c: i32, y: f64, phi: f64, w: f64): void {
+  for (let k = 0; k < driftCount; k++) {
+    const q = getI32(driftList, k);
+    if (q == c) continue;
+    const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
+    if (d <= reach2) offerBest(q, d, (w * d) * invR2);
+  }
+}
+
 /** Nearest first over the offsets; false when the list ran out before the search could stop. */
 function searchOrdered(c: i32): bool {
   const y = getF64(cellY, c);
@@ -161,12 +172,7 @@ function searchOrdered(c: i32): bool {
     // the jets outside their cells' areas directly; the walk below then only has to be exact
     // for jets within half a cell of their centres
     others = min<f64>(driftNorm, insideNorm);
-    for (let k = 0; k < driftCount; k++) {
-      const q = getI32(driftList, k);
-      if (q == c) continue;
-      const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
-      if (d <= reach2) offerBest(q, d, (w * d) * invR2);
-    }
+    offerListed(c, y, phi, w);
     if (bestCell >= 0) limit = min<f64>(limit, sqrt<f64>(bestDR2) * (1 + 1e-8));
   } else if (seedCell >= 0 && seedCell != c) {
     // the new jet of this step is the likely neighbour: offered first, it bounds the walk at once
@@ -311,12 +317,7 @@ function searchBox(c: i32): bool {
   const y = getF64(cellY, c);
   const phi = getF64(cellPhi, c);
   const w = getF64(cellW, c);
-  for (let k = 0; k < driftCount; k++) {
-    const q = getI32(driftList, k);
-    if (q == c) continue;
-    const d = deltaR2(y, phi, getF64(cellY, q), getF64(cellPhi, q));
-    if (d <= reach2) offerBest(q, d, (w * d) * invR2);
-  }
+  offerListed(c, y, phi, w);
   if (seedCell >= 0 && seedCell != c) {
     const d = deltaR2(y, phi, getF64(cellY, seedCell), getF64(cellPhi, seedCell));
     if (d <= reach2) offerBest(seedCell, d, (w * d) * invR2);
