@@ -5,6 +5,7 @@
 
 import type { GridTables } from '../../host/grid.js';
 import type { ClusterSettings, JetSet } from '../../host/types.js';
+import { allocateJetSet } from '../../host/jet-set.js';
 
 const f = Math.fround;
 const BEAM = Number.MAX_SAFE_INTEGER;
@@ -80,11 +81,8 @@ export function clusterBruteForceF32(tables: GridTables, towerIndex: Int32Array,
     .filter((x) => x.pt >= settings.ptMin)
     .sort((x, z) => (x.pt !== z.pt ? (z.pt > x.pt ? 1 : -1) : x.index - z.index));
   const n = kept.length;
-  const out: JetSet = {
-    count: n, px: new Float64Array(n), py: new Float64Array(n), pz: new Float64Array(n), energy: new Float64Array(n),
-    pt: new Float64Array(n), rapidity: new Float64Array(n), phi: new Float64Array(n), mass: new Float64Array(n),
-    towerCount: new Int32Array(n), towerStart: new Int32Array(n), towers: new Int32Array(kept.reduce((s, x) => s + x.jet.towers.length, 0)),
-  };
+  const out = allocateJetSet(n);
+  out.towers = new Int32Array(kept.reduce((s, x) => s + x.jet.towers.length, 0));
   let start = 0;
   kept.forEach(({ jet, pt }, k) => {
     out.px[k] = jet.px; out.py[k] = jet.py; out.pz[k] = jet.pz; out.energy[k] = jet.e; out.pt[k] = pt;
