@@ -79,7 +79,7 @@ typedef struct {
     int slot;                /* position in its tile's array */
     int tile;
     int pad[3];              /* to 64 bytes */
-} TiledJet;
+} SearchJet;
 
 /* what only recombination and output touch */
 typedef struct {
@@ -88,7 +88,7 @@ typedef struct {
     int pad;
 } JetMomentum;
 
-static TiledJet jet[MAX_JETS];
+static SearchJet jet[MAX_JETS];
 static JetMomentum mom[MAX_JETS];
 
 /* ---------------------------------------------------------------- indexed min-heap of candidates */
@@ -158,7 +158,7 @@ static void heapRemove(int owner)
 }
 
 /* ---------------------------------------------------------------- geometry */
-static inline double pairDR2(const TiledJet *a, const TiledJet *b)
+static inline double pairDR2(const SearchJet *a, const SearchJet *b)
 {
     double dphi = fabs(a->phi - b->phi);
     if (dphi > PI_VALUE) dphi = 2 * PI_VALUE - dphi;
@@ -187,7 +187,7 @@ static inline int tileOf(double y, double phi)
 
 static inline void tileInsert(int i)
 {
-    TiledJet *J = &jet[i];
+    SearchJet *J = &jet[i];
     int t = tileOf(J->y, J->phi);
     J->tile = t;
     J->slot = tileSize[t]++;
@@ -196,7 +196,7 @@ static inline void tileInsert(int i)
 
 static inline void tileRemove(int i)
 {
-    TiledJet *J = &jet[i];
+    SearchJet *J = &jet[i];
     int *members = tileJets + J->tile * GRID_TOWERS;
     int last = members[--tileSize[J->tile]];
     members[J->slot] = last;
@@ -208,7 +208,7 @@ static inline void tileRemove(int i)
  * for a fixed i, equal keys are decided by the smaller j in all three cases (both below i, both
  * above i, one on each side), so a tie goes to the smaller j.
  */
-static inline void offerNeighbour(TiledJet *I, int j, double dR2)
+static inline void offerNeighbour(SearchJet *I, int j, double dR2)
 {
     double key = (I->weight * dR2) * invR2;
     if (key < I->nnKey || (key == I->nnKey && j < I->nn)) {
@@ -221,7 +221,7 @@ static inline void offerNeighbour(TiledJet *I, int j, double dR2)
 /* full nn search of jet i over its 9 tiles */
 static void searchNeighbour(int i)
 {
-    TiledJet *I = &jet[i];
+    SearchJet *I = &jet[i];
     I->nn = NO_JET;
     I->nnKey = INFINITY;
     int t = I->tile;
@@ -243,7 +243,7 @@ static void searchNeighbour(int i)
  */
 static inline Candidate candidateOf(int i)
 {
-    const TiledJet *I = &jet[i];
+    const SearchJet *I = &jet[i];
     Candidate c;
     c.owner = i;
     int j = I->nn;
@@ -343,7 +343,7 @@ static void clusterEvent(int n, const int32_t *towerIndex, const double *towerEt
         M->e = et * rowCosh[row];
         M->kt2 = et * et;
         M->towers = 1;
-        TiledJet *J = &jet[i];
+        SearchJet *J = &jet[i];
         J->y = rowEta[row];
         J->phi = colPhi[col];
         J->weight = weightOf(M->kt2);
@@ -358,7 +358,7 @@ static void clusterEvent(int n, const int32_t *towerIndex, const double *towerEt
         const int *members = tileJets + t * GRID_TOWERS;
         for (int m = 0; m < tileSize[t]; m++) {
             int i = members[m];
-            TiledJet *I = &jet[i];
+            SearchJet *I = &jet[i];
             for (int q = m + 1; q < tileSize[t]; q++) {
                 int j = members[q];
                 double dR2 = pairDR2(I, &jet[j]);
@@ -413,7 +413,7 @@ static void clusterEvent(int n, const int32_t *towerIndex, const double *towerEt
         Mk->e = Ma->e + Mb->e;
         Mk->kt2 = Mk->px * Mk->px + Mk->py * Mk->py;
         Mk->towers = Ma->towers + Mb->towers;
-        TiledJet *K = &jet[k];
+        SearchJet *K = &jet[k];
         K->y = 0.5 * jetLog((Mk->e + Mk->pz) / (Mk->e - Mk->pz));
         double phi = jetAtan2(Mk->py, Mk->px);
         if (phi < 0) phi = phi + 2 * PI_VALUE;
@@ -442,7 +442,7 @@ static void clusterEvent(int n, const int32_t *towerIndex, const double *towerEt
             for (int m = 0; m < tileSize[visit[v]]; m++) {
                 int j = members[m];
                 if (j == k) continue;
-                TiledJet *J = &jet[j];
+                SearchJet *J = &jet[j];
                 int searchesAgain = (J->nn == a || J->nn == b);
                 if (searchesAgain) searchAgain[again++] = j;
                 if (!nearK) continue;
