@@ -15,7 +15,7 @@ import { Bench } from 'tinybench';
 import { WasmClusterer } from '../host/engine.js';
 import { ReferenceClusterer } from '../host/reference.js';
 import { DEFAULT_GRID, type ClusterSettings, type Clusterer } from '../host/types.js';
-import { makeRandom, randomEvent, type TowerArrays } from '../tests/support/random-events.js';
+import { makeRandom, pileupEvents, type TowerArrays } from '../tests/support/random-events.js';
 
 const quick = process.argv.includes('--quick');
 const SIZES = [100, 300, 850, 1000, 3200];
@@ -42,9 +42,7 @@ interface Row {
 
 function eventPool(towers: number, seed: number): TowerArrays[] {
   const random = makeRandom(seed);
-  const pool: TowerArrays[] = [];
-  for (let k = 0; k < POOL; k++) pool.push(randomEvent(DEFAULT_GRID, { towers, hardJets: 1 + Math.floor(random() * 4) }, random));
-  return pool;
+  return pileupEvents(DEFAULT_GRID, towers, POOL, random);
 }
 
 /** µs per event of `timeMs` (at least `iterations` events) of the pool, cycling from event `from` */

@@ -18,7 +18,7 @@ import { createInterface } from 'node:readline';
 import { fileURLToPath } from 'node:url';
 import { WasmClusterer } from '../host/engine.js';
 import { DEFAULT_GRID } from '../host/types.js';
-import { makeRandom, randomEvent } from '../tests/support/random-events.js';
+import { batchOf, makeRandom, pileupEvents } from '../tests/support/random-events.js';
 
 function option(name: string, fallback: number): number {
   const at = process.argv.indexOf(name);
@@ -60,12 +60,7 @@ interface EventBatch {
 /** Invented pileup-like events (1-4 hard jets), written in the baseline's input format. */
 function makeEvents(towers: number, count: number): { batch: EventBatch; file: string } {
   const random = makeRandom(4242 + towers);
-  const events = Array.from({ length: count }, () => randomEvent(DEFAULT_GRID, { towers, hardJets: 1 + Math.floor(random() * 4) }, random));
-  const towerStart = new Int32Array(count + 1);
-  events.forEach((event, k) => { towerStart[k + 1] = towerStart[k] + event.towerIndex.length; });
-  const towerIndex = new Int32Array(towerStart[count]);
-  const towerEt = new Float64Array(towerStart[count]);
-  events.forEach((event, k) => { towerIndex.set(event.towerIndex, towerStart[k]); towerEt.set(event.towerEt, towerStart[k]); });
+  const { towerStart, towerIndex, towerEt } = batchOf(pileupEvents(DEFAULT_GRID, towers, count, random));
   // u32 eventCount, then per event u32 n, i32 flatIndex[n], f64 et[n], little endian
   const bytes = Buffer.alloc(4 + 4 * count + 12 * towerStart[count]);
   let at = bytes.writeUInt32LE(count, 0);

@@ -12,7 +12,7 @@
 import { readFileSync } from 'node:fs';
 import { WasmClusterer } from '../host/engine.js';
 import { DEFAULT_GRID, type ClusterSettings } from '../host/types.js';
-import { makeRandom, randomEvent } from '../tests/support/random-events.js';
+import { batchOf, makeRandom, pileupEvents } from '../tests/support/random-events.js';
 
 function option(name: string, fallback: number): number {
   const at = process.argv.indexOf(name);
@@ -33,12 +33,7 @@ const events = option('--events', 24);
 const rounds = option('--rounds', 30);
 
 const random = makeRandom(12345 + towers);
-const pool = Array.from({ length: events }, () => randomEvent(DEFAULT_GRID, { towers, hardJets: 1 + Math.floor(random() * 4) }, random));
-const starts = new Int32Array(events + 1);
-pool.forEach((event, k) => { starts[k + 1] = starts[k] + event.towerIndex.length; });
-const index = new Int32Array(starts[events]);
-const et = new Float64Array(starts[events]);
-pool.forEach((event, k) => { index.set(event.towerIndex, starts[k]); et.set(event.towerEt, starts[k]); });
+const { towerStart: starts, towerIndex: index, towerEt: et } = batchOf(pileupEvents(DEFAULT_GRID, towers, events, random));
 
 const settings: ClusterSettings = { p, radius: 0.4, ptMin: 0, threshold: 0, recombination: 'e' };
 const engines = files.map((file) => new WasmClusterer(DEFAULT_GRID, settings, { module: new WebAssembly.Module(readFileSync(file)) }));

@@ -100,3 +100,19 @@ export function randomEvent(grid: Grid, shape: EventShape, random: () => number)
 export function fullGridEvent(grid: Grid, random: () => number, ties = false): TowerArrays {
   return randomEvent(grid, { towers: grid.etaBins * grid.phiBins, hardJets: 3, ties }, random);
 }
+
+/** Pileup-like events: `towers` towers each (capped by the grid) over 1-4 hard jets. */
+export function pileupEvents(grid: Grid, towers: number, count: number, random: () => number): TowerArrays[] {
+  return Array.from({ length: count }, () => randomEvent(grid, { towers, hardJets: 1 + Math.floor(random() * 4) }, random));
+}
+
+/** Events one after another in flat arrays, as a clusterer's batch takes them: event e's towers
+ * are towerStart[e]..towerStart[e + 1]. */
+export function batchOf(events: TowerArrays[]): TowerArrays & { towerStart: Int32Array } {
+  const towerStart = new Int32Array(events.length + 1);
+  events.forEach((event, k) => { towerStart[k + 1] = towerStart[k] + event.towerIndex.length; });
+  const towerIndex = new Int32Array(towerStart[events.length]);
+  const towerEt = new Float64Array(towerStart[events.length]);
+  events.forEach((event, k) => { towerIndex.set(event.towerIndex, towerStart[k]); towerEt.set(event.towerEt, towerStart[k]); });
+  return { towerStart, towerIndex, towerEt };
+}
