@@ -5,7 +5,7 @@
 // paired ratios engine/native; absolute medians are printed beside it.
 //
 //   npm run bench:native     (builds first; needs gcc)
-//   node dist/bench/native-pair.bench.js [--rounds 20] [--events 24]
+//   node dist/bench/native-pair.bench.js [--rounds 100] [--events 24]
 //
 // Before timing, the native build's jets are checked against the engine's on the anti-kt
 // events: the same jets with the same tower counts, pt equal to 1e-12 (its log and atan2 are the
@@ -28,7 +28,7 @@ function option(name: string, fallback: number): number {
   return value;
 }
 
-const rounds = option('--rounds', 20);
+const rounds = option('--rounds', 100);
 const eventsPerBatch = option('--events', 24);
 const WARM_ROUNDS = 4;
 const CONFIGS = [
@@ -122,53 +122,74 @@ interface Row {
   ratioQ75: number;
 }
 
-async function pairRun(name: string, p: number, towers: number, events: { batch: EventBatch; file: string }, perBatch: number): Promise<Row> {
+/** One configuration's two sides and the times taken so far. */
+interface Pairing {
+  row: Pick<Row, 'algorithm' | 'towers'>;
+  perBatch: number;
+  batches: number;
+  nativeBatch: (first: number) => Promise<number>;
+  engineBatch: (first: number) => number;
+  quit: () => void;
+  nativeNs: number[];
+  engineNs: number[];
+  ratios: number[];
+}
+
+function startPairing(name: string, p: number, towers: number, events: { batch: EventBatch; file: string }, perBatch: number): Pairing {
   const engine = engineFor(p);
   const server = spawn(binary, ['serve', events.file, String(p)], { stdio: ['pipe', 'pipe', 'inherit'] });
   const replies = createInterface({ input: server.stdout })[Symbol.asyncIterator]();
-  const nativeBatch = async (first: number): Promise<number> => {
-    server.stdin.write(`run ${first} ${perBatch} 1\n`);
-    const reply = await replies.next();
-    const ns = Number(reply.value);
-    if (reply.done || !Number.isFinite(ns)) throw new Error(`native-pair: the native server answered ${reply.done ? 'nothing' : reply.value}`);
-    return ns;
-  };
-  const engineBatch = (first: number): number => {
-    const jets = engine.clusterBatch(perBatch, events.batch.towerStart.subarray(first, first + perBatch + 1), events.batch.towerIndex, events.batch.towerEt, false);
-    let sum = 0;
-    for (let e = 0; e < perBatch; e++) sum += jets.clusterNs[e];
-    return sum / perBatch;
-  };
-  const batches = Math.floor(events.batch.count / perBatch);
-  const nativeNs: number[] = [];
-  const engineNs: number[] = [];
-  const ratios: number[] = [];
-  for (let round = 0; round < WARM_ROUNDS + rounds; round++) {
-    const first = (round % batches) * perBatch;
-    let native: number;
-    let wasm: number;
-    // the engine's own clock on both sides: each measures its events from loaded towers to sorted jets
-    if (round % 2 === 0) {
-      native = await nativeBatch(first);
-      wasm = engineBatch(first);
-    } else {
-      wasm = engineBatch(first);
-      native = await nativeBatch(first);
-    }
-    if (round < WARM_ROUNDS) continue;
-    nativeNs.push(native);
-    engineNs.push(wasm);
-    ratios.push(wasm / native);
-  }
-  server.stdin.end('quit\n');
   return {
-    algorithm: name,
-    towers,
-    nativeMedianUs: quantile(nativeNs, 0.5) / 1e3,
-    engineMedianUs: quantile(engineNs, 0.5) / 1e3,
-    ratioMedian: quantile(ratios, 0.5),
-    ratioQ25: quantile(ratios, 0.25),
-    ratioQ75: quantile(ratios, 0.75),
+    row: { algorithm: name, towers },
+    perBatch,
+    batches: Math.floor(events.batch.count / perBatch),
+    // each side's own clock around its events, from loaded towers to sorted jets
+    nativeBatch: async (first) => {
+      server.stdin.write(`run ${first} ${perBatch} 1\n`);
+      const reply = await replies.next();
+      const ns = Number(reply.value);
+      if (reply.done || !Number.isFinite(ns)) throw new Error(`native-pair: the native server answered ${reply.done ? 'nothing' : reply.value}`);
+      return ns;
+    },
+    engineBatch: (first) => {
+      const jets = engine.clusterBatch(perBatch, events.batch.towerStart.subarray(first, first + perBatch + 1), events.batch.towerIndex, events.batch.towerEt, false);
+      let sum = 0;
+      for (let e = 0; e < perBatch; e++) sum += jets.clusterNs[e];
+      return sum / perBatch;
+    },
+    quit: () => server.stdin.end('quit\n'),
+    nativeNs: [],
+    engineNs: [],
+    ratios: [],
+  };
+}
+
+/** One round: a batch on each side, the order alternating from round to round. */
+async function pairedRound(pairing: Pairing, round: number): Promise<void> {
+  const first = (round % pairing.batches) * pairing.perBatch;
+  let native: number;
+  let wasm: number;
+  if (round % 2 === 0) {
+    native = await pairing.nativeBatch(first);
+    wasm = pairing.engineBatch(first);
+  } else {
+    wasm = pairing.engineBatch(first);
+    native = await pairing.nativeBatch(first);
+  }
+  if (round < WARM_ROUNDS) return;
+  pairing.nativeNs.push(native);
+  pairing.engineNs.push(wasm);
+  pairing.ratios.push(wasm / native);
+}
+
+function summary(pairing: Pairing): Row {
+  return {
+    ...pairing.row,
+    nativeMedianUs: quantile(pairing.nativeNs, 0.5) / 1e3,
+    engineMedianUs: quantile(pairing.engineNs, 0.5) / 1e3,
+    ratioMedian: quantile(pairing.ratios, 0.5),
+    ratioQ25: quantile(pairing.ratios, 0.25),
+    ratioQ75: quantile(pairing.ratios, 0.75),
   };
 }
 
@@ -183,12 +204,15 @@ if (mismatch) {
 }
 console.log('native baseline: anti-kt jets of the 850-tower events agree with the engine (counts, towers, pt to 1e-12)');
 
-const rows: Row[] = [];
-for (const config of CONFIGS) {
-  const perBatch = config.towers > 1000 ? Math.max(1, eventsPerBatch >> 2) : eventsPerBatch;
-  rows.push(await pairRun(config.name, config.p, config.towers, eventSets.get(config.towers)!, perBatch));
+// the configurations take their rounds in turn, so that each sees the same phases of the machine
+const pairings = CONFIGS.map((config) => startPairing(config.name, config.p, config.towers, eventSets.get(config.towers)!,
+  config.towers > 1000 ? Math.max(1, eventsPerBatch >> 2) : eventsPerBatch));
+for (let round = 0; round < WARM_ROUNDS + rounds; round++) {
+  for (const pairing of pairings) await pairedRound(pairing, round);
 }
-console.log(`\n${rounds} paired rounds each (+${WARM_ROUNDS} warm-up), R = 0.4, default grid; times are medians in µs per event`);
+for (const pairing of pairings) pairing.quit();
+const rows = pairings.map(summary);
+console.log(`\n${rounds} paired rounds each (+${WARM_ROUNDS} warm-up), the configurations in turn, R = 0.4, default grid; times are medians in µs per event`);
 console.log('| algorithm | towers | native | engine | engine / native (median) | q25 | q75 |');
 console.log('|---|---|---|---|---|---|---|');
 for (const row of rows) {
