@@ -11,11 +11,11 @@
 //   cells    cellY cellPhi cellW cellNnDR2 cellNnKey f64[C]
 //            cellJet cellNn pointHead pointNext pointPrev cellWide cellRow cellCol i32[C]
 //            driftList driftSlot i32[C]   (the cells whose jet lies outside its cell's own area)
-//            candLo candHi i32[P]  (per slot, tournament.ts)  cellSlot slotCell i32[C]
+//            candTie u64[P]  (per slot, tournament.ts)  cellSlot slotCell i32[C]
 //   rows     rowDriftY rowDriftPhi f64[etaBins]
-//   tree     tree i32[2P]  nodeValue f64[2P]   (P = power of two >= C; per event a tree of
+//   tree     tree i32[2P]  nodeValue u64[2P]   (P = power of two >= C; per event a tree of
 //            L <= P leaves, L the power of two >= its towers: node n < L holds the winning slot of
-//            its subtree and its measure, tree[L + s] = s and nodeValue[L + s] slot s's measure)
+//            its subtree and its measure's bits, tree[L + s] = s and nodeValue[L + s] slot s's)
 //   jets     jetPx jetPy jetPz jetE jetKt2 jetY jetPhi f64[2C]  jetInto jetLabel i32[2C]
 //   finals   finalJet finalOrder finalScratch i32[C]  finalPt f64[C]  redo i32[C]
 //   offsets  offDr offDc offStep i32[O]  offDist f64[O]  offPerm offScratch offTmpI i32[O]
@@ -91,8 +91,7 @@ export let cellNn: usize = 0;
 export let pointHead: usize = 0;
 export let pointNext: usize = 0;
 export let pointPrev: usize = 0;
-export let candLo: usize = 0;
-export let candHi: usize = 0;
+export let candTie: usize = 0;
 export let cellSlot: usize = 0;
 export let slotCell: usize = 0;
 export let cellWide: usize = 0;
@@ -223,8 +222,7 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   pointHead = take(cells << 2);
   pointNext = take(cells << 2);
   pointPrev = take(cells << 2);
-  candLo = take(<usize>p << 2);
-  candHi = take(<usize>p << 2);
+  candTie = take(<usize>p << 3);
   cellSlot = take(cells << 2);
   slotCell = take(cells << 2);
   cellWide = take(cells << 2);

@@ -7,14 +7,14 @@
 // finalJet i32[finalCount]: the final jets in the order they became final. redo i32: the cells
 // whose neighbour went away in the current step.
 
-import { evIndex, evEt, cellJet, cellNn, cellY, cellPhi, cellW, cellNnKey, candHi, jetInto, jetY,
+import { evIndex, evEt, cellJet, cellNn, cellY, cellPhi, cellW, cellNnKey, jetInto, jetY,
   jetPhi, finalJet, redo, cellSlot, slotCell, getF64, getI32, setI32 } from './layout';
 import { BEAM, invR2 } from './settings';
 import { loadTower, mergeJets, deltaR2 } from './kinematics';
 import { resetDrift, placeJet, clearCell, unlink, detachPointers, freeCellNear, assignSlot, setNeighbour,
   centreOffsetY, centreOffsetPhi } from './cells';
 import { findNeighbour, scanNewJet, setSeedCell } from './tiles';
-import { startTree, buildTree, updateTree, treeWinner } from './tournament';
+import { startTree, buildTree, updateTree, treeWinner, isBeamCandidate } from './tournament';
 
 export let finalCount: i32 = 0;
 export let jetCount: i32 = 0;
@@ -108,7 +108,7 @@ export function clusterTowers(n: i32): void {
   while (live > 0) {
     const s = treeWinner();
     const c = getI32(slotCell, s);
-    if (getI32(candHi, s) == BEAM) {
+    if (isBeamCandidate(s)) {
       finish(c);
     } else {
       merge(c, getI32(cellNn, c));

@@ -5,31 +5,53 @@
 //
 // Leaves are slots, not cells: tower t starts in slot t, and a merged jet takes one of its
 // parents' slots (cells.ts cellSlot, slotCell), so the tree is as deep as the event needs.
-// Leaf s holds its jet's candidate as three words: nodeValue[L + s] f64, candLo[s] i32,
-// candHi[s] i32 — the measure, then the smaller and the larger jet index (candHi = BEAM for a
-// beam candidate). The order is that of clustering-spec.md section 4 step 1. An empty leaf is
-// (+Inf, BEAM, BEAM), after every real candidate, even one whose measure overflowed to +Inf.
+// Leaf s holds its jet's candidate as two words: nodeValue[L + s], the measure's bits as a u64,
+// and candTie[s] u64, the smaller jet index << 32 | the larger one (BEAM for a beam candidate).
+// Measures are never negative, so their bits order as the numbers do, and both indices are
+// non-negative, so the tie word orders as the pair: the order of clustering-spec.md section 4
+// step 1 is the bits, then the tie word. An empty leaf is (+Inf, BEAM << 32 | BEAM), after every
+// real candidate, even one whose measure overflowed to +Inf. (A NaN measure, which the spec does
+// not order, sorts after +Inf; DEVELOPERS.md "Readings".)
+// A match is decided without a branch: integer compares and selects, which V8 keeps as
+// conditional moves (a select of doubles it turns into a branch). Which side wins is data no
+// predictor learns, and on a grid equal measures, which took two more branches, are common.
 
-import { tree, nodeValue, treeLeaves, candLo, candHi, getF64, setF64, getI32, setI32 } from './layout';
+import { tree, nodeValue, treeLeaves, candTie, getI32, setI32 } from './layout';
 import { BEAM } from './settings';
+
+// @ts-ignore: decorator
+@inline const EMPTY_TIE: u64 = (<u64>BEAM << 32) | <u64>BEAM;
+// @ts-ignore: decorator
+@inline const INFINITY_BITS: u64 = 0x7ff0000000000000;
 
 /** leaves of the current event's tree */
 let eventLeaves: i32 = 1;
 
 // @ts-ignore: decorator
-@inline function before(va: f64, a: i32, vb: f64, b: i32): bool {
-  if (va != vb) return va < vb;
-  const la = getI32(candLo, a);
-  const lb = getI32(candLo, b);
-  if (la != lb) return la < lb;
-  return getI32(candHi, a) < getI32(candHi, b);
+@inline function tieOf(s: i32): u64 {
+  return load<u64>(candTie + (<usize>s << 3));
+}
+
+// @ts-ignore: decorator
+@inline function valueAt(values: usize, n: i32): u64 {
+  return load<u64>(values + (<usize>n << 3));
+}
+
+// @ts-ignore: decorator
+@inline function setValueAt(values: usize, n: i32, bits: u64): void {
+  store<u64>(values + (<usize>n << 3), bits);
+}
+
+/** does candidate (vb, tieB) come before (va, tieA)? */
+// @ts-ignore: decorator
+@inline function comesBefore(vb: u64, tieB: u64, va: u64, tieA: u64): bool {
+  return (vb < va) | ((vb == va) & (tieB < tieA));
 }
 
 // @ts-ignore: decorator
 @inline export function setCandidate(s: i32, value: f64, lo: i32, hi: i32): void {
-  setF64(nodeValue, eventLeaves + s, value);
-  setI32(candLo, s, lo);
-  setI32(candHi, s, hi);
+  setValueAt(nodeValue, eventLeaves + s, reinterpret<u64>(value));
+  store<u64>(candTie + (<usize>s << 3), (<u64>lo << 32) | <u64>hi);
 }
 
 // @ts-ignore: decorator
@@ -37,12 +59,15 @@ let eventLeaves: i32 = 1;
   setCandidate(s, Infinity, BEAM, BEAM);
 }
 
+/** Is slot s's candidate its beam? */
+// @ts-ignore: decorator
+@inline export function isBeamCandidate(s: i32): bool {
+  return <i32>(tieOf(s) & 0xffffffff) == BEAM;
+}
+
 /** Called once per engine: every slot empty. */
 export function initTree(): void {
-  for (let s = 0; s < treeLeaves; s++) {
-    setI32(candLo, s, BEAM);
-    setI32(candHi, s, BEAM);
-  }
+  for (let s = 0; s < treeLeaves; s++) store<u64>(candTie + (<usize>s << 3), EMPTY_TIE);
 }
 
 /** Before the event's first candidate: a tree of the least power of two >= n leaves, all empty
@@ -53,7 +78,7 @@ export function startTree(n: i32): void {
   eventLeaves = leaves;
   for (let s = 0; s < leaves; s++) {
     setI32(tree, leaves + s, s);
-    setF64(nodeValue, leaves + s, Infinity);
+    setValueAt(nodeValue, leaves + s, INFINITY_BITS);
   }
 }
 
@@ -64,17 +89,13 @@ export function buildTree(): void {
   for (let n = eventLeaves - 1; n >= 1; n--) {
     const l = n << 1;
     const r = l + 1;
-    const vl = getF64(values, l);
-    const vr = getF64(values, r);
+    const vl = valueAt(values, l);
+    const vr = valueAt(values, r);
     const il = getI32(ids, l);
     const ir = getI32(ids, r);
-    if (before(vr, ir, vl, il)) {
-      setI32(ids, n, ir);
-      setF64(values, n, vr);
-    } else {
-      setI32(ids, n, il);
-      setF64(values, n, vl);
-    }
+    const right = comesBefore(vr, tieOf(ir), vl, tieOf(il));
+    setI32(ids, n, select<i32>(ir, il, right));
+    setValueAt(values, n, select<u64>(vr, vl, right));
   }
 }
 
@@ -85,20 +106,22 @@ export function updateTree(s: i32): void {
   const values = nodeValue;
   let n = eventLeaves + s;
   let id = s;
-  let v = getF64(values, n);
+  let v = valueAt(values, n);
+  let tie = tieOf(s);
   while (n > 1) {
     const sibling = n ^ 1;
-    const sv = getF64(values, sibling);
+    const sv = valueAt(values, sibling);
     const sid = getI32(ids, sibling);
-    if (before(sv, sid, v, id)) {
-      id = sid;
-      v = sv;
-    }
+    const siblingTie = tieOf(sid);
+    const taken = comesBefore(sv, siblingTie, v, tie);
+    id = select<i32>(sid, id, taken);
+    v = select<u64>(sv, v, taken);
+    tie = select<u64>(siblingTie, tie, taken);
     n >>= 1;
     const old = getI32(ids, n);
     if (old == id && id != s) return;
     setI32(ids, n, id);
-    setF64(values, n, v);
+    setValueAt(values, n, v);
   }
 }
 
