@@ -1,6 +1,6 @@
 // The smallest candidate of all live jets, kept in a tournament tree (a complete binary tree over
 // the event's L leaves, L the power of two >= its towers; every inner node holds the leaf that
-// wins its subtree, and that leaf's measure so a match mostly needs no look-up). A changed leaf
+// wins its subtree and that leaf's measure, whose tie word is looked up by slot). A changed leaf
 // replays only its path to the root, and stops early once the path's winner is unchanged.
 //
 // Leaves are slots, not cells: tower t starts in slot t, and a merged jet takes one of its
