@@ -15,7 +15,7 @@ import { Bench } from 'tinybench';
 import { WasmClusterer } from '../host/engine.js';
 import { ReferenceClusterer } from '../host/reference.js';
 import { DEFAULT_GRID, type ClusterSettings, type Clusterer } from '../host/types.js';
-import { makeRandom, pileupEvents, type TowerArrays } from '../tests/support/random-events.js';
+import { batchOf, makeRandom, pileupEvents, type TowerArrays } from '../tests/support/random-events.js';
 
 const quick = process.argv.includes('--quick');
 const SIZES = [100, 300, 850, 1000, 3200];
@@ -65,11 +65,7 @@ function quantile(sorted: number[], q: number): number {
 
 /** the engine's own per-event clock over the pool, clustered as one batch, repeated */
 function insideMedianUs(engine: WasmClusterer, pool: TowerArrays[]): number {
-  const starts = new Int32Array(pool.length + 1);
-  pool.forEach((event, k) => { starts[k + 1] = starts[k] + event.towerIndex.length; });
-  const index = new Int32Array(starts[pool.length]);
-  const et = new Float64Array(starts[pool.length]);
-  pool.forEach((event, k) => { index.set(event.towerIndex, starts[k]); et.set(event.towerEt, starts[k]); });
+  const { towerStart: starts, towerIndex: index, towerEt: et } = batchOf(pool);
   const times: number[] = [];
   for (let round = 0; round < (quick ? 2 : 6); round++) {
     const batch = engine.clusterBatch(pool.length, starts, index, et, true);

@@ -5,15 +5,11 @@ import { WasmClusterer, batchEventJets, loadEngineModule, ENGINE_OK, ENGINE_INDE
 import { ReferenceClusterer } from '../host/reference.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS, type ClusterSettings } from '../host/types.js';
 import { firstJetDifference } from './support/jet-equality.js';
-import { fullGridEvent, makeRandom, randomEvent, type TowerArrays } from './support/random-events.js';
+import { batchOf, fullGridEvent, makeRandom, randomEvent, type TowerArrays } from './support/random-events.js';
 
 function flatten(events: TowerArrays[]): { starts: Int32Array; index: Int32Array; et: Float64Array } {
-  const starts = new Int32Array(events.length + 1);
-  events.forEach((event, k) => { starts[k + 1] = starts[k] + event.towerIndex.length; });
-  const index = new Int32Array(starts[events.length]);
-  const et = new Float64Array(starts[events.length]);
-  events.forEach((event, k) => { index.set(event.towerIndex, starts[k]); et.set(event.towerEt, starts[k]); });
-  return { starts, index, et };
+  const batch = batchOf(events);
+  return { starts: batch.towerStart, index: batch.towerIndex, et: batch.towerEt };
 }
 
 const settings: ClusterSettings = { ...DEFAULT_SETTINGS, ptMin: 1 };
