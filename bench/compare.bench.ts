@@ -6,13 +6,13 @@
 // and 20 GeV. The machine is shared: quote medians and ratios from one run.
 
 import { Bench } from 'tinybench';
-import { makeEmulatedClusterer } from '../host/emulate.js';
-import { WasmClusterer } from '../host/engine.js';
-import { generateEvents } from '../host/generate.js';
-import { ReferenceClusterer } from '../host/reference.js';
-import { DEFAULT_TOLERANCE, ToleranceMatcher } from '../host/tolerance-compare.js';
+import { makeEmulatedClusterer } from '../host/clustering/emulate.js';
+import { WasmClusterer } from '../host/clustering/engine.js';
+import { generateEvents } from '../host/generator/generate.js';
+import { ReferenceClusterer } from '../host/clustering/reference.js';
+import { DEFAULT_TOLERANCE, ToleranceMatcher } from '../host/validate/tolerance-compare.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../host/types.js';
-import { ValidationAccumulator } from '../host/validation-report.js';
+import { ValidationAccumulator } from '../host/validate/validation-report.js';
 
 const settings = { ...DEFAULT_SETTINGS, threshold: 0.5 };
 const events = [...generateEvents(DEFAULT_GRID, { events: 100, pileup: 200, seed: 5 })];

@@ -12,8 +12,8 @@ import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { cpus } from 'node:os';
 import { Bench } from 'tinybench';
-import { WasmClusterer } from '../host/engine.js';
-import { ReferenceClusterer } from '../host/reference.js';
+import { WasmClusterer } from '../host/clustering/engine.js';
+import { ReferenceClusterer } from '../host/clustering/reference.js';
 import { DEFAULT_GRID, type ClusterSettings, type Clusterer } from '../host/types.js';
 import { batchOf, makeRandom, pileupEvents, type TowerArrays } from '../tests/support/random-events.js';
 

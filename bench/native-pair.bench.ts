@@ -16,7 +16,7 @@ import { mkdirSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { createInterface } from 'node:readline';
 import { fileURLToPath } from 'node:url';
-import { WasmClusterer } from '../host/engine.js';
+import { WasmClusterer } from '../host/clustering/engine.js';
 import { DEFAULT_GRID } from '../host/types.js';
 import { batchOf, makeRandom, pileupEvents } from '../tests/support/random-events.js';
 

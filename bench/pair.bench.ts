@@ -10,7 +10,7 @@
 // from before a change). Both must export the interface host/engine.ts expects.
 
 import { readFileSync } from 'node:fs';
-import { WasmClusterer } from '../host/engine.js';
+import { WasmClusterer } from '../host/clustering/engine.js';
 import { DEFAULT_GRID, type ClusterSettings } from '../host/types.js';
 import { batchOf, makeRandom, pileupEvents } from '../tests/support/random-events.js';
 

@@ -15,14 +15,14 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Bench } from 'tinybench';
 import { Piscina } from 'piscina';
-import { encodeEventRecord } from '../host/event-codec.js';
-import { encodeFileHeader } from '../host/file-header.js';
-import { generateEvents } from '../host/generate.js';
-import { delimit } from '../host/wire.js';
+import { encodeEventRecord } from '../host/formats/event-codec.js';
+import { encodeFileHeader } from '../host/formats/file-header.js';
+import { generateEvents } from '../host/generator/generate.js';
+import { delimit } from '../host/formats/wire.js';
 import { DEFAULT_GRID } from '../host/types.js';
-import { runEvents, type RunOptions } from '../host/run.js';
-import { workerFile } from '../host/pool.js';
-import { describeMachine } from '../host/summary.js';
+import { runEvents, type RunOptions } from '../host/pipeline/run.js';
+import { workerFile } from '../host/pipeline/pool.js';
+import { describeMachine } from '../host/measure/summary.js';
 
 const quick = process.argv.includes('--quick');
 /** sections 1-3 at full size, without the long streaming run */

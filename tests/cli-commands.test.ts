@@ -4,12 +4,12 @@ import { mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSyn
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import { makeGridTables, selectTowers } from '../host/grid.js';
-import { generateEvents } from '../host/generate.js';
-import { clusterReference } from '../host/reference.js';
+import { makeGridTables, selectTowers } from '../host/clustering/grid.js';
+import { generateEvents } from '../host/generator/generate.js';
+import { clusterReference } from '../host/clustering/reference.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../host/types.js';
 
-const cli = join(import.meta.dirname, '..', 'dist', 'host', 'cli.js');
+const cli = join(import.meta.dirname, '..', 'dist', 'host', 'cli', 'cli.js');
 const directory = mkdtempSync(join(tmpdir(), 'jetlag-cli-'));
 afterAll(() => rmSync(directory, { recursive: true, force: true }));
 

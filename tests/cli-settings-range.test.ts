@@ -3,8 +3,9 @@
 // for the reference and the engine alike, instead of reaching a clusterer.
 
 import { describe, expect, it } from 'vitest';
-import { UsageError, parseArgs, type CommandSpec } from '../host/args.js';
-import { CLUSTER_OPTIONS, clusterSettingsFrom } from '../host/common-options.js';
+import { parseArgs, type CommandSpec } from '../host/cli/args.js';
+import { UsageError } from '../host/errors.js';
+import { CLUSTER_OPTIONS, clusterSettingsFrom } from '../host/cli/common-options.js';
 
 const spec: CommandSpec = { name: 'cluster', summary: '', usage: '', positionals: { min: 0, max: 0 }, options: CLUSTER_OPTIONS };
 const settingsFor = (...argv: string[]) => clusterSettingsFrom(parseArgs(spec, argv), 'cluster');

@@ -5,12 +5,12 @@ import { mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { describeDifference, firstJetDifference, ulpDistance } from '../host/bit-exact.js';
-import { decodeEventRecord, encodeEventRecord } from '../host/event-codec.js';
-import { openEventSource } from '../host/event-source.js';
-import { generateEvents } from '../host/generate.js';
-import { ReferenceClusterer } from '../host/reference.js';
-import { ReproWriter } from '../host/repro-writer.js';
+import { describeDifference, firstJetDifference, ulpDistance } from '../host/validate/bit-exact.js';
+import { decodeEventRecord, encodeEventRecord } from '../host/formats/event-codec.js';
+import { openEventSource } from '../host/input/event-source.js';
+import { generateEvents } from '../host/generator/generate.js';
+import { ReferenceClusterer } from '../host/clustering/reference.js';
+import { ReproWriter } from '../host/output/repro-writer.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS, type JetSet } from '../host/types.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'jetlag-bit-exact-'));

@@ -7,8 +7,8 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { openCandidate, type CandidateEvent } from '../host/candidate-reader.js';
-import { encodeJetsFileHeader } from '../host/jets-codec.js';
+import { openCandidate, type CandidateEvent } from '../host/input/candidate-reader.js';
+import { encodeJetsFileHeader } from '../host/formats/jets-codec.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../host/types.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'jetlag-minimal-jets-'));

@@ -7,9 +7,10 @@ import { join } from 'node:path';
 import { Readable } from 'node:stream';
 import { gzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
-import { InputError } from '../host/args.js';
-import { openCandidate, type CandidateEvent } from '../host/candidate-reader.js';
-import { emptyJetSet, JetsFileWriter } from '../host/jets-codec.js';
+import { InputError } from '../host/errors.js';
+import { openCandidate, type CandidateEvent } from '../host/input/candidate-reader.js';
+import { emptyJetSet } from '../host/formats/jets-codec.js';
+import { JetsFileWriter } from '../host/output/jets-writer.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../host/types.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'jetlag-candidate-'));

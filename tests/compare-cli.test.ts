@@ -8,7 +8,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 
-const cli = join(import.meta.dirname, '..', 'dist', 'host', 'cli.js');
+const cli = join(import.meta.dirname, '..', 'dist', 'host', 'cli', 'cli.js');
 const directory = mkdtempSync(join(tmpdir(), 'jetlag-compare-cli-'));
 afterAll(() => rmSync(directory, { recursive: true, force: true }));
 

@@ -3,7 +3,7 @@
 // unmatched one is an extra jet and the event disagrees. Hand-made jets, no outside source.
 
 import { describe, expect, it } from 'vitest';
-import { DEFAULT_TOLERANCE, ToleranceMatcher } from '../host/tolerance-compare.js';
+import { DEFAULT_TOLERANCE, ToleranceMatcher } from '../host/validate/tolerance-compare.js';
 
 const reference = { count: 2, pt: Float64Array.of(50, 20), rapidity: Float64Array.of(-1.45, 0.55), phi: Float64Array.of(1.03, 3.98) };
 /** the reference's jets plus one far from both whose pt is NaN */

@@ -1,9 +1,9 @@
 // The validation report's arithmetic: distributions, bins, worst events and counts.
 
 import { describe, expect, it } from 'vitest';
-import { makeRandom } from '../host/generate.js';
-import { DEFAULT_TOLERANCE, ToleranceMatcher } from '../host/tolerance-compare.js';
-import { DeviationHistogram, PT_BIN_EDGES_GEV, ValidationAccumulator, formatValidationReport } from '../host/validation-report.js';
+import { makeRandom } from '../host/generator/generate.js';
+import { DEFAULT_TOLERANCE, ToleranceMatcher } from '../host/validate/tolerance-compare.js';
+import { DeviationHistogram, PT_BIN_EDGES_GEV, ValidationAccumulator, formatValidationReport } from '../host/validate/validation-report.js';
 
 function exactQuantile(sorted: number[], q: number): number {
   return sorted[Math.floor(q * (sorted.length - 1))];

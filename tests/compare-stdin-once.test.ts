@@ -3,8 +3,9 @@
 
 import { PassThrough } from 'node:stream';
 import { describe, expect, it } from 'vitest';
-import { UsageError, type CommandIo } from '../host/args.js';
-import { main as compareMain } from '../host/commands/compare.js';
+import { type CommandIo } from '../host/cli/args.js';
+import { UsageError } from '../host/errors.js';
+import { main as compareMain } from '../host/cli/commands/compare.js';
 
 describe('compare with stdin', () => {
   it('refuses stdin for both the events and the candidate as bad usage', async () => {

@@ -3,9 +3,9 @@
 // toy generator (invented data).
 
 import { describe, expect, it } from 'vitest';
-import { generateEvents } from '../host/generate.js';
-import { ReferenceClusterer } from '../host/reference.js';
-import { DEFAULT_TOLERANCE, ToleranceMatcher, deltaR } from '../host/tolerance-compare.js';
+import { generateEvents } from '../host/generator/generate.js';
+import { ReferenceClusterer } from '../host/clustering/reference.js';
+import { DEFAULT_TOLERANCE, ToleranceMatcher, deltaR } from '../host/validate/tolerance-compare.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS, type JetSet } from '../host/types.js';
 
 interface Jets {

@@ -7,10 +7,10 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { PassThrough } from 'node:stream';
 import { beforeAll, describe, expect, it } from 'vitest';
-import type { CommandIo } from '../host/args.js';
-import { main as clusterMain } from '../host/commands/cluster.js';
-import { main as compareMain } from '../host/commands/compare.js';
-import { main as generateMain } from '../host/commands/generate.js';
+import type { CommandIo } from '../host/cli/args.js';
+import { main as clusterMain } from '../host/cli/commands/cluster.js';
+import { main as compareMain } from '../host/cli/commands/compare.js';
+import { main as generateMain } from '../host/cli/commands/generate.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'jetlag-emulate-'));
 const eventsPath = join(dir, 'events.pb');

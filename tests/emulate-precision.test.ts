@@ -2,13 +2,13 @@
 // from the toy generator (invented data).
 
 import { describe, expect, it } from 'vitest';
-import { UsageError } from '../host/args.js';
-import { makeEmulatedClusterer, parseEmulation } from '../host/emulate.js';
-import { generateEvents } from '../host/generate.js';
-import { ReferenceClusterer } from '../host/reference.js';
-import { DEFAULT_TOLERANCE, ToleranceMatcher } from '../host/tolerance-compare.js';
+import { UsageError } from '../host/errors.js';
+import { makeEmulatedClusterer, parseEmulation } from '../host/clustering/emulate.js';
+import { generateEvents } from '../host/generator/generate.js';
+import { ReferenceClusterer } from '../host/clustering/reference.js';
+import { DEFAULT_TOLERANCE, ToleranceMatcher } from '../host/validate/tolerance-compare.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS, type ClusterSettings, type JetSet } from '../host/types.js';
-import { makeGridTables } from '../host/grid.js';
+import { makeGridTables } from '../host/clustering/grid.js';
 import { clusterBruteForceF32 } from './support/brute-force-f32.js';
 import { firstJetDifference } from './support/jet-equality.js';
 import { seededRandom, smallEvent } from './support/small-events.js';

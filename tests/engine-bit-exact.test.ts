@@ -2,8 +2,8 @@
 // same jets in the same order, same constituents, every double identical (Object.is).
 
 import { describe, expect, it } from 'vitest';
-import { WasmClusterer } from '../host/engine.js';
-import { ReferenceClusterer } from '../host/reference.js';
+import { WasmClusterer } from '../host/clustering/engine.js';
+import { ReferenceClusterer } from '../host/clustering/reference.js';
 import { DEFAULT_GRID, type ClusterSettings, type Grid, type Recombination } from '../host/types.js';
 import { firstJetDifference } from './support/jet-equality.js';
 import { fullGridEvent, makeRandom, randomEvent, type EventShape, type TowerArrays } from './support/random-events.js';

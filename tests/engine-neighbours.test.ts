@@ -6,9 +6,9 @@
 
 import Delaunator from 'delaunator';
 import { describe, expect, it } from 'vitest';
-import { WasmClusterer } from '../host/engine.js';
-import { makeGridTables, selectTowers } from '../host/grid.js';
-import { weightOf, deltaR2 } from '../host/reference.js';
+import { WasmClusterer } from '../host/clustering/engine.js';
+import { makeGridTables, selectTowers } from '../host/clustering/grid.js';
+import { weightOf, deltaR2 } from '../host/clustering/reference.js';
 import { DEFAULT_GRID, type ClusterSettings, type Grid } from '../host/types.js';
 import { makeRandom, randomEvent } from './support/random-events.js';
 

@@ -5,7 +5,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 
-const cli = join(import.meta.dirname, '..', 'dist', 'host', 'cli.js');
+const cli = join(import.meta.dirname, '..', 'dist', 'host', 'cli', 'cli.js');
 const directory = mkdtempSync(join(tmpdir(), 'jetlag-io-cli-'));
 afterAll(() => rmSync(directory, { recursive: true, force: true }));
 
@@ -46,7 +46,7 @@ describe('jetlag import and export on the command line', () => {
   });
 
   it('readRecords reads stdin for -', () => {
-    const reader = join(import.meta.dirname, '..', 'dist', 'host', 'record-reader.js');
+    const reader = join(import.meta.dirname, '..', 'dist', 'host', 'input', 'record-reader.js');
     const script = `import { readRecords } from ${JSON.stringify(reader)};\n` +
       'const sizes = []; for await (const r of readRecords("-")) sizes.push(r.bytes.length + "@" + r.offset); console.log(sizes.join(" "));';
     const input = Buffer.from([3, 1, 2, 3, 0, 1, 9]);

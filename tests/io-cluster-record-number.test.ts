@@ -6,10 +6,10 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { PassThrough } from 'node:stream';
 import { describe, expect, it } from 'vitest';
-import type { CommandIo } from '../host/args.js';
-import { main as clusterMain } from '../host/commands/cluster.js';
-import { main as exportMain } from '../host/commands/export.js';
-import { EventFileWriter } from '../host/record-writer.js';
+import type { CommandIo } from '../host/cli/args.js';
+import { main as clusterMain } from '../host/cli/commands/cluster.js';
+import { main as exportMain } from '../host/cli/commands/export.js';
+import { EventFileWriter } from '../host/output/record-writer.js';
 import { DEFAULT_GRID } from '../host/types.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'jetlag-record-number-'));

@@ -4,7 +4,7 @@ import { join } from 'node:path';
 import { Readable } from 'node:stream';
 import { gzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
-import { parseCsvTowersText, readCsvTowers, type CsvEvent } from '../host/csv-towers.js';
+import { parseCsvTowersText, readCsvTowers, type CsvEvent } from '../host/input/csv-towers.js';
 import type { Grid } from '../host/types.js';
 
 const grid: Grid = { etaMin: -2.5, etaMax: 2.5, etaBins: 50, phiBins: 64 };

@@ -3,10 +3,10 @@
 // repeated fields, concatenated chunks, last value wins, unknown fields skipped) are those of
 // the protobuf encoding guide, https://protobuf.dev/programming-guides/encoding/ (from memory).
 import { describe, expect, it } from 'vitest';
-import { decodeEventRecord, encodeEventRecord, EventRecordDecoder } from '../host/event-codec.js';
-import { decodeFileHeader, encodeFileHeader, looksLikeFileHeader, type FileHeader } from '../host/file-header.js';
-import { loadJetlagSchema } from '../host/proto-schema.js';
-import { ProtoWriter } from '../host/wire.js';
+import { decodeEventRecord, encodeEventRecord, EventRecordDecoder } from '../host/formats/event-codec.js';
+import { decodeFileHeader, encodeFileHeader, looksLikeFileHeader, type FileHeader } from '../host/formats/file-header.js';
+import { loadJetlagSchema } from './support/proto-schema.js';
+import { ProtoWriter } from '../host/formats/wire.js';
 import { seededRandom as makeRandom } from './support/small-events.js';
 
 const schema = loadJetlagSchema();

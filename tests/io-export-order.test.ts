@@ -8,12 +8,12 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { PassThrough } from 'node:stream';
 import { describe, expect, it } from 'vitest';
-import type { CommandIo } from '../host/args.js';
-import { main as exportMain } from '../host/commands/export.js';
-import { parseCsvTowersText } from '../host/csv-towers.js';
-import { ReferenceClusterer } from '../host/reference.js';
-import { JetsFileWriter } from '../host/jets-codec.js';
-import { EventFileWriter } from '../host/record-writer.js';
+import type { CommandIo } from '../host/cli/args.js';
+import { main as exportMain } from '../host/cli/commands/export.js';
+import { parseCsvTowersText } from '../host/input/csv-towers.js';
+import { ReferenceClusterer } from '../host/clustering/reference.js';
+import { JetsFileWriter } from '../host/output/jets-writer.js';
+import { EventFileWriter } from '../host/output/record-writer.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../host/types.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'jetlag-export-order-'));

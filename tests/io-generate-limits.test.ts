@@ -7,9 +7,10 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { PassThrough } from 'node:stream';
 import { describe, expect, it } from 'vitest';
-import { UsageError, type CommandIo } from '../host/args.js';
-import { MAX_HARD_JETS, MAX_PILEUP, main as generateMain } from '../host/commands/generate.js';
-import { openEventSource } from '../host/event-source.js';
+import { type CommandIo } from '../host/cli/args.js';
+import { UsageError } from '../host/errors.js';
+import { MAX_HARD_JETS, MAX_PILEUP, main as generateMain } from '../host/cli/commands/generate.js';
+import { openEventSource } from '../host/input/event-source.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'jetlag-generate-limits-'));
 

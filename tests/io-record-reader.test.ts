@@ -7,9 +7,9 @@ import { join } from 'node:path';
 import { Readable } from 'node:stream';
 import { gzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
-import { InputError } from '../host/args.js';
-import { readRecords, RecordFramer } from '../host/record-reader.js';
-import { delimit } from '../host/wire.js';
+import { InputError } from '../host/errors.js';
+import { readRecords, RecordFramer } from '../host/input/record-reader.js';
+import { delimit } from '../host/formats/wire.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'jetlag-records-'));
 let fileCount = 0;

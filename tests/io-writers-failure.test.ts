@@ -6,7 +6,7 @@ import { mkdirSync, mkdtempSync, readdirSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { OutputFile } from '../host/record-writer.js';
+import { OutputFile } from '../host/output/record-writer.js';
 
 describe('an output that cannot be written', () => {
   it('in a missing directory is named with the path asked for', async () => {

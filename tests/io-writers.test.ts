@@ -4,8 +4,8 @@ import { join } from 'node:path';
 import { Writable } from 'node:stream';
 import { gunzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
-import { RecordFramer } from '../host/record-reader.js';
-import { RecordFileWriter, TextFileWriter } from '../host/record-writer.js';
+import { RecordFramer } from '../host/input/record-reader.js';
+import { RecordFileWriter, TextFileWriter } from '../host/output/record-writer.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'jetlag-writers-'));
 

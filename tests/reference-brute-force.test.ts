@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { makeGridTables, selectTowers } from '../host/grid.js';
-import { clusterReference, type ClusterStep } from '../host/reference.js';
+import { makeGridTables, selectTowers } from '../host/clustering/grid.js';
+import { clusterReference, type ClusterStep } from '../host/clustering/reference.js';
 import { DEFAULT_GRID, type ClusterSettings, type Grid } from '../host/types.js';
 import { clusterBruteForce } from './support/brute-force.js';
 import { firstJetDifference } from './support/jet-equality.js';

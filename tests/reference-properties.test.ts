@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { binDeposits, makeGridTables, wrapPhi } from '../host/grid.js';
-import { ReferenceClusterer, deltaR2 } from '../host/reference.js';
+import { binDeposits, makeGridTables, wrapPhi } from '../host/clustering/grid.js';
+import { ReferenceClusterer, deltaR2 } from '../host/clustering/reference.js';
 import { DEFAULT_GRID, type ClusterSettings } from '../host/types.js';
 import { seededRandom } from './support/small-events.js';
 

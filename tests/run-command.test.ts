@@ -4,10 +4,11 @@ import { mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { PassThrough } from 'node:stream';
-import { parseArgs, UsageError } from '../host/args.js';
-import { main as runMain, runOptionsFrom, spec as runSpec } from '../host/commands/run.js';
-import { main as mergeMain } from '../host/commands/merge.js';
-import { ProgressBar } from '../host/progress.js';
+import { parseArgs } from '../host/cli/args.js';
+import { UsageError } from '../host/errors.js';
+import { main as runMain, runOptionsFrom, spec as runSpec } from '../host/cli/commands/run.js';
+import { main as mergeMain } from '../host/cli/commands/merge.js';
+import { ProgressBar } from '../host/measure/progress.js';
 import { toyEvents, writeEventFile } from './support/run-files.js';
 
 function fakeIo(isTty = false) {

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { LatencyRecorder } from '../host/latency.js';
-import { ArrivalSchedule, seededUniform } from '../host/arrivals.js';
+import { LatencyRecorder } from '../host/measure/latency.js';
+import { ArrivalSchedule, seededUniform } from '../host/pipeline/arrivals.js';
 
 /** skewed latencies of the shape clustering times have: a body and a long tail */
 function sampleLatenciesNs(count: number, seed: number): number[] {

@@ -3,17 +3,17 @@ import { afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { inputErrorOf, runEvents } from '../host/run.js';
-import { BatchBuilder, BatchPool, type BatchOutcome } from '../host/pool.js';
-import { mergeSummaries } from '../host/summary.js';
-import { EventTowerReader } from '../host/event-towers.js';
-import { encodeEventRecord } from '../host/event-codec.js';
+import { inputErrorOf, runEvents } from '../host/pipeline/run.js';
+import { BatchBuilder, BatchPool, type BatchOutcome } from '../host/pipeline/pool.js';
+import { mergeSummaries } from '../host/measure/summary.js';
+import { EventTowerReader } from '../host/input/event-towers.js';
+import { encodeEventRecord } from '../host/formats/event-codec.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../host/types.js';
 import { toyEvents, writeEventFile } from './support/run-files.js';
-import { openRecordFile } from '../host/event-source.js';
-import { decodeJetsRecord } from '../host/jets-codec.js';
-import { ReferenceClusterer } from '../host/reference.js';
-import { firstJetDifference } from '../host/bit-exact.js';
+import { openRecordFile } from '../host/input/event-source.js';
+import { decodeJetsRecord } from '../host/formats/jets-codec.js';
+import { ReferenceClusterer } from '../host/clustering/reference.js';
+import { firstJetDifference } from '../host/validate/bit-exact.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'jetlag-run-'));
 const events = toyEvents(120, 17, 5);
@@ -30,7 +30,7 @@ afterEach(() => { for (const undo of restore.reverse()) undo(); restore = []; })
 
 describe('a streamed run', () => {
   beforeAll(() => {
-    if (!readdirSync(join(__dirname, '..', 'dist', 'host')).includes('worker.js')) throw new Error('build first: npm run build:host');
+    if (!readdirSync(join(__dirname, '..', 'dist', 'host', 'pipeline')).includes('worker.js')) throw new Error('build first: npm run build:host');
   });
 
   it('counts every event once: ok + invalid + failed = read = events in the file', async () => {

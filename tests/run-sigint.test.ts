@@ -6,7 +6,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { toyEvents, writeEventFile } from './support/run-files.js';
 
-const cli = join(__dirname, '..', 'dist', 'host', 'cli.js');
+const cli = join(__dirname, '..', 'dist', 'host', 'cli', 'cli.js');
 
 describe('jetlag run interrupted by SIGINT', () => {
   it('stops reading, drains the batches in flight and writes a summary marked partial whose counts add up', async () => {

@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest';
 import { mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { findRate, runEvents, scanWorkers, type RunOptions } from '../host/run.js';
+import { findRate, runEvents, scanWorkers, type RunOptions } from '../host/pipeline/run.js';
 import { toyEvents, writeEventFile } from './support/run-files.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'jetlag-studies-'));

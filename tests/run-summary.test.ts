@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { describeMachine, fitMultiplicity, mergeSummaries, MULTIPLICITY_EDGES, MultiplicityBins, renderSummary, RunTally, type RunConfiguration, type RunSummary } from '../host/summary.js';
-import { formatReport } from '../host/report.js';
+import { describeMachine, fitMultiplicity, mergeSummaries, MULTIPLICITY_EDGES, MultiplicityBins, renderSummary, RunTally, type RunConfiguration, type RunSummary } from '../host/measure/summary.js';
+import { formatReport } from '../host/measure/report.js';
 
 
 function configuration(shardIndex: number, shardCount: number): RunConfiguration {

@@ -3,9 +3,9 @@
 // order of clustering-spec.md section 4. None of the emulation's nearest-neighbour bookkeeping
 // is shared, which is what the comparison checks.
 
-import type { GridTables } from '../../host/grid.js';
+import type { GridTables } from '../../host/clustering/grid.js';
 import type { ClusterSettings, JetSet } from '../../host/types.js';
-import { allocateJetSet } from '../../host/jet-set.js';
+import { allocateJetSet } from '../../host/clustering/jet-set.js';
 
 const f = Math.fround;
 const BEAM = Number.MAX_SAFE_INTEGER;

@@ -3,10 +3,10 @@
 // clustering-spec.md section 4. It shares the small formula helpers with the reference but none
 // of its nearest-neighbour bookkeeping, which is what the comparison is meant to check.
 
-import { candidateBefore, deltaR2, weightOf, wrapAtan2, type ClusterStep } from '../../host/reference.js';
-import type { GridTables } from '../../host/grid.js';
+import { candidateBefore, deltaR2, weightOf, wrapAtan2, type ClusterStep } from '../../host/clustering/reference.js';
+import type { GridTables } from '../../host/clustering/grid.js';
 import type { ClusterSettings, JetSet } from '../../host/types.js';
-import { allocateJetSet } from '../../host/jet-set.js';
+import { allocateJetSet } from '../../host/clustering/jet-set.js';
 
 const BEAM = Number.MAX_SAFE_INTEGER;
 

@@ -11,7 +11,7 @@ export interface TowerArrays {
 }
 
 // the project's one seeded generator (splitmix32), shared with the demo events
-export { makeRandom } from '../../host/generate.js';
+export { makeRandom } from '../../host/generator/generate.js';
 
 export type Region = 'anywhere' | 'seam' | 'edges' | 'patch';
 

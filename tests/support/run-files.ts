@@ -2,10 +2,10 @@
 
 import { writeFileSync } from 'node:fs';
 import { gzipSync } from 'node:zlib';
-import { encodeEventRecord, type EventRecordFields } from '../../host/event-codec.js';
-import { encodeFileHeader } from '../../host/file-header.js';
-import { generateEvents } from '../../host/generate.js';
-import { delimit } from '../../host/wire.js';
+import { encodeEventRecord, type EventRecordFields } from '../../host/formats/event-codec.js';
+import { encodeFileHeader } from '../../host/formats/file-header.js';
+import { generateEvents } from '../../host/generator/generate.js';
+import { delimit } from '../../host/formats/wire.js';
 import { DEFAULT_GRID, type Grid } from '../../host/types.js';
 
 export interface WrittenFile {

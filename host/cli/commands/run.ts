@@ -1,0 +1,160 @@
+// jetlag run EVENTS: stream an event file through the worker pool and report latency the way
+// trigger engineers read it. Parsing here, the run itself in ../run.ts.
+
+import { parseArgs, type CommandIo, type CommandMain, type CommandSpec, type ParsedArgs } from '../args.js';
+import { UsageError } from '../../errors.js';
+import { CLUSTER_OPTIONS, GRID_OPTIONS, clusterSettingsFrom, gridFrom } from '../common-options.js';
+import { DEFAULT_BATCH, DEFAULT_CHECK, findRate, inputErrorOf, runEvents, scanWorkers, type CheckOption, type RunOptions } from '../../pipeline/run.js';
+import { describeMachine, LISTED_MAX, type RunSummary } from '../../measure/summary.js';
+import { formatReport } from '../../measure/report.js';
+import { writeTextFile } from '../../output/record-writer.js';
+import type { ArrivalMode } from '../../pipeline/arrivals.js';
+
+export { runEvents } from '../../pipeline/run.js';
+
+/** problem lines (invalid events, failed batches, check differences) written to stderr */
+const PROBLEM_LINES_MAX = 20;
+
+export const spec: CommandSpec = {
+  name: 'run',
+  summary: 'Stream an event file through a pool of workers, cluster every event and report per-event latency.\nExit code 1 also when a batch of events failed in a worker; 130 when interrupted (the summary is then marked partial).',
+  usage: 'jetlag run <events> [options]',
+  positionals: { min: 1, max: 1 },
+  options: [
+    { name: 'workers', kind: 'integer', argument: '<n>', description: `worker threads, each with its own engine (default: cores, here ${describeMachine().cores})` },
+    { name: 'batch', kind: 'integer', argument: '<k>', description: `events per task sent to a worker (default: ${DEFAULT_BATCH})` },
+    { name: 'rate', kind: 'number', argument: '<hz>', description: 'open loop: events due at fixed spacing 1/rate (default: closed loop, as fast as the pool takes them)' },
+    { name: 'poisson', kind: 'number', argument: '<hz>', description: 'open loop: events due at Poisson arrivals of this mean rate, seeded by --seed' },
+    { name: 'seed', kind: 'integer', argument: '<n>', description: 'seed of the Poisson arrivals and of the --check sample (default: 1)' },
+    { name: 'budget-us', kind: 'number', argument: '<us>', description: 'latency budget per event; events over it are counted (default: none)' },
+    { name: 'find-rate', kind: 'flag', description: 'also search the highest open-loop rate whose end-to-end p99 stays within --budget-us (7 open-loop runs over the input; bound them with --events)' },
+    { name: 'scan-workers', kind: 'flag', description: 'also repeat the closed-loop run with 1 .. cores workers and report the scaling' },
+    { name: 'check', kind: 'string', argument: '<all|fraction|none>', description: `compare the engine's jets with the reference bit for bit on all events, a seeded fraction, or none (default: ${DEFAULT_CHECK.fraction})` },
+    { name: 'repro', kind: 'string', argument: '<file>', description: 'write each event on which the engine and the reference disagree, whole, to this event file (default: none)' },
+    { name: 'json', kind: 'string', argument: '<file>', description: 'write the machine-readable summary here (default: none)' },
+    { name: 'out', kind: 'string', argument: '<file>', description: 'write the jets of every event to a jets file (default: none)' },
+    { name: 'shard', kind: 'string', argument: '<k/n>', description: 'process only every n-th batch of events starting with batch k, for job arrays (default: 0/1)' },
+    { name: 'events', kind: 'integer', argument: '<n>', description: 'stop after the first n events of the file (default: all)' },
+    { name: 'engine', kind: 'string', argument: '<wasm|reference>', description: 'clusterer in the workers: the engine or the plain reference (default: wasm)' },
+    { name: 'quiet', kind: 'flag', short: 'q', description: 'no progress bar' },
+    ...CLUSTER_OPTIONS,
+    ...GRID_OPTIONS.map((o) => ({ ...o, description: `CSV input: ${o.description}` })),
+  ],
+};
+
+function positiveNumber(args: ParsedArgs, name: string): number | undefined {
+  const value = args.values[name] as number | undefined;
+  if (value !== undefined && !(value > 0)) throw new UsageError(`run: --${name} must be a positive number, got ${value}`);
+  return value;
+}
+
+function positiveInteger(args: ParsedArgs, name: string): number | undefined {
+  const value = args.values[name] as number | undefined;
+  if (value !== undefined && !(Number.isInteger(value) && value >= 1)) throw new UsageError(`run: --${name} must be a positive integer, got ${value}`);
+  return value;
+}
+
+export function parseCheck(text: string | undefined, seed: number): CheckOption {
+  if (text === undefined) return { ...DEFAULT_CHECK, seed };
+  if (text === 'all') return { mode: 'all', fraction: 1, seed };
+  if (text === 'none') return { mode: 'none', fraction: 0, seed };
+  const fraction = Number(text);
+  if (text.trim() === '' || !(fraction >= 0 && fraction <= 1)) {
+    throw new UsageError(`run: --check must be all, none or a fraction in [0, 1], got ${JSON.stringify(text)}`);
+  }
+  return { mode: fraction === 0 ? 'none' : fraction === 1 ? 'all' : 'fraction', fraction, seed };
+}
+
+export function parseShard(text: string | undefined): { index: number; count: number } {
+  if (text === undefined) return { index: 0, count: 1 };
+  const match = /^(\d+)\/(\d+)$/.exec(text);
+  const index = match ? Number(match[1]) : NaN;
+  const count = match ? Number(match[2]) : NaN;
+  if (!match || !(count >= 1) || !(index < count)) {
+    throw new UsageError(`run: --shard must be k/n with 0 <= k < n, got ${JSON.stringify(text)}`);
+  }
+  return { index, count };
+}
+
+/** The run's options from a command line (pure: no file is touched). */
+export function runOptionsFrom(args: ParsedArgs): RunOptions & { findRate: boolean; scanWorkers: boolean; json: string | null; quiet: boolean; poisson: boolean } {
+  const rate = positiveNumber(args, 'rate');
+  const poissonRate = positiveNumber(args, 'poisson');
+  if (rate !== undefined && poissonRate !== undefined) throw new UsageError('run: give --rate or --poisson, not both');
+  const seed = (args.values.seed as number | undefined) ?? 1;
+  const arrival: ArrivalMode = rate !== undefined ? { kind: 'fixed', rateHz: rate }
+    : poissonRate !== undefined ? { kind: 'poisson', rateHz: poissonRate, seed } : { kind: 'closed' };
+  const budgetUs = positiveNumber(args, 'budget-us') ?? null;
+  const wantFindRate = args.values['find-rate'] === true;
+  if (wantFindRate && budgetUs === null) throw new UsageError('run: --find-rate needs --budget-us');
+  const engine = args.values.engine as string | undefined;
+  if (engine !== undefined && engine !== 'wasm' && engine !== 'reference') {
+    throw new UsageError(`run: --engine must be wasm or reference, got ${JSON.stringify(engine)}`);
+  }
+  return {
+    input: args.positionals[0],
+    workers: positiveInteger(args, 'workers'),
+    batch: positiveInteger(args, 'batch'),
+    arrival,
+    budgetUs,
+    check: parseCheck(args.values.check as string | undefined, seed),
+    settings: clusterSettingsFrom(args, 'run'),
+    grid: gridFrom(args, 'run'),
+    engine: engine === undefined ? 'wasm' : engine,
+    shard: parseShard(args.values.shard as string | undefined),
+    out: (args.values.out as string | undefined) ?? null,
+    repro: (args.values.repro as string | undefined) ?? null,
+    maxEvents: positiveInteger(args, 'events') ?? null,
+    findRate: wantFindRate,
+    scanWorkers: args.values['scan-workers'] === true,
+    json: (args.values.json as string | undefined) ?? null,
+    quiet: args.values.quiet === true,
+    poisson: poissonRate !== undefined,
+  };
+}
+
+export const main: CommandMain = async (argv: string[], io: CommandIo) => {
+  const args = parseArgs(spec, argv);
+  const options = runOptionsFrom(args);
+  const controller = new AbortController();
+  const onSigint = () => {
+    if (controller.signal.aborted) process.exit(130); // a second Ctrl-C does not wait
+    controller.abort();
+    io.stderr.write('jetlag run: interrupted, finishing the batches in flight (Ctrl-C again to quit now)\n');
+  };
+  process.on('SIGINT', onSigint);
+  let problems = 0;
+  const onProblem = (line: string) => {
+    if (problems++ < PROBLEM_LINES_MAX) io.stderr.write(`jetlag: ${line}\n`);
+  };
+  let summary: RunSummary;
+  try {
+    summary = await runEvents({
+      ...options,
+      signal: controller.signal,
+      progress: io.isTty && !options.quiet ? io.stderr : null,
+      onProblem,
+    });
+    if (!summary.partial && options.scanWorkers) {
+      summary.scanWorkers = await scanWorkers({ ...options, signal: controller.signal }, describeMachine().cores);
+    }
+    if (!summary.partial && options.findRate) {
+      summary.findRate = await findRate({ ...options, signal: controller.signal }, summary, options.budgetUs!, options.poisson);
+    }
+  } finally {
+    process.off('SIGINT', onSigint);
+  }
+  if (options.json) await writeTextFile(options.json, JSON.stringify(summary, null, 2) + '\n', { stdout: io.stdout });
+  // with the jets or the summary on stdout, the text report goes to stderr
+  (options.out === '-' || options.json === '-' ? io.stderr : io.stdout).write(formatReport(summary));
+  if (problems > PROBLEM_LINES_MAX) {
+    io.stderr.write(`jetlag: ${problems - PROBLEM_LINES_MAX} more problems not shown (invalid events ${summary.events.invalid}, failed ${summary.events.failed}, disagreeing ${summary.check.disagreeing}); the --json summary lists up to ${LISTED_MAX} invalid events and failed batches\n`);
+  }
+  const inputError = inputErrorOf(summary);
+  if (inputError) {
+    io.stderr.write(`jetlag: ${inputError.message}\n`);
+    return 2;
+  }
+  if (controller.signal.aborted) return 130;
+  return summary.check.disagreeing > 0 || summary.events.failed > 0 ? 1 : 0;
+};

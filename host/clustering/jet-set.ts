@@ -1,0 +1,21 @@
+// Making JetSet values (types.ts): one place that knows every field.
+
+import type { JetSet } from '../types.js';
+
+/** A JetSet with room for `count` jets, every value zero, and no constituent indices yet. */
+export function allocateJetSet(count: number): JetSet {
+  return {
+    count,
+    px: new Float64Array(count),
+    py: new Float64Array(count),
+    pz: new Float64Array(count),
+    energy: new Float64Array(count),
+    pt: new Float64Array(count),
+    rapidity: new Float64Array(count),
+    phi: new Float64Array(count),
+    mass: new Float64Array(count),
+    towerCount: new Int32Array(count),
+    towerStart: new Int32Array(count),
+    towers: new Int32Array(0),
+  };
+}

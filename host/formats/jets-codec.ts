@@ -1,0 +1,191 @@
+// Jets files (proto/jetlag.proto): the header of a jets file and one JetsRecord per event,
+// from and to JetSet (types.ts).
+//
+// API
+//   encodeJetsRecord({ event, jets, clusterTimeNs?, error? }): Uint8Array   message bytes
+//   encodeDelimitedJetsRecord(event, jets | null, clusterTimeNs, error): Uint8Array
+//       the same in the delimited form (length varint first), ready to append to a file
+//   encodeJetsFileHeader(grid, settings, { producer?, label? }): Uint8Array
+//       the header record of a jets file, delimited, ready to write first
+//   decodeJetsRecord(bytes): DecodedJets
+//       throws Error("at record byte N: ...") on broken wire format; a record that is
+//       well-formed but inconsistent (per-jet arrays of different lengths, constituent
+//       indices not adding up) comes back with `problem` set, since its event is known
+//   (JetsFileWriter, in output/jets-writer.ts, writes whole jets files)
+//
+// Constituents: written when jets.towers holds them (length = sum of towerCount); a record
+// without them decodes with hasTowers false and an empty towers array.
+
+import { encodeFileHeader, type FileHeader, type JetsFileSettings } from './file-header.js';
+import type { Grid, JetSet } from '../types.js';
+import { delimit, ProtoWriter, WireCursor, WIRE_FIXED64, WIRE_LENGTH_DELIMITED, WIRE_VARINT, wireTypeName } from './wire.js';
+import { allocateJetSet } from '../clustering/jet-set.js';
+
+export interface JetsRecordFields {
+  event: number;
+  /** null or undefined for an invalid event */
+  jets?: JetSet | null;
+  clusterTimeNs?: number;
+  error?: string;
+}
+
+export interface DecodedJets {
+  event: number;
+  jets: JetSet;
+  hasTowers: boolean;
+  clusterTimeNs: number;
+  /** '' for a valid event */
+  error: string;
+  /** '' when the record is consistent, else what is wrong with it */
+  problem: string;
+}
+
+export function emptyJetSet(): JetSet {
+  return allocateJetSet(0);
+}
+
+const DOUBLE_FIELDS = ['px', 'py', 'pz', 'e', 'pt', 'y', 'phi', 'mass'] as const; // fields 2..9
+const FIELD_COUNT = 10;
+const FIELD_TOWERS = 11;
+const FIELD_TIME = 12;
+const FIELD_ERROR = 13;
+
+const sharedWriter = new ProtoWriter(4096);
+
+export function encodeJetsRecord(fields: JetsRecordFields, writer = sharedWriter): Uint8Array {
+  if (!Number.isSafeInteger(fields.event) || fields.event < 0) throw new Error(`event number must be an integer in 0..2^53-1, got ${fields.event}`);
+  writer.reset();
+  writer.uintField(1, fields.event);
+  const jets = fields.jets;
+  if (jets && jets.count > 0) {
+    const n = jets.count;
+    const arrays = [jets.px, jets.py, jets.pz, jets.energy, jets.pt, jets.rapidity, jets.phi, jets.mass];
+    for (let f = 0; f < arrays.length; f++) writer.packedDoubles(2 + f, arrays[f], n);
+    writer.packedVarints(FIELD_COUNT, jets.towerCount, n);
+    let total = 0;
+    for (let k = 0; k < n; k++) total += jets.towerCount[k];
+    if (jets.towers.length > 0) {
+      if (jets.towers.length < total) throw new Error(`jets of event ${fields.event}: ${jets.towers.length} constituent indices for ${total} constituents`);
+      // constituents of jet k sit at towerStart[k]; the file holds them jet after jet
+      const ordered = new Int32Array(total);
+      let at = 0;
+      for (let k = 0; k < n; k++) {
+        ordered.set(jets.towers.subarray(jets.towerStart[k], jets.towerStart[k] + jets.towerCount[k]), at);
+        at += jets.towerCount[k];
+      }
+      writer.packedVarints(FIELD_TOWERS, ordered);
+    }
+  }
+  const time = fields.clusterTimeNs ?? 0;
+  if (!(time >= 0) || !Number.isFinite(time)) throw new Error(`cluster time must be >= 0 ns, got ${time}`);
+  writer.uintField(FIELD_TIME, Math.round(time));
+  if (fields.error) writer.stringField(FIELD_ERROR, fields.error);
+  return writer.finish();
+}
+
+export function encodeDelimitedJetsRecord(event: number, jets: JetSet | null, clusterTimeNs: number, error: string): Uint8Array {
+  return delimit(encodeJetsRecord({ event, jets, clusterTimeNs, error }));
+}
+
+export interface JetsHeaderText {
+  /** default "jetlag" */
+  producer?: string;
+  label?: string;
+}
+
+export function jetsFileHeader(grid: Grid, settings: JetsFileSettings, text: JetsHeaderText = {}): FileHeader {
+  return { kind: 'jets', grid, settings, producer: text.producer ?? 'jetlag', label: text.label ?? '', formatVersion: 1 };
+}
+
+export function encodeJetsFileHeader(grid: Grid, settings: JetsFileSettings, text: JetsHeaderText = {}): Uint8Array {
+  return delimit(encodeFileHeader(jetsFileHeader(grid, settings, text)));
+}
+
+export function decodeJetsRecord(bytes: Uint8Array): DecodedJets {
+  const c = new WireCursor(bytes);
+  let event = 0;
+  let clusterTimeNs = 0;
+  let error = '';
+  const doubles: number[][] = DOUBLE_FIELDS.map(() => []);
+  const counts: number[] = [];
+  const towers: number[] = [];
+  const readVarints = (out: number[], int32: boolean, name: string, tag: number) => {
+    const wireType = tag & 7;
+    if (wireType === WIRE_VARINT) {
+      out.push(int32 ? c.readInt32() : c.readVarint());
+    } else if (wireType === WIRE_LENGTH_DELIMITED) {
+      const length = c.readLength();
+      const limit = c.pos + length;
+      while (c.pos < limit) out.push(int32 ? c.readInt32(limit) : c.readVarint(limit));
+    } else {
+      c.fail(c.fieldStart, `field ${tag >>> 3} (${name}) has wire type ${wireType} (${wireTypeName(wireType)}), expected packed or varint`);
+    }
+  };
+  while (c.pos < c.end) {
+    const tag = c.readTag();
+    const field = tag >>> 3;
+    const wireType = tag & 7;
+    if (field >= 2 && field <= 9) {
+      const out = doubles[field - 2];
+      if (wireType === WIRE_FIXED64) out.push(c.readDouble());
+      else if (wireType === WIRE_LENGTH_DELIMITED) {
+        const at = c.pos;
+        const length = c.readLength();
+        if (length % 8 !== 0) c.fail(at, `packed field ${field} (${DOUBLE_FIELDS[field - 2]}) has length ${length}, not a multiple of 8`);
+        for (let k = 0; k < length; k += 8) out.push(c.view.getFloat64(c.pos + k, true));
+        c.pos += length;
+      } else {
+        c.fail(c.fieldStart, `field ${field} (${DOUBLE_FIELDS[field - 2]}) has wire type ${wireType} (${wireTypeName(wireType)}), expected packed or fixed64`);
+      }
+      continue;
+    }
+    switch (field) {
+      case 1: {
+        c.expect(tag, WIRE_VARINT, 'event');
+        const at = c.pos;
+        event = c.readVarint();
+        if (event > Number.MAX_SAFE_INTEGER) c.fail(at, `event number ${event} is above 2^53 - 1`);
+        break;
+      }
+      case FIELD_COUNT: {
+        const at = c.fieldStart;
+        readVarints(counts, false, 'constituent_count', tag);
+        for (const n of counts) if (n > 0x7fffffff) c.fail(at, `constituent count ${n} is too large`);
+        break;
+      }
+      case FIELD_TOWERS: readVarints(towers, true, 'constituent_towers', tag); break;
+      case FIELD_TIME: c.expect(tag, WIRE_VARINT, 'cluster_time_ns'); clusterTimeNs = c.readVarint(); break;
+      case FIELD_ERROR: c.expect(tag, WIRE_LENGTH_DELIMITED, 'error'); error = c.readString(); break;
+      default: c.skip(wireType);
+    }
+  }
+
+  const jetCount = doubles[0].length;
+  let problem = '';
+  for (let f = 1; f < DOUBLE_FIELDS.length && problem === ''; f++) {
+    if (doubles[f].length !== jetCount) problem = `${DOUBLE_FIELDS[f]} has ${doubles[f].length} values but px has ${jetCount}`;
+  }
+  if (problem === '' && counts.length !== jetCount) problem = `constituent_count has ${counts.length} values but px has ${jetCount}`;
+  const towerStart = new Int32Array(counts.length);
+  let total = 0;
+  for (let k = 0; k < counts.length; k++) { towerStart[k] = total; total += counts[k]; }
+  if (problem === '' && towers.length > 0 && towers.length !== total) {
+    problem = `constituent_towers has ${towers.length} values but constituent_count adds up to ${total}`;
+  }
+  if (problem === '' && error !== '' && jetCount > 0) problem = `the record has an error text and ${jetCount} jets`;
+  const jets: JetSet = {
+    count: jetCount,
+    px: Float64Array.from(doubles[0]),
+    py: Float64Array.from(doubles[1]),
+    pz: Float64Array.from(doubles[2]),
+    energy: Float64Array.from(doubles[3]),
+    pt: Float64Array.from(doubles[4]),
+    rapidity: Float64Array.from(doubles[5]),
+    phi: Float64Array.from(doubles[6]),
+    mass: Float64Array.from(doubles[7]),
+    towerCount: Int32Array.from(counts),
+    towerStart,
+    towers: Int32Array.from(towers),
+  };
+  return { event, jets, hasTowers: towers.length > 0 || total === 0, clusterTimeNs, error, problem };
+}

@@ -1,0 +1,41 @@
+// The JSON-line form of one event's jets, shared by `jetlag cluster --format jsonl` and
+// `jetlag export`:
+//   {"event":n,"jets":[{"pt":…,"y":…,"phi":…,"m":…,"px":…,"py":…,"pz":…,"E":…,"n":…,"towers":[…]}]}
+//   {"event":n,"error":"…"}                       for an invalid event
+// Jets in the order given (the spec's output order). Numbers are written with String(x), the
+// shortest text that reads back as the same double, so lines round-trip bit for bit; -0 is
+// written as -0. JSON has no NaN or infinity: such a value is written as null. "towers" (the
+// flat tower indices of the constituents, increasing) is left out when the jets carry no
+// constituent indices.
+//
+// API
+//   formatJetsLine(event, jets, withTowers?): string      one line, without the newline
+//   formatErrorLine(event, error): string
+//   jsonNumber(x): string
+
+import type { JetSet } from '../types.js';
+
+export function jsonNumber(x: number): string {
+  if (!Number.isFinite(x)) return 'null';
+  return Object.is(x, -0) ? '-0' : String(x);
+}
+
+export function formatErrorLine(event: number, error: string): string {
+  return `{"event":${event},"error":${JSON.stringify(error)}}`;
+}
+
+export function formatJetsLine(event: number, jets: JetSet, withTowers = jets.towers.length > 0 || jets.count === 0): string {
+  const parts: string[] = [];
+  for (let k = 0; k < jets.count; k++) {
+    let line =
+      `{"pt":${jsonNumber(jets.pt[k])},"y":${jsonNumber(jets.rapidity[k])},"phi":${jsonNumber(jets.phi[k])},"m":${jsonNumber(jets.mass[k])},` +
+      `"px":${jsonNumber(jets.px[k])},"py":${jsonNumber(jets.py[k])},"pz":${jsonNumber(jets.pz[k])},"E":${jsonNumber(jets.energy[k])},` +
+      `"n":${jets.towerCount[k]}`;
+    if (withTowers) {
+      const start = jets.towerStart[k];
+      line += `,"towers":[${Array.prototype.join.call(jets.towers.subarray(start, start + jets.towerCount[k]), ',')}]`;
+    }
+    parts.push(line + '}');
+  }
+  return `{"event":${event},"jets":[${parts.join(',')}]}`;
+}
