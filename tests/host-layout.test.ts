@@ -28,7 +28,7 @@ function layerOf(file: string): string {
 function localImports(file: string): string[] {
   const text = readFileSync(file, 'utf8');
   const found: string[] = [];
-  for (const match of text.matchAll(/(?:from\s+|import\(\s*)['"](\.{1,2}\/[^'"]+)['"]/g)) {
+  for (const match of text.matchAll(/(?:from\s+|import\s+|import\(\s*)['"](\.{1,2}\/[^'"]+)['"]/g)) {
     found.push(resolve(dirname(file), match[1]).replace(/\.js$/, '.ts'));
   }
   return found;
