@@ -1,12 +1,14 @@
 // Output files that cannot be written: one line naming the output (not its temporary name),
 // and no temporary file left behind, whether the directory is missing or the target is a
-// directory (found only at the final rename).
+// directory (one there at the start is refused when opened, tests/output-safety.test.ts; one
+// made during the writing is found only at the final rename).
 
-import { mkdirSync, mkdtempSync, readdirSync } from 'node:fs';
+import { mkdirSync, readdirSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { OutputFile } from '../host/output/record-writer.js';
+import { tempDirForTest } from './support/temp-dir.js';
 
 describe('an output that cannot be written', () => {
   it('in a missing directory is named with the path asked for', async () => {
@@ -14,12 +16,12 @@ describe('an output that cannot be written', () => {
     await expect(OutputFile.open(path)).rejects.toThrow(`cannot write ${path}: no such directory`);
   });
 
-  it('onto a directory fails at close and leaves no temporary file', async () => {
-    const dir = mkdtempSync(join(tmpdir(), 'jetlag-writer-failure-'));
+  it('onto a directory made while it is written fails at close and leaves no temporary file', async () => {
+    const dir = tempDirForTest('writer-failure');
     const target = join(dir, 'target');
-    mkdirSync(target);
-    const out = await OutputFile.open(target);
+    const out = await OutputFile.open(target, { force: true });
     await out.write(Uint8Array.of(1, 2, 3));
+    mkdirSync(target);
     await expect(out.close()).rejects.toThrow(`cannot write ${target}`);
     expect(readdirSync(dir)).toEqual(['target']);
   });

@@ -1,16 +1,18 @@
 // Writing delimited record files (proto/jetlag.proto) safely: to a temporary name next to
-// the target, renamed into place by close(), so a reader never sees a half-written file
-// under the final name. '-' writes to stdout (no temporary). Optional gzip. Small records
-// are gathered into 256 KiB blocks; a block write that the stream refuses (backpressure)
-// is awaited until 'drain'.
+// the target, put into place by close(), so a reader never sees a half-written file under the
+// final name. An existing file is refused unless `force` (--force); a character device
+// (/dev/null) or a pipe is written directly, never replaced (output-target.ts); '-' writes to
+// stdout (no temporary); temporaries go when the process is stopped (temporaries.ts).
+// Optional gzip. Small records are gathered into 256 KiB blocks; a block write that the
+// stream refuses (backpressure) is awaited until 'drain'.
 //
 // API
-//   OutputFile.open(path, { gzip?, stdout? }): bytes, temporary name, rename on close()
+//   OutputFile.open(path, { gzip?, stdout?, force? }): bytes, temporary name, in place on close()
 //   TextFileWriter.open(path, options): .write(text), .close(), .abort() (CSV, JSON lines)
-//   RecordFileWriter.open(path, { gzip?, stdout? }): Promise<RecordFileWriter>
+//   RecordFileWriter.open(path, { gzip?, stdout?, force? }): Promise<RecordFileWriter>
 //     .write(message): Promise<void> | undefined   appends varint length + message; await
 //                                                   the promise when one is returned
-//     .close(): Promise<void>                       flushes, ends, renames into place
+//     .close(): Promise<void>                       flushes, ends, puts the file in place
 //     .abort(): Promise<void>                       drops the temporary file
 //     .records, .bytes                              counts written so far (uncompressed)
 //   EventFileWriter.open(path, header, options)    header record first, then writeEvent()
@@ -18,12 +20,15 @@
 
 import { once } from 'node:events';
 import { createWriteStream } from 'node:fs';
-import { rename, unlink } from 'node:fs/promises';
+import { link, lstat, rename, unlink } from 'node:fs/promises';
 import { basename, dirname, join } from 'node:path';
 import { createGzip } from 'node:zlib';
 import { encodeEventRecord, type EventRecordFields } from '../formats/event-codec.js';
 import { encodeFileHeader, type FileHeader } from '../formats/file-header.js';
 import { ProtoWriter } from '../formats/wire.js';
+import { OutputError } from '../errors.js';
+import { cannotWrite, examineOutput } from './output-target.js';
+import { holdTemporary, releaseTemporary } from './temporaries.js';
 
 const BLOCK_BYTES = 256 * 1024;
 
@@ -31,21 +36,14 @@ export interface WriterOptions {
   gzip?: boolean;
   /** the stream '-' stands for (default process.stdout) */
   stdout?: NodeJS.WritableStream;
-}
-
-/** One line naming the output that cannot be written; keeps the system's error code. */
-function cannotWrite(path: string, error: NodeJS.ErrnoException): Error {
-  const reason = error.code === 'ENOENT' ? 'no such directory'
-    : error.code === 'EISDIR' ? 'it is a directory'
-    : error.code === 'EACCES' ? 'permission denied'
-    : error.message;
-  const code = error.code && reason !== error.message ? ` (${error.code})` : '';
-  return Object.assign(new Error(`cannot write ${path}: ${reason}${code}`), { code: error.code });
+  /** replace an existing regular file (--force); without it an existing file is refused */
+  force?: boolean;
 }
 
 /**
- * An output file written under a temporary name and renamed into place by close(); '-' is
- * stdout. write() returns a promise when the stream asks to wait (backpressure).
+ * An output file: a regular file is written under a temporary name and put into place by
+ * close(); a character device or a pipe is written directly; '-' is stdout. write() returns
+ * a promise when the stream asks to wait (backpressure).
  */
 export class OutputFile {
   private failure: Error | null = null;
@@ -53,9 +51,12 @@ export class OutputFile {
 
   private constructor(
     private readonly sink: NodeJS.WritableStream,
+    /** the file stream under the sink (null for stdout) */
     private readonly file: NodeJS.WritableStream | null,
     private readonly tempPath: string | null,
-    private readonly finalPath: string | null,
+    private readonly finalPath: string,
+    /** how close() puts the output in place: 'link' never replaces a file, 'rename' does */
+    private readonly placing: 'link' | 'rename' | 'direct' | 'stdout',
     private readonly stdoutTarget: NodeJS.WritableStream | null = null,
   ) {
     const remember = (error: Error) => { this.failure ??= error; };
@@ -66,21 +67,32 @@ export class OutputFile {
   static async open(path: string, options: WriterOptions = {}): Promise<OutputFile> {
     if (path === '-') {
       const stdout = options.stdout ?? process.stdout;
-      if (!options.gzip) return new OutputFile(stdout, null, null, null, stdout);
+      if (!options.gzip) return new OutputFile(stdout, null, null, path, 'stdout', stdout);
       const gzip = createGzip();
       gzip.pipe(stdout as NodeJS.WritableStream, { end: false });
-      return new OutputFile(gzip, null, null, null, stdout);
+      return new OutputFile(gzip, null, null, path, 'stdout', stdout);
     }
-    const tempPath = join(dirname(path), `.${basename(path)}.${process.pid}.${Math.random().toString(36).slice(2, 8)}.tmp`);
-    const file = createWriteStream(tempPath);
-    await new Promise<void>((resolve, reject) => {
-      file.once('open', () => resolve());
-      file.once('error', (error) => reject(cannotWrite(path, error)));
-    });
-    if (!options.gzip) return new OutputFile(file, file, tempPath, path);
+    const target = await examineOutput(path, { force: options.force });
+    let file: NodeJS.WritableStream;
+    let tempPath: string | null = null;
+    if (target.kind === 'direct') {
+      file = target.handle.createWriteStream();
+    } else {
+      tempPath = join(dirname(path), `.${basename(path)}.${process.pid}.${Math.random().toString(36).slice(2, 8)}.tmp`);
+      // wx: a name that is somehow taken is never written over
+      const stream = createWriteStream(tempPath, { flags: 'wx' });
+      await new Promise<void>((resolve, reject) => {
+        stream.once('open', () => resolve());
+        stream.once('error', (error) => reject(cannotWrite(path, error)));
+      });
+      holdTemporary(tempPath);
+      file = stream;
+    }
+    const placing = target.kind === 'direct' ? 'direct' : target.kind === 'replace' ? 'rename' : 'link';
+    if (!options.gzip) return new OutputFile(file, file, tempPath, path, placing);
     const gzip = createGzip();
     gzip.pipe(file);
-    return new OutputFile(gzip, file, tempPath, path);
+    return new OutputFile(gzip, file, tempPath, path, placing);
   }
 
   /** The stream keeps `bytes` until written: do not reuse them. */
@@ -101,12 +113,12 @@ export class OutputFile {
     });
   }
 
-  /** Ends the output and renames the temporary file into place (stdout is left open). */
+  /** Ends the output and puts the temporary file into place (stdout is left open). */
   async close(): Promise<void> {
     if (this.closed) return;
     this.closed = true;
     if (this.failure) { await this.dropTemp(); throw this.failure; }
-    if (this.finalPath === null) {
+    if (this.placing === 'stdout') {
       if (this.sink !== this.stdoutTarget) {
         // gzip to stdout: end the gzip stream (never stdout itself) and let it drain into stdout
         const ended = once(this.sink, 'end');
@@ -119,28 +131,56 @@ export class OutputFile {
     this.sink.end();
     await done;
     if (this.failure) { await this.dropTemp(); throw this.failure; }
+    if (this.placing === 'direct') return;
     try {
-      await rename(this.tempPath!, this.finalPath!);
+      await placeFile(this.tempPath!, this.finalPath, this.placing);
     } catch (error) {
-      // e.g. the target is a directory: the temporary file must not stay behind
+      // e.g. the target is a directory now: the temporary file must not stay behind
       await this.dropTemp();
-      throw cannotWrite(this.finalPath!, error as NodeJS.ErrnoException);
+      throw error instanceof OutputError ? error : cannotWrite(this.finalPath, error as NodeJS.ErrnoException);
     }
+    releaseTemporary(this.tempPath!);
   }
 
-  /** Drops the temporary file (stdout: nothing to undo). */
+  /** Drops the temporary file (stdout: nothing to undo; a device or a pipe: the stream ends). */
   async abort(): Promise<void> {
     if (this.closed) return;
     this.closed = true;
-    if (this.finalPath === null) return;
+    if (this.placing === 'stdout') return;
     (this.sink as NodeJS.WritableStream & { destroy(): void }).destroy();
     if (this.file !== this.sink) (this.file as NodeJS.WritableStream & { destroy(): void }).destroy();
     await this.dropTemp();
   }
 
   private async dropTemp(): Promise<void> {
-    if (this.tempPath) await unlink(this.tempPath).catch(() => undefined);
+    if (!this.tempPath) return;
+    await unlink(this.tempPath).catch(() => undefined);
+    releaseTemporary(this.tempPath);
   }
+}
+
+/**
+ * Puts a finished temporary file in place. Without --force a hard link makes the name only if
+ * it is still free (a file that appeared during the run is not replaced), then the temporary
+ * name goes; a file system without hard links falls back to a look and a rename.
+ */
+async function placeFile(tempPath: string, finalPath: string, placing: 'link' | 'rename'): Promise<void> {
+  if (placing === 'rename') { await rename(tempPath, finalPath); return; }
+  try {
+    await link(tempPath, finalPath);
+  } catch (error) {
+    const code = (error as NodeJS.ErrnoException).code;
+    if (code === 'EEXIST') throw appeared(finalPath);
+    if (code !== 'EPERM' && code !== 'ENOTSUP' && code !== 'EOPNOTSUPP' && code !== 'EXDEV') throw error;
+    if (await lstat(finalPath).then(() => true, () => false)) throw appeared(finalPath);
+    await rename(tempPath, finalPath);
+    return;
+  }
+  await unlink(tempPath);
+}
+
+function appeared(path: string): OutputError {
+  return new OutputError(path, 'a file of that name appeared while it was being written (give --force to replace it)', 'EEXIST');
 }
 
 /** Delimited records onto an OutputFile, gathered into blocks. */
