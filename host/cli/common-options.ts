@@ -27,6 +27,11 @@ export const GRID_OPTIONS: OptionSpec[] = [
   { name: 'phi-bins', kind: 'integer', argument: '<n>', description: `tower columns in phi (default: ${DEFAULT_GRID.phiBins})` },
 ];
 
+/** every command that writes a file takes it: an existing regular file is refused without it */
+export const FORCE_OPTION: OptionSpec = {
+  name: 'force', kind: 'flag', description: 'replace output files that exist (devices, pipes and - are always written in place)',
+};
+
 /** true when any algorithm option was given (a file header's settings are then overridden) */
 export function hasClusterOptions(args: ParsedArgs): boolean {
   return CLUSTER_OPTIONS.some((o) => args.values[o.name] !== undefined);
