@@ -9,7 +9,7 @@ import { reserve, getI32, setI32, setF64, inStart, outJetStart, outNs, outCluste
 import { configure } from './settings';
 import { initCells, initPadding } from './cells';
 import { initTree } from './tournament';
-import { buildOffsets } from './tiles';
+import { buildOffsets } from './offsets';
 import { initInput, selectTowers } from './input';
 import { clusterTowers, firstNeighbours, finalCount, jetCount } from './sequence';
 import { writeJets, towersWritten } from './output';

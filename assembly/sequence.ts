@@ -13,7 +13,8 @@ import { BEAM, invR2 } from './settings';
 import { loadTower, mergeJets, deltaR2 } from './kinematics';
 import { resetDrift, placeJet, clearCell, unlink, detachPointers, freeCellNear, assignSlot, setNeighbour,
   centreOffsetY, centreOffsetPhi } from './cells';
-import { findNeighbour, scanNewJet, setSeedCell } from './tiles';
+import { findNeighbour, setSeedCell } from './search';
+import { scanNewJet } from './new-jet';
 import { startTree, buildTree, updateTree, treeWinner, isBeamCandidate } from './tournament';
 
 export let finalCount: i32 = 0;
