@@ -1,7 +1,7 @@
 // Entry points of the engine. The host calls setup() once, writes the grid tables into their
 // regions, calls configureEngine() once, then per batch writes towers into the input regions,
 // calls clusterBatch() and reads jets from the output regions (region() gives the pointers;
-// the numbering is mirrored in host/engine.ts). Memory layout: layout.ts.
+// the numbering is mirrored in host/clustering/engine.ts). Memory layout: layout.ts.
 
 import { reserve, getI32, setI32, setF64, inStart, outJetStart, outNs, outClustered, outStatus,
   outTowers, etaCentre, sinhEta, coshEta, phiCentre, cosPhi, sinPhi, inIndex, inEt, outPx, outPy,
@@ -35,7 +35,7 @@ export function configureEngine(p: f64, radius: f64, ptMin: f64, threshold: f64,
   return 1;
 }
 
-/** Pointer of a region, by the number used in host/engine.ts. */
+/** Pointer of a region, by the number used in host/clustering/engine.ts. */
 export function region(id: i32): usize {
   switch (id) {
     case 0: return etaCentre;

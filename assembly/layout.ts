@@ -1,37 +1,43 @@
-// Memory layout of one engine instance. Every region is reserved once by setup(), sized for the
-// largest event the grid allows (all C = etaBins * phiBins towers occupied) and for the host's
-// batch capacity; nothing is allocated per event. Regions are 16-byte aligned, in this order:
+// Memory layout of one engine instance: the one written description of it (assembly/README.md
+// and host/clustering/engine.ts point here). Every region is reserved once by setup(), sized for
+// the largest event the grid allows (all C = etaBins * phiBins towers occupied) and for the
+// host's batch capacity; nothing is allocated per event, and memory never grows after
+// configureEngine(). Regions are 16-byte aligned, in this order (reserve(), reservePadding()):
 //
 //   tables   etaCentre sinhEta coshEta f64[etaBins]   phiCentre cosPhi sinPhi f64[phiBins]
-//   input    inIndex i32[IN]  inEt f64[IN]  inStart i32[EV+1]          (written by the host)
+//            (written once by the host: host/clustering/grid.ts makeGridTables)
+//   input    inIndex i32[IN]  inEt f64[IN]  inStart i32[EV+1]          (written by the host per call)
 //   output   outJetStart i32[EV+1]  outNs f64[EV]  outClustered i32[EV]  outStatus i32[EV]
 //            outPx outPy outPz outE outPt outY outPhi outMass f64[IN]
-//            outTowerCount outTowerStart outTowers i32[IN]               (read by the host)
-//   event    evIndex i32[C]  evEt f64[C]  sortIndex i32[C]  sortEt f64[C]  radixCount i32[2048]
+//            outTowerCount outTowerStart outTowers i32[IN]               (read by the host per call)
+//   event    evIndex i32[C]  evEt f64[C]  sortIndex i32[C]  sortEt f64[C]  radixCount i32[RADIX_BUCKETS]
 //   cells    cellY cellPhi cellW cellNnDR2 cellNnKey f64[C]
-//            cellJet cellNn pointHead pointNext pointPrev cellWide cellRow cellCol i32[C]
+//            cellJet cellNn pointHead pointNext pointPrev i32[C]
+//            candTie u64[P]  (per slot: the candidate's tie word, tournament.ts)
+//            cellSlot slotCell cellWide cellRow cellCol i32[C]
 //            driftList driftSlot i32[C]   (the cells whose jet lies outside its cell's own area)
-//            candTie u64[P]  (per slot, tournament.ts)  cellSlot slotCell i32[C]
 //   rows     rowDriftY rowDriftPhi f64[etaBins]
 //   tree     tree i32[2P]  nodeValue u64[2P]   (P = power of two >= C; per event a tree of
 //            L <= P leaves, L the power of two >= its towers: node n < L holds the winning slot of
 //            its subtree and its measure's bits, tree[L + s] = s and nodeValue[L + s] slot s's)
 //   jets     jetPx jetPy jetPz jetE jetKt2 jetY jetPhi f64[2C]  jetInto jetLabel i32[2C]
 //   finals   finalJet finalOrder finalScratch i32[C]  finalPt f64[C]  redo i32[C]
-//   offsets  offDr offDc offStep i32[O]  offDist f64[O]  offPerm offScratch offTmpI i32[O]
-//            offTmpF f64[O]   (O = OFFSET_LIMIT; the last four only while the offsets are sorted)
-//   padded   padY padPhi f64[Q]  padCell i32[Q]  cellPad i32[C]   (reserved by configureEngine:
-//            the cells' y and phi again, in rows of padStride = phiBins + 2 * padCols with
-//            padRows empty rows above and below and each row's first and last padCols cells
-//            copied past its other end, so that every search offset from every cell is one flat
-//            step (offStep) with no bounds or seam test; Q = (etaBins + 2 * padRows) * padStride.
-//            padCell: the real cell of a padded one (-1 in the empty rows), cellPad the inverse,
-//            cellCopyStep i32[C]: from a cell's padded cell to its copy (+-phiBins, 0: none))
-//            padBits u64[(etaBins + 2 * padRows) * padRowBytes / 8]   (bit k of padded row r set
-//            while padded cell (r, k) holds a jet; 8 spare bytes per row, so that any run of up
-//            to 57 columns is one unaligned load)
-//            bitStep i32[58 * 64]   (bitStep[width * 64 + k] = (k / width) * padStride + k % width:
-//            bit k of several rows' runs of `width` columns packed into one word, as a padded step)
+//   offsets  offDr offDc i32[O]  offDist f64[O]  offPerm offScratch offTmpI i32[O]  offTmpF f64[O]
+//            offStep i32[O]   (O = OFFSET_LIMIT; offPerm, offScratch, offTmpI, offTmpF only while
+//            the offsets are sorted, offsets.ts)
+//   padded   (reserved by configureEngine once the offsets fix how far searches reach)
+//            padY padPhi f64[Q]  padCell i32[Q]  cellPad cellCopyStep i32[C]
+//            padBits u64[(etaBins + 2 * padRows) * padRowBytes / 8]  bitStep i32[58 * 64]
+//
+// The padded rows hold the cells' y and phi again, in rows of padStride = phiBins + 2 * padCols
+// with padRows empty rows above and below and each row's first and last padCols cells copied past
+// its other end, so that every search offset from every cell is one flat step (offStep) with no
+// bounds or seam test; Q = (etaBins + 2 * padRows) * padStride. padCell: the real cell of a padded
+// one (-1 in the empty rows), cellPad the inverse, cellCopyStep: from a cell's padded cell to its
+// copy (+-phiBins, 0: none). padBits: bit k of padded row r set while padded cell (r, k) holds a
+// jet, padRowBytes per row with 8 spare bytes, so that any run of up to 57 columns is one
+// unaligned load. bitStep[width * 64 + k] = (k / width) * padStride + k % width: bit k of several
+// rows' runs of `width` columns packed into one word, as a padded step.
 //
 // IN is the batch tower capacity, EV the batch event capacity. Cell c = ieta * phiBins + iphi;
 // an empty cell has cellY = +Infinity and cellJet = -1.
