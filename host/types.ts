@@ -62,6 +62,56 @@ export interface JetSet {
   towerCount: Int32Array;
   towerStart: Int32Array;
   towers: Int32Array;
+  /** set only when pileup steps ran (spec part two, sections 8-10) */
+  pileup?: PileupValues;
+}
+
+/** A patch of towers (spec section 9): `etaRows` rows by `phiColumns` columns of the grid. */
+export interface PatchSize {
+  etaRows: number;
+  phiColumns: number;
+}
+
+/** How ρ is estimated (spec section 9). */
+export type RhoEstimator = { kind: 'patches'; patch: PatchSize } | { kind: 'kt'; radius: number };
+
+/** The pileup steps around the clustering (spec part two, sections 8-10); each off unless set. */
+export interface PileupSettings {
+  /** section 8: ghost towers on empty cells, jet areas */
+  areas: boolean;
+  /** GeV; et of each ghost tower, in [1e-120, 1e-60] */
+  ghostEt: number;
+  /** section 9: the ρ estimator; null: none (subtraction then uses patches 5:5) */
+  rho: RhoEstimator | null;
+  /** section 9: subtract ρ · area from every jet (needs areas) */
+  subtract: boolean;
+  /** section 10: SoftKiller's patch size; null: off */
+  softKiller: PatchSize | null;
+}
+
+export const DEFAULT_PILEUP_SETTINGS: Readonly<PileupSettings> = Object.freeze({
+  areas: false,
+  ghostEt: 1e-100,
+  rho: null,
+  subtract: false,
+  softKiller: null,
+});
+
+/**
+ * What the pileup steps add to one event's jets. Per event: `rho` (GeV per unit of eta-phi
+ * area, 0 when not estimated), `etCut` (GeV, 0 without SoftKiller), `killed` (towers SoftKiller
+ * removed), `subtractedAway` (jets at or below zero after subtraction). Per jet, row k
+ * belonging to the JetSet's jet k: `ghosts` (ghost constituents, 0 without areas), `area`
+ * (0 without areas) and `ptRaw` (pt before subtraction; equal to pt without it).
+ */
+export interface PileupValues {
+  rho: number;
+  etCut: number;
+  killed: number;
+  subtractedAway: number;
+  ghosts: Int32Array;
+  area: Float64Array;
+  ptRaw: Float64Array;
 }
 
 /** What happened to the towers of one event before clustering. */

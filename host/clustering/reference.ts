@@ -60,6 +60,8 @@ export interface ReferenceOptions {
   withTowers?: boolean;
   /** when given, every step of the sequence is appended */
   history?: ClusterStep[];
+  /** when given, receives each reported jet's index in the sequence (spec section 4), in output order */
+  jetIndex?: number[];
 }
 
 /**
@@ -247,6 +249,7 @@ export function clusterReference(
   let towerTotal = 0;
   for (let n = 0; n < count; n++) {
     const j = kept[n];
+    options.jetIndex?.push(j);
     jets.px[n] = px[j];
     jets.py[n] = py[j];
     jets.pz[n] = pz[j];
