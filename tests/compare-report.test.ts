@@ -1,7 +1,7 @@
 // The validation report's arithmetic: distributions, bins, worst events and counts.
 
 import { describe, expect, it } from 'vitest';
-import { makeRandom } from '../host/generator/generate.js';
+import { makeRandom } from '../host/random.js';
 import { DEFAULT_TOLERANCE, ToleranceMatcher } from '../host/validate/tolerance-compare.js';
 import { DeviationHistogram, PT_BIN_EDGES_GEV, ValidationAccumulator, formatValidationReport } from '../host/validate/validation-report.js';
 

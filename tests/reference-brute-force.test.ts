@@ -55,7 +55,7 @@ describe('measures that round to the same value (clustering-spec.md section 4)',
   const grid: Grid = DEFAULT_GRID;
 
   function findShortcutFailures(p: number, radius: number, wanted: number) {
-    const random = seededRandom(4242 + p * 10);
+    const random = seededRandom(21); // a seed whose first 40 000 events hold such cases for p = -1 and 1
     const failures: { towerIndex: Int32Array; towerEt: Float64Array }[] = [];
     for (let attempt = 0; attempt < 40_000 && failures.length < wanted; attempt++) {
       const size = 4 + Math.floor(random() * 3);

@@ -1,13 +1,14 @@
 import { describe, expect, it } from 'vitest';
 import { LatencyRecorder } from '../host/measure/latency.js';
-import { ArrivalSchedule, seededUniform } from '../host/pipeline/arrivals.js';
+import { ArrivalSchedule } from '../host/pipeline/arrivals.js';
+import { makeRandom } from '../host/random.js';
 
 /** skewed latencies of the shape clustering times have: a body and a long tail */
 function sampleLatenciesNs(count: number, seed: number): number[] {
-  const uniform = seededUniform(seed);
+  const uniform = makeRandom(seed);
   const values: number[] = [];
   for (let k = 0; k < count; k++) {
-    const body = 200_000 * Math.exp(0.4 * Math.sqrt(-2 * Math.log(uniform())) * Math.cos(2 * Math.PI * uniform()));
+    const body = 200_000 * Math.exp(0.4 * Math.sqrt(-2 * Math.log(1 - uniform())) * Math.cos(2 * Math.PI * uniform()));
     values.push(Math.round(uniform() < 0.01 ? body * 20 : body));
   }
   return values;

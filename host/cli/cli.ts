@@ -7,6 +7,7 @@ import { pathToFileURL } from 'node:url';
 import { realpathSync } from 'node:fs';
 import { formatHelp, parseArgs, type CommandIo, type CommandMain, type CommandSpec } from './args.js';
 import { InputError, UsageError } from '../errors.js';
+import { VERSION } from '../version.js';
 
 interface CommandEntry {
   summary: string;
@@ -51,7 +52,7 @@ export async function runCli(argv: string[], io: CommandIo): Promise<number> {
     return name === undefined ? 2 : 0;
   }
   if (name === '--version') {
-    io.stdout.write('jetlag 0.1.0\n');
+    io.stdout.write(`jetlag ${VERSION}\n`);
     return 0;
   }
   const entry = COMMANDS[name];

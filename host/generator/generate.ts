@@ -15,6 +15,7 @@
 import { binDeposits, makeGridTables, type GridTables } from '../clustering/grid.js';
 import type { DecodedEvent } from '../formats/event-codec.js';
 import type { Grid } from '../types.js';
+import { makeRandom } from '../random.js';
 
 export interface GeneratorSettings {
   events: number;
@@ -36,18 +37,6 @@ const PILEUP_ET_MEAN_GEV = 0.45;
 /** Gaussian noise on every occupied tower, and the fraction of empty towers with a noise hit */
 const NOISE_SIGMA_GEV = 0.08;
 const NOISE_HIT_FRACTION = 0.02;
-
-/** A small seeded generator (SplitMix32-style), uniform in [0, 1). */
-export function makeRandom(seed: number): () => number {
-  let state = seed >>> 0;
-  return () => {
-    state = (state + 0x9e3779b9) >>> 0;
-    let z = state;
-    z = Math.imul(z ^ (z >>> 16), 0x85ebca6b);
-    z = Math.imul(z ^ (z >>> 13), 0xc2b2ae35);
-    return ((z ^ (z >>> 16)) >>> 0) / 4294967296;
-  };
-}
 
 function poisson(random: () => number, mean: number): number {
   if (mean <= 0) return 0;

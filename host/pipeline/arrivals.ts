@@ -4,6 +4,8 @@
 // for --poisson), and its latency starts at that scheduled time whatever the host was doing,
 // so a stalled pool shows up as queueing delay instead of hiding it (no coordinated omission).
 
+import { makeRandom } from '../random.js';
+
 export type ArrivalMode =
   | { kind: 'closed' }
   | { kind: 'fixed'; rateHz: number }
@@ -12,19 +14,6 @@ export type ArrivalMode =
 /** The host's monotonic clock in integer-valued ns (performance.now has sub-µs resolution in Node). */
 export function nowNs(): number {
   return Math.round(performance.now() * 1e6);
-}
-
-/** 32-bit seeded generator (mulberry32 by Tommy Ettinger, from memory); uniform in (0, 1). */
-export function seededUniform(seed: number): () => number {
-  let state = seed >>> 0;
-  return () => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    // + 0.5 keeps the value strictly inside (0, 1), so -log(u) is finite
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296 + 0.5 / 4294967296;
-  };
 }
 
 /**
@@ -42,7 +31,7 @@ export class ArrivalSchedule {
       throw new Error(`arrival rate must be a positive finite number of Hz, got ${mode.rateHz}`);
     }
     this.mode = mode;
-    this.uniform = mode.kind === 'poisson' ? seededUniform(mode.seed) : null;
+    this.uniform = mode.kind === 'poisson' ? makeRandom(mode.seed) : null;
   }
 
   get openLoop(): boolean {
@@ -55,8 +44,9 @@ export class ArrivalSchedule {
     const k = this.index++;
     if (mode.kind === 'closed') return 0;
     if (mode.kind === 'fixed') return Math.round((k * 1e9) / mode.rateHz);
-    // the first Poisson event is due one gap after the start, like every later one
-    this.elapsedNs += (-Math.log(this.uniform!()) * 1e9) / mode.rateHz;
+    // the first Poisson event is due one gap after the start, like every later one;
+    // 1 - u lies in (0, 1], so the logarithm is finite
+    this.elapsedNs += (-Math.log(1 - this.uniform!()) * 1e9) / mode.rateHz;
     return Math.round(this.elapsedNs);
   }
 }

@@ -10,8 +10,8 @@ export interface TowerArrays {
   towerEt: Float64Array;
 }
 
-// the project's one seeded generator (splitmix32), shared with the demo events
-export { makeRandom } from '../../host/generator/generate.js';
+// the project's one seeded generator, shared with the demo events
+export { makeRandom } from '../../host/random.js';
 
 export type Region = 'anywhere' | 'seam' | 'edges' | 'patch';
 
