@@ -1,11 +1,11 @@
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { Readable } from 'node:stream';
 import { gzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
 import { parseCsvTowersText, readCsvTowers, type CsvEvent } from '../host/input/csv-towers.js';
 import type { Grid } from '../host/types.js';
+import { tempDirForTest } from './support/temp-dir.js';
 
 const grid: Grid = { etaMin: -2.5, etaMax: 2.5, etaBins: 50, phiBins: 64 };
 const HEADER = 'event,ieta,iphi,et\n';
@@ -75,7 +75,7 @@ describe('CSV tower files: good input', () => {
     const streamed: CsvEvent[] = [];
     for await (const e of readCsvTowers(Readable.from(chunks), { grid, fileLabel: 'towers.csv' })) streamed.push(e);
     expect(plain(streamed)).toEqual(whole);
-    const dir = mkdtempSync(join(tmpdir(), 'jetlag-csv-'));
+    const dir = tempDirForTest('csv');
     const path = join(dir, 'towers.csv');
     writeFileSync(path, gzipSync(bytes));
     const unzipped: CsvEvent[] = [];
@@ -104,9 +104,16 @@ describe('CSV tower files: invalid events', () => {
   });
 
   it('rejects towers outside the grid, checking ieta and iphi each', () => {
-    expect(rowProblem('0,0,64,1')).toBe('tower (ieta 0, iphi 64) is outside the grid of 50 x 64 towers');
-    expect(rowProblem('0,50,0,1')).toBe('tower (ieta 50, iphi 0) is outside the grid of 50 x 64 towers');
-    expect(rowProblem('0,-1,0,1')).toBe('tower (ieta -1, iphi 0) is outside the grid of 50 x 64 towers');
+    expect(rowProblem('0,0,64,1')).toMatch(/^tower \(ieta 0, iphi 64\) is outside the grid of 50 x 64 towers( |$)/);
+    expect(rowProblem('0,50,0,1')).toMatch(/^tower \(ieta 50, iphi 0\) is outside the grid of 50 x 64 towers( |$)/);
+    expect(rowProblem('0,-1,0,1')).toMatch(/^tower \(ieta -1, iphi 0\) is outside the grid of 50 x 64 towers( |$)/);
+  });
+
+  it('says which grid it assumed the first time a tower is outside it, and only then', () => {
+    const { events } = parse(HEADER + '0,0,64,1\n1,50,0,1\n');
+    expect(events[0].problem).toBe('tower (ieta 0, iphi 64) is outside the grid of 50 x 64 towers (the grid assumed: eta [-2.5, 2.5) in 50 bins, phi in 64 bins, given; ' +
+      'a CSV from another grid states it in a "# grid" line before the header, or give --eta-min, --eta-max, --eta-bins, --phi-bins)');
+    expect(events[1].problem).toBe('tower (ieta 50, iphi 0) is outside the grid of 50 x 64 towers');
   });
 
   it('rejects et that overflows to infinity, |et| above 1e150 and a repeated tower', () => {
@@ -135,18 +142,18 @@ describe('CSV tower files: invalid events', () => {
 
 describe('CSV tower files: unreadable rest', () => {
   it('needs the header line', () => {
-    expect(parse('0,1,2,3\n')).toEqual({ events: [], error: 'towers.csv, byte 0: missing header: expected "event,ieta,iphi,et", got "0,1,2,3"' });
-    expect(parse('event,ieta,iphi\n').error).toBe('towers.csv, byte 0: missing header: expected "event,ieta,iphi,et", got "event,ieta,iphi"');
-    expect(parse('').error).toBe('towers.csv, byte 0: missing header: expected "event,ieta,iphi,et", the file is empty');
+    expect(parse('0,1,2,3\n')).toEqual({ events: [], error: 'towers.csv, line 1, byte 0: missing header: expected "event,ieta,iphi,et", got "0,1,2,3"' });
+    expect(parse('event,ieta,iphi\n').error).toBe('towers.csv, line 1, byte 0: missing header: expected "event,ieta,iphi,et", got "event,ieta,iphi"');
+    expect(parse('').error).toBe('towers.csv, line 1, byte 0: missing header: expected "event,ieta,iphi,et", the file is empty');
   });
 
   it('stops at a bad event number, keeping the events before', () => {
     const text = HEADER + '0,0,0,1\n1,0,0,1\n1,0,1,1\nx,0,0,1\n3,0,0,1\n';
     const { events, error } = parse(text);
     expect(events.map((e) => e.event)).toEqual([0, 1]);
-    expect(error).toBe(`towers.csv, byte ${text.indexOf('x,0')}: bad event number "x" (the rest of the file is unreadable)`);
+    expect(error).toBe(`towers.csv, line 5, byte ${text.indexOf('x,0')}: bad event number "x" (the rest of the file is unreadable)`);
     for (const bad of ['-1', '+1', '1.0', ' 1', '9007199254740992']) {
-      expect(parse(HEADER + `${bad},0,0,1\n`).error).toBe(`towers.csv, byte 19: bad event number ${JSON.stringify(bad)} (the rest of the file is unreadable)`);
+      expect(parse(HEADER + `${bad},0,0,1\n`).error).toBe(`towers.csv, line 2, byte 19: bad event number ${JSON.stringify(bad)} (the rest of the file is unreadable)`);
     }
   });
 
@@ -154,20 +161,20 @@ describe('CSV tower files: unreadable rest', () => {
     const text = HEADER + '0,0,0,1\n2,0,0,1\n1,0,0,1\n';
     const { events, error } = parse(text);
     expect(events.map((e) => e.event)).toEqual([0, 1, 2]);
-    expect(error).toBe(`towers.csv, byte ${text.indexOf('1,0,0,1')}: event number 1 after 2: numbers must not decrease (the rest of the file is unreadable)`);
+    expect(error).toBe(`towers.csv, line 4, byte ${text.indexOf('1,0,0,1')}: event number 1 after 2: numbers must not decrease (the rest of the file is unreadable)`);
   });
 
   it('stops at an empty line followed by more rows', () => {
     const text = HEADER + '0,0,0,1\n\n1,0,0,1\n';
     const { events, error } = parse(text);
     expect(events.map((e) => e.event)).toEqual([0]);
-    expect(error).toBe('towers.csv, byte 27: bad event number "" (an empty line before more rows; the rest of the file is unreadable)');
+    expect(error).toBe('towers.csv, line 3, byte 27: bad event number "" (an empty line before more rows; the rest of the file is unreadable)');
   });
 
   it('stops at truncated gzip, keeping the events read before the cut', async () => {
     const text = HEADER + Array.from({ length: 20000 }, (_, k) => `${Math.floor(k / 10)},${k % 50},${Math.floor(k / 50) % 64},${(k * 7919) % 1000 / 8}`).join('\n') + '\n';
     const zipped = gzipSync(Buffer.from(text));
-    const dir = mkdtempSync(join(tmpdir(), 'jetlag-csv-cut-'));
+    const dir = tempDirForTest('csv-cut');
     const path = join(dir, 'cut.csv.gz');
     writeFileSync(path, zipped.subarray(0, Math.floor(zipped.length / 2)));
     const seen: number[] = [];
@@ -195,6 +202,6 @@ describe('CSV tower files: unreadable rest', () => {
       message = (error as Error).message;
     }
     expect(seen).toEqual([0, 1, 2]);
-    expect(message).toBe(`towers.csv, byte ${text.lastIndexOf('1,0,0,1')}: event number 1 after 2: numbers must not decrease (the rest of the file is unreadable)`);
+    expect(message).toBe(`towers.csv, line 5, byte ${text.lastIndexOf('1,0,0,1')}: event number 1 after 2: numbers must not decrease (the rest of the file is unreadable)`);
   });
 });

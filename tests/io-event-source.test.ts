@@ -1,5 +1,4 @@
-import { mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { gzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
@@ -10,8 +9,9 @@ import { encodeFileHeader } from '../host/formats/file-header.js';
 import { EventFileWriter } from '../host/output/record-writer.js';
 import type { Grid } from '../host/types.js';
 import { delimit } from '../host/formats/wire.js';
+import { tempDirForSuite } from './support/temp-dir.js';
 
-const dir = mkdtempSync(join(tmpdir(), 'jetlag-source-'));
+const dir = tempDirForSuite('source');
 const grid: Grid = { etaMin: -1, etaMax: 1, etaBins: 4, phiBins: 8 };
 
 async function writeEvents(name: string, events: Parameters<EventFileWriter['writeEvent']>[0][], gzip = false): Promise<string> {
@@ -79,7 +79,7 @@ describe('event sources', () => {
     expect(records.map((r) => [r.event.event, Array.from(r.event.towerIndex), Array.from(r.event.towerEt), r.event.error, r.offset])).toEqual([
       [0, [10], [3], '', 19],
       [1, [], [], '', 27],
-      [2, [], [], 'tower (ieta 0, iphi 0) repeats an earlier row of the event', 35],
+      [2, [], [], 'tower (ieta 0, iphi 0) repeats an earlier row of the event (line 4)', 35],
       [3, [31], [2.5], '', 43],
     ]);
   });
@@ -89,7 +89,7 @@ describe('event sources', () => {
     writeFileSync(path, 'event,ieta,iphi,et\n0,1,2,3\n1,0,0,1\n0,0,0,1\n');
     const { records, error } = await readAll(path, { grid });
     expect(records.map((r) => r.event.event)).toEqual([0, 1]);
-    expect(error).toBe(`${path}, byte 35: event number 0 after 1: numbers must not decrease (the rest of the file is unreadable)`);
+    expect(error).toBe(`${path}, line 4, byte 35: event number 0 after 1: numbers must not decrease (the rest of the file is unreadable)`);
   });
 
   it('ends event-file records with a framing error after the records before it', async () => {

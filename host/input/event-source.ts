@@ -10,8 +10,12 @@
 //     (offset: of the record's length varint). For CSV every event is converted into an
 //     event record, so downstream code is uniform (offset: of the event's first row, or for
 //     an invalid event of the offending row, whose record then carries the error text).
-//     grid: the grid of a CSV file (default: the spec's default grid); an events file
-//     carries its own grid in its header and `grid` is ignored for it.
+//     grid: the grid of a CSV file that states none (default: the spec's default grid); a CSV
+//     that states its grid (a `# grid` line, csv-grid.ts) is read on that grid, and a grid
+//     given that is not the default and differs from it is an error; an events file carries
+//     its own grid in its header and `grid` is ignored for it.
+//     maxEventGap: CSV only, the largest jump of event numbers (csv-towers.ts).
+//     The error text of an invalid CSV event names the line of the offending row.
 //     Unreadable input (bad header, framing error, unreadable CSV line) throws InputError
 //     naming file and byte offset: when opening, or from `records` after every record before
 //     the problem.
@@ -25,7 +29,8 @@
 // read as records, so the header check names what is wrong.
 
 import { InputError } from '../errors.js';
-import { csvEventsFromChunks } from './csv-towers.js';
+import { csvEventsFromChunks, type CsvReadLimits } from './csv-towers.js';
+import { chooseCsvGrid, peekCsvGrid } from './csv-grid.js';
 import { encodeEventRecord } from '../formats/event-codec.js';
 import { decodeFileHeader, FORMAT_VERSION, type FileHeader } from '../formats/file-header.js';
 import { framedRecords, inputLabel, readChunks, type RawRecord } from './record-reader.js';
@@ -47,6 +52,7 @@ export interface EventSource extends RecordSource {
 
 export interface OpenOptions {
   grid?: Grid;
+  maxEventGap?: number;
   maxRecordBytes?: number;
   fileLabel?: string;
 }
@@ -136,12 +142,12 @@ async function* rejoin(peeked: Uint8Array[], rest: AsyncGenerator<Uint8Array>): 
   }
 }
 
-async function* csvRecords(chunks: AsyncGenerator<Uint8Array>, grid: Grid, label: string): AsyncGenerator<RawRecord> {
+async function* csvRecords(chunks: AsyncGenerator<Uint8Array>, grid: Grid, label: string, limits: CsvReadLimits): AsyncGenerator<RawRecord> {
   const writer = new ProtoWriter(4096);
-  for await (const event of csvEventsFromChunks(chunks, grid, label)) {
+  for await (const event of csvEventsFromChunks(chunks, grid, label, limits)) {
     const bytes = event.problem === null
       ? encodeEventRecord({ event: event.event, towerIndex: event.towerIndex, towerEt: event.towerEt }, writer)
-      : encodeEventRecord({ event: event.event, error: event.problem }, writer);
+      : encodeEventRecord({ event: event.event, error: `${event.problem} (line ${event.line})` }, writer);
     yield { bytes, offset: event.offset };
   }
 }
@@ -153,9 +159,17 @@ export async function openRecordFile(input: string | NodeJS.ReadableStream, opti
     throw new InputError(label, 'empty file: neither an event file (no header record) nor a CSV tower file (no header line)', undefined, 0);
   }
   if (format === 'csv') {
-    const grid = options.grid ?? { ...DEFAULT_GRID };
+    const { stated, chunks } = await peekCsvGrid(all, label);
+    let chosen;
+    try {
+      chosen = chooseCsvGrid(stated, options.grid, label);
+    } catch (error) {
+      await chunks.return(undefined);
+      throw error;
+    }
+    const grid = { ...chosen.grid };
     const header: FileHeader = { kind: 'events', grid, producer: CSV_PRODUCER, label: '', formatVersion: FORMAT_VERSION };
-    return { label, format: 'csv', header, records: csvRecords(all, grid, label) };
+    return { label, format: 'csv', header, records: csvRecords(chunks, grid, label, { maxEventGap: options.maxEventGap, gridOrigin: chosen.origin }) };
   }
   const { header, records } = await readFileHeader(all, label, options.maxRecordBytes);
   return { label, format: header.kind === 'events' ? 'events-file' : 'jets-file', header, records };
