@@ -13,6 +13,14 @@ import { buildOffsets } from './offsets';
 import { initInput, selectTowers } from './input';
 import { clusterTowers, firstNeighbours, finalCount, jetCount } from './sequence';
 import { writeJets, towersWritten } from './output';
+import { STATUS_OK, REGION_ETA_CENTRE, REGION_SINH_ETA, REGION_COSH_ETA, REGION_PHI_CENTRE,
+  REGION_COS_PHI, REGION_SIN_PHI, REGION_IN_INDEX, REGION_IN_ET, REGION_IN_START, REGION_OUT_JET_START,
+  REGION_OUT_NS, REGION_OUT_CLUSTERED, REGION_OUT_STATUS, REGION_OUT_PX, REGION_OUT_PY, REGION_OUT_PZ,
+  REGION_OUT_E, REGION_OUT_PT, REGION_OUT_Y, REGION_OUT_PHI, REGION_OUT_MASS, REGION_OUT_TOWER_COUNT,
+  REGION_OUT_TOWER_START, REGION_OUT_TOWERS } from './shared-constants';
+
+// the numbers the host mirrors, as exported globals for tests/engine-constants.test.ts
+export * from './shared-constants';
 
 // @ts-ignore: decorator
 @external("env", "clock.nowNs")
@@ -35,33 +43,33 @@ export function configureEngine(p: f64, radius: f64, ptMin: f64, threshold: f64,
   return 1;
 }
 
-/** Pointer of a region, by the number used in host/clustering/engine.ts. */
+/** Pointer of a region, by its id (shared-constants.ts, mirrored in host/clustering/engine.ts). */
 export function region(id: i32): usize {
   switch (id) {
-    case 0: return etaCentre;
-    case 1: return sinhEta;
-    case 2: return coshEta;
-    case 3: return phiCentre;
-    case 4: return cosPhi;
-    case 5: return sinPhi;
-    case 6: return inIndex;
-    case 7: return inEt;
-    case 8: return inStart;
-    case 9: return outJetStart;
-    case 10: return outNs;
-    case 11: return outClustered;
-    case 12: return outStatus;
-    case 13: return outPx;
-    case 14: return outPy;
-    case 15: return outPz;
-    case 16: return outE;
-    case 17: return outPt;
-    case 18: return outY;
-    case 19: return outPhi;
-    case 20: return outMass;
-    case 21: return outTowerCount;
-    case 22: return outTowerStart;
-    case 23: return outTowers;
+    case REGION_ETA_CENTRE: return etaCentre;
+    case REGION_SINH_ETA: return sinhEta;
+    case REGION_COSH_ETA: return coshEta;
+    case REGION_PHI_CENTRE: return phiCentre;
+    case REGION_COS_PHI: return cosPhi;
+    case REGION_SIN_PHI: return sinPhi;
+    case REGION_IN_INDEX: return inIndex;
+    case REGION_IN_ET: return inEt;
+    case REGION_IN_START: return inStart;
+    case REGION_OUT_JET_START: return outJetStart;
+    case REGION_OUT_NS: return outNs;
+    case REGION_OUT_CLUSTERED: return outClustered;
+    case REGION_OUT_STATUS: return outStatus;
+    case REGION_OUT_PX: return outPx;
+    case REGION_OUT_PY: return outPy;
+    case REGION_OUT_PZ: return outPz;
+    case REGION_OUT_E: return outE;
+    case REGION_OUT_PT: return outPt;
+    case REGION_OUT_Y: return outY;
+    case REGION_OUT_PHI: return outPhi;
+    case REGION_OUT_MASS: return outMass;
+    case REGION_OUT_TOWER_COUNT: return outTowerCount;
+    case REGION_OUT_TOWER_START: return outTowerStart;
+    case REGION_OUT_TOWERS: return outTowers;
   }
   return 0;
 }
@@ -69,8 +77,8 @@ export function region(id: i32): usize {
 /**
  * Clusters events 0..eventCount-1 of the input (event e's towers are inStart[e]..inStart[e+1]);
  * returns the number of jets written. Per event: outJetStart (eventCount + 1 offsets),
- * outNs (clustering time, ns), outClustered (towers that entered), outStatus (0, or -1 for an
- * index outside the grid, -2 for a repeated index: such an event gets no jets).
+ * outNs (clustering time, ns), outClustered (towers that entered), outStatus (STATUS_OK, or
+ * STATUS_INDEX_OUTSIDE / STATUS_INDEX_REPEATED: such an event gets no jets).
  * Called once per batch.
  */
 export function clusterBatch(eventCount: i32, withTowers: i32): i32 {
@@ -87,7 +95,7 @@ export function clusterBatch(eventCount: i32, withTowers: i32): i32 {
       clusterTowers(n);
       jetBase += writeJets(n, jetCount, finalCount, jetBase, towerBase, withTowers != 0);
       towerBase += towersWritten;
-      setI32(outStatus, e, 0);
+      setI32(outStatus, e, STATUS_OK);
       setI32(outClustered, e, n);
     }
     setI32(outJetStart, e + 1, jetBase);

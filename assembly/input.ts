@@ -9,13 +9,8 @@
 import { inIndex, inEt, evIndex, evEt, sortIndex, sortEt, radixCount, cellTotal, RADIX_BUCKETS,
   getF64, setF64, getI32, setI32 } from './layout';
 import { threshold } from './settings';
+import { MIN_ET, STATUS_INDEX_OUTSIDE, STATUS_INDEX_REPEATED } from './shared-constants';
 
-// @ts-ignore: decorator
-@inline const MIN_ET: f64 = 1e-150;
-// @ts-ignore: decorator
-@inline export const STATUS_INDEX_OUTSIDE: i32 = -1;
-// @ts-ignore: decorator
-@inline export const STATUS_INDEX_REPEATED: i32 = -2;
 
 let indexBits: i32 = 0;
 

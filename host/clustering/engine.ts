@@ -12,6 +12,9 @@ import { fileURLToPath } from 'node:url';
 import { checkGrid, makeGridTables, type GridTables } from './grid.js';
 import type { ClusterSettings, Clusterer, Grid, JetSet } from '../types.js';
 
+// Copies of the engine's numbers (assembly/shared-constants.ts); tests/engine-constants.test.ts
+// reads the engine's from an instance and checks that these agree.
+
 /** per-event status of a batch */
 export const ENGINE_OK = 0;
 export const ENGINE_INDEX_OUTSIDE = -1;
@@ -21,8 +24,8 @@ export const ENGINE_INDEX_REPEATED = -2;
 const BATCH_TOWERS_MIN = 1 << 16;
 const BATCH_EVENTS = 4096;
 
-// region numbers of assembly/index.ts region()
-const REGION = {
+/** region ids of assembly/index.ts region() */
+export const REGION = {
   etaCentre: 0, sinhEta: 1, coshEta: 2, phiCentre: 3, cosPhi: 4, sinPhi: 5,
   inIndex: 6, inEt: 7, inStart: 8,
   outJetStart: 9, outNs: 10, outClustered: 11, outStatus: 12,
@@ -83,7 +86,8 @@ export function loadEngineModule(debug = false): WebAssembly.Module {
   return module;
 }
 
-function engineImports(module: WebAssembly.Module): WebAssembly.Imports {
+/** The host functions a build of the engine imports: its clock, its assertion trap, Math. */
+export function engineImports(module: WebAssembly.Module): WebAssembly.Imports {
   const env: Record<string, WebAssembly.ImportValue> = {};
   for (const entry of WebAssembly.Module.imports(module)) {
     if (entry.name === 'clock.nowNs') env[entry.name] = () => performance.now() * 1e6;

@@ -1,0 +1,40 @@
+// The host's copies of the engine's numbers (host/clustering/engine.ts, host/clustering/grid.ts)
+// against the engine's own, read from an instance of each build (assembly/shared-constants.ts
+// exports them as globals).
+import { describe, expect, it } from 'vitest';
+import { ENGINE_OK, ENGINE_INDEX_OUTSIDE, ENGINE_INDEX_REPEATED, REGION, engineImports, loadEngineModule } from '../host/clustering/engine.js';
+import { MIN_ET } from '../host/clustering/grid.js';
+
+function engineGlobals(debug: boolean): Record<string, number> {
+  const module = loadEngineModule(debug);
+  const instance = new WebAssembly.Instance(module, engineImports(module));
+  const values: Record<string, number> = {};
+  for (const [name, value] of Object.entries(instance.exports)) {
+    if (value instanceof WebAssembly.Global) values[name] = value.value as number;
+  }
+  return values;
+}
+
+/** etaCentre -> REGION_ETA_CENTRE, outE -> REGION_OUT_E */
+function exportName(region: string): string {
+  return 'REGION_' + region.replace(/[A-Z]/g, (letter) => '_' + letter).toUpperCase();
+}
+
+describe.each([false, true])('the engine build (debug %s) and the host agree on', (debug) => {
+  it('the per-event status codes', () => {
+    const engine = engineGlobals(debug);
+    expect([engine.STATUS_OK, engine.STATUS_INDEX_OUTSIDE, engine.STATUS_INDEX_REPEATED])
+      .toEqual([ENGINE_OK, ENGINE_INDEX_OUTSIDE, ENGINE_INDEX_REPEATED]);
+  });
+
+  it('every region id, and the host knows every region the engine numbers', () => {
+    const engine = engineGlobals(debug);
+    const engineRegions = Object.keys(engine).filter((name) => name.startsWith('REGION_')).sort();
+    expect(Object.keys(REGION).map(exportName).sort()).toEqual(engineRegions);
+    for (const [region, id] of Object.entries(REGION)) expect(engine[exportName(region)], region).toBe(id);
+  });
+
+  it('the smallest et that enters clustering', () => {
+    expect(engineGlobals(debug).MIN_ET).toBe(MIN_ET);
+  });
+});
