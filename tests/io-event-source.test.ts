@@ -98,7 +98,7 @@ describe('event sources', () => {
     writeFileSync(path, good.subarray(0, good.length - 2));
     const { records, error } = await readAll(path);
     expect(records.map((r) => r.event.event)).toEqual([0, 1]);
-    expect(error).toMatch(new RegExp(`^${path.replace(/[.]/g, '\\.')}, byte \\d+: truncated record: length 32 but only 30 bytes follow$`));
+    expect(error).toMatch(new RegExp(`^${path.replace(/[.]/g, '\\.')}, event 2, byte \\d+: truncated record: length 32 but only 30 bytes follow$`));
   });
 
   it('names the problem with a header that is not ours', async () => {

@@ -10,7 +10,10 @@
 //     After every complete record before a problem has been yielded, a framing problem throws
 //     InputError("<file>, byte <offset>: <detail>"): a length above maxRecordBytes (default
 //     64 MiB), a length varint longer than 10 bytes or above 2^32 - 1, a truncated record,
-//     corrupt or truncated gzip, or a read error.
+//     corrupt or truncated gzip, or a read error. A framing error names the event too: the
+//     event number read from the start of a cut record ("<file>, event N, byte B"), else the
+//     event of the record before it ("... (the record after event N)"); event and jets
+//     records both keep their event number in field 1, the header record has none.
 //   framedRecords(chunks, label, maxRecordBytes?): the same over chunks from readChunks().
 //   readChunks(input, label?): the uncompressed chunks of an input (gzip by content).
 //   RecordFramer: the synchronous core (feed chunks, get records through a callback), for
@@ -188,6 +191,11 @@ export class RecordFramer {
     return -1;
   }
 
+  /** The bytes of a record cut short so far (null when none is being assembled). */
+  partialRecord(): Uint8Array | null {
+    return this.body === null ? null : this.body.subarray(0, this.bodyFilled);
+  }
+
   /** At end of input: sets `problem` when a record was left incomplete. */
   finish(): void {
     if (this.problem) return;
@@ -327,7 +335,8 @@ export async function* framedRecords(
 ): AsyncGenerator<RawRecord> {
   const framer = new RecordFramer(maxRecordBytes);
   const batch: RawRecord[] = [];
-  const collect: RecordSink = (bytes, offset) => { batch.push({ bytes, offset }); };
+  let last: Uint8Array | null = null; // the last whole record, kept by reference to name its event on an error
+  const collect: RecordSink = (bytes, offset) => { batch.push({ bytes, offset }); last = bytes; };
   for await (const chunk of chunks) {
     framer.feed(chunk, collect);
     for (let k = 0; k < batch.length; k++) yield batch[k];
@@ -335,5 +344,47 @@ export async function* framedRecords(
     if (framer.problem) break;
   }
   framer.finish();
-  if (framer.problem) throw new InputError(label, framer.problem.detail, undefined, framer.problem.offset);
+  if (framer.problem) {
+    const partial = framer.partialRecord();
+    const event = partial === null ? null : leadingEventNumber(partial);
+    if (event !== null) throw new InputError(label, framer.problem.detail, event, framer.problem.offset);
+    const before = last === null ? null : leadingEventNumber(last);
+    const detail = before === null ? framer.problem.detail : `${framer.problem.detail} (the record after event ${before})`;
+    throw new InputError(label, detail, undefined, framer.problem.offset);
+  }
+}
+
+/**
+ * The event number of a record (field 1, a varint), read from as many of its bytes as there
+ * are; null when field 1 is not among them or is not a varint (the header record). Other
+ * fields before it are stepped over by their wire type.
+ */
+export function leadingEventNumber(bytes: Uint8Array): number | null {
+  let pos = 0;
+  const varint = (): number | null => {
+    let value = 0;
+    let scale = 1;
+    for (let k = 0; k < 10 && pos < bytes.length; k++) {
+      const b = bytes[pos++];
+      value += (b & 0x7f) * scale;
+      if (b < 0x80) return value;
+      scale *= 128;
+    }
+    return null;
+  };
+  while (pos < bytes.length) {
+    const tag = varint();
+    if (tag === null) return null;
+    const field = Math.floor(tag / 8);
+    const wire = tag % 8;
+    if (field === 1) {
+      if (wire !== 0) return null;
+      const value = varint();
+      return value !== null && Number.isSafeInteger(value) ? value : null;
+    }
+    if (wire === 0) { if (varint() === null) return null; } else if (wire === 1) pos += 8;
+    else if (wire === 5) pos += 4;
+    else if (wire === 2) { const length = varint(); if (length === null) return null; pos += length; } else return null;
+  }
+  return null;
 }
