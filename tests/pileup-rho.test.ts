@@ -43,7 +43,7 @@ describe('rho from patches', () => {
     expect(rho).toBe(0.5 * (densities[1] + densities[2]));
   });
 
-  it('is 0 for an event without towers: every patch's density is 0', () => {
+  it('is 0 for an event without towers: every patch density is 0', () => {
     expect(rhoFromPatches(DEFAULT_GRID, new Int32Array(0), new Float64Array(0), { etaRows: 5, phiColumns: 5 })).toBe(0);
   });
 });
