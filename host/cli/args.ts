@@ -27,24 +27,37 @@ export interface ParsedArgs {
   help: boolean;
 }
 
+// Long names take two dashes and short names one (`--q` and `-quiet` are unknown options), so a
+// typo is refused instead of being read as another option. An option that takes a value takes
+// the next argument unless that argument is itself one of the command's options: `--json --quiet`
+// means a forgotten file name, not a file called "--quiet". A negative number (`--p -1`) is no
+// option name, so it still passes as a value; `--json=--quiet` says the odd name on purpose.
 export function parseArgs(spec: CommandSpec, argv: readonly string[]): ParsedArgs {
   const values: ParsedArgs['values'] = {};
   const positionals: string[] = [];
   let help = false;
-  const byName = new Map<string, OptionSpec>();
+  const longNames = new Map<string, OptionSpec>();
+  const shortNames = new Map<string, OptionSpec>();
   for (const option of spec.options) {
-    byName.set(option.name, option);
-    if (option.short) byName.set(option.short, option);
+    longNames.set(option.name, option);
+    if (option.short) shortNames.set(option.short, option);
   }
+  const optionNamed = (arg: string): OptionSpec | undefined => {
+    const isLong = arg.startsWith('--');
+    const body = arg.slice(isLong ? 2 : 1);
+    const eq = body.indexOf('=');
+    return (isLong ? longNames : shortNames).get(eq >= 0 ? body.slice(0, eq) : body);
+  };
+  const isKnownOption = (arg: string): boolean =>
+    arg === '--help' || arg === '-h' || (arg.startsWith('-') && arg !== '-' && optionNamed(arg) !== undefined);
   for (let k = 0; k < argv.length; k++) {
     const arg = argv[k];
     if (arg === '--help' || arg === '-h') { help = true; continue; }
     if (arg === '--') { positionals.push(...argv.slice(k + 1)); break; }
     if (arg.startsWith('-') && arg !== '-') {
-      const body = arg.startsWith('--') ? arg.slice(2) : arg.slice(1);
+      const body = arg.slice(arg.startsWith('--') ? 2 : 1);
       const eq = body.indexOf('=');
-      const key = eq >= 0 ? body.slice(0, eq) : body;
-      const option = byName.get(key);
+      const option = optionNamed(arg);
       if (!option) throw new UsageError(`${spec.name}: unknown option ${arg} (see jetlag ${spec.name} --help)`);
       if (option.kind === 'flag') {
         if (eq >= 0) throw new UsageError(`${spec.name}: --${option.name} takes no value`);
@@ -56,6 +69,10 @@ export function parseArgs(spec: CommandSpec, argv: readonly string[]): ParsedArg
       else {
         if (k + 1 >= argv.length) throw new UsageError(`${spec.name}: --${option.name} needs a value ${option.argument ?? ''}`.trimEnd());
         text = argv[++k];
+        if (isKnownOption(text)) {
+          const wanted = option.argument ? ` ${option.argument}` : '';
+          throw new UsageError(`${spec.name}: --${option.name} needs a value${wanted}, got the option ${text} (write --${option.name}=${text} if that is the value)`);
+        }
       }
       values[option.name] = convert(spec.name, option, text);
       continue;
@@ -73,14 +90,21 @@ export function parseArgs(spec: CommandSpec, argv: readonly string[]): ParsedArg
   return { positionals, values, help };
 }
 
+/** plain decimal only: no hex, binary or octal prefixes, no spaces, no "Infinity" */
+const INTEGER_TEXT = /^[+-]?\d+$/;
+const NUMBER_TEXT = /^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i;
+
 function convert(command: string, option: OptionSpec, text: string): string | number {
   if (option.kind === 'string') return text;
   const value = Number(text);
-  if (text.trim() === '' || !Number.isFinite(value)) {
-    throw new UsageError(`${command}: --${option.name} must be a number, got ${JSON.stringify(text)}`);
+  if (option.kind === 'integer') {
+    if (!INTEGER_TEXT.test(text) || !Number.isFinite(value)) {
+      throw new UsageError(`${command}: --${option.name} must be a decimal integer, got ${JSON.stringify(text)}`);
+    }
+    return value;
   }
-  if (option.kind === 'integer' && !Number.isInteger(value)) {
-    throw new UsageError(`${command}: --${option.name} must be an integer, got ${JSON.stringify(text)}`);
+  if (!NUMBER_TEXT.test(text) || !Number.isFinite(value)) {
+    throw new UsageError(`${command}: --${option.name} must be a number, got ${JSON.stringify(text)}`);
   }
   return value;
 }
