@@ -8,8 +8,8 @@
 // through reset() and offer().
 
 import { cellJet, getI32 } from './layout';
-import { reach } from './settings';
-import { BEAM } from './settings';
+import { reach, BEAM } from './settings';
+import { EQUAL_KEY_WIDENING, COORDINATE_WIDENING } from './search-constants';
 
 export namespace best {
   /** the neighbour's cell, or -1 while none is found */
@@ -42,9 +42,9 @@ export namespace best {
   }
 
   /** The radius that holds every jet whose key can beat or tie the best so far (an equal key can
-   * come from a slightly larger dR2, hence the margin), or the reach. */
+   * come from a slightly larger dR2: search-constants.ts), or the reach. */
   // @ts-ignore: decorator
   @inline export function radius(): f64 {
-    return cell >= 0 ? min<f64>(reach, sqrt<f64>(dR2) * (1 + 1e-8) + 1e-12) : reach;
+    return cell >= 0 ? min<f64>(reach, sqrt<f64>(dR2) * (1 + EQUAL_KEY_WIDENING) + COORDINATE_WIDENING) : reach;
   }
 }

@@ -114,12 +114,16 @@ export function resetDrift(): void {
   return select<f64>(TWO_PI - d, d, d > PI);
 }
 
+// row and column numbers within this converting to i32 safely (below 2^31, about 2.1e9)
+// @ts-ignore: decorator
+@inline const CONVERTIBLE_LIMIT: f64 = 1e9;
+
 /** The cell whose area contains (y, phi), clamped to the grid; -1 for a non-finite position. */
 export function containingCell(y: f64, phi: f64): i32 {
   // any cell would do (drift is tracked); the containing one keeps drift small
   const u = floor<f64>((y - etaMin) * invEtaPitch);
   const v = floor<f64>(phi * invPhiPitch);
-  if (!(u == u) || !(v == v) || abs<f64>(u) > 1e9 || abs<f64>(v) > 1e9) return -1;
+  if (!(u == u) || !(v == v) || abs<f64>(u) > CONVERTIBLE_LIMIT || abs<f64>(v) > CONVERTIBLE_LIMIT) return -1;
   const row = min<i32>(max<i32>(<i32>u, 0), etaBins - 1);
   const col = min<i32>(max<i32>(<i32>v, 0), phiBins - 1);
   return row * phiBins + col;

@@ -5,7 +5,7 @@
 
 import { reserve, getI32, setI32, setF64, inStart, outJetStart, outNs, outClustered, outStatus,
   outTowers, etaCentre, sinhEta, coshEta, phiCentre, cosPhi, sinPhi, inIndex, inEt, outPx, outPy,
-  outPz, outE, outPt, outY, outPhi, outMass, outTowerCount, outTowerStart, etaBins, phiBins } from './layout';
+  outPz, outE, outPt, outY, outPhi, outMass, outTowerCount, outTowerStart, outJetIndex, etaBins, phiBins } from './layout';
 import { configure } from './settings';
 import { initCells, initPadding } from './cells';
 import { initTree } from './tournament';
@@ -17,7 +17,7 @@ import { STATUS_OK, REGION_ETA_CENTRE, REGION_SINH_ETA, REGION_COSH_ETA, REGION_
   REGION_COS_PHI, REGION_SIN_PHI, REGION_IN_INDEX, REGION_IN_ET, REGION_IN_START, REGION_OUT_JET_START,
   REGION_OUT_NS, REGION_OUT_CLUSTERED, REGION_OUT_STATUS, REGION_OUT_PX, REGION_OUT_PY, REGION_OUT_PZ,
   REGION_OUT_E, REGION_OUT_PT, REGION_OUT_Y, REGION_OUT_PHI, REGION_OUT_MASS, REGION_OUT_TOWER_COUNT,
-  REGION_OUT_TOWER_START, REGION_OUT_TOWERS } from './shared-constants';
+  REGION_OUT_TOWER_START, REGION_OUT_TOWERS, REGION_OUT_JET_INDEX } from './shared-constants';
 
 // the numbers the host mirrors, as exported globals for tests/engine-constants.test.ts
 export * from './shared-constants';
@@ -70,6 +70,7 @@ export function region(id: i32): usize {
     case REGION_OUT_TOWER_COUNT: return outTowerCount;
     case REGION_OUT_TOWER_START: return outTowerStart;
     case REGION_OUT_TOWERS: return outTowers;
+    case REGION_OUT_JET_INDEX: return outJetIndex;
   }
   return 0;
 }

@@ -10,6 +10,7 @@
 //   output   outJetStart i32[EV+1]  outNs f64[EV]  outClustered i32[EV]  outStatus i32[EV]
 //            outPx outPy outPz outE outPt outY outPhi outMass f64[IN]
 //            outTowerCount outTowerStart outTowers i32[IN]               (read by the host per call)
+//            outJetIndex i32[IN]   (each output jet's index in the sequence, spec section 4)
 //   event    evIndex i32[C]  evEt f64[C]  sortIndex i32[C]  sortEt f64[C]  radixCount i32[RADIX_BUCKETS]
 //   cells    cellY cellPhi cellW cellNnDR2 cellNnKey f64[C]
 //            cellJet cellNn pointHead pointNext pointPrev i32[C]
@@ -80,6 +81,7 @@ export let outMass: usize = 0;
 export let outTowerCount: usize = 0;
 export let outTowerStart: usize = 0;
 export let outTowers: usize = 0;
+export let outJetIndex: usize = 0;
 
 export let evIndex: usize = 0;
 export let evEt: usize = 0;
@@ -211,6 +213,7 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   outTowerCount = take(inCap << 2);
   outTowerStart = take(inCap << 2);
   outTowers = take(inCap << 2);
+  outJetIndex = take(inCap << 2);
 
   evIndex = take(cells << 2);
   evEt = take(cells << 3);

@@ -7,6 +7,7 @@ import { etaBins, phiBins, offDr, offDc, offDist, offPerm, offScratch, offTmpI, 
   OFFSET_LIMIT, padStride, reservePadding, getF64, setF64, getI32, setI32 } from './layout';
 import { reach, etaMin, etaPitch, phiPitch } from './settings';
 import { sortPermutation } from './sort';
+import { BOUND_WIDENING, CENTRE_ROUNDING } from './search-constants';
 
 /** offsets in the table: offDr..offStep[0..offsetCount) */
 export let offsetCount: i32 = 0;
@@ -52,7 +53,7 @@ export function buildOffsets(): bool {
   }
   sortPermutation(offPerm, offScratch, n, offTmpF, 0);
   // centres can sit a few ulp off the ideal lattice: shave the bound a little
-  const ulpScale = 1e-15 * (abs<f64>(etaMin) + abs<f64>(etaMin + etaPitch * <f64>etaBins) + 8);
+  const ulpScale = CENTRE_ROUNDING * (abs<f64>(etaMin) + abs<f64>(etaMin + etaPitch * <f64>etaBins) + 8);
   let rowReach = 0;
   let colReach = 0;
   for (let o = 0; o < n; o++) {
@@ -62,7 +63,7 @@ export function buildOffsets(): bool {
     const dc = <i32>(<i16>(packed & 0xffff));
     setI32(offDr, o, dr);
     setI32(offDc, o, dc);
-    setF64(offDist, o, getF64(offTmpF, from) * (1 - 1e-9) - 4 * ulpScale);
+    setF64(offDist, o, getF64(offTmpF, from) * (1 - BOUND_WIDENING) - 4 * ulpScale);
     rowReach = max<i32>(rowReach, abs<i32>(dr));
     colReach = max<i32>(colReach, abs<i32>(dc));
   }

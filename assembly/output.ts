@@ -7,7 +7,7 @@
 
 import { evIndex, jetPx, jetPy, jetPz, jetE, jetKt2, jetY, jetPhi, jetInto, jetLabel,
   finalJet, finalOrder, finalScratch, finalPt, outPx, outPy, outPz, outE, outPt, outY, outPhi,
-  outMass, outTowerCount, outTowerStart, outTowers, getF64, setF64, getI32, setI32 } from './layout';
+  outMass, outTowerCount, outTowerStart, outTowers, outJetIndex, getF64, setF64, getI32, setI32 } from './layout';
 import { ptMin } from './settings';
 import { sortPermutation } from './sort';
 
@@ -51,6 +51,8 @@ export function writeJets(n: i32, jetCount: i32, finalCount: i32, jetBase: i32, 
     setF64(outPhi, slot, getF64(jetPhi, jet));
     setF64(outMass, slot, sqrt<f64>(max<f64>(0, e * e - px * px - py * py - pz * pz)));
     setI32(outTowerCount, slot, 0);
+    // ties after a later reordering (area subtraction) go by this index
+    setI32(outJetIndex, slot, jet);
   }
   for (let jet = jetCount - 1; jet >= 0; jet--) {
     const into = getI32(jetInto, jet);

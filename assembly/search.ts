@@ -1,6 +1,6 @@
 // A jet's nearest neighbour from scratch (clustering-spec.md section 4: nn(i) is the jet j with
 // the smallest key ((w_i * dR2_ij) * invR2, j), jet i's own weight). Only jets within the reach
-// (dR2 <= R*R*(1 + 1e-9)) are sought: a farther pair always loses to a beam, so it can never be
+// (dR2 <= R*R*(1 + REACH_WIDENING)) are sought: a farther pair always loses to a beam, so it can never be
 // the step's choice. Jets with a weight outside the safe range ("wide") look at all jets.
 //
 // Four ways to search, all exact, tried in this order by findNeighbour():
@@ -22,7 +22,7 @@ import { offsetCount, offsetReach, nearGuess } from './offsets';
 import { best } from './best';
 import { window, openWindow, rowRuns, openBox } from './windows';
 import { scanOpenBox } from './box-scan';
-import { LIST_MAX, LIST_MAX_SEARCH } from './search-constants';
+import { LIST_MAX, LIST_MAX_SEARCH, EQUAL_KEY_WIDENING, COORDINATE_WIDENING } from './search-constants';
 
 /** the cell of the step's new jet while the jets that lost their neighbour search again, else -1 */
 let seedCell: i32 = -1;
@@ -56,16 +56,16 @@ function searchOrdered(c: i32): bool {
     // for jets within half a cell of their centres
     others = min<f64>(driftNorm, insideNorm);
     offerListed(c, y, phi, w);
-    if (best.cell >= 0) limit = min<f64>(limit, sqrt<f64>(best.dR2) * (1 + 1e-8));
+    if (best.cell >= 0) limit = min<f64>(limit, sqrt<f64>(best.dR2) * (1 + EQUAL_KEY_WIDENING));
   } else if (seedCell >= 0 && seedCell != c) {
     // the new jet of this step is the likely neighbour: offered first, it bounds the walk at once
     const d = deltaR2(y, phi, getF64(cellY, seedCell), getF64(cellPhi, seedCell));
     if (d <= reach2) {
       best.offer(seedCell, d, (w * d) * invR2);
-      limit = min<f64>(limit, sqrt<f64>(d) * (1 + 1e-8));
+      limit = min<f64>(limit, sqrt<f64>(d) * (1 + EQUAL_KEY_WIDENING));
     }
   }
-  const slack = sqrt<f64>(dyq * dyq + dpq * dpq) + others + 1e-12;
+  const slack = sqrt<f64>(dyq * dyq + dpq * dpq) + others + COORDINATE_WIDENING;
   const n = offsetCount;
   const from = getI32(cellPad, c);
   // bases and settings in locals: the loop reads no global
@@ -84,7 +84,7 @@ function searchOrdered(c: i32): bool {
     const d = deltaR2(y, phi, getF64(ys, q), getF64(phis, q));
     const key = (w * d) * scale;
     if ((d <= r2) & (key <= bound)) {
-      if (best.offer(getI32(padCell, q), d, key)) limit = min<f64>(limit, sqrt<f64>(d) * (1 + 1e-8));
+      if (best.offer(getI32(padCell, q), d, key)) limit = min<f64>(limit, sqrt<f64>(d) * (1 + EQUAL_KEY_WIDENING));
       bound = best.key;
     }
   }

@@ -1,5 +1,7 @@
 // Algorithm settings of one engine instance, fixed by configure() (called once from the host).
 
+import { REACH_WIDENING, BOUND_WIDENING, COORDINATE_WIDENING } from './search-constants';
+
 // @ts-ignore: decorator
 @inline export const BEAM: i32 = 0x7fffffff;
 // @ts-ignore: decorator
@@ -11,7 +13,8 @@
 export let pMode: i32 = 0;
 export let pValue: f64 = -1;
 export let invR2: f64 = 0;
-/** squared reach of the neighbour search: a pair can only win when dR2 <= R*R up to a few ulp */
+/** squared reach of the neighbour search: a pair can only win when dR2 <= R*R up to a few ulp
+ * (search-constants.ts REACH_WIDENING) */
 export let reach2: f64 = 0;
 /** sqrt(reach2) widened again, for choosing cells (never for deciding a pair) */
 export let reach: f64 = 0;
@@ -35,8 +38,8 @@ export function configure(p: f64, radius: f64, ptMinGeV: f64, thresholdGeV: f64,
   pValue = p;
   pMode = p == -1 ? 0 : p == 0 ? 1 : p == 1 ? 2 : 3;
   invR2 = 1 / (radius * radius);
-  reach2 = radius * radius * (1 + 1e-9);
-  reach = Math.sqrt(reach2) * (1 + 1e-9) + 1e-12;
+  reach2 = radius * radius * (1 + REACH_WIDENING);
+  reach = Math.sqrt(reach2) * (1 + BOUND_WIDENING) + COORDINATE_WIDENING;
   ptMin = ptMinGeV;
   threshold = thresholdGeV;
   winnerTakeAll = wta != 0;
@@ -47,5 +50,5 @@ export function configure(p: f64, radius: f64, ptMinGeV: f64, thresholdGeV: f64,
   invPhiPitch = 1 / phiPitch;
   insideY = 0.5 * etaPitch;
   insidePhi = 0.5 * phiPitch;
-  insideNorm = Math.sqrt(insideY * insideY + insidePhi * insidePhi) * (1 + 1e-9);
+  insideNorm = Math.sqrt(insideY * insideY + insidePhi * insidePhi) * (1 + BOUND_WIDENING);
 }

@@ -39,3 +39,4 @@ export const REGION_OUT_MASS: i32 = 20;
 export const REGION_OUT_TOWER_COUNT: i32 = 21;
 export const REGION_OUT_TOWER_START: i32 = 22;
 export const REGION_OUT_TOWERS: i32 = 23;
+export const REGION_OUT_JET_INDEX: i32 = 24;

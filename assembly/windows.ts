@@ -17,6 +17,7 @@
 import { etaCentre, rowDriftY, rowDriftPhi, etaBins, phiBins, padCols, padStride, bitStep } from './layout';
 import { getF64 } from './layout';
 import { reach, etaMin, invEtaPitch, invPhiPitch } from './settings';
+import { BOUND_WIDENING, CELL_WIDENING } from './search-constants';
 
 export namespace window {
   /** rows firstRow..lastRow */
@@ -49,7 +50,7 @@ export function openWindow(y: f64, phi: f64, radius: f64, widen: f64): void {
   centreY = y;
   const u = (y - etaMin) * invEtaPitch - 0.5; // rows from the first row's centre
   centreV = phi * invPhiPitch - 0.5;
-  const ry = (radius + widen) * invEtaPitch * (1 + 1e-9) + 1e-9;
+  const ry = (radius + widen) * invEtaPitch * (1 + BOUND_WIDENING) + CELL_WIDENING;
   const r0 = ceil<f64>(u - ry);
   const r1 = floor<f64>(u + ry);
   if (r0 == r0 && r1 == r1) {
@@ -71,7 +72,7 @@ export function rowRuns(r: i32): bool {
 
 /** Sets the runs of the columns within `halfColumns` columns of the window's phi. */
 export function columnRuns(halfColumns: f64): bool {
-  const half = halfColumns * (1 + 1e-9) + 1e-9;
+  const half = halfColumns * (1 + BOUND_WIDENING) + CELL_WIDENING;
   const c0 = ceil<f64>(centreV - half);
   const c1 = floor<f64>(centreV + half);
   window.runBFirst = 0;
@@ -99,7 +100,7 @@ export function columnRuns(halfColumns: f64): bool {
 
 /** The padded columns within radius + widen of phi, as one run; false when it does not fit. */
 function boxColumns(phi: f64, radius: f64, widen: f64): bool {
-  const half = (radius + widen) * invPhiPitch * (1 + 1e-9) + 1e-9;
+  const half = (radius + widen) * invPhiPitch * (1 + BOUND_WIDENING) + CELL_WIDENING;
   const v = phi * invPhiPitch - 0.5;
   const c0 = ceil<f64>(v - half);
   const c1 = floor<f64>(v + half);
