@@ -1,17 +1,16 @@
 // The command line as users meet it: real subprocesses of the compiled CLI (npm test builds it).
 import { spawnSync } from 'node:child_process';
-import { mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync, existsSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { mkdirSync, readdirSync, readFileSync, writeFileSync, existsSync } from 'node:fs';
 import { join } from 'node:path';
-import { afterAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { makeGridTables, selectTowers } from '../host/clustering/grid.js';
 import { generateEvents } from '../host/generator/generate.js';
 import { clusterReference } from '../host/clustering/reference.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../host/types.js';
+import { tempDirForSuite } from './support/temp-dir.js';
 
 const cli = join(import.meta.dirname, '..', 'dist', 'host', 'cli', 'cli.js');
-const directory = mkdtempSync(join(tmpdir(), 'jetlag-cli-'));
-afterAll(() => rmSync(directory, { recursive: true, force: true }));
+const directory = tempDirForSuite('cli');
 
 function jetlag(...args: string[]) {
   const result = spawnSync(process.execPath, [cli, ...args], { cwd: directory, encoding: 'utf8' });

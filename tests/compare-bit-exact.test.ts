@@ -1,8 +1,6 @@
 // The bit-exact checker (clustering-spec.md section 7, bit-exact mode) and the repro file of
 // disagreeing events. Events come from the toy generator (invented data).
 
-import { mkdtempSync } from 'node:fs';
-import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { describeDifference, firstJetDifference, ulpDistance } from '../host/validate/bit-exact.js';
@@ -12,8 +10,9 @@ import { generateEvents } from '../host/generator/generate.js';
 import { ReferenceClusterer } from '../host/clustering/reference.js';
 import { ReproWriter } from '../host/output/repro-writer.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS, type JetSet } from '../host/types.js';
+import { tempDirForSuite } from './support/temp-dir.js';
 
-const dir = mkdtempSync(join(tmpdir(), 'jetlag-bit-exact-'));
+const dir = tempDirForSuite('bit-exact');
 const events = [...generateEvents(DEFAULT_GRID, { events: 6, pileup: 20, seed: 4 })];
 const reference = new ReferenceClusterer(DEFAULT_GRID, { ...DEFAULT_SETTINGS, threshold: 0.2 });
 const jets = events.map((e) => reference.cluster(e.towerIndex, e.towerEt));

@@ -3,15 +3,15 @@
 // and nothing else are read as jets, not as inconsistent records. Hand-made bytes in the
 // standard protobuf encoding (proto/jetlag.proto); the jets are invented.
 
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { openCandidate, type CandidateEvent } from '../host/input/candidate-reader.js';
 import { encodeJetsFileHeader } from '../host/formats/jets-codec.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../host/types.js';
+import { tempDirForSuite } from './support/temp-dir.js';
 
-const dir = mkdtempSync(join(tmpdir(), 'jetlag-minimal-jets-'));
+const dir = tempDirForSuite('minimal-jets');
 
 /** field `field` as packed doubles (wire type 2) */
 function packedDoubles(field: number, values: number[]): Buffer {

@@ -1,8 +1,7 @@
 // Reading candidate jets: formats told apart by content, streaming across chunk boundaries,
 // byte offsets in error texts. Jet values are invented.
 
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { Readable } from 'node:stream';
 import { gzipSync } from 'node:zlib';
@@ -12,8 +11,9 @@ import { openCandidate, type CandidateEvent } from '../host/input/candidate-read
 import { emptyJetSet } from '../host/formats/jets-codec.js';
 import { JetsFileWriter } from '../host/output/jets-writer.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../host/types.js';
+import { tempDirForSuite } from './support/temp-dir.js';
 
-const dir = mkdtempSync(join(tmpdir(), 'jetlag-candidate-'));
+const dir = tempDirForSuite('candidate');
 let fileNumber = 0;
 function file(text: string | Uint8Array): string {
   const path = join(dir, `${fileNumber++}.candidate`);

@@ -3,14 +3,13 @@
 // generator (invented data).
 
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { tempDirForSuite } from './support/temp-dir.js';
 
 const cli = join(import.meta.dirname, '..', 'dist', 'host', 'cli', 'cli.js');
-const directory = mkdtempSync(join(tmpdir(), 'jetlag-compare-cli-'));
-afterAll(() => rmSync(directory, { recursive: true, force: true }));
+const directory = tempDirForSuite('compare-cli');
 
 function jetlag(...args: string[]) {
   const result = spawnSync(process.execPath, [cli, ...args], { cwd: directory, encoding: 'utf8' });

@@ -3,12 +3,9 @@
 // same path, and broken or mismatched inputs are named without a crash. Events come from the
 // toy generator (invented data).
 
-import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { PassThrough } from 'node:stream';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { type CommandIo } from '../host/cli/args.js';
 import { InputError, UsageError } from '../host/errors.js';
 import { main as compareMain } from '../host/cli/commands/compare.js';
 import { generateEvents } from '../host/generator/generate.js';
@@ -18,8 +15,10 @@ import { EventFileWriter } from '../host/output/record-writer.js';
 import { ReferenceClusterer } from '../host/clustering/reference.js';
 import { deltaR } from '../host/validate/tolerance-compare.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS, type ClusterSettings, type Grid, type JetSet } from '../host/types.js';
+import { fakeIo } from './support/command-io.js';
+import { tempDirForSuite } from './support/temp-dir.js';
 
-const dir = mkdtempSync(join(tmpdir(), 'jetlag-compare-'));
+const dir = tempDirForSuite('compare');
 let fileNumber = 0;
 const temp = (name: string) => join(dir, `${fileNumber++}-${name}`);
 
@@ -30,23 +29,17 @@ let eventsPath = '';
 let referenceJets: JetSet[] = [];
 
 async function compare(...argv: string[]) {
-  const stdout = new PassThrough();
-  const stderr = new PassThrough();
-  const out: Buffer[] = [];
-  const err: Buffer[] = [];
-  stdout.on('data', (c) => out.push(c));
-  stderr.on('data', (c) => err.push(c));
-  const io: CommandIo = { stdout, stderr, stdin: new PassThrough(), isTty: false };
+  const fake = fakeIo();
   // as cli.ts does: bad usage and unreadable input are one line on stderr and exit 2
   let code: number;
   try {
-    code = await compareMain(argv, io);
+    code = await compareMain(argv, fake.io);
   } catch (error) {
     if (!(error instanceof InputError) && !(error instanceof UsageError)) throw error;
-    stderr.write(`jetlag: ${error.message}\n`);
+    fake.io.stderr.write(`jetlag: ${error.message}\n`);
     code = 2;
   }
-  return { code, stdout: Buffer.concat(out).toString('utf8'), stderr: Buffer.concat(err).toString('utf8') };
+  return { code, stdout: fake.stdout(), stderr: fake.stderr() };
 }
 
 /** compare with a JSON report, returned parsed */

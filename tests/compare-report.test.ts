@@ -100,7 +100,7 @@ describe('ValidationAccumulator', () => {
 
   it('puts each reference jet into its pt and |η| bin', () => {
     const report = accumulate();
-    const ptBin = (pt: number) => report.byReferencePt[PT_BIN_EDGES_GEV.findLastIndex((edge) => pt >= edge)];
+    const ptBin = (pt: number) => report.byReferencePt[PT_BIN_EDGES_GEV.filter((edge) => pt >= edge).length - 1];
     expect(ptBin(100).referenceJets).toBe(3);
     expect(ptBin(25).referenceJets).toBe(3);
     expect(ptBin(25).matched).toBe(2);

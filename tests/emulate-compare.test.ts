@@ -2,40 +2,30 @@
 // `jetlag compare` reads back, and the loss shows where it should. Events come from the toy
 // generator (invented data).
 
-import { mkdtempSync, readFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { PassThrough } from 'node:stream';
 import { beforeAll, describe, expect, it } from 'vitest';
-import type { CommandIo } from '../host/cli/args.js';
 import { main as clusterMain } from '../host/cli/commands/cluster.js';
 import { main as compareMain } from '../host/cli/commands/compare.js';
 import { main as generateMain } from '../host/cli/commands/generate.js';
+import { fakeIo } from './support/command-io.js';
+import { tempDirForSuite } from './support/temp-dir.js';
 
-const dir = mkdtempSync(join(tmpdir(), 'jetlag-emulate-'));
+const dir = tempDirForSuite('emulate');
 const eventsPath = join(dir, 'events.pb');
-
-function io(): { io: CommandIo; stderr: () => string } {
-  const err: Buffer[] = [];
-  const stderr = new PassThrough();
-  stderr.on('data', (c) => err.push(c));
-  const stdout = new PassThrough();
-  stdout.resume();
-  return { io: { stdout, stderr, stdin: new PassThrough(), isTty: false }, stderr: () => Buffer.concat(err).toString('utf8') };
-}
 
 async function emulateAndCompare(mode: string, format: 'jets' | 'jsonl') {
   const candidate = join(dir, `${mode.replace(':', '-')}.${format}`);
-  const clusterCode = await clusterMain([eventsPath, '--emulate', mode, '--threshold', '0.5', '--ptmin', '20', '--format', format, '--out', candidate, '--quiet'], io().io);
+  const clusterCode = await clusterMain([eventsPath, '--emulate', mode, '--threshold', '0.5', '--ptmin', '20', '--format', format, '--out', candidate, '--quiet'], fakeIo().io);
   expect(clusterCode).toBe(0);
   const json = join(dir, `${mode.replace(':', '-')}-${format}.json`);
   const extra = format === 'jsonl' ? ['--threshold', '0.5', '--ptmin', '20'] : [];
-  const code = await compareMain([eventsPath, candidate, '--json', json, ...extra], io().io);
+  const code = await compareMain([eventsPath, candidate, '--json', json, ...extra], fakeIo().io);
   return { code, report: JSON.parse(readFileSync(json, 'utf8')) };
 }
 
 beforeAll(async () => {
-  expect(await generateMain(['--events', '60', '--pileup', '60', '--seed', '3', '--out', eventsPath], io().io)).toBe(0);
+  expect(await generateMain(['--events', '60', '--pileup', '60', '--seed', '3', '--out', eventsPath], fakeIo().io)).toBe(0);
 });
 
 describe('cluster --emulate, then compare', () => {

@@ -8,8 +8,7 @@ import { generateEvents } from '../host/generator/generate.js';
 import { ReferenceClusterer } from '../host/clustering/reference.js';
 import { DEFAULT_TOLERANCE, ToleranceMatcher } from '../host/validate/tolerance-compare.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS, type ClusterSettings, type JetSet } from '../host/types.js';
-import { makeGridTables } from '../host/clustering/grid.js';
-import { clusterBruteForceF32 } from './support/brute-force-f32.js';
+import { clusterBruteForce, SINGLE_PRECISION } from './support/brute-force.js';
 import { firstJetDifference } from './support/jet-equality.js';
 import { seededRandom, smallEvent } from './support/small-events.js';
 
@@ -74,12 +73,11 @@ describe('single-precision emulation', () => {
   ] as const)('follows a single-precision brute force bit for bit (%s)', (_name, algorithm) => {
     const small: ClusterSettings = { ...DEFAULT_SETTINGS, ...algorithm, radius: 0.6 };
     const emulated = makeEmulatedClusterer(DEFAULT_GRID, small, 'f32');
-    const tables = makeGridTables(DEFAULT_GRID);
     const random = seededRandom(3);
     for (let n = 0; n < 150; n++) {
       const shape = { towers: 2 + (n % 14), ties: n % 3 === 0, seam: n % 5 === 1, window: 8 };
       const event = smallEvent(DEFAULT_GRID, shape, random);
-      const expected = clusterBruteForceF32(tables, event.towerIndex, event.towerEt, small);
+      const expected = clusterBruteForce(DEFAULT_GRID, event.towerIndex, event.towerEt, small, { round: SINGLE_PRECISION });
       expect(firstJetDifference(emulated.cluster(event.towerIndex, event.towerEt), expected)).toBeNull();
     }
   });

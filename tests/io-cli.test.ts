@@ -1,13 +1,12 @@
 // import and export as users meet them: subprocesses of the compiled CLI (npm test builds it).
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { afterAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
+import { tempDirForSuite } from './support/temp-dir.js';
 
 const cli = join(import.meta.dirname, '..', 'dist', 'host', 'cli', 'cli.js');
-const directory = mkdtempSync(join(tmpdir(), 'jetlag-io-cli-'));
-afterAll(() => rmSync(directory, { recursive: true, force: true }));
+const directory = tempDirForSuite('io-cli');
 
 function jetlag(args: string[], input?: Buffer | string) {
   const result = spawnSync(process.execPath, [cli, ...args], { cwd: directory, input });

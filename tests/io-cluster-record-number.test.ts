@@ -1,30 +1,22 @@
 // `jetlag cluster` names a record too broken to give its event number the way `jetlag run`
 // and `jetlag export` do: by its 0-based position among the event records, with its offset.
 
-import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { PassThrough } from 'node:stream';
 import { describe, expect, it } from 'vitest';
-import type { CommandIo } from '../host/cli/args.js';
 import { main as clusterMain } from '../host/cli/commands/cluster.js';
 import { main as exportMain } from '../host/cli/commands/export.js';
 import { EventFileWriter } from '../host/output/record-writer.js';
 import { DEFAULT_GRID } from '../host/types.js';
+import { fakeIo } from './support/command-io.js';
+import { tempDirForSuite } from './support/temp-dir.js';
 
-const dir = mkdtempSync(join(tmpdir(), 'jetlag-record-number-'));
+const dir = tempDirForSuite('record-number');
 
 async function runCommand(command: typeof clusterMain, argv: string[]) {
-  const stdout = new PassThrough();
-  const stderr = new PassThrough();
-  const err: Buffer[] = [];
-  stdout.resume();
-  stderr.on('data', (c) => err.push(c));
-  const stdin = new PassThrough();
-  stdin.end();
-  const io: CommandIo = { stdout, stderr, stdin, isTty: false };
-  const code = await command(argv, io);
-  return { code, stderr: Buffer.concat(err).toString('utf8') };
+  const fake = fakeIo();
+  const code = await command(argv, fake.io);
+  return { code, stderr: fake.stderr() };
 }
 
 /** three invented events; the second record's first byte becomes a key with wire type 7 */

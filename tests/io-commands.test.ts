@@ -1,9 +1,7 @@
-import { existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { PassThrough, Readable } from 'node:stream';
+import { Readable } from 'node:stream';
 import { describe, expect, it } from 'vitest';
-import { type CommandIo } from '../host/cli/args.js';
 import { UsageError } from '../host/errors.js';
 import { main as exportMain } from '../host/cli/commands/export.js';
 import { main as importMain } from '../host/cli/commands/import.js';
@@ -14,26 +12,15 @@ import { JetsFileWriter } from '../host/output/jets-writer.js';
 import { EventFileWriter } from '../host/output/record-writer.js';
 import { formatErrorLine, formatJetsLine } from '../host/formats/jets-jsonl.js';
 import type { JetSet } from '../host/types.js';
+import { fakeIo } from './support/command-io.js';
+import { tempDirForSuite } from './support/temp-dir.js';
 
-const dir = mkdtempSync(join(tmpdir(), 'jetlag-commands-'));
+const dir = tempDirForSuite('commands');
 let n = 0;
 const temp = (name: string) => join(dir, `${n++}-${name}`);
 
-function makeIo(stdinText = '') {
-  const stdout = new PassThrough();
-  const stderr = new PassThrough();
-  const out: Buffer[] = [];
-  const err: Buffer[] = [];
-  stdout.on('data', (c) => out.push(c));
-  stderr.on('data', (c) => err.push(c));
-  const stdin = new PassThrough();
-  stdin.end(stdinText);
-  const io: CommandIo = { stdout, stderr, stdin, isTty: false };
-  return { io, stdoutBytes: () => Buffer.concat(out), stdout: () => Buffer.concat(out).toString('utf8'), stderr: () => Buffer.concat(err).toString('utf8') };
-}
-
 async function run(command: typeof importMain, argv: string[], stdinText = '') {
-  const t = makeIo(stdinText);
+  const t = fakeIo({ stdin: stdinText });
   const code = await command(argv, t.io);
   return { code, stdout: t.stdout(), stdoutBytes: t.stdoutBytes(), stderr: t.stderr() };
 }

@@ -3,39 +3,31 @@
 // such an event is named on stderr and left out, and the CSV written reads back as the events
 // that were written, not as a file that breaks off or merges two events. Invented towers.
 
-import { mkdtempSync, readFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { PassThrough } from 'node:stream';
 import { describe, expect, it } from 'vitest';
-import type { CommandIo } from '../host/cli/args.js';
 import { main as exportMain } from '../host/cli/commands/export.js';
 import { parseCsvTowersText } from '../host/input/csv-towers.js';
 import { ReferenceClusterer } from '../host/clustering/reference.js';
 import { JetsFileWriter } from '../host/output/jets-writer.js';
 import { EventFileWriter } from '../host/output/record-writer.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../host/types.js';
+import { fakeIo } from './support/command-io.js';
+import { tempDirForSuite } from './support/temp-dir.js';
 
-const dir = mkdtempSync(join(tmpdir(), 'jetlag-export-order-'));
+const dir = tempDirForSuite('export-order');
 const ORDER = [5, 3, 3, 10];
 
 async function exportToCsv(path: string) {
   const out = `${path}.csv`;
-  const stderr = new PassThrough();
-  const err: Buffer[] = [];
-  stderr.on('data', (c) => err.push(c));
-  const stdin = new PassThrough();
-  stdin.end();
-  const stdout = new PassThrough();
-  stdout.resume();
-  const io: CommandIo = { stdout, stderr, stdin, isTty: false };
-  const code = await exportMain([path, '--format', 'csv', '--out', out], io);
-  return { code, csv: readFileSync(out, 'utf8'), stderr: Buffer.concat(err).toString('utf8') };
+  const fake = fakeIo();
+  const code = await exportMain([path, '--format', 'csv', '--out', out], fake.io);
+  return { code, csv: readFileSync(out, 'utf8'), stderr: fake.stderr() };
 }
 
 async function eventsFile(): Promise<string> {
   const path = join(dir, 'order.jetlag');
-  const writer = await EventFileWriter.open(path, { grid: DEFAULT_GRID, producer: 'test', label: 'invented' });
+  const writer = await EventFileWriter.open(path, { grid: DEFAULT_GRID, producer: 'test', label: 'invented' }, { force: true }); // made again by each test
   for (const [k, event] of ORDER.entries()) await writer.writeEvent({ event, towerIndex: Int32Array.of(100), towerEt: Float64Array.of(5 + k) });
   await writer.close();
   return path;

@@ -2,8 +2,6 @@
 // and writes the same bytes as the hand-written codec; wire-format rules (packed or unpacked
 // repeated fields, concatenated chunks, last value wins, unknown fields skipped) are those of
 // the protobuf encoding guide, https://protobuf.dev/programming-guides/encoding/ (from memory).
-import { mkdtempSync } from 'node:fs';
-import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { openRecordFile } from '../host/input/event-source.js';
@@ -15,6 +13,7 @@ import { loadJetlagSchema } from './support/proto-schema.js';
 import { RecordFramer } from '../host/input/record-reader.js';
 import type { JetSet } from '../host/types.js';
 import { seededRandom as makeRandom } from './support/small-events.js';
+import { tempDirForTest } from './support/temp-dir.js';
 
 const JetsRecord = loadJetlagSchema().lookupType('jetlag.JetsRecord');
 
@@ -104,7 +103,7 @@ describe('jets records', () => {
 
 describe('jets files', () => {
   it('write a header with the settings and records that openRecordFile reads back', async () => {
-    const path = join(mkdtempSync(join(tmpdir(), 'jetlag-jets-')), 'jets.pb');
+    const path = join(tempDirForTest('jets'), 'jets.pb');
     const grid = { etaMin: -2.5, etaMax: 2.5, etaBins: 50, phiBins: 64 };
     const settings = { p: -1, radius: 0.4, ptMin: 1, threshold: 0, recombination: 'e' as const, engine: 'reference' };
     const writer = await JetsFileWriter.open(path, grid, settings, { producer: 'jetlag 0.1.0 cluster' }, { gzip: true });

@@ -1,8 +1,7 @@
 // Outside references: the delimited form (varint length, then the message) and varints of at
 // most 10 bytes follow the protobuf encoding guide, https://protobuf.dev/programming-guides/encoding/;
 // gzip's magic bytes 1f 8b are RFC 1952 section 2.3.1 (both from memory).
-import { mkdtempSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { Readable } from 'node:stream';
 import { gzipSync } from 'node:zlib';
@@ -10,8 +9,9 @@ import { describe, expect, it } from 'vitest';
 import { InputError } from '../host/errors.js';
 import { readRecords, RecordFramer } from '../host/input/record-reader.js';
 import { delimit } from '../host/formats/wire.js';
+import { tempDirForSuite } from './support/temp-dir.js';
 
-const dir = mkdtempSync(join(tmpdir(), 'jetlag-records-'));
+const dir = tempDirForSuite('records');
 let fileCount = 0;
 function tempFile(bytes: Uint8Array, name = `f${fileCount++}.pb`): string {
   const path = join(dir, name);

@@ -1,13 +1,13 @@
-import { existsSync, mkdtempSync, readdirSync, readFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { existsSync, readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { Writable } from 'node:stream';
 import { gunzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
 import { RecordFramer } from '../host/input/record-reader.js';
 import { RecordFileWriter, TextFileWriter } from '../host/output/record-writer.js';
+import { tempDirForSuite } from './support/temp-dir.js';
 
-const dir = mkdtempSync(join(tmpdir(), 'jetlag-writers-'));
+const dir = tempDirForSuite('writers');
 
 function body(length: number, seed: number): Uint8Array {
   return Uint8Array.from({ length }, (_, k) => (seed + k * 13) & 0xff);

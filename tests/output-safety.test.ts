@@ -50,7 +50,7 @@ describe('an output that is not a regular file', () => {
     const received: Buffer[] = [];
     const reader = createReadStream(fifo);
     reader.on('data', (chunk) => received.push(chunk as Buffer));
-    const readerDone = new Promise((resolve) => reader.on('end', resolve));
+    const readerDone = new Promise<void>((resolve) => reader.on('end', () => resolve()));
     const out = await OutputFile.open(fifo);
     const bytes = new Uint8Array(300_000).map((_, k) => k % 251);
     const pending = out.write(bytes);

@@ -36,7 +36,7 @@ describe('the reference clusterer against the brute force', () => {
           const referenceSteps: ClusterStep[] = [];
           const bruteSteps: ClusterStep[] = [];
           const reference = clusterReference(tables, selected.towerIndex, selected.towerEt, settings, { history: referenceSteps });
-          const brute = clusterBruteForce(tables, selected.towerIndex, selected.towerEt, settings, { history: bruteSteps });
+          const brute = clusterBruteForce(DEFAULT_GRID, selected.towerIndex, selected.towerEt, settings, { history: bruteSteps });
           const where = `p=${c.p} R=${c.radius} ${c.recombination} shape ${JSON.stringify(shape)} repeat ${repeat}`;
           expect(referenceSteps, where).toEqual(bruteSteps);
           expect(firstJetDifference(reference, brute), where).toBeNull();
@@ -64,8 +64,8 @@ describe('measures that round to the same value (clustering-spec.md section 4)',
       const settings = settingsFor(p, radius, 'e');
       const exact: ClusterStep[] = [];
       const shortcut: ClusterStep[] = [];
-      clusterBruteForce(tables, selected.towerIndex, selected.towerEt, settings, { history: exact });
-      clusterBruteForce(tables, selected.towerIndex, selected.towerEt, settings, { history: shortcut, geometricShortcut: true });
+      clusterBruteForce(DEFAULT_GRID, selected.towerIndex, selected.towerEt, settings, { history: exact });
+      clusterBruteForce(DEFAULT_GRID, selected.towerIndex, selected.towerEt, settings, { history: shortcut, geometricShortcut: true });
       if (JSON.stringify(exact) !== JSON.stringify(shortcut)) failures.push(selected);
     }
     return failures;
@@ -81,7 +81,7 @@ describe('measures that round to the same value (clustering-spec.md section 4)',
         const referenceSteps: ClusterStep[] = [];
         const bruteSteps: ClusterStep[] = [];
         clusterReference(tables, event.towerIndex, event.towerEt, settings, { history: referenceSteps });
-        clusterBruteForce(tables, event.towerIndex, event.towerEt, settings, { history: bruteSteps });
+        clusterBruteForce(DEFAULT_GRID, event.towerIndex, event.towerEt, settings, { history: bruteSteps });
         expect(referenceSteps).toEqual(bruteSteps);
       }
     });

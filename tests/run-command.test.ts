@@ -1,25 +1,15 @@
 // jetlag run and jetlag merge as commands, in-process (workers from dist/).
 import { describe, expect, it } from 'vitest';
-import { mkdtempSync, readFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { PassThrough } from 'node:stream';
 import { parseArgs } from '../host/cli/args.js';
 import { UsageError } from '../host/errors.js';
 import { main as runMain, runOptionsFrom, spec as runSpec } from '../host/cli/commands/run.js';
 import { main as mergeMain } from '../host/cli/commands/merge.js';
 import { ProgressBar } from '../host/measure/progress.js';
+import { fakeIo } from './support/command-io.js';
 import { toyEvents, writeEventFile } from './support/run-files.js';
-
-function fakeIo(isTty = false) {
-  const stdout = new PassThrough();
-  const stderr = new PassThrough();
-  let out = '';
-  let err = '';
-  stdout.on('data', (chunk) => { out += chunk; });
-  stderr.on('data', (chunk) => { err += chunk; });
-  return { io: { stdout, stderr, stdin: new PassThrough(), isTty }, out: () => out, err: () => err };
-}
+import { tempDirForSuite } from './support/temp-dir.js';
 
 const options = (argv: string[]) => runOptionsFrom(parseArgs(runSpec, ['events.jl', ...argv]));
 
@@ -54,16 +44,16 @@ describe('jetlag run options', () => {
 });
 
 describe('jetlag run and merge', () => {
-  const dir = mkdtempSync(join(tmpdir(), 'jetlag-cmd-'));
+  const dir = tempDirForSuite('cmd');
   const file = writeEventFile(join(dir, 'toy.events'), toyEvents(60, 31, 5));
 
   it('print the latency table and write the JSON summary, with no progress bar off a terminal', async () => {
-    const { io, out, err } = fakeIo(false);
-    const code = await runMain([file.path, '--workers', '1', '--batch', '8', '--json', join(dir, 'all.json'), '--budget-us', '50000'], io);
+    const fake = fakeIo();
+    const code = await runMain([file.path, '--workers', '1', '--batch', '8', '--json', join(dir, 'all.json'), '--budget-us', '50000'], fake.io);
     expect(code).toBe(0);
-    expect(out()).toMatch(/p50\s+p90\s+p99\s+p99\.9\s+max/);
-    expect(out()).toContain('read 60 · ok 60 · invalid 0 · failed 0');
-    expect(err()).not.toContain('\r');
+    expect(fake.stdout()).toMatch(/p50\s+p90\s+p99\s+p99\.9\s+max/);
+    expect(fake.stdout()).toContain('read 60 · ok 60 · invalid 0 · failed 0');
+    expect(fake.stderr()).not.toContain('\r');
     const summary = JSON.parse(readFileSync(join(dir, 'all.json'), 'utf8'));
     expect(Object.keys(summary.latency.endToEnd)).toEqual(['count', 'p50_us', 'p90_us', 'p99_us', 'p999_us', 'max_us', 'mean_us']);
     expect(summary.machine.cores).toBeGreaterThan(0);
@@ -74,21 +64,20 @@ describe('jetlag run and merge', () => {
 
   it('merge two shard summaries into the counts of the whole file', async () => {
     for (const k of [0, 1]) {
-      const { io } = fakeIo();
-      expect(await runMain([file.path, '--workers', '1', '--batch', '8', '--shard', `${k}/2`, '--json', join(dir, `s${k}.json`), '-q'], io)).toBe(0);
+      expect(await runMain([file.path, '--workers', '1', '--batch', '8', '--shard', `${k}/2`, '--json', join(dir, `s${k}.json`), '-q'], fakeIo().io)).toBe(0);
     }
-    const { io, out } = fakeIo();
-    expect(await mergeMain([join(dir, 's0.json'), join(dir, 's1.json'), '--json', join(dir, 'merged.json')], io)).toBe(0);
+    const fake = fakeIo();
+    expect(await mergeMain([join(dir, 's0.json'), join(dir, 's1.json'), '--json', join(dir, 'merged.json')], fake.io)).toBe(0);
     const merged = JSON.parse(readFileSync(join(dir, 'merged.json'), 'utf8'));
     expect(merged.events).toEqual({ read: 60, ok: 60, invalid: 0, failed: 0 });
     expect(merged.shards).toEqual([{ index: 0, count: 2 }, { index: 1, count: 2 }]);
-    expect(out()).toContain('shards 0,1 of 2');
+    expect(fake.stdout()).toContain('shards 0,1 of 2');
   });
 
   it('refuse to merge a summary with itself, as bad usage naming the file', async () => {
-    const { io } = fakeIo();
-    const s0 = join(dir, 's0.json');
-    await expect(mergeMain([s0, s0], io)).rejects.toThrow(new UsageError(`merge: ${s0}: shard 0/2 is already in ${s0}`));
+    const s0 = join(dir, 'self-0.json');
+    expect(await runMain([file.path, '--workers', '1', '--batch', '8', '--shard', '0/2', '--json', s0, '-q'], fakeIo().io)).toBe(0);
+    await expect(mergeMain([s0, s0], fakeIo().io)).rejects.toThrow(new UsageError(`merge: ${s0}: shard 0/2 is already in ${s0}`));
   });
 });
 
@@ -99,10 +88,10 @@ describe('the progress bar', () => {
   });
 
   it('draws nothing when disabled', () => {
-    const { io, err } = fakeIo();
-    const bar = new ProgressBar(io.stderr, { eventsDone: () => 1, bytesDone: () => 1 }, 10, false);
+    const fake = fakeIo();
+    const bar = new ProgressBar(fake.io.stderr, { eventsDone: () => 1, bytesDone: () => 1 }, 10, false);
     bar.start();
     bar.stop();
-    expect(err()).toBe('');
+    expect(fake.stderr()).toBe('');
   });
 });

@@ -1,7 +1,6 @@
 // The streamed run with real worker threads (compiled worker from dist/: `npm run build:host`).
 import { afterEach, beforeAll, describe, expect, it } from 'vitest';
-import { mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { inputErrorOf, runEvents } from '../host/pipeline/run.js';
 import { BatchBuilder, BatchPool, type BatchOutcome } from '../host/pipeline/pool.js';
@@ -14,8 +13,9 @@ import { openRecordFile } from '../host/input/event-source.js';
 import { decodeJetsRecord } from '../host/formats/jets-codec.js';
 import { ReferenceClusterer } from '../host/clustering/reference.js';
 import { firstJetDifference } from '../host/validate/bit-exact.js';
+import { tempDirForSuite } from './support/temp-dir.js';
 
-const dir = mkdtempSync(join(tmpdir(), 'jetlag-run-'));
+const dir = tempDirForSuite('run');
 const events = toyEvents(120, 17, 5);
 const file = writeEventFile(join(dir, 'toy.events'), events);
 

@@ -1,16 +1,16 @@
 // jetlag run as a subprocess (compiled CLI from dist/: `npm run build:host`), stopped by SIGINT.
 import { describe, expect, it } from 'vitest';
 import { spawn } from 'node:child_process';
-import { mkdtempSync, readFileSync, readdirSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readFileSync, readdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { toyEvents, writeEventFile } from './support/run-files.js';
+import { tempDirForTest } from './support/temp-dir.js';
 
 const cli = join(__dirname, '..', 'dist', 'host', 'cli', 'cli.js');
 
 describe('jetlag run interrupted by SIGINT', () => {
   it('stops reading, drains the batches in flight and writes a summary marked partial whose counts add up', async () => {
-    const dir = mkdtempSync(join(tmpdir(), 'jetlag-sigint-'));
+    const dir = tempDirForTest('sigint');
     const file = writeEventFile(join(dir, 'toy.events'), toyEvents(150, 23, 5));
     const summaryPath = join(dir, 'summary.json');
     // 150 events due at 20 Hz take 7.5 s; the interrupt comes after 2 s (time enough to start on a busy machine)

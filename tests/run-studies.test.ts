@@ -1,12 +1,11 @@
 // --find-rate and --scan-workers: repeated runs over the same input (workers from dist/).
 import { describe, expect, it } from 'vitest';
-import { mkdtempSync } from 'node:fs';
-import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { findRate, runEvents, scanWorkers, type RunOptions } from '../host/pipeline/run.js';
 import { toyEvents, writeEventFile } from './support/run-files.js';
+import { tempDirForSuite } from './support/temp-dir.js';
 
-const dir = mkdtempSync(join(tmpdir(), 'jetlag-studies-'));
+const dir = tempDirForSuite('studies');
 const file = writeEventFile(join(dir, 'toy.events'), toyEvents(40, 41, 5));
 const options: RunOptions = { input: file.path, workers: 1, batch: 4, maxEvents: 20, check: { mode: 'none', fraction: 0, seed: 1 } };
 

@@ -6,6 +6,7 @@ import { formatReport } from '../host/measure/report.js';
 function configuration(shardIndex: number, shardCount: number): RunConfiguration {
   return {
     file: 'events.jl',
+    input: { label: 'invented test events', records: null },
     engine: 'reference',
     grid: { etaMin: -2.5, etaMax: 2.5, etaBins: 50, phiBins: 64 },
     settings: { p: -1, radius: 0.4, ptMin: 0, threshold: 0, recombination: 'e' },
