@@ -29,7 +29,7 @@ describe('jetlag import and export on the command line', () => {
     writeFileSync(join(directory, 'no-header.csv'), '0,1,2,3\n');
     const result = jetlag(['import', '--csv', 'no-header.csv', '--out', 'x.pb']);
     expect(result.code).toBe(2);
-    expect(result.stderr).toBe('jetlag import: no-header.csv, byte 0: missing header: expected "event,ieta,iphi,et", got "0,1,2,3"\n');
+    expect(result.stderr).toBe('jetlag import: no-header.csv, line 1, byte 0: missing header: expected "event,ieta,iphi,et", got "0,1,2,3"\n');
   });
 
   it('a truncated event file exits 2 with one error line after the events before it', () => {
@@ -41,7 +41,7 @@ describe('jetlag import and export on the command line', () => {
     expect(result.code).toBe(2);
     expect(result.stdout.toString('utf8')).toBe('event,ieta,iphi,et\n0,3,4,1.25\n0,3,5,0.5\n');
     expect(result.stderr.trim().split('\n')).toHaveLength(1);
-    expect(result.stderr).toMatch(/^jetlag export: cut\.pb, byte \d+: truncated record: length \d+ but only \d+ bytes follow; 1 record before it written to <stdout>\n$/);
+    expect(result.stderr).toMatch(/^jetlag export: cut\.pb, event 1, byte \d+: truncated record: length \d+ but only \d+ bytes follow; 1 record before it written to <stdout>\n$/);
   });
 
   it('readRecords reads stdin for -', () => {

@@ -87,7 +87,7 @@ describe('jetlag import', () => {
     const out = temp('events.pb');
     const r = await run(importMain, ['--csv', csv, '--out', out, '--quiet']);
     expect(r.code).toBe(2);
-    expect(r.stderr).toBe(`jetlag import: ${csv}, byte 43: event number 1 after 2: numbers must not decrease (the rest of the file is unreadable); 3 events before it written to ${out}\n`);
+    expect(r.stderr).toBe(`jetlag import: ${csv}, line 5, byte 43: event number 1 after 2: numbers must not decrease (the rest of the file is unreadable); 3 events before it written to ${out}\n`);
     expect((await recordsOf(out)).events.map((e) => e.event)).toEqual([0, 1, 2]);
   });
 
@@ -176,7 +176,7 @@ describe('jetlag export of events', () => {
     const csv = temp('small-grid.csv');
     writeFileSync(csv, 'event,ieta,iphi,et\n0,3,7,1\n0,4,0,1\n');
     const r = await run(exportMain, [csv, '--format', 'jsonl', '--eta-bins', '4', '--phi-bins', '8', '-q']);
-    expect(r.stdout).toBe('{"event":0,"error":"tower (ieta 4, iphi 0) is outside the grid of 4 x 8 towers"}\n');
+    expect(r.stdout).toMatch(/^\{"event":0,"error":"tower \(ieta 4, iphi 0\) is outside the grid of 4 x 8 towers \(the grid assumed: eta \[-2\.5, 2\.5\) in 4 bins, phi in 8 bins, given; .*\(line 3\)"\}\n$/);
   });
 
   it('stops at a truncated event file after writing the events before it, exit 2', async () => {
@@ -190,7 +190,7 @@ describe('jetlag export of events', () => {
     const r = await run(exportMain, [cut, '-q']);
     expect(r.code).toBe(2);
     expect(r.stdout).toBe(CANONICAL.split('\n').slice(0, 6).join('\n') + '\n');
-    expect(r.stderr).toMatch(new RegExp(`^jetlag export: ${cut.replace(/[.]/g, '\\.')}, byte \\d+: truncated record: length \\d+ but only \\d+ bytes follow; 3 records before it written to <stdout>\\n$`));
+    expect(r.stderr).toMatch(new RegExp(`^jetlag export: ${cut.replace(/[.]/g, '\\.')}, event 3, byte \\d+: truncated record: length \\d+ but only \\d+ bytes follow; 3 records before it written to <stdout>\\n$`));
   });
 
   it('reports a garbage record inside an event file and keeps the events before and after it', async () => {

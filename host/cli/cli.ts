@@ -6,7 +6,7 @@
 import { pathToFileURL } from 'node:url';
 import { realpathSync } from 'node:fs';
 import { formatHelp, parseArgs, type CommandIo, type CommandMain, type CommandSpec } from './args.js';
-import { InputError, UsageError } from '../errors.js';
+import { InputError, OutputError, UsageError } from '../errors.js';
 import { VERSION } from '../version.js';
 
 interface CommandEntry {
@@ -69,27 +69,34 @@ export async function runCli(argv: string[], io: CommandIo): Promise<number> {
     }
     return await command.main(rest, io);
   } catch (error) {
-    return reportError(error, io);
+    return reportError(error, io, name);
   }
 }
 
-export function reportError(error: unknown, io: CommandIo): number {
+/**
+ * One line on stderr for an error that ended a command, `jetlag COMMAND: ...`; returns the
+ * exit code. Usage errors already start with the command's name.
+ */
+export function reportError(error: unknown, io: CommandIo, command?: string): number {
+  const lead = command === undefined ? 'jetlag:' : `jetlag ${command}:`;
+  const oneLine = (text: string) => text.split(/\r?\n/).join(' | ');
   if (error instanceof UsageError) {
-    io.stderr.write(`jetlag ${error.message}\n`);
+    const named = command !== undefined && !error.message.startsWith(`${command}:`) ? `${command}: ${error.message}` : error.message;
+    io.stderr.write(`jetlag ${oneLine(named)}\n`);
     return 2;
   }
-  if (error instanceof InputError) {
-    io.stderr.write(`jetlag: ${error.message}\n`);
+  if (error instanceof InputError || error instanceof OutputError) {
+    io.stderr.write(`${lead} ${oneLine(error.message)}\n`);
     return 2;
   }
   const code = (error as NodeJS.ErrnoException)?.code;
   if (code === 'ENOENT' || code === 'EACCES' || code === 'EISDIR') {
-    io.stderr.write(`jetlag: ${(error as Error).message}\n`);
+    io.stderr.write(`${lead} ${oneLine((error as Error).message)}\n`);
     return 2;
   }
   if (code === 'EPIPE') return 0; // a closed stdout (e.g. `| head`) is not a failure of ours
   const detail = process.env.JETLAG_DEBUG ? (error as Error)?.stack : (error as Error)?.message;
-  io.stderr.write(`jetlag: internal error: ${String(detail ?? error).split('\n').join(' | ')}\n`);
+  io.stderr.write(`${lead} internal error: ${oneLine(String(detail ?? error))}\n`);
   return 2;
 }
 
