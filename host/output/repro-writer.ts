@@ -19,6 +19,7 @@
 import { EventFileWriter } from './record-writer.js';
 import type { EventRecordFields } from '../formats/event-codec.js';
 import type { Grid } from '../types.js';
+import { producerName } from '../version.js';
 
 export interface ReproOptions {
   grid: Grid;
@@ -38,7 +39,7 @@ export class ReproWriter {
   static async open(path: string, options: ReproOptions): Promise<ReproWriter> {
     const label = `events on which ${options.engine ?? 'the engine'} and the reference disagree` +
       (options.source !== undefined ? `, from ${options.source}` : '');
-    const writer = await EventFileWriter.open(path, { grid: options.grid, producer: 'jetlag 0.1.0 run --check', label }, { gzip: Boolean(options.gzip) });
+    const writer = await EventFileWriter.open(path, { grid: options.grid, producer: producerName('run --check'), label }, { gzip: Boolean(options.gzip) });
     return new ReproWriter(writer);
   }
 

@@ -21,6 +21,7 @@ import { describeDifference } from '../validate/bit-exact.js';
 import { encodeJetsFileHeader } from '../formats/jets-codec.js';
 import { ReproWriter } from '../output/repro-writer.js';
 import { OutputFile } from '../output/record-writer.js';
+import { producerName } from '../version.js';
 
 /**
  * Default events per batch, chosen with bench/pool.bench.ts on this 2-core machine (pileup-200
@@ -141,7 +142,7 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const jetsFile = options.out ? await OutputFile.open(options.out) : null;
   let jetsPending: Promise<void> | undefined;
   if (jetsFile) {
-    jetsPending = jetsFile.write(encodeJetsFileHeader(grid, { ...settings, engine: engineName }, { producer: 'jetlag 0.1.0 run', label: source.header.label }));
+    jetsPending = jetsFile.write(encodeJetsFileHeader(grid, { ...settings, engine: engineName }, { producer: producerName('run'), label: source.header.label }));
   }
 
   const repro = options.repro ? await ReproWriter.open(options.repro, { grid, source: label, engine: options.engine === 'reference' ? 'reference' : 'wasm' }) : null;

@@ -23,6 +23,7 @@ import { firstJetDifference, type JetDifference } from '../validate/bit-exact.js
 import type { ClusterSettings, Clusterer, Grid, JetSet } from '../types.js';
 import { batchEventJets, WasmClusterer, type BatchJets } from '../clustering/engine.js';
 import { encodeDelimitedJetsRecord } from '../formats/jets-codec.js';
+import { hashToUnit } from '../random.js';
 
 export const STAGE_COUNT = 5; // decode, bin, cluster, check, encode (summary.ts STAGES)
 export const STATUS_OK = 0;
@@ -99,12 +100,8 @@ export function batchViews(buffer: ArrayBuffer, count: number, dataStart: number
 export function inCheckSample(event: number, fraction: number, seed: number): boolean {
   if (fraction >= 1) return true;
   if (fraction <= 0) return false;
-  // murmur3's 32-bit finaliser over both halves of the event number (from memory)
-  let h = (seed ^ Math.imul(event >>> 0, 0x9e3779b1) ^ Math.imul(Math.floor(event / 4294967296), 0x85ebca6b)) >>> 0;
-  h ^= h >>> 16; h = Math.imul(h, 0x85ebca6b);
-  h ^= h >>> 13; h = Math.imul(h, 0xc2b2ae35);
-  h ^= h >>> 16;
-  return (h >>> 0) / 4294967296 < fraction;
+  // both halves of the event number, hashed with the shared generator's mixer
+  return hashToUnit(seed ^ Math.imul(event >>> 0, 0x9e3779b1) ^ Math.imul(Math.floor(event / 4294967296), 0x85ebca6b)) < fraction;
 }
 
 // ---- test-only switches (environment): plant faults to show the host copes -----------------

@@ -20,6 +20,7 @@ import { JetsFileWriter } from '../../output/jets-writer.js';
 import { formatErrorLine, formatJetsLine } from '../../formats/jets-jsonl.js';
 import { DEFAULT_MAX_RECORD_BYTES } from '../../input/record-reader.js';
 import { TextFileWriter } from '../../output/record-writer.js';
+import { producerName } from '../../version.js';
 
 export const spec: CommandSpec = {
   name: 'cluster',
@@ -71,7 +72,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
 
   const jetsFile = format === 'jets'
     ? await JetsFileWriter.open(out, grid, { ...settings, engine: engineName },
-      { producer: 'jetlag 0.1.0 cluster', label: (args.values.label as string | undefined) ?? `jets of ${source.label}` },
+      { producer: producerName('cluster'), label: (args.values.label as string | undefined) ?? `jets of ${source.label}` },
       { gzip: Boolean(args.values.gzip), stdout: io.stdout })
     : null;
   const lines = format === 'jsonl' ? await TextFileWriter.open(out, { stdout: io.stdout }) : null;

@@ -14,6 +14,7 @@ import { generateEvents } from '../../generator/generate.js';
 import { MAX_PILEUP } from './generate.js';
 import { formatReport } from '../../measure/report.js';
 import { runEvents } from '../../pipeline/run.js';
+import { producerName } from '../../version.js';
 
 export const spec: CommandSpec = {
   name: 'demo',
@@ -46,7 +47,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     io.stdout.write(`jetlag demo: ${events} invented events (toy generator, fictional Halden ring scenario), pileup ${pileup}\n`);
     const writer = await EventFileWriter.open(file, {
       grid: DEFAULT_GRID,
-      producer: 'jetlag 0.1.0 demo',
+      producer: producerName('demo'),
       label: `invented demo events (Halden ring toy): pileup ${pileup}, seed 1, ${events} events`,
     });
     for (const event of generateEvents(DEFAULT_GRID, { events, pileup, seed: 1 })) {

@@ -5,6 +5,7 @@ import { UsageError } from '../../errors.js';
 import { GRID_OPTIONS, gridFrom } from '../common-options.js';
 import { generateEvents } from '../../generator/generate.js';
 import { EventFileWriter } from '../../output/record-writer.js';
+import { producerName } from '../../version.js';
 
 /** largest --pileup and --hard-jets accepted (see main) */
 export const MAX_PILEUP = 100_000;
@@ -47,7 +48,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   const raw = Boolean(args.values.raw);
   const label = (args.values.label as string | undefined) ??
     `invented demo events (Halden ring toy): pileup ${pileup}, seed ${seed}, ${events} events${raw ? ', raw deposits' : ''}`;
-  const writer = await EventFileWriter.open(out, { grid, producer: 'jetlag 0.1.0 generate', label }, { gzip: Boolean(args.values.gzip) });
+  const writer = await EventFileWriter.open(out, { grid, producer: producerName('generate'), label }, { gzip: Boolean(args.values.gzip) });
   try {
     for (const event of generateEvents(grid, { events, pileup, seed, maxHardJets, raw })) {
       const pending = raw

@@ -9,6 +9,7 @@ import { InputError, UsageError } from '../../errors.js';
 import { GRID_OPTIONS, gridFrom } from '../common-options.js';
 import { readCsvTowers } from '../../input/csv-towers.js';
 import { EventFileWriter } from '../../output/record-writer.js';
+import { producerName } from '../../version.js';
 
 export const spec: CommandSpec = {
   name: 'import',
@@ -41,7 +42,7 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
 
   const writer = await EventFileWriter.open(
     out,
-    { grid, producer: 'jetlag 0.1.0 import', label: (args.values.label as string | undefined) ?? '' },
+    { grid, producer: producerName('import'), label: (args.values.label as string | undefined) ?? '' },
     { gzip: args.values.gzip === true, stdout: io.stdout },
   );
   let events = 0;
