@@ -1,8 +1,9 @@
-// The engine against a plain native build of the same published method (bench/native-baseline/
-// tiled-heap.c: R-wide tiles, exact neighbours, a binary heap; gcc -O3 -march=native), on the
-// same invented events (tests/support/random-events.ts), batch for batch in turn. The machine's
-// speed wanders by up to 1.6x over a minute, so the figure that counts is the median of the
-// paired ratios engine/native; absolute medians are printed beside it.
+// The engine against a plain native build of the same published method (bench/native-yardstick/
+// nearest-neighbour-blocks.c: blocks a little wider than R, exact neighbours, a priority queue of
+// candidates; gcc -O3 -march=native), on the same invented events (tests/support/random-events.ts),
+// batch for batch in turn. The machine's speed wanders by up to 1.6x over a minute, so the figure
+// that counts is the median of the paired ratios engine/native; absolute medians are printed
+// beside it.
 //
 //   npm run bench:native     (builds first; needs gcc)
 //   node dist/bench/native-pair.bench.js [--rounds 100] [--events 24]
@@ -40,11 +41,11 @@ const CONFIGS = [
 
 const here = dirname(fileURLToPath(import.meta.url));
 const root = join(here, '..', '..');
-const workDir = join(root, 'build', 'native-baseline');
+const workDir = join(root, 'build', 'native-yardstick');
 mkdirSync(workDir, { recursive: true });
-const binary = join(workDir, 'tiled-heap');
+const binary = join(workDir, 'nearest-neighbour-blocks');
 try {
-  execFileSync('gcc', ['-O3', '-march=native', '-o', binary, join(root, 'bench', 'native-baseline', 'tiled-heap.c'), '-lm'], { stdio: 'inherit' });
+  execFileSync('gcc', ['-O3', '-march=native', '-o', binary, join(root, 'bench', 'native-yardstick', 'nearest-neighbour-blocks.c'), '-lm'], { stdio: 'inherit' });
 } catch (error) {
   console.error(`native-pair: could not build the native baseline with gcc (${(error as Error).message})`);
   process.exit(1);

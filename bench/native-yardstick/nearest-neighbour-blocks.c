@@ -1,29 +1,30 @@
 /*
- * A plain native build of the tiled nearest-neighbour generalised-kt method
- * (arXiv:hep-ph/0512210), as the yardstick for the engine's speed: R-wide tiles, exact
- * neighbours under the key of clustering-spec.md section 4, an indexed binary heap. It is not
- * part of jetlag (no product code or test uses it); bench/native-pair.bench.ts builds it with
- * gcc and times it against the engine, batch for batch, on the same invented events.
+ * A plain native build of the nearest-neighbour generalised-kt method with a coarse grid of
+ * blocks (arXiv:hep-ph/0512210), as the yardstick for the engine's speed: blocks a little wider
+ * than R, exact neighbours under the key of clustering-spec.md section 4, a binary priority
+ * queue of candidates. It is not part of jetlag (no product code or test uses it);
+ * bench/native-pair.bench.ts builds it with gcc and times it against the engine, batch for
+ * batch, on the same invented events.
  *
- *   gcc -O3 -march=native -o tiled-heap tiled-heap.c -lm
- *   ./tiled-heap check FILE p   prints "event pt y phi towerCount" per final jet
- *   ./tiled-heap serve FILE p   stdin: "run FIRST COUNT ROUNDS" -> median over rounds of the
- *                               mean ns per event; "quit" ends
+ *   gcc -O3 -march=native -o nearest-neighbour-blocks nearest-neighbour-blocks.c -lm
+ *   ./nearest-neighbour-blocks check FILE p   prints "event pt y phi towerCount" per final jet
+ *   ./nearest-neighbour-blocks serve FILE p   stdin: "run FIRST COUNT ROUNDS" -> median over
+ *                                             rounds of the mean ns per event; "quit" ends
  *   FILE: u32 eventCount, then per event u32 n, i32 flatIndex[n], f64 et[n] (little endian)
  *
  * Default grid and R = 0.4 only. log, atan2, sin, cos, sinh and cosh are the C library's, not
  * V8's, so jets agree with the engine's only to the last bits (for p = 0 and 1 on a grid, exact
  * distance ties then flip some later choices); for timing that does not matter.
  *
- * Method: the (y, phi) plane is cut into tiles a little wider than R (phi wraps around; for the
- * default grid: 12 rows of 0.4167 in y times 15 columns of 0.4189 in phi); every tile keeps an
+ * Method: the (y, phi) plane is cut into blocks a little wider than R (phi wraps around; for the
+ * default grid: 12 rows of 0.4167 in y times 15 columns of 0.4189 in phi); every block keeps an
  * array of its live jets (removal swaps in the last one). Each jet keeps its nearest neighbour
- * under the exact key ((w_i * dR2) * invR2, min(i,j), max(i,j)), searched in its own tile and the
- * 8 around it (pairs with dR2 > R*R*(1+1e-9) are ignored). Its candidate is the smaller of its
- * beam (w_i, i, BEAM) and its pair (d_{i,nn}, min, max); an indexed binary min-heap over the
- * candidates gives the next step. After a step, the jets in the 9 tiles around the merged jets
- * whose neighbour was one of them search again; the jets around the new jet take it when
- * strictly nearer by their own key.
+ * under the exact key ((w_i * dR2) * invR2, min(i,j), max(i,j)), searched in its own block and
+ * the 8 around it (pairs with dR2 > R*R*(1+1e-9) are ignored). Its candidate is the smaller of
+ * its beam (w_i, i, BEAM) and its pair (d_{i,nearest}, min, max); a binary priority queue over
+ * the candidates, indexed by jet, gives the next step. After a step, the jets in the 9 blocks
+ * around the merged jets whose nearest neighbour was one of them search again; the jets around
+ * the new jet take it when strictly nearer by their own key.
  */
 #define _POSIX_C_SOURCE 200809L
 /* the spec fixes every rounding: no fused multiply-add contraction (gcc contracts by default) */
@@ -56,52 +57,53 @@ static double exponentP;   /* p of the generalised kt */
 static double invR2;       /* 1 / (R * R) */
 static double reachR2;     /* R * R * (1 + 1e-9): farther pairs always lose to a beam */
 
-/* ---------------------------------------------------------------- tiles */
-#define MAX_TILES 4096
-static int tileRows, tileCols, tileCount;
-static double tileYMin, invTileHeight, invTileWidth;
-static int *tileJets;                       /* tile t's live jets: tileJets[t * GRID_TOWERS + k] */
-static int tileSize[MAX_TILES];             /* number of live jets in the tile */
-static int tileAround[MAX_TILES][9];        /* the tile itself and its neighbours */
-static int tileAroundCount[MAX_TILES];
-static int tileForward[MAX_TILES][4];       /* half of the neighbours: each tile pair once */
-static int tileForwardCount[MAX_TILES];
-static int tileMark[MAX_TILES];             /* visit stamp to merge neighbourhoods */
-static int tileStamp;
+/* ---------------------------------------------------------------- blocks */
+#define MAX_BLOCKS 4096
+static int blockRows, blockCols, blockCount;
+static double blockYMin, invBlockHeight, invBlockWidth;
+static int *blockMembers;                /* block t's live jets: blockMembers[t * GRID_TOWERS + k] */
+static int blockLive[MAX_BLOCKS];        /* number of live jets in the block */
+static int blocksAround[MAX_BLOCKS][9];  /* the block itself and its neighbours */
+static int blocksAroundCount[MAX_BLOCKS];
+static int laterBlocks[MAX_BLOCKS][4];   /* the neighbours after it: each pair of blocks once */
+static int laterBlocksCount[MAX_BLOCKS];
+static int blockSeenInStep[MAX_BLOCKS];  /* visit stamp to merge neighbourhoods */
+static int stepNumber;
 
 /* ---------------------------------------------------------------- jets */
 /* what the neighbour search touches, one record (64 bytes) per jet */
 typedef struct {
     double y, phi, weight;
-    double nnKey;            /* (w_i * dR2) * invR2 to nn(i), +inf if none */
-    double nnDR2;            /* dR2 to nn(i) */
-    int nn;                  /* NO_JET if no jet within reach */
-    int slot;                /* position in its tile's array */
-    int tile;
+    double nearestKey;       /* (w_i * dR2) * invR2 to the nearest, +inf if none */
+    double nearestDR2;       /* dR2 to the nearest */
+    int nearest;             /* NO_JET if no jet within reach */
+    int position;            /* position in its block's array */
+    int block;
     int pad[3];              /* to 64 bytes */
-} SearchJet;
+} JetNeighbourRecord;
 
 /* what only recombination and output touch */
 typedef struct {
     double px, py, pz, e, kt2;
     int towers;
     int pad;
-} JetMomentum;
+} JetFourVector;
 
-static SearchJet jet[MAX_JETS];
-static JetMomentum mom[MAX_JETS];
+static JetNeighbourRecord record[MAX_JETS];
+static JetFourVector fourVector[MAX_JETS];
 
-/* ---------------------------------------------------------------- indexed min-heap of candidates */
-/* candidate of a jet: (measure, lower, upper) in the order of spec section 4 step 1 */
+/* ---------------------------------------------------------------- candidate queue */
+/* a binary heap of the candidates, indexed by jet (queuePosition); the candidate of a jet:
+   (measure, lower, upper) in the order of spec section 4 step 1 */
 typedef struct {
     double measure;
     int lower, upper;
     int owner;               /* the jet whose candidate this is */
 } Candidate;
 
-static Candidate heap[MAX_JETS];
-static int heapPos[MAX_JETS];
-static int heapSize;
+static Candidate queue[MAX_JETS];
+static int queuePosition[MAX_JETS];
+static int queueSize;
 
 static inline int candidateLess(const Candidate *x, const Candidate *y)
 {
@@ -110,55 +112,55 @@ static inline int candidateLess(const Candidate *x, const Candidate *y)
     return x->upper < y->upper;
 }
 
-static void heapSiftUp(int pos)
+static void queueRaise(int pos)
 {
-    Candidate c = heap[pos];
+    Candidate c = queue[pos];
     while (pos > 0) {
         int parent = (pos - 1) >> 1;
-        if (!candidateLess(&c, &heap[parent])) break;
-        heap[pos] = heap[parent];
-        heapPos[heap[pos].owner] = pos;
+        if (!candidateLess(&c, &queue[parent])) break;
+        queue[pos] = queue[parent];
+        queuePosition[queue[pos].owner] = pos;
         pos = parent;
     }
-    heap[pos] = c;
-    heapPos[c.owner] = pos;
+    queue[pos] = c;
+    queuePosition[c.owner] = pos;
 }
 
-static void heapSiftDown(int pos)
+static void queueLower(int pos)
 {
-    Candidate c = heap[pos];
+    Candidate c = queue[pos];
     for (;;) {
         int child = 2 * pos + 1;
-        if (child >= heapSize) break;
-        if (child + 1 < heapSize && candidateLess(&heap[child + 1], &heap[child])) child++;
-        if (!candidateLess(&heap[child], &c)) break;
-        heap[pos] = heap[child];
-        heapPos[heap[pos].owner] = pos;
+        if (child >= queueSize) break;
+        if (child + 1 < queueSize && candidateLess(&queue[child + 1], &queue[child])) child++;
+        if (!candidateLess(&queue[child], &c)) break;
+        queue[pos] = queue[child];
+        queuePosition[queue[pos].owner] = pos;
         pos = child;
     }
-    heap[pos] = c;
-    heapPos[c.owner] = pos;
+    queue[pos] = c;
+    queuePosition[c.owner] = pos;
 }
 
 /* put entry pos back in order after its key changed */
-static inline void heapRestore(int pos)
+static inline void queueReorder(int pos)
 {
-    if (pos > 0 && candidateLess(&heap[pos], &heap[(pos - 1) >> 1])) heapSiftUp(pos);
-    else heapSiftDown(pos);
+    if (pos > 0 && candidateLess(&queue[pos], &queue[(pos - 1) >> 1])) queueRaise(pos);
+    else queueLower(pos);
 }
 
-static void heapRemove(int owner)
+static void queueRemove(int owner)
 {
-    int pos = heapPos[owner];
-    heapSize--;
-    if (pos == heapSize) return;
-    heap[pos] = heap[heapSize];
-    heapPos[heap[pos].owner] = pos;
-    heapRestore(pos);
+    int pos = queuePosition[owner];
+    queueSize--;
+    if (pos == queueSize) return;
+    queue[pos] = queue[queueSize];
+    queuePosition[queue[pos].owner] = pos;
+    queueReorder(pos);
 }
 
 /* ---------------------------------------------------------------- geometry */
-static inline double pairDR2(const SearchJet *a, const SearchJet *b)
+static inline double pairDR2(const JetNeighbourRecord *a, const JetNeighbourRecord *b)
 {
     double dphi = fabs(a->phi - b->phi);
     if (dphi > PI_VALUE) dphi = 2 * PI_VALUE - dphi;
@@ -174,33 +176,33 @@ static inline double weightOf(double kt2)
     return pow(kt2, exponentP);
 }
 
-static inline int tileOf(double y, double phi)
+static inline int blockOf(double y, double phi)
 {
-    int row = (int)floor((y - tileYMin) * invTileHeight);
-    int col = (int)floor(phi * invTileWidth);
+    int row = (int)floor((y - blockYMin) * invBlockHeight);
+    int col = (int)floor(phi * invBlockWidth);
     if (row < 0) row = 0;
-    if (row >= tileRows) row = tileRows - 1;
+    if (row >= blockRows) row = blockRows - 1;
     if (col < 0) col = 0;
-    if (col >= tileCols) col = tileCols - 1;
-    return row * tileCols + col;
+    if (col >= blockCols) col = blockCols - 1;
+    return row * blockCols + col;
 }
 
-static inline void tileInsert(int i)
+static inline void blockAdd(int i)
 {
-    SearchJet *J = &jet[i];
-    int t = tileOf(J->y, J->phi);
-    J->tile = t;
-    J->slot = tileSize[t]++;
-    tileJets[t * GRID_TOWERS + J->slot] = i;
+    JetNeighbourRecord *J = &record[i];
+    int t = blockOf(J->y, J->phi);
+    J->block = t;
+    J->position = blockLive[t]++;
+    blockMembers[t * GRID_TOWERS + J->position] = i;
 }
 
-static inline void tileRemove(int i)
+static inline void blockDrop(int i)
 {
-    SearchJet *J = &jet[i];
-    int *members = tileJets + J->tile * GRID_TOWERS;
-    int last = members[--tileSize[J->tile]];
-    members[J->slot] = last;
-    jet[last].slot = J->slot;
+    JetNeighbourRecord *J = &record[i];
+    int *members = blockMembers + J->block * GRID_TOWERS;
+    int last = members[--blockLive[J->block]];
+    members[J->position] = last;
+    record[last].position = J->position;
 }
 
 /*
@@ -208,48 +210,48 @@ static inline void tileRemove(int i)
  * for a fixed i, equal keys are decided by the smaller j in all three cases (both below i, both
  * above i, one on each side), so a tie goes to the smaller j.
  */
-static inline void offerNeighbour(SearchJet *I, int j, double dR2)
+static inline void offerNearest(JetNeighbourRecord *I, int j, double dR2)
 {
     double key = (I->weight * dR2) * invR2;
-    if (key < I->nnKey || (key == I->nnKey && j < I->nn)) {
-        I->nnKey = key;
-        I->nn = j;
-        I->nnDR2 = dR2;
+    if (key < I->nearestKey || (key == I->nearestKey && j < I->nearest)) {
+        I->nearestKey = key;
+        I->nearest = j;
+        I->nearestDR2 = dR2;
     }
 }
 
-/* full nn search of jet i over its 9 tiles */
-static void searchNeighbour(int i)
+/* full nearest-neighbour search of jet i over its 9 blocks */
+static void findNearest(int i)
 {
-    SearchJet *I = &jet[i];
-    I->nn = NO_JET;
-    I->nnKey = INFINITY;
-    int t = I->tile;
-    for (int a = 0; a < tileAroundCount[t]; a++) {
-        int u = tileAround[t][a];
-        const int *members = tileJets + u * GRID_TOWERS;
-        for (int m = 0; m < tileSize[u]; m++) {
+    JetNeighbourRecord *I = &record[i];
+    I->nearest = NO_JET;
+    I->nearestKey = INFINITY;
+    int t = I->block;
+    for (int a = 0; a < blocksAroundCount[t]; a++) {
+        int u = blocksAround[t][a];
+        const int *members = blockMembers + u * GRID_TOWERS;
+        for (int m = 0; m < blockLive[u]; m++) {
             int j = members[m];
             if (j == i) continue;
-            double dR2 = pairDR2(I, &jet[j]);
-            if (dR2 <= reachR2) offerNeighbour(I, j, dR2);
+            double dR2 = pairDR2(I, &record[j]);
+            if (dR2 <= reachR2) offerNearest(I, j, dR2);
         }
     }
 }
 
 /*
  * Candidate of jet i: the smaller of the beam (w_i, i, BEAM) and the pair (d, min, max).
- * With equal measures the pair wins: either min(i,nn) < i, or min = i and max = nn < BEAM.
+ * With equal measures the pair wins: either min(i,nearest) < i, or min = i and max = nearest < BEAM.
  */
 static inline Candidate candidateOf(int i)
 {
-    const SearchJet *I = &jet[i];
+    const JetNeighbourRecord *I = &record[i];
     Candidate c;
     c.owner = i;
-    int j = I->nn;
+    int j = I->nearest;
     if (j != NO_JET) {
-        double wi = I->weight, wj = jet[j].weight;
-        double d = ((wi < wj ? wi : wj) * I->nnDR2) * invR2;
+        double wi = I->weight, wj = record[j].weight;
+        double d = ((wi < wj ? wi : wj) * I->nearestDR2) * invR2;
         if (d <= wi) {
             c.measure = d;
             c.lower = i < j ? i : j;
@@ -263,12 +265,12 @@ static inline Candidate candidateOf(int i)
     return c;
 }
 
-/* jet i's nn changed: new candidate into its heap entry */
-static inline void renewCandidate(int i)
+/* jet i's nearest changed: new candidate into its queue entry */
+static inline void requeueCandidate(int i)
 {
-    int pos = heapPos[i];
-    heap[pos] = candidateOf(i);
-    heapRestore(pos);
+    int pos = queuePosition[i];
+    queue[pos] = candidateOf(i);
+    queueReorder(pos);
 }
 
 /* ---------------------------------------------------------------- output of one event */
@@ -280,11 +282,11 @@ typedef struct {
 } EventJets;
 
 static EventJets outJets;
-static int finalJet[GRID_TOWERS];           /* jet indices made final, in order */
+static int finalJet[GRID_TOWERS];            /* jet indices made final, in order */
 static double finalPt[GRID_TOWERS];
 static int sortA[GRID_TOWERS], sortB[GRID_TOWERS];
-static int slotOfTower[GRID_TOWERS];        /* position in the input of tower t, -1 if absent */
-static int searchAgain[MAX_JETS];           /* jets to search again after a step */
+static int inputPositionOfTower[GRID_TOWERS]; /* position in the input of tower t, -1 if absent */
+static int lostNearest[MAX_JETS];            /* jets to search again after a step */
 
 /* decreasing pt, ties to the smaller jet index */
 static inline int finalBefore(int a, int b)
@@ -312,12 +314,12 @@ static int *sortFinal(int n)
     return src;
 }
 
-/* add tile t's neighbourhood to the visit list (each tile once per step) */
-static inline int addNeighbourhood(int t, int *visit, int visits)
+/* add the blocks around block t to the visit list (each block once per step) */
+static inline int collectBlocksAround(int t, int *visit, int visits)
 {
-    for (int q = 0; q < tileAroundCount[t]; q++) {
-        int u = tileAround[t][q];
-        if (tileMark[u] != tileStamp) { tileMark[u] = tileStamp; visit[visits++] = u; }
+    for (int q = 0; q < blocksAroundCount[t]; q++) {
+        int u = blocksAround[t][q];
+        if (blockSeenInStep[u] != stepNumber) { blockSeenInStep[u] = stepNumber; visit[visits++] = u; }
     }
     return visits;
 }
@@ -326,160 +328,160 @@ static inline int addNeighbourhood(int t, int *visit, int visits)
 static void clusterEvent(int n, const int32_t *towerIndex, const double *towerEt, EventJets *out)
 {
     /* jets 0..N-1 in increasing flat tower index (indices are unique and inside the grid) */
-    for (int k = 0; k < n; k++) slotOfTower[towerIndex[k]] = k;
+    for (int k = 0; k < n; k++) inputPositionOfTower[towerIndex[k]] = k;
     int jets = 0;
     for (int t = 0; t < GRID_TOWERS; t++) {
-        int k = slotOfTower[t];
+        int k = inputPositionOfTower[t];
         if (k < 0) continue;
-        slotOfTower[t] = -1;
+        inputPositionOfTower[t] = -1;
         double et = towerEt[k];
         if (!(et > 0.0) || et < 1e-150) continue;   /* threshold 0; never in the test files */
         int row = t / PHI_BINS, col = t % PHI_BINS;
         int i = jets++;
-        JetMomentum *M = &mom[i];
+        JetFourVector *M = &fourVector[i];
         M->px = et * colCos[col];
         M->py = et * colSin[col];
         M->pz = et * rowSinh[row];
         M->e = et * rowCosh[row];
         M->kt2 = et * et;
         M->towers = 1;
-        SearchJet *J = &jet[i];
+        JetNeighbourRecord *J = &record[i];
         J->y = rowEta[row];
         J->phi = colPhi[col];
         J->weight = weightOf(M->kt2);
-        J->nn = NO_JET;
-        J->nnKey = INFINITY;
-        tileInsert(i);
+        J->nearest = NO_JET;
+        J->nearestKey = INFINITY;
+        blockAdd(i);
     }
-    const int towerJets = jets;
+    const int towerJetCount = jets;
 
-    /* first neighbours: every pair of nearby tiles once, both directions */
-    for (int t = 0; t < tileCount; t++) {
-        const int *members = tileJets + t * GRID_TOWERS;
-        for (int m = 0; m < tileSize[t]; m++) {
+    /* first neighbours: every pair of nearby blocks once, both directions */
+    for (int t = 0; t < blockCount; t++) {
+        const int *members = blockMembers + t * GRID_TOWERS;
+        for (int m = 0; m < blockLive[t]; m++) {
             int i = members[m];
-            SearchJet *I = &jet[i];
-            for (int q = m + 1; q < tileSize[t]; q++) {
+            JetNeighbourRecord *I = &record[i];
+            for (int q = m + 1; q < blockLive[t]; q++) {
                 int j = members[q];
-                double dR2 = pairDR2(I, &jet[j]);
-                if (dR2 <= reachR2) { offerNeighbour(I, j, dR2); offerNeighbour(&jet[j], i, dR2); }
+                double dR2 = pairDR2(I, &record[j]);
+                if (dR2 <= reachR2) { offerNearest(I, j, dR2); offerNearest(&record[j], i, dR2); }
             }
-            for (int f = 0; f < tileForwardCount[t]; f++) {
-                int u = tileForward[t][f];
-                const int *others = tileJets + u * GRID_TOWERS;
-                for (int q = 0; q < tileSize[u]; q++) {
+            for (int f = 0; f < laterBlocksCount[t]; f++) {
+                int u = laterBlocks[t][f];
+                const int *others = blockMembers + u * GRID_TOWERS;
+                for (int q = 0; q < blockLive[u]; q++) {
                     int j = others[q];
-                    double dR2 = pairDR2(I, &jet[j]);
-                    if (dR2 <= reachR2) { offerNeighbour(I, j, dR2); offerNeighbour(&jet[j], i, dR2); }
+                    double dR2 = pairDR2(I, &record[j]);
+                    if (dR2 <= reachR2) { offerNearest(I, j, dR2); offerNearest(&record[j], i, dR2); }
                 }
             }
         }
     }
-    heapSize = towerJets;
-    for (int i = 0; i < towerJets; i++) { heap[i] = candidateOf(i); heapPos[i] = i; }
-    for (int pos = towerJets / 2 - 1; pos >= 0; pos--) heapSiftDown(pos);
+    queueSize = towerJetCount;
+    for (int i = 0; i < towerJetCount; i++) { queue[i] = candidateOf(i); queuePosition[i] = i; }
+    for (int pos = towerJetCount / 2 - 1; pos >= 0; pos--) queueLower(pos);
 
     int finals = 0;
     int visit[27];
-    while (heapSize > 0) {
-        int a = heap[0].lower, b = heap[0].upper;
-        tileStamp++;
+    while (queueSize > 0) {
+        int a = queue[0].lower, b = queue[0].upper;
+        stepNumber++;
         int visits = 0, again = 0;
 
         if (b == BEAM_INDEX) {
-            /* jet a is final; jets whose nn was a search again */
-            heapRemove(a);
-            tileRemove(a);
+            /* jet a is final; jets whose nearest was a search again */
+            queueRemove(a);
+            blockDrop(a);
             finalJet[finals++] = a;
-            visits = addNeighbourhood(jet[a].tile, visit, 0);
+            visits = collectBlocksAround(record[a].block, visit, 0);
             for (int v = 0; v < visits; v++)
-                for (int m = 0; m < tileSize[visit[v]]; m++) {
-                    int j = tileJets[visit[v] * GRID_TOWERS + m];
-                    if (jet[j].nn == a) searchAgain[again++] = j;
+                for (int m = 0; m < blockLive[visit[v]]; m++) {
+                    int j = blockMembers[visit[v] * GRID_TOWERS + m];
+                    if (record[j].nearest == a) lostNearest[again++] = j;
                 }
             for (int r = 0; r < again; r++) {
-                searchNeighbour(searchAgain[r]);
-                renewCandidate(searchAgain[r]);
+                findNearest(lostNearest[r]);
+                requeueCandidate(lostNearest[r]);
             }
             continue;
         }
 
         /* merge a and b into the new jet k (E-scheme, spec section 5) */
         int k = jets++;
-        JetMomentum *Ma = &mom[a], *Mb = &mom[b], *Mk = &mom[k];
+        JetFourVector *Ma = &fourVector[a], *Mb = &fourVector[b], *Mk = &fourVector[k];
         Mk->px = Ma->px + Mb->px;
         Mk->py = Ma->py + Mb->py;
         Mk->pz = Ma->pz + Mb->pz;
         Mk->e = Ma->e + Mb->e;
         Mk->kt2 = Mk->px * Mk->px + Mk->py * Mk->py;
         Mk->towers = Ma->towers + Mb->towers;
-        SearchJet *K = &jet[k];
+        JetNeighbourRecord *K = &record[k];
         K->y = 0.5 * jetLog((Mk->e + Mk->pz) / (Mk->e - Mk->pz));
         double phi = jetAtan2(Mk->py, Mk->px);
         if (phi < 0) phi = phi + 2 * PI_VALUE;
         if (phi >= 2 * PI_VALUE) phi = phi - 2 * PI_VALUE;
         K->phi = phi;
         K->weight = weightOf(Mk->kt2);
-        K->nn = NO_JET;
-        K->nnKey = INFINITY;
+        K->nearest = NO_JET;
+        K->nearestKey = INFINITY;
 
-        heapRemove(a);
-        heapRemove(b);
-        tileRemove(a);
-        tileRemove(b);
-        tileInsert(k);
+        queueRemove(a);
+        queueRemove(b);
+        blockDrop(a);
+        blockDrop(b);
+        blockAdd(k);
 
-        /* k's own neighbourhood first, so that its tiles lead the visit list */
-        int nearCount = addNeighbourhood(K->tile, visit, 0);
-        visits = addNeighbourhood(jet[a].tile, visit, nearCount);
-        visits = addNeighbourhood(jet[b].tile, visit, visits);
+        /* the blocks around k first, so that they lead the visit list */
+        int aroundNewCount = collectBlocksAround(K->block, visit, 0);
+        visits = collectBlocksAround(record[a].block, visit, aroundNewCount);
+        visits = collectBlocksAround(record[b].block, visit, visits);
 
-        /* jets whose nn was a or b search again; the others around k may take k (strictly nearer:
+        /* jets whose nearest was a or b search again; the others around k may take k (strictly nearer:
            on a tie the older jet has the smaller index and keeps it) */
         for (int v = 0; v < visits; v++) {
-            int nearK = v < nearCount;
-            const int *members = tileJets + visit[v] * GRID_TOWERS;
-            for (int m = 0; m < tileSize[visit[v]]; m++) {
+            int aroundNew = v < aroundNewCount;
+            const int *members = blockMembers + visit[v] * GRID_TOWERS;
+            for (int m = 0; m < blockLive[visit[v]]; m++) {
                 int j = members[m];
                 if (j == k) continue;
-                SearchJet *J = &jet[j];
-                int searchesAgain = (J->nn == a || J->nn == b);
-                if (searchesAgain) searchAgain[again++] = j;
-                if (!nearK) continue;
+                JetNeighbourRecord *J = &record[j];
+                int lostItsNearest = (J->nearest == a || J->nearest == b);
+                if (lostItsNearest) lostNearest[again++] = j;
+                if (!aroundNew) continue;
                 double dR2 = pairDR2(J, K);
                 if (dR2 > reachR2) continue;
-                offerNeighbour(K, j, dR2);
-                if (!searchesAgain) {
+                offerNearest(K, j, dR2);
+                if (!lostItsNearest) {
                     double key = (J->weight * dR2) * invR2;
-                    if (key < J->nnKey) {
-                        J->nnKey = key;
-                        J->nn = k;
-                        J->nnDR2 = dR2;
-                        renewCandidate(j);
+                    if (key < J->nearestKey) {
+                        J->nearestKey = key;
+                        J->nearest = k;
+                        J->nearestDR2 = dR2;
+                        requeueCandidate(j);
                     }
                 }
             }
         }
         for (int r = 0; r < again; r++) {
-            searchNeighbour(searchAgain[r]);
-            renewCandidate(searchAgain[r]);
+            findNearest(lostNearest[r]);
+            requeueCandidate(lostNearest[r]);
         }
-        heap[heapSize] = candidateOf(k);
-        heapSiftUp(heapSize++);
+        queue[queueSize] = candidateOf(k);
+        queueRaise(queueSize++);
     }
 
     /* final jets: decreasing pt, ties to the smaller index */
-    for (int f = 0; f < finals; f++) finalPt[f] = sqrt(mom[finalJet[f]].kt2);
+    for (int f = 0; f < finals; f++) finalPt[f] = sqrt(fourVector[finalJet[f]].kt2);
     int *order = sortFinal(finals);
     out->count = finals;
     for (int r = 0; r < finals; r++) {
         int f = order[r], i = finalJet[f];
-        const JetMomentum *M = &mom[i];
+        const JetFourVector *M = &fourVector[i];
         double px = M->px, py = M->py, pz = M->pz, e = M->e;
         out->px[r] = px; out->py[r] = py; out->pz[r] = pz; out->e[r] = e;
         out->pt[r] = finalPt[f];
-        out->y[r] = jet[i].y;
-        out->phi[r] = jet[i].phi;
+        out->y[r] = record[i].y;
+        out->phi[r] = record[i].phi;
         double m2 = e * e - px * px - py * py - pz * pz;
         out->mass[r] = sqrt(m2 > 0 ? m2 : 0);
         out->towers[r] = M->towers;
@@ -502,39 +504,39 @@ static void setupTables(double p)
         colCos[c] = cos(colPhi[c]);
         colSin[c] = sin(colPhi[c]);
     }
-    for (int t = 0; t < GRID_TOWERS; t++) slotOfTower[t] = -1;
+    for (int t = 0; t < GRID_TOWERS; t++) inputPositionOfTower[t] = -1;
 
-    /* tiles at least R * (1 + 1e-9) wide in y and in phi; at least 3 columns so the wrap-around
+    /* blocks at least R * (1 + 1e-9) wide in y and in phi; at least 3 columns so the wrap-around
        neighbours are distinct */
-    double tileMinWidth = RADIUS * (1 + 1e-9);
-    tileYMin = ETA_MIN;
-    tileRows = (int)floor((ETA_MAX - ETA_MIN) / tileMinWidth);
-    if (tileRows < 1) tileRows = 1;
-    tileCols = (int)floor(2 * PI_VALUE / tileMinWidth);
-    if (tileCols < 3) tileCols = 3;
-    tileCount = tileRows * tileCols;
-    if (tileCount > MAX_TILES) { fprintf(stderr, "too many tiles\n"); exit(1); }
-    /* a tile never holds more live jets than the event has towers */
-    tileJets = malloc(sizeof(int) * (size_t)tileCount * GRID_TOWERS);
-    if (!tileJets) { fprintf(stderr, "out of memory\n"); exit(1); }
-    invTileHeight = tileRows / (ETA_MAX - ETA_MIN);
-    invTileWidth = tileCols / (2 * PI_VALUE);
-    for (int row = 0; row < tileRows; row++)
-        for (int col = 0; col < tileCols; col++) {
-            int t = row * tileCols + col, na = 0, nf = 0;
+    double blockMinWidth = RADIUS * (1 + 1e-9);
+    blockYMin = ETA_MIN;
+    blockRows = (int)floor((ETA_MAX - ETA_MIN) / blockMinWidth);
+    if (blockRows < 1) blockRows = 1;
+    blockCols = (int)floor(2 * PI_VALUE / blockMinWidth);
+    if (blockCols < 3) blockCols = 3;
+    blockCount = blockRows * blockCols;
+    if (blockCount > MAX_BLOCKS) { fprintf(stderr, "too many blocks\n"); exit(1); }
+    /* a block never holds more live jets than the event has towers */
+    blockMembers = malloc(sizeof(int) * (size_t)blockCount * GRID_TOWERS);
+    if (!blockMembers) { fprintf(stderr, "out of memory\n"); exit(1); }
+    invBlockHeight = blockRows / (ETA_MAX - ETA_MIN);
+    invBlockWidth = blockCols / (2 * PI_VALUE);
+    for (int row = 0; row < blockRows; row++)
+        for (int col = 0; col < blockCols; col++) {
+            int t = row * blockCols + col, na = 0, nf = 0;
             for (int dr = -1; dr <= 1; dr++) {
                 int r2 = row + dr;
-                if (r2 < 0 || r2 >= tileRows) continue;
+                if (r2 < 0 || r2 >= blockRows) continue;
                 for (int dc = -1; dc <= 1; dc++) {
-                    int u = r2 * tileCols + (col + dc + tileCols) % tileCols;
-                    tileAround[t][na++] = u;
-                    if (dr == 1 || (dr == 0 && dc == 1)) tileForward[t][nf++] = u;
+                    int u = r2 * blockCols + (col + dc + blockCols) % blockCols;
+                    blocksAround[t][na++] = u;
+                    if (dr == 1 || (dr == 0 && dc == 1)) laterBlocks[t][nf++] = u;
                 }
             }
-            tileAroundCount[t] = na;
-            tileForwardCount[t] = nf;
-            tileSize[t] = 0;
-            tileMark[t] = 0;
+            blocksAroundCount[t] = na;
+            laterBlocksCount[t] = nf;
+            blockLive[t] = 0;
+            blockSeenInStep[t] = 0;
         }
 }
 
