@@ -12,7 +12,7 @@ import { generateEvents } from '../host/generator/generate.js';
 import { ReferenceClusterer } from '../host/clustering/reference.js';
 import { DEFAULT_TOLERANCE, ToleranceMatcher } from '../host/validate/tolerance-compare.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../host/types.js';
-import { ValidationAccumulator } from '../host/validate/validation-report.js';
+import { ValidationAccumulator } from '../host/validate/validation-accumulator.js';
 
 const settings = { ...DEFAULT_SETTINGS, threshold: 0.5 };
 const events = [...generateEvents(DEFAULT_GRID, { events: 100, pileup: 200, seed: 5 })];

@@ -4,7 +4,7 @@
 // of rounding. Expected values are computed here with the two-pass formula (common practice).
 
 import { describe, expect, it } from 'vitest';
-import { DeviationHistogram } from '../host/validate/validation-report.js';
+import { DeviationHistogram } from '../host/validate/deviation-histogram.js';
 
 /** seeded uniform values in [-0.5, 0.5) */
 function uniforms(count: number, seed: number): number[] {

@@ -3,7 +3,10 @@
 import { describe, expect, it } from 'vitest';
 import { makeRandom } from '../host/random.js';
 import { DEFAULT_TOLERANCE, ToleranceMatcher } from '../host/validate/tolerance-compare.js';
-import { DeviationHistogram, PT_BIN_EDGES_GEV, ValidationAccumulator, formatValidationReport } from '../host/validate/validation-report.js';
+import { DeviationHistogram } from '../host/validate/deviation-histogram.js';
+import { PT_BIN_EDGES_GEV } from '../host/validate/validation-report.js';
+import { ValidationAccumulator } from '../host/validate/validation-accumulator.js';
+import { formatValidationReport } from '../host/validate/validation-text.js';
 
 function exactQuantile(sorted: number[], q: number): number {
   return sorted[Math.floor(q * (sorted.length - 1))];

@@ -3,7 +3,8 @@
 
 import { describe, expect, it } from 'vitest';
 import { UsageError } from '../host/errors.js';
-import { makeEmulatedClusterer, parseEmulation } from '../host/clustering/emulate.js';
+import { makeEmulatedClusterer } from '../host/clustering/emulate.js';
+import { parseEmulation } from '../host/clustering/emulation-mode.js';
 import { generateEvents } from '../host/generator/generate.js';
 import { ReferenceClusterer } from '../host/clustering/reference.js';
 import { DEFAULT_TOLERANCE, ToleranceMatcher } from '../host/validate/tolerance-compare.js';

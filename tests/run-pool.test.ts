@@ -4,7 +4,7 @@ import { readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { inputErrorOf, runEvents } from '../host/pipeline/run.js';
 import { BatchBuilder, BatchPool, type BatchOutcome } from '../host/pipeline/pool.js';
-import { mergeSummaries } from '../host/measure/summary.js';
+import { mergeSummaries } from '../host/measure/summary-merge.js';
 import { EventTowerReader } from '../host/input/event-towers.js';
 import { encodeEventRecord } from '../host/formats/event-codec.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../host/types.js';

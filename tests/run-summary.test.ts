@@ -1,5 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { describeMachine, fitMultiplicity, mergeSummaries, MULTIPLICITY_EDGES, MultiplicityBins, renderSummary, RunTally, type RunConfiguration, type RunSummary } from '../host/measure/summary.js';
+import { describeMachine, renderSummary, type RunConfiguration, type RunSummary } from '../host/measure/summary.js';
+import { fitMultiplicity, MULTIPLICITY_EDGES, MultiplicityBins } from '../host/measure/multiplicity-fit.js';
+import { RunTally } from '../host/measure/run-tally.js';
+import { mergeSummaries } from '../host/measure/summary-merge.js';
 import { formatReport } from '../host/measure/report.js';
 
 

@@ -96,10 +96,3 @@ export function gridFrom(args: ParsedArgs, command: string): Grid {
 export function hasGridOptions(args: ParsedArgs): boolean {
   return GRID_OPTIONS.some((o) => args.values[o.name] !== undefined);
 }
-
-export function describeSettings(settings: ClusterSettings): string {
-  const names: Record<number, string> = { [-1]: 'anti-kt', 0: 'Cambridge/Aachen', 1: 'kt' };
-  const algorithm = names[settings.p] ?? `generalised kt p=${settings.p}`;
-  return `${algorithm} R=${settings.radius} ${settings.recombination === 'e' ? 'E-scheme' : 'winner-take-all'}` +
-    `${settings.ptMin > 0 ? ` ptmin=${settings.ptMin}` : ''}${settings.threshold > 0 ? ` threshold=${settings.threshold}` : ''}`;
-}

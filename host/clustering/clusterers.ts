@@ -1,7 +1,8 @@
 // Which clusterer a command uses: the engine, the reference, or a precision emulation.
 
 import { UsageError } from '../errors.js';
-import { makeEmulatedClusterer, type EmulationMode } from './emulate.js';
+import { makeEmulatedClusterer } from './emulate.js';
+import type { EmulationMode } from './emulation-mode.js';
 import { WasmClusterer } from './engine.js';
 import { ReferenceClusterer } from './reference.js';
 import type { ClusterSettings, Clusterer, Grid } from '../types.js';

@@ -16,18 +16,13 @@
 // jets, jsonl   the line form of `jetlag cluster --format jsonl` (jets-jsonl.ts)
 // Numbers are written with String(x), so every double reads back identical.
 // Exit 2 when the file is unreadable (after writing everything before the problem) or a
-// jets record cannot be decoded (it is reported and skipped).
+// jets record cannot be decoded (it is reported and skipped). How: output/text-export.ts.
 
 import { parseArgs, type CommandIo, type CommandMain, type CommandSpec } from '../args.js';
-import { InputError, UsageError } from '../../errors.js';
+import { UsageError } from '../../errors.js';
 import { GRID_OPTIONS, gridFrom, hasGridOptions } from '../common-options.js';
-import { openRecordFile, type RecordSource } from '../../input/event-source.js';
-import { EventTowerReader } from '../../input/event-towers.js';
-import { decodeJetsRecord } from '../../formats/jets-codec.js';
-import { formatErrorLine, formatJetsLine, jsonNumber } from '../../formats/jets-jsonl.js';
 import { DEFAULT_MAX_RECORD_BYTES } from '../../input/record-reader.js';
-import { TextFileWriter } from '../../output/record-writer.js';
-import type { JetSet } from '../../types.js';
+import { exportAsText } from '../../output/text-export.js';
 
 export const spec: CommandSpec = {
   name: 'export',
@@ -45,33 +40,6 @@ export const spec: CommandSpec = {
 
 const PROBLEM_LINES_MAX = 20;
 
-/** the jets CSV columns: the CSV form `jetlag compare` reads (candidate-reader.ts) */
-export const JETS_CSV_HEADER = 'event,pt,y,phi,m';
-
-interface Tally {
-  events: number;
-  rows: number;
-  invalid: number;
-  broken: number;
-  /** CSV: events with rows left out because their number is not above the last written */
-  outOfOrder: number;
-  /** CSV: number of the last event that has rows in the output, -1 before the first */
-  lastCsvEvent: number;
-  /** raw deposits outside the grid's eta range, binned nowhere (reported, spec section 1) */
-  outsideAcceptance: number;
-}
-
-/** CSV only: true when the rows of `event` can follow those written so far; else counts and reports it. */
-function csvOrderAllows(event: number, tally: Tally, problems: ProblemLines, where: string): boolean {
-  if (event > tally.lastCsvEvent) {
-    tally.lastCsvEvent = event;
-    return true;
-  }
-  tally.outOfOrder++;
-  problems.add(`${where}: event ${event} after event ${tally.lastCsvEvent} cannot follow it in CSV, whose event numbers must increase (left out)`);
-  return false;
-}
-
 class ProblemLines {
   private shown = 0;
   private hidden = 0;
@@ -82,90 +50,6 @@ class ProblemLines {
   }
   finish(): void {
     if (!this.quiet && this.hidden > 0) this.io.stderr.write(`jetlag export: ... and ${this.hidden} more\n`);
-  }
-}
-
-async function exportEvents(source: RecordSource, format: string, out: TextFileWriter, tally: Tally, problems: ProblemLines): Promise<void> {
-  const reader = new EventTowerReader(source.header.grid);
-  const phiBins = source.header.grid.phiBins;
-  if (format === 'csv') await out.write('event,ieta,iphi,et\n');
-  for await (const record of source.records) {
-    tally.events++;
-    const result = reader.read(record.bytes);
-    if (!result.ok) {
-      tally.invalid++;
-      const where = result.event === undefined ? `record ${tally.events - 1}` : `event ${result.event}`;
-      if (format === 'csv') {
-        problems.add(`${source.label}, ${where}, byte ${record.offset}: ${result.problem} (invalid event, no CSV rows written)`);
-      } else {
-        problems.add(`${source.label}, ${where}, byte ${record.offset}: ${result.problem} (invalid event, written as an error line)`);
-        if (result.event !== undefined) await out.write(formatErrorLine(result.event, result.problem) + '\n');
-      }
-      continue;
-    }
-    const { event, towerIndex, towerEt } = result;
-    tally.outsideAcceptance += result.outsideAcceptance;
-    if (format === 'csv' && towerIndex.length > 0 && !csvOrderAllows(event, tally, problems, `${source.label}, event ${event}, byte ${record.offset}`)) continue;
-    tally.rows += towerIndex.length;
-    if (format === 'csv') {
-      let text = '';
-      for (let k = 0; k < towerIndex.length; k++) {
-        const index = towerIndex[k];
-        text += `${event},${Math.floor(index / phiBins)},${index % phiBins},${jsonNumber(towerEt[k])}\n`;
-      }
-      if (text.length > 0) await out.write(text);
-    } else {
-      const towers: string[] = [];
-      for (let k = 0; k < towerIndex.length; k++) {
-        const index = towerIndex[k];
-        towers.push(`[${Math.floor(index / phiBins)},${index % phiBins},${jsonNumber(towerEt[k])}]`);
-      }
-      await out.write(`{"event":${event},"towers":[${towers.join(',')}]}\n`);
-    }
-  }
-}
-
-function jetCsvRows(event: number, jets: JetSet): string {
-  let text = '';
-  for (let k = 0; k < jets.count; k++) {
-    text += `${event},${jsonNumber(jets.pt[k])},${jsonNumber(jets.rapidity[k])},${jsonNumber(jets.phi[k])},${jsonNumber(jets.mass[k])}\n`;
-  }
-  return text;
-}
-
-async function exportJets(source: RecordSource, format: string, out: TextFileWriter, tally: Tally, problems: ProblemLines): Promise<void> {
-  if (format === 'csv') await out.write(`${JETS_CSV_HEADER}\n`);
-  let record = -1;
-  for await (const raw of source.records) {
-    record++;
-    tally.events++;
-    let decoded;
-    try {
-      decoded = decodeJetsRecord(raw.bytes);
-    } catch (error) {
-      tally.broken++;
-      problems.add(`${source.label}, record ${record}, byte ${raw.offset}: bad jets record: ${(error as Error).message}`);
-      continue;
-    }
-    if (decoded.problem !== '') {
-      tally.broken++;
-      problems.add(`${source.label}, event ${decoded.event}, byte ${raw.offset}: bad jets record: ${decoded.problem}`);
-      continue;
-    }
-    if (decoded.error !== '') {
-      tally.invalid++;
-      if (format === 'csv') {
-        problems.add(`${source.label}, event ${decoded.event}, byte ${raw.offset}: ${decoded.error} (invalid event, no CSV rows written)`);
-      } else {
-        await out.write(formatErrorLine(decoded.event, decoded.error) + '\n');
-      }
-      continue;
-    }
-    if (format === 'csv' && decoded.jets.count > 0 && !csvOrderAllows(decoded.event, tally, problems, `${source.label}, event ${decoded.event}, byte ${raw.offset}`)) continue;
-    tally.rows += decoded.jets.count;
-    await out.write(format === 'csv'
-      ? jetCsvRows(decoded.event, decoded.jets)
-      : formatJetsLine(decoded.event, decoded.jets, decoded.hasTowers) + '\n');
   }
 }
 
@@ -180,24 +64,18 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   const maxRecordBytes = args.values['max-record-bytes'] as number | undefined;
   if (maxRecordBytes !== undefined && maxRecordBytes < 1) throw new UsageError(`export: --max-record-bytes must be at least 1, got ${maxRecordBytes}`);
 
-  const source = await openRecordFile(input === '-' ? io.stdin : input, { grid, maxRecordBytes, fileLabel: input === '-' ? '<stdin>' : input });
-  const out = await TextFileWriter.open(outPath, { stdout: io.stdout });
-  const tally: Tally = { events: 0, rows: 0, invalid: 0, broken: 0, outOfOrder: 0, lastCsvEvent: -1, outsideAcceptance: 0 };
   const problems = new ProblemLines(io, quiet);
-  let unreadable: InputError | null = null;
-  try {
-    if (source.format === 'jets-file') await exportJets(source, format, out, tally, problems);
-    else await exportEvents(source, format, out, tally, problems);
-  } catch (error) {
-    if (!(error instanceof InputError)) {
-      await out.abort();
-      throw error;
-    }
-    unreadable = error;
-  }
-  await out.close();
+  const { tally, rowsAre, unreadable } = await exportAsText({
+    input: input === '-' ? io.stdin : input,
+    fileLabel: input === '-' ? '<stdin>' : input,
+    grid,
+    maxRecordBytes,
+    format,
+    out: outPath,
+    stdout: io.stdout,
+    onProblem: (line) => problems.add(line),
+  });
   problems.finish();
-  const what = source.format === 'jets-file' ? 'jets' : 'towers';
   const outLabel = outPath === '-' ? '<stdout>' : outPath;
   if (unreadable) {
     const records = tally.events === 1 ? '1 record' : `${tally.events} records`;
@@ -208,7 +86,7 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
     io.stderr.write(`jetlag export: read ${tally.events} events (${tally.invalid} invalid` +
       `${tally.broken > 0 ? `, ${tally.broken} unreadable records` : ''}` +
       `${tally.outOfOrder > 0 ? `, ${tally.outOfOrder} out of order left out` : ''}` +
-      `${tally.outsideAcceptance > 0 ? `, ${tally.outsideAcceptance} raw deposits outside the eta acceptance` : ''}), wrote ${tally.rows} ${what} to ${outLabel}\n`);
+      `${tally.outsideAcceptance > 0 ? `, ${tally.outsideAcceptance} raw deposits outside the eta acceptance` : ''}), wrote ${tally.rows} ${rowsAre} to ${outLabel}\n`);
   }
   return tally.broken > 0 ? 2 : 0;
 };

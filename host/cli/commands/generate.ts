@@ -1,10 +1,9 @@
-// jetlag generate: a file of invented demo events from the toy generator (host/generate.ts).
+// jetlag generate: a file of invented demo events from the toy generator (generator/generate.ts).
 
 import { parseArgs, type CommandIo, type CommandSpec } from '../args.js';
 import { UsageError } from '../../errors.js';
 import { GRID_OPTIONS, gridFrom } from '../common-options.js';
-import { generateEvents } from '../../generator/generate.js';
-import { EventFileWriter } from '../../output/record-writer.js';
+import { writeGeneratedEvents } from '../../generator/generate-file.js';
 import { producerName } from '../../version.js';
 
 /** largest --pileup and --hard-jets accepted (see main) */
@@ -48,19 +47,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   const raw = Boolean(args.values.raw);
   const label = (args.values.label as string | undefined) ??
     `invented demo events (Halden ring toy): pileup ${pileup}, seed ${seed}, ${events} events${raw ? ', raw deposits' : ''}`;
-  const writer = await EventFileWriter.open(out, { grid, producer: producerName('generate'), label }, { gzip: Boolean(args.values.gzip) });
-  try {
-    for (const event of generateEvents(grid, { events, pileup, seed, maxHardJets, raw })) {
-      const pending = raw
-        ? writer.writeEvent({ event: event.event, depositEta: event.depositEta, depositPhi: event.depositPhi, depositEt: event.depositEt })
-        : writer.writeEvent({ event: event.event, towerIndex: event.towerIndex, towerEt: event.towerEt });
-      if (pending) await pending;
-    }
-    await writer.close();
-  } catch (error) {
-    await writer.abort();
-    throw error;
-  }
+  await writeGeneratedEvents(out, grid, { events, pileup, seed, maxHardJets, raw }, { producer: producerName('generate'), label }, { gzip: Boolean(args.values.gzip) });
   if (out !== '-') io.stderr.write(`jetlag generate: wrote ${events} events to ${out}\n`);
   return 0;
 }

@@ -2,10 +2,10 @@
 // counts add, histograms add bucket by bucket, so merged percentiles are those of a single
 // run over the same events.
 
-import { readFileSync } from 'node:fs';
 import { parseArgs, type CommandIo, type CommandMain, type CommandSpec } from '../args.js';
-import { InputError, UsageError } from '../../errors.js';
-import { mergeSummaries, type RunSummary } from '../../measure/summary.js';
+import { UsageError } from '../../errors.js';
+import type { RunSummary } from '../../measure/summary.js';
+import { mergeSummaries, readSummary } from '../../measure/summary-merge.js';
 import { formatReport } from '../../measure/report.js';
 import { writeTextFile } from '../../output/record-writer.js';
 
@@ -19,20 +19,6 @@ export const spec: CommandSpec = {
     { name: 'quiet', kind: 'flag', short: 'q', description: 'do not print the report' },
   ],
 };
-
-export function readSummary(path: string): RunSummary {
-  let text: string;
-  try {
-    text = readFileSync(path, 'utf8');
-  } catch (error) {
-    throw new InputError(path, `cannot read: ${(error as Error).message}`);
-  }
-  try {
-    return JSON.parse(text) as RunSummary;
-  } catch (error) {
-    throw new InputError(path, `not JSON: ${(error as Error).message}`);
-  }
-}
 
 export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   const args = parseArgs(spec, argv);

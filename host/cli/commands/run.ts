@@ -1,19 +1,38 @@
 // jetlag run EVENTS: stream an event file through the worker pool and report latency the way
-// trigger engineers read it. Parsing here, the run itself in ../run.ts.
+// trigger engineers read it. Parsing here, the run itself in pipeline/run.ts.
 
-import { parseArgs, type CommandIo, type CommandMain, type CommandSpec, type ParsedArgs } from '../args.js';
+import { parseArgs, type CommandIo, type CommandMain, type CommandSpec, type OptionSpec, type ParsedArgs } from '../args.js';
 import { UsageError } from '../../errors.js';
 import { CLUSTER_OPTIONS, GRID_OPTIONS, clusterSettingsFrom, gridFrom } from '../common-options.js';
 import { DEFAULT_BATCH, DEFAULT_CHECK, findRate, inputErrorOf, runEvents, scanWorkers, type CheckOption, type RunOptions } from '../../pipeline/run.js';
-import { describeMachine, LISTED_MAX, type RunSummary } from '../../measure/summary.js';
+import { describeMachine, type RunSummary } from '../../measure/summary.js';
+import { LISTED_MAX } from '../../measure/run-tally.js';
 import { formatReport } from '../../measure/report.js';
 import { writeTextFile } from '../../output/record-writer.js';
 import type { ArrivalMode } from '../../pipeline/arrivals.js';
 
-export { runEvents } from '../../pipeline/run.js';
-
 /** problem lines (invalid events, failed batches, check differences) written to stderr */
 const PROBLEM_LINES_MAX = 20;
+
+/** run's own options; `demo` shares some of them (runOption) */
+const RUN_OPTIONS: OptionSpec[] = [
+  { name: 'workers', kind: 'integer', argument: '<n>', description: `worker threads, each with its own engine (default: cores, here ${describeMachine().cores})` },
+  { name: 'batch', kind: 'integer', argument: '<k>', description: `events per task sent to a worker (default: ${DEFAULT_BATCH})` },
+  { name: 'rate', kind: 'number', argument: '<hz>', description: 'open loop: events due at fixed spacing 1/rate (default: closed loop, as fast as the pool takes them)' },
+  { name: 'poisson', kind: 'number', argument: '<hz>', description: 'open loop: events due at Poisson arrivals of this mean rate, seeded by --seed' },
+  { name: 'seed', kind: 'integer', argument: '<n>', description: 'seed of the Poisson arrivals and of the --check sample (default: 1)' },
+  { name: 'budget-us', kind: 'number', argument: '<us>', description: 'latency budget per event; events over it are counted (default: none)' },
+  { name: 'find-rate', kind: 'flag', description: 'also search the highest open-loop rate whose end-to-end p99 stays within --budget-us (7 open-loop runs over the input; bound them with --events)' },
+  { name: 'scan-workers', kind: 'flag', description: 'also repeat the closed-loop run with 1 .. cores workers and report the scaling' },
+  { name: 'check', kind: 'string', argument: '<all|fraction|none>', description: `compare the engine's jets with the reference bit for bit on all events, a seeded fraction, or none (default: ${DEFAULT_CHECK.fraction})` },
+  { name: 'repro', kind: 'string', argument: '<file>', description: 'write each event on which the engine and the reference disagree, whole, to this event file (default: none)' },
+  { name: 'json', kind: 'string', argument: '<file>', description: 'write the machine-readable summary here (default: none)' },
+  { name: 'out', kind: 'string', argument: '<file>', description: 'write the jets of every event to a jets file (default: none)' },
+  { name: 'shard', kind: 'string', argument: '<k/n>', description: 'process only every n-th batch of events starting with batch k, for job arrays (default: 0/1)' },
+  { name: 'events', kind: 'integer', argument: '<n>', description: 'stop after the first n events of the file (default: all)' },
+  { name: 'engine', kind: 'string', argument: '<wasm|reference>', description: 'clusterer in the workers: the engine or the plain reference (default: wasm)' },
+  { name: 'quiet', kind: 'flag', short: 'q', description: 'no progress bar' },
+];
 
 export const spec: CommandSpec = {
   name: 'run',
@@ -21,46 +40,39 @@ export const spec: CommandSpec = {
   usage: 'jetlag run <events> [options]',
   positionals: { min: 1, max: 1 },
   options: [
-    { name: 'workers', kind: 'integer', argument: '<n>', description: `worker threads, each with its own engine (default: cores, here ${describeMachine().cores})` },
-    { name: 'batch', kind: 'integer', argument: '<k>', description: `events per task sent to a worker (default: ${DEFAULT_BATCH})` },
-    { name: 'rate', kind: 'number', argument: '<hz>', description: 'open loop: events due at fixed spacing 1/rate (default: closed loop, as fast as the pool takes them)' },
-    { name: 'poisson', kind: 'number', argument: '<hz>', description: 'open loop: events due at Poisson arrivals of this mean rate, seeded by --seed' },
-    { name: 'seed', kind: 'integer', argument: '<n>', description: 'seed of the Poisson arrivals and of the --check sample (default: 1)' },
-    { name: 'budget-us', kind: 'number', argument: '<us>', description: 'latency budget per event; events over it are counted (default: none)' },
-    { name: 'find-rate', kind: 'flag', description: 'also search the highest open-loop rate whose end-to-end p99 stays within --budget-us (7 open-loop runs over the input; bound them with --events)' },
-    { name: 'scan-workers', kind: 'flag', description: 'also repeat the closed-loop run with 1 .. cores workers and report the scaling' },
-    { name: 'check', kind: 'string', argument: '<all|fraction|none>', description: `compare the engine's jets with the reference bit for bit on all events, a seeded fraction, or none (default: ${DEFAULT_CHECK.fraction})` },
-    { name: 'repro', kind: 'string', argument: '<file>', description: 'write each event on which the engine and the reference disagree, whole, to this event file (default: none)' },
-    { name: 'json', kind: 'string', argument: '<file>', description: 'write the machine-readable summary here (default: none)' },
-    { name: 'out', kind: 'string', argument: '<file>', description: 'write the jets of every event to a jets file (default: none)' },
-    { name: 'shard', kind: 'string', argument: '<k/n>', description: 'process only every n-th batch of events starting with batch k, for job arrays (default: 0/1)' },
-    { name: 'events', kind: 'integer', argument: '<n>', description: 'stop after the first n events of the file (default: all)' },
-    { name: 'engine', kind: 'string', argument: '<wasm|reference>', description: 'clusterer in the workers: the engine or the plain reference (default: wasm)' },
-    { name: 'quiet', kind: 'flag', short: 'q', description: 'no progress bar' },
+    ...RUN_OPTIONS,
     ...CLUSTER_OPTIONS,
     ...GRID_OPTIONS.map((o) => ({ ...o, description: `CSV input: ${o.description}` })),
   ],
 };
 
-function positiveNumber(args: ParsedArgs, name: string): number | undefined {
+/** One of run's options for another command, with that command's own default where it has one. */
+export function runOption(name: string, defaultText?: string): OptionSpec {
+  const option = RUN_OPTIONS.find((o) => o.name === name);
+  if (option === undefined) throw new Error(`run has no option --${name}`);
+  if (defaultText === undefined) return option;
+  return { ...option, description: option.description.replace(/\(default: .*\)$/, `(default: ${defaultText})`) };
+}
+
+export function positiveNumber(args: ParsedArgs, name: string, command = 'run'): number | undefined {
   const value = args.values[name] as number | undefined;
-  if (value !== undefined && !(value > 0)) throw new UsageError(`run: --${name} must be a positive number, got ${value}`);
+  if (value !== undefined && !(value > 0)) throw new UsageError(`${command}: --${name} must be a positive number, got ${value}`);
   return value;
 }
 
-function positiveInteger(args: ParsedArgs, name: string): number | undefined {
+export function positiveInteger(args: ParsedArgs, name: string, command = 'run'): number | undefined {
   const value = args.values[name] as number | undefined;
-  if (value !== undefined && !(Number.isInteger(value) && value >= 1)) throw new UsageError(`run: --${name} must be a positive integer, got ${value}`);
+  if (value !== undefined && !(Number.isInteger(value) && value >= 1)) throw new UsageError(`${command}: --${name} must be a positive integer, got ${value}`);
   return value;
 }
 
-export function parseCheck(text: string | undefined, seed: number): CheckOption {
+export function parseCheck(text: string | undefined, seed: number, command = 'run'): CheckOption {
   if (text === undefined) return { ...DEFAULT_CHECK, seed };
   if (text === 'all') return { mode: 'all', fraction: 1, seed };
   if (text === 'none') return { mode: 'none', fraction: 0, seed };
   const fraction = Number(text);
   if (text.trim() === '' || !(fraction >= 0 && fraction <= 1)) {
-    throw new UsageError(`run: --check must be all, none or a fraction in [0, 1], got ${JSON.stringify(text)}`);
+    throw new UsageError(`${command}: --check must be all, none or a fraction in [0, 1], got ${JSON.stringify(text)}`);
   }
   return { mode: fraction === 0 ? 'none' : fraction === 1 ? 'all' : 'fraction', fraction, seed };
 }

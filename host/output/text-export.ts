@@ -1,0 +1,175 @@
+// An event file, a CSV tower file or a jets file written as CSV or JSON lines (the command is
+// cli/commands/export.ts, whose header says what each form holds).
+//
+// CSV has no place for an invalid event: it is named through onProblem and left out. CSV rows
+// of an event come together and event numbers never decrease (spec section 1), so an event
+// with rows whose number is not above the last one written (a file out of order, or with an
+// event twice) is named and left out too: the CSV stays readable and means what the file meant.
+// Numbers are written with String(x), so every double reads back identical.
+
+import { InputError } from '../errors.js';
+import { openRecordFile, type RecordSource } from '../input/event-source.js';
+import { EventTowerReader } from '../input/event-towers.js';
+import { decodeJetsRecord } from '../formats/jets-codec.js';
+import { formatErrorLine, formatJetsLine, jsonNumber } from '../formats/jets-jsonl.js';
+import { TextFileWriter } from './record-writer.js';
+import type { Grid, JetSet } from '../types.js';
+
+/** the jets CSV columns: the CSV form `jetlag compare` reads (candidate-reader.ts) */
+export const JETS_CSV_HEADER = 'event,pt,y,phi,m';
+
+export type TextFormat = 'csv' | 'jsonl';
+
+export interface ExportTally {
+  events: number;
+  rows: number;
+  invalid: number;
+  broken: number;
+  /** CSV: events with rows left out because their number is not above the last written */
+  outOfOrder: number;
+  /** CSV: number of the last event that has rows in the output, -1 before the first */
+  lastCsvEvent: number;
+  /** raw deposits outside the grid's eta range, binned nowhere (reported, spec section 1) */
+  outsideAcceptance: number;
+}
+
+export interface TextExportOptions {
+  /** a path, or a stream for - */
+  input: string | NodeJS.ReadableStream;
+  /** the input's name in messages */
+  fileLabel: string;
+  /** the grid of CSV towers when grid options were given */
+  grid?: Grid;
+  maxRecordBytes?: number;
+  format: TextFormat;
+  /** output path, - for stdout */
+  out: string;
+  /** the stream - stands for */
+  stdout: NodeJS.WritableStream;
+  /** one line per event left out or record that cannot be read */
+  onProblem: (line: string) => void;
+}
+
+export interface TextExportResult {
+  tally: ExportTally;
+  /** what the rows are: jets (a jets file) or towers */
+  rowsAre: 'jets' | 'towers';
+  /** the input became unreadable here; everything before it was written */
+  unreadable: InputError | null;
+}
+
+/** Reads the file and writes it as text; the output is closed (or removed on an unexpected error). */
+export async function exportAsText(options: TextExportOptions): Promise<TextExportResult> {
+  const { format, onProblem } = options;
+  const source = await openRecordFile(options.input, { grid: options.grid, maxRecordBytes: options.maxRecordBytes, fileLabel: options.fileLabel });
+  const out = await TextFileWriter.open(options.out, { stdout: options.stdout });
+  const tally: ExportTally = { events: 0, rows: 0, invalid: 0, broken: 0, outOfOrder: 0, lastCsvEvent: -1, outsideAcceptance: 0 };
+  let unreadable: InputError | null = null;
+  try {
+    if (source.format === 'jets-file') await exportJets(source, format, out, tally, onProblem);
+    else await exportEvents(source, format, out, tally, onProblem);
+  } catch (error) {
+    if (!(error instanceof InputError)) {
+      await out.abort();
+      throw error;
+    }
+    unreadable = error;
+  }
+  await out.close();
+  return { tally, rowsAre: source.format === 'jets-file' ? 'jets' : 'towers', unreadable };
+}
+
+/** CSV only: true when the rows of `event` can follow those written so far; else counts and reports it. */
+function csvOrderAllows(event: number, tally: ExportTally, onProblem: (line: string) => void, where: string): boolean {
+  if (event > tally.lastCsvEvent) {
+    tally.lastCsvEvent = event;
+    return true;
+  }
+  tally.outOfOrder++;
+  onProblem(`${where}: event ${event} after event ${tally.lastCsvEvent} cannot follow it in CSV, whose event numbers must increase (left out)`);
+  return false;
+}
+
+async function exportEvents(source: RecordSource, format: TextFormat, out: TextFileWriter, tally: ExportTally, onProblem: (line: string) => void): Promise<void> {
+  const reader = new EventTowerReader(source.header.grid);
+  const phiBins = source.header.grid.phiBins;
+  if (format === 'csv') await out.write('event,ieta,iphi,et\n');
+  for await (const record of source.records) {
+    tally.events++;
+    const result = reader.read(record.bytes);
+    if (!result.ok) {
+      tally.invalid++;
+      const where = result.event === undefined ? `record ${tally.events - 1}` : `event ${result.event}`;
+      if (format === 'csv') {
+        onProblem(`${source.label}, ${where}, byte ${record.offset}: ${result.problem} (invalid event, no CSV rows written)`);
+      } else {
+        onProblem(`${source.label}, ${where}, byte ${record.offset}: ${result.problem} (invalid event, written as an error line)`);
+        if (result.event !== undefined) await out.write(formatErrorLine(result.event, result.problem) + '\n');
+      }
+      continue;
+    }
+    const { event, towerIndex, towerEt } = result;
+    tally.outsideAcceptance += result.outsideAcceptance;
+    if (format === 'csv' && towerIndex.length > 0 && !csvOrderAllows(event, tally, onProblem, `${source.label}, event ${event}, byte ${record.offset}`)) continue;
+    tally.rows += towerIndex.length;
+    if (format === 'csv') {
+      let text = '';
+      for (let k = 0; k < towerIndex.length; k++) {
+        const index = towerIndex[k];
+        text += `${event},${Math.floor(index / phiBins)},${index % phiBins},${jsonNumber(towerEt[k])}\n`;
+      }
+      if (text.length > 0) await out.write(text);
+    } else {
+      const towers: string[] = [];
+      for (let k = 0; k < towerIndex.length; k++) {
+        const index = towerIndex[k];
+        towers.push(`[${Math.floor(index / phiBins)},${index % phiBins},${jsonNumber(towerEt[k])}]`);
+      }
+      await out.write(`{"event":${event},"towers":[${towers.join(',')}]}\n`);
+    }
+  }
+}
+
+function jetCsvRows(event: number, jets: JetSet): string {
+  let text = '';
+  for (let k = 0; k < jets.count; k++) {
+    text += `${event},${jsonNumber(jets.pt[k])},${jsonNumber(jets.rapidity[k])},${jsonNumber(jets.phi[k])},${jsonNumber(jets.mass[k])}\n`;
+  }
+  return text;
+}
+
+async function exportJets(source: RecordSource, format: TextFormat, out: TextFileWriter, tally: ExportTally, onProblem: (line: string) => void): Promise<void> {
+  if (format === 'csv') await out.write(`${JETS_CSV_HEADER}\n`);
+  let record = -1;
+  for await (const raw of source.records) {
+    record++;
+    tally.events++;
+    let decoded;
+    try {
+      decoded = decodeJetsRecord(raw.bytes);
+    } catch (error) {
+      tally.broken++;
+      onProblem(`${source.label}, record ${record}, byte ${raw.offset}: bad jets record: ${(error as Error).message}`);
+      continue;
+    }
+    if (decoded.problem !== '') {
+      tally.broken++;
+      onProblem(`${source.label}, event ${decoded.event}, byte ${raw.offset}: bad jets record: ${decoded.problem}`);
+      continue;
+    }
+    if (decoded.error !== '') {
+      tally.invalid++;
+      if (format === 'csv') {
+        onProblem(`${source.label}, event ${decoded.event}, byte ${raw.offset}: ${decoded.error} (invalid event, no CSV rows written)`);
+      } else {
+        await out.write(formatErrorLine(decoded.event, decoded.error) + '\n');
+      }
+      continue;
+    }
+    if (format === 'csv' && decoded.jets.count > 0 && !csvOrderAllows(decoded.event, tally, onProblem, `${source.label}, event ${decoded.event}, byte ${raw.offset}`)) continue;
+    tally.rows += decoded.jets.count;
+    await out.write(format === 'csv'
+      ? jetCsvRows(decoded.event, decoded.jets)
+      : formatJetsLine(decoded.event, decoded.jets, decoded.hasTowers) + '\n');
+  }
+}

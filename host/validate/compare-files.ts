@@ -1,0 +1,229 @@
+// Compare an outside implementation's jets with the reference on the same events, in the
+// tolerance mode of clustering-spec.md section 7 (the command is cli/commands/compare.ts).
+//
+//   EVENTS ──reader──> towers ──ReferenceClusterer──> reference jets ─┐
+//                                                                      ├─ ToleranceMatcher ─> ValidationAccumulator
+//   CANDIDATE ──candidate-reader──> candidate jets (by event number) ─┘
+//
+// Both files are read as streams, side by side by event number (each must be in increasing
+// event order; a candidate event out of order or repeated is named and left out). The
+// reference is computed with ptMin 0 so that a candidate jet just above ptMin whose reference
+// jet lies just below still finds its match; ptMin then decides which jets must agree.
+// The reference jets may come from the engine instead, which the project holds to the
+// reference's bits (bit-exact mode, `jetlag run --check all`), for speed; the report is the same.
+
+import { InputError, UsageError } from '../errors.js';
+import { openCandidate, type CandidateEvent, type CandidateSource } from '../input/candidate-reader.js';
+import { openEventSource } from '../input/event-source.js';
+import { EventTowerReader } from '../input/event-towers.js';
+import { describeGrid, sameGrid } from '../clustering/grid.js';
+import { makeClusterer, type EngineName } from '../clustering/clusterers.js';
+import { describeSettings } from '../clustering/describe-settings.js';
+import { ToleranceMatcher, type ToleranceSettings } from './tolerance-compare.js';
+import { DEFAULT_SETTINGS, type ClusterSettings, type Grid } from '../types.js';
+import { ValidationAccumulator } from './validation-accumulator.js';
+import type { ValidationReport } from './validation-report.js';
+
+export interface CompareOptions {
+  /**
+   * the grid of CSV events, from the grid options; asked for only once the candidate is open,
+   * so that an unreadable candidate is named before a bad grid option
+   */
+  csvGrid: () => Grid;
+  /** grid options were given: an events file, which carries its own grid, must not be given them */
+  gridGiven: boolean;
+  /** the algorithm settings: `base` (the candidate header's, else the defaults) with the options over it */
+  settingsOver: (base: ClusterSettings) => ClusterSettings;
+  tolerance: Omit<ToleranceSettings, 'ptMin'>;
+  worst: number;
+  /** what computes the reference jets (default: the reference) */
+  engine?: EngineName;
+  /** notes for stderr (setting overrides, candidate without settings) */
+  note: (line: string) => void;
+}
+
+export interface CompareResult {
+  report: ValidationReport;
+  settings: ClusterSettings;
+  grid: Grid;
+  candidate: { format: CandidateSource['format']; engine: string | null; producer: string | null };
+  /** an input that became unreadable part way (the report covers what came before) */
+  inputError: InputError | null;
+}
+
+const SETTING_NAMES: [keyof ClusterSettings, string][] = [
+  ['p', '--p / --algorithm'],
+  ['radius', '--radius'],
+  ['ptMin', '--ptmin'],
+  ['threshold', '--threshold'],
+  ['recombination', '--recombination'],
+];
+
+/** Reads both files side by side and gathers the report. */
+export async function compareFiles(eventsPath: string, candidatePath: string, options: CompareOptions): Promise<CompareResult> {
+  const candidate = await openCandidate(candidatePath);
+  let events: Awaited<ReturnType<typeof openEventSource>>;
+  try {
+    events = await openEventSource(eventsPath, { grid: options.csvGrid() });
+  } catch (error) {
+    await candidate.events.return(undefined as never);
+    throw error;
+  }
+  const grid = events.header.grid;
+  if (events.format === 'events-file' && options.gridGiven && !sameGrid(options.csvGrid(), grid)) {
+    await candidate.events.return(undefined as never);
+    await events.records.return(undefined as never);
+    throw new UsageError(`compare: ${events.label} carries its own grid; the grid options apply to CSV tower files only`);
+  }
+  const header = candidate.header;
+  if (header !== null && !sameGrid(header.grid, grid)) {
+    await candidate.events.return(undefined as never);
+    await events.records.return(undefined as never);
+    throw new InputError(candidate.label, `the candidate's grid (${describeGrid(header.grid)}) differs from the events' grid (${describeGrid(grid)}): it was not made from these events`);
+  }
+
+  // the candidate header's settings unless options say otherwise; each override is named
+  const base: ClusterSettings = header?.settings ? { ...header.settings } : { ...DEFAULT_SETTINGS };
+  const settings = options.settingsOver(base);
+  if (header?.settings) {
+    for (const [key, name] of SETTING_NAMES) {
+      if (key === 'ptMin' && settings.ptMin > header.settings.ptMin) {
+        options.note(`compare: jets must agree above --ptmin ${settings.ptMin} GeV (the candidate was made with ptmin ${header.settings.ptMin})`);
+        continue;
+      }
+      if (settings[key] !== header.settings[key]) {
+        options.note(`compare: ${name} ${settings[key]} differs from the candidate header's ${key} ${header.settings[key]} (engine ${header.settings.engine}); using ${settings[key]}`);
+      }
+    }
+    if (settings.ptMin < header.settings.ptMin) {
+      options.note(`compare: the candidate kept only jets with pt >= ${header.settings.ptMin} GeV, so reference jets in [${settings.ptMin}, ${header.settings.ptMin}) GeV will be unmatched`);
+    }
+  } else {
+    // a wrong setting here fails every event, so say which ones were used
+    options.note(`compare: the candidate (${candidate.format}) names no algorithm settings; the reference uses ${describeSettings(settings)}` +
+      ` from the options and defaults (threshold ${settings.threshold} GeV; give --algorithm, --radius, --threshold ... as the candidate was made)`);
+  }
+
+  const tolerance: ToleranceSettings = { ...options.tolerance, ptMin: settings.ptMin };
+  const matcher = new ToleranceMatcher(tolerance);
+  const accumulator = new ValidationAccumulator(tolerance, options.worst);
+  const reference = makeClusterer(options.engine ?? 'reference', grid, { ...settings, ptMin: 0 });
+  if ('withTowers' in reference) (reference as { withTowers: boolean }).withTowers = false;
+  const towerReader = new EventTowerReader(grid);
+  const empty: CandidateEvent = {
+    event: null, offset: 0, count: 0, pt: new Float64Array(0), rapidity: new Float64Array(0), phi: new Float64Array(0),
+    mass: new Float64Array(0), hasMass: false, error: '',
+  };
+
+  let inputError: InputError | null = null;
+  let candidateEnded = false;
+  // written inside nextCandidate, so kept in an object (TypeScript does not track closures)
+  const candidateState: { error: InputError | null } = { error: null };
+  let lastCandidate = -1;
+  const candidateIterator = candidate.events;
+
+  /** the next candidate event in increasing order; out-of-order and repeated ones are named */
+  const nextCandidate = async (): Promise<CandidateEvent | null> => {
+    while (!candidateEnded) {
+      let step: IteratorResult<CandidateEvent>;
+      try {
+        step = await candidateIterator.next();
+      } catch (error) {
+        if (!(error instanceof InputError)) throw error;
+        candidateState.error = error;
+        candidateEnded = true;
+        return null;
+      }
+      if (step.done) { candidateEnded = true; return null; }
+      const item = step.value;
+      if (item.event === null) {
+        accumulator.problem('unreadable candidate records', `byte ${item.offset}: ${item.error}`);
+        continue;
+      }
+      if (item.event === lastCandidate) {
+        accumulator.problem('duplicated candidate events', `event ${item.event} again at byte ${item.offset}; the first is used`);
+        continue;
+      }
+      if (item.event < lastCandidate) {
+        accumulator.problem('candidate events out of order', `event ${item.event} at byte ${item.offset} comes after event ${lastCandidate}; left out`);
+        continue;
+      }
+      lastCandidate = item.event;
+      return item;
+    }
+    return null;
+  };
+
+  let pending = await nextCandidate();
+  let lastEvent = -1;
+  try {
+    for await (const record of events.records) {
+      const towers = towerReader.read(record.bytes);
+      if (towers.event === undefined) {
+        accumulator.addInvalidInEvents();
+        accumulator.problem('invalid events in EVENTS', `record at byte ${record.offset}: ${towers.ok ? '' : towers.problem}`);
+        continue;
+      }
+      const event = towers.event;
+      if (event <= lastEvent) {
+        accumulator.addInvalidInEvents();
+        accumulator.problem('EVENTS out of order', `event ${event} at byte ${record.offset} comes after event ${lastEvent}; not compared`);
+        continue;
+      }
+      lastEvent = event;
+      while (pending !== null && pending.event! < event) {
+        accumulator.problem('candidate events not in EVENTS', `event ${pending.event} at byte ${pending.offset}`);
+        pending = await nextCandidate();
+      }
+      let mine: CandidateEvent | null = null;
+      if (pending !== null && pending.event === event) {
+        mine = pending;
+        pending = await nextCandidate();
+      }
+      if (!towers.ok) {
+        accumulator.addInvalidInEvents();
+        accumulator.problem('invalid events in EVENTS', `event ${event} at byte ${record.offset}: ${towers.problem}`);
+        if (mine !== null && mine.error === '' && mine.count > 0) {
+          accumulator.problem('candidate jets for events invalid in EVENTS', `event ${event}: ${mine.count} jets at byte ${mine.offset}`);
+        }
+        continue;
+      }
+      if (mine === null) {
+        if (candidateState.error !== null) {
+          accumulator.addMissing(event, `the candidate is unreadable from byte ${candidateState.error.offset ?? '?'} on`);
+          continue;
+        }
+        if (!candidate.absentMeansEmpty) {
+          accumulator.addMissing(event, `no ${candidate.format === 'jsonl' ? 'line' : 'record'} in ${candidate.label}`);
+          continue;
+        }
+        mine = empty;
+      }
+      if (mine.error !== '') {
+        accumulator.addInvalidInCandidate(event, `${mine.error} (byte ${mine.offset})`);
+        continue;
+      }
+      const jets = reference.cluster(towers.towerIndex, towers.towerEt);
+      matcher.match(jets, mine);
+      accumulator.addCompared(event, matcher, jets, mine, mine.hasMass ? mine.mass : null);
+    }
+  } catch (error) {
+    if (!(error instanceof InputError)) throw error;
+    inputError = error;
+  }
+  if (inputError === null) {
+    while (pending !== null) {
+      accumulator.problem('candidate events not in EVENTS', `event ${pending.event} at byte ${pending.offset}`);
+      pending = await nextCandidate();
+    }
+  } else {
+    await candidateIterator.return(undefined as never);
+  }
+  return {
+    report: accumulator.report(),
+    settings,
+    grid,
+    candidate: { format: candidate.format, engine: header?.settings?.engine ?? null, producer: header?.producer ?? null },
+    inputError: inputError ?? candidateState.error,
+  };
+}
