@@ -79,13 +79,13 @@ describe('CSV candidates', () => {
     const text = 'event,pt,y,phi\n0,1,2,3\n0,1,2\n1,5,0,0\n';
     const { events, error } = await readAll(file(text));
     expect(error).toBeNull();
-    expect(events[0].error).toBe(`row at byte ${text.indexOf('0,1,2\n')} has 3 fields, expected 4`);
+    expect(events[0].error).toBe(`row at line 3, byte ${text.indexOf('0,1,2\n')} has 3 fields, expected 4`);
     expect(events[1]).toMatchObject({ event: 1, count: 1, error: '' });
   });
 
   it('refuse nan and inf as numbers', async () => {
     const { events } = await readAll(file('event,pt,y,phi\n0,nan,0,0\n1,5,inf,0\n'));
-    expect(events.map((e) => e.error)).toEqual(['row at byte 15: bad pt "nan"', 'row at byte 25: bad y "inf"']);
+    expect(events.map((e) => e.error)).toEqual(['row at line 2, byte 15: bad pt "nan"', 'row at line 3, byte 25: bad y "inf"']);
   });
 
   it('stop at a bad event number with its byte offset, keeping the events before', async () => {
@@ -123,13 +123,13 @@ describe('JSON-line candidates', () => {
     const text = '{"event":0,"jets":[]}\n{oops\n{"event":1,"jets":[]}\n';
     const { events } = await readAll(file(text));
     expect(events[1].event).toBeNull();
-    expect(events[1].error).toMatch(/^line at byte 22 is not JSON/);
+    expect(events[1].error).toMatch(/^line 2 \(byte 22\) is not JSON/);
     expect(events[2].event).toBe(1);
   });
 
   it('name a jet without a number field', async () => {
     const { events } = await readAll(file('{"event":3,"jets":[{"pt":1,"y":2}]}\n'));
-    expect(events[0]).toMatchObject({ event: 3, error: 'line at byte 0: jet 0 has no number "phi"' });
+    expect(events[0]).toMatchObject({ event: 3, error: 'line 1 (byte 0): jet 0 has no number "phi"' });
   });
 
   it('read the same from a stream of three-byte chunks', async () => {

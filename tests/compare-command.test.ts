@@ -259,8 +259,9 @@ describe('hand-made candidates', () => {
     writeFileSync(path, text);
     const { report } = await compareJson(path, '--threshold', '0.2', '--ptmin', String(PT_MIN));
     const offset = text.indexOf('\n3,twelve,') + 1;
+    const line = text.slice(0, offset).split('\n').length;
     expect(report.events.invalidInCandidate).toBe(1);
-    expect(report.problems['events invalid in the candidate only'].examples[0]).toContain(`row at byte ${offset}: bad pt "twelve"`);
+    expect(report.problems['events invalid in the candidate only'].examples[0]).toContain(`row at line ${line}, byte ${offset}: bad pt "twelve"`);
     expect(report.events.compared).toBe(EVENT_COUNT - 1);
   });
 
@@ -269,7 +270,7 @@ describe('hand-made candidates', () => {
     writeFileSync(path, '0,50,0.1,1\n');
     const { code, stderr } = await compare(eventsPath, path);
     expect(code).toBe(2);
-    expect(stderr).toContain(`${path}, byte 0: missing header`);
+    expect(stderr).toContain(`${path}, line 1, byte 0: missing header`);
   });
 
   it('JSON lines as the cluster command writes them pass with 100 % agreement', async () => {

@@ -20,7 +20,8 @@
 //     events: AsyncGenerator<CandidateEvent>, in file order (order, duplicates and event
 //     numbers are judged by the caller, which knows the events). Unreadable input (a broken
 //     jets-file header or framing, a missing CSV header, a CSV row whose event number is
-//     unreadable) throws InputError naming file and byte offset, after every event before it.
+//     unreadable) throws InputError naming file, line (text formats) and byte offset, after
+//     every event before it. Problems of one CSV row or JSON line name its line and byte.
 //
 // A CandidateEvent is one event's jets in flat arrays (count, pt, rapidity, phi, mass), or,
 // with `error` set, an event the candidate says is invalid or whose jets cannot be read (a bad
@@ -140,6 +141,8 @@ async function* jetsFileEvents(records: AsyncGenerator<{ bytes: Uint8Array; offs
 interface Line {
   text: string;
   offset: number;
+  /** line number, from 1 */
+  number: number;
 }
 
 /** Lines of a text input with the byte offset of each; LF or CRLF; the last may lack its end. */
@@ -147,6 +150,7 @@ async function* lines(chunks: AsyncIterable<Uint8Array>, label: string): AsyncGe
   let carry: Buffer | null = null;
   let carryOffset = 0;
   let consumed = 0;
+  let number = 0;
   for await (const raw of chunks) {
     const chunk = Buffer.from(raw.buffer, raw.byteOffset, raw.byteLength);
     const base = consumed;
@@ -162,8 +166,9 @@ async function* lines(chunks: AsyncIterable<Uint8Array>, label: string): AsyncGe
         offset = carryOffset;
         carry = null;
       }
-      if (bytes.length > MAX_CANDIDATE_LINE_BYTES) throw new InputError(label, `line longer than ${MAX_CANDIDATE_LINE_BYTES} bytes (the rest of the file is unreadable)`, undefined, offset);
-      yield { text: lineText(bytes), offset };
+      number++;
+      if (bytes.length > MAX_CANDIDATE_LINE_BYTES) throw new InputError(label, `line longer than ${MAX_CANDIDATE_LINE_BYTES} bytes (the rest of the file is unreadable)`, undefined, offset, number);
+      yield { text: lineText(bytes), offset, number };
       start = end + 1;
     }
     if (start < chunk.length) {
@@ -174,10 +179,10 @@ async function* lines(chunks: AsyncIterable<Uint8Array>, label: string): AsyncGe
       } else {
         carry = Buffer.concat([carry, rest]);
       }
-      if (carry.length > MAX_CANDIDATE_LINE_BYTES) throw new InputError(label, `line longer than ${MAX_CANDIDATE_LINE_BYTES} bytes (the rest of the file is unreadable)`, undefined, carryOffset);
+      if (carry.length > MAX_CANDIDATE_LINE_BYTES) throw new InputError(label, `line longer than ${MAX_CANDIDATE_LINE_BYTES} bytes (the rest of the file is unreadable)`, undefined, carryOffset, number + 1);
     }
   }
-  if (carry !== null && carry.length > 0) yield { text: lineText(carry), offset: carryOffset };
+  if (carry !== null && carry.length > 0) yield { text: lineText(carry), offset: carryOffset, number: number + 1 };
 }
 
 function lineText(bytes: Buffer): string {
@@ -227,36 +232,37 @@ async function* csvEvents(input: AsyncGenerator<Line>, label: string): AsyncGene
   let currentOffset = 0;
   let currentError = '';
   let blankOffset = -1;
+  let blankLine = 0;
   const finish = (): CandidateEvent => {
     const out = currentError !== '' ? emptyEvent(current, currentOffset, currentError) : columns.take(current!, currentOffset, fields === 5);
     columns.count = 0;
     currentError = '';
     return out;
   };
-  for await (const { text: raw, offset } of input) {
+  for await (const { text: raw, offset, number } of input) {
     let text = raw;
     if (!headerSeen) {
       if (text.startsWith('\ufeff')) text = text.slice(1);
       const header = CANDIDATE_CSV_HEADERS.indexOf(text as (typeof CANDIDATE_CSV_HEADERS)[number]);
       if (header < 0) {
-        throw new InputError(label, `missing header: expected "${CANDIDATE_CSV_HEADERS[0]}" or "${CANDIDATE_CSV_HEADERS[1]}", got ${quote(text)}`, undefined, offset);
+        throw new InputError(label, `missing header: expected "${CANDIDATE_CSV_HEADERS[0]}" or "${CANDIDATE_CSV_HEADERS[1]}", got ${quote(text)}`, undefined, offset, number);
       }
       fields = header === 0 ? 4 : 5;
       headerSeen = true;
       continue;
     }
     if (text.length === 0) {
-      if (blankOffset < 0) blankOffset = offset;
+      if (blankOffset < 0) { blankOffset = offset; blankLine = number; }
       continue;
     }
     if (blankOffset >= 0) {
       if (current !== null) yield finish();
-      throw new InputError(label, 'bad event number "" (an empty line before more rows; the rest of the file is unreadable)', undefined, blankOffset);
+      throw new InputError(label, 'bad event number "" (an empty line before more rows; the rest of the file is unreadable)', undefined, blankOffset, blankLine);
     }
     const parts = text.split(',');
     if (!EVENT_NUMBER.test(parts[0]) || !Number.isSafeInteger(Number(parts[0]))) {
       if (current !== null) yield finish();
-      throw new InputError(label, `bad event number ${quote(parts[0])} (the rest of the file is unreadable)`, undefined, offset);
+      throw new InputError(label, `bad event number ${quote(parts[0])} (the rest of the file is unreadable)`, undefined, offset, number);
     }
     const event = Number(parts[0]);
     if (event !== current) {
@@ -266,7 +272,7 @@ async function* csvEvents(input: AsyncGenerator<Line>, label: string): AsyncGene
     }
     if (currentError !== '') continue;
     if (parts.length !== fields) {
-      currentError = `row at byte ${offset} has ${parts.length} fields, expected ${fields}`;
+      currentError = `row at line ${number}, byte ${offset} has ${parts.length} fields, expected ${fields}`;
       continue;
     }
     let bad = -1;
@@ -275,12 +281,12 @@ async function* csvEvents(input: AsyncGenerator<Line>, label: string): AsyncGene
     }
     if (bad > 0) {
       const names = ['event', 'pt', 'y', 'phi', 'm'];
-      currentError = `row at byte ${offset}: bad ${names[bad]} ${quote(parts[bad])}`;
+      currentError = `row at line ${number}, byte ${offset}: bad ${names[bad]} ${quote(parts[bad])}`;
       continue;
     }
     columns.push(Number(parts[1]), Number(parts[2]), Number(parts[3]), fields === 5 ? Number(parts[4]) : 0);
   }
-  if (!headerSeen) throw new InputError(label, `missing header: expected "${CANDIDATE_CSV_HEADERS[0]}"`, undefined, 0);
+  if (!headerSeen) throw new InputError(label, `missing header: expected "${CANDIDATE_CSV_HEADERS[0]}"`, undefined, 0, 1);
   if (current !== null) yield finish();
 }
 
@@ -293,23 +299,24 @@ function jsonValue(value: unknown): number {
 async function* jsonLineEvents(input: AsyncGenerator<Line>, label: string): AsyncGenerator<CandidateEvent> {
   void label;
   const columns = new JetColumns();
-  for await (const { text, offset } of input) {
+  for await (const { text, offset, number } of input) {
+    const at = `line ${number} (byte ${offset})`;
     const trimmed = text.trim();
     if (trimmed.length === 0) continue;
     let value: unknown;
     try {
       value = JSON.parse(trimmed.startsWith('\ufeff') ? trimmed.slice(1) : trimmed);
     } catch (error) {
-      yield emptyEvent(null, offset, `line at byte ${offset} is not JSON (${(error as Error).message})`);
+      yield emptyEvent(null, offset, `${at} is not JSON (${(error as Error).message})`);
       continue;
     }
     const line = value as { event?: unknown; jets?: unknown; error?: unknown };
     if (typeof value !== 'object' || value === null || Array.isArray(value)) {
-      yield emptyEvent(null, offset, `line at byte ${offset} is not a JSON object`);
+      yield emptyEvent(null, offset, `${at} is not a JSON object`);
       continue;
     }
     if (typeof line.event !== 'number' || !Number.isSafeInteger(line.event) || line.event < 0) {
-      yield emptyEvent(null, offset, `line at byte ${offset} has no event number (an integer >= 0), got ${quote(JSON.stringify(line.event) ?? 'nothing')}`);
+      yield emptyEvent(null, offset, `${at} has no event number (an integer >= 0), got ${quote(JSON.stringify(line.event) ?? 'nothing')}`);
       continue;
     }
     const event = line.event;
@@ -318,7 +325,7 @@ async function* jsonLineEvents(input: AsyncGenerator<Line>, label: string): Asyn
       continue;
     }
     if (!Array.isArray(line.jets)) {
-      yield emptyEvent(event, offset, `line at byte ${offset} has no "jets" array`);
+      yield emptyEvent(event, offset, `${at} has no "jets" array`);
       continue;
     }
     let problem = '';
@@ -334,7 +341,7 @@ async function* jsonLineEvents(input: AsyncGenerator<Line>, label: string): Asyn
     }
     if (problem !== '') {
       columns.count = 0;
-      yield emptyEvent(event, offset, `line at byte ${offset}: ${problem}`);
+      yield emptyEvent(event, offset, `${at}: ${problem}`);
       continue;
     }
     yield columns.take(event, offset, hasMass);
