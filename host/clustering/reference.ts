@@ -48,12 +48,14 @@ export function wrapAtan2(phi: number): number {
   return phi;
 }
 
-/** One step of the sequence, for tests and diagnostics: a merge (a, b) or a beam step (a, -1). */
-export interface ClusterStep {
-  a: number;
-  b: number;
-  measure: number;
-}
+/**
+ * One step of the sequence (spec section 4), for tests and diagnostics: jets a < b merged into
+ * the next jet, or a jet's beam candidate taken (the jet becomes final). `measure` is the chosen
+ * candidate's measure.
+ */
+export type ClusterStep =
+  | { kind: 'merge'; a: number; b: number; measure: number }
+  | { kind: 'beam'; jet: number; measure: number };
 
 export interface ReferenceOptions {
   /** report each jet's constituent tower indices (default true) */
@@ -169,14 +171,14 @@ export function clusterReference(
     }
 
     if (bestB === BEAM) {
-      history?.push({ a: bestA, b: -1, measure: bestMeasure });
+      history?.push({ kind: 'beam', jet: bestA, measure: bestMeasure });
       finals.push(bestA);
       active.splice(active.indexOf(bestA), 1);
       for (const j of active) if (nearest[j] === bestA) findNearest(j);
       continue;
     }
 
-    history?.push({ a: bestA, b: bestB, measure: bestMeasure });
+    history?.push({ kind: 'merge', a: bestA, b: bestB, measure: bestMeasure });
     const k = nextJet++;
     recombine(bestA, bestB, k);
     parentA[k] = bestA;

@@ -14,12 +14,10 @@ export type Rounding = (value: number) => number;
 export const DOUBLE_PRECISION: Rounding = (value) => value;
 export const SINGLE_PRECISION: Rounding = Math.fround;
 
-/** One step of the sequence: a merge of jets a < b, or jet a made final (b = -1). */
-export interface BruteForceStep {
-  a: number;
-  b: number;
-  measure: number;
-}
+/** One step of the sequence: a merge of jets a < b, or a jet's beam taken (it becomes final). */
+export type BruteForceStep =
+  | { kind: 'merge'; a: number; b: number; measure: number }
+  | { kind: 'beam'; jet: number; measure: number };
 
 export interface BruteForceOptions {
   /** default: double precision */
@@ -125,13 +123,13 @@ export function clusterBruteForce(
     }
     const chosen: Candidate = best!;
     if (chosen.b === BEAM) {
-      options.history?.push({ a: chosen.a, b: -1, measure: chosen.measure });
+      options.history?.push({ kind: 'beam', jet: chosen.a, measure: chosen.measure });
       finals.push(chosen.a);
       finalJets.push(jets[chosen.a]!);
       jets[chosen.a] = null;
       continue;
     }
-    options.history?.push({ a: chosen.a, b: chosen.b, measure: chosen.measure });
+    options.history?.push({ kind: 'merge', a: chosen.a, b: chosen.b, measure: chosen.measure });
     const a = jets[chosen.a]!;
     const b = jets[chosen.b]!;
     const merged = settings.recombination === 'e' ? addFourVectors(a, b, r, twoPi) : winnerTakesAll(a, b, r);
