@@ -30,7 +30,7 @@ export const REGION = {
   inIndex: 6, inEt: 7, inStart: 8,
   outJetStart: 9, outNs: 10, outClustered: 11, outStatus: 12,
   outPx: 13, outPy: 14, outPz: 15, outE: 16, outPt: 17, outY: 18, outPhi: 19, outMass: 20,
-  outTowerCount: 21, outTowerStart: 22, outTowers: 23,
+  outTowerCount: 21, outTowerStart: 22, outTowers: 23, outJetIndex: 24,
 } as const;
 
 interface EngineExports {
@@ -56,6 +56,8 @@ export interface BatchJets extends Omit<JetSet, 'count'> {
   clustered: Int32Array;
   /** ENGINE_OK, or ENGINE_INDEX_OUTSIDE / ENGINE_INDEX_REPEATED for an invalid event (no jets) */
   status: Int32Array;
+  /** each jet's index in the sequence (spec section 4): ties in a later reordering go by it */
+  jetIndex: Int32Array;
 }
 
 /** The package root: the directory above this file holding asconfig.json (host/clustering/ or dist/host/clustering/). */
@@ -148,6 +150,7 @@ interface Views {
   outTowerCount: Int32Array;
   outTowerStart: Int32Array;
   outTowers: Int32Array;
+  outJetIndex: Int32Array;
 }
 
 const DOUBLE_FIELDS = ['px', 'py', 'pz', 'energy', 'pt', 'rapidity', 'phi', 'mass'] as const;
@@ -205,6 +208,7 @@ export class WasmClusterer implements Clusterer {
       outTowerCount: i32(REGION.outTowerCount, towers),
       outTowerStart: i32(REGION.outTowerStart, towers),
       outTowers: i32(REGION.outTowers, towers),
+      outJetIndex: i32(REGION.outJetIndex, towers),
     };
   }
 
@@ -244,6 +248,7 @@ export class WasmClusterer implements Clusterer {
       phi: new Float64Array(total), mass: new Float64Array(total),
       towerCount: new Int32Array(total), towerStart: new Int32Array(total),
       towers: new Int32Array(withTowers ? total : 0),
+      jetIndex: new Int32Array(total),
     };
     let jetsDone = 0;
     let towersDone = 0;
@@ -274,6 +279,7 @@ export class WasmClusterer implements Clusterer {
         result[DOUBLE_FIELDS[f]].set(out.doubles[f].subarray(0, jets), jetsDone);
       }
       result.towerCount.set(out.outTowerCount.subarray(0, jets), jetsDone);
+      result.jetIndex.set(out.outJetIndex.subarray(0, jets), jetsDone);
       let towersWritten = 0;
       for (let k = 0; k < jets; k++) {
         result.towerStart[jetsDone + k] = towersDone + out.outTowerStart[k];
@@ -287,6 +293,7 @@ export class WasmClusterer implements Clusterer {
     for (const field of DOUBLE_FIELDS) result[field] = result[field].subarray(0, jetsDone);
     result.towerCount = result.towerCount.subarray(0, jetsDone);
     result.towerStart = result.towerStart.subarray(0, jetsDone);
+    result.jetIndex = result.jetIndex.subarray(0, jetsDone);
     result.towers = result.towers.subarray(0, towersDone);
     return result;
   }
