@@ -4,7 +4,7 @@
 //
 // API
 //   new EventTowerReader(grid | gridTables, { allowDuplicates? })
-//   .read(bytes): EventTowers
+//   .read(bytes): EventTowers        (= .decode(bytes) ?? .validate(), for timing the two apart)
 //     { ok: true,  event, towerIndex, towerEt, outsideAcceptance, fromDeposits }
 //     { ok: false, event (undefined when the record broke before its event number), problem }
 //   Pre-binned towers come back in input order as views of the reader's scratch, valid
@@ -42,12 +42,23 @@ export class EventTowerReader {
   }
 
   read(bytes: Uint8Array): EventTowers {
+    return this.decode(bytes) ?? this.validate();
+  }
+
+  /** read()'s first half (for a caller that times decoding apart): null when the record decoded. */
+  decode(bytes: Uint8Array): EventTowers | null {
     const d = this.decoder;
     try {
       d.decode(bytes);
     } catch (error) {
       return { ok: false, event: d.hasEvent ? d.event : undefined, problem: `bad event record: ${(error as Error).message}` };
     }
+    return null;
+  }
+
+  /** read()'s second half: validates (and bins) the record that decode() took last. */
+  validate(): EventTowers {
+    const d = this.decoder;
     const event = d.event;
     if (d.error !== '') return { ok: false, event, problem: d.error };
     const towers = d.towerIndexCount > 0 || d.towerEtCount > 0;

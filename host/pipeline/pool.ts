@@ -16,13 +16,14 @@
 // bytes are copied into a fresh ArrayBuffer per batch and that buffer is transferred: a
 // Node Buffer's .buffer may be the shared 8 KiB pool, which postMessage would clone whole.
 // A task that rejects (the worker threw, or its thread died) is delivered as a failed batch
-// with the reason; piscina starts a new thread for one that died.
+// with the reason; piscina starts a new thread for one that died. What travels each way, and
+// the layout of both buffers, is written in worker-contract.ts.
 
 import { Piscina } from 'piscina';
 import { setFlagsFromString } from 'node:v8';
 import { fileURLToPath } from 'node:url';
 import { nowNs } from './arrivals.js';
-import type { BatchResult, BatchTask, WorkerConfig } from './worker.js';
+import { batchDataStart, batchViews, type BatchResult, type BatchTask, type WorkerConfig } from './worker-contract.js';
 
 // Node 20 can abort the whole process (a native assertion in node_platform.cc, exit 134) when a
 // worker thread is torn down while V8 is still optimising its code on a background thread;
@@ -66,12 +67,9 @@ export class BatchBuilder {
 
   seal(batchIndex: number): SealedBatch {
     const count = this.records.length;
-    // Float64 offsets, then Uint32 starts (count + 1), padded to 8 so the data area is aligned
-    const dataStart = Math.ceil((8 * count + 4 * (count + 1)) / 8) * 8;
+    const dataStart = batchDataStart(count);
     const buffer = new ArrayBuffer(dataStart + this.bytes);
-    const recordOffset = new Float64Array(buffer, 0, count);
-    const recordStart = new Uint32Array(buffer, 8 * count, count + 1);
-    const data = new Uint8Array(buffer, dataStart);
+    const { recordOffset, recordStart, data } = batchViews(buffer, count, dataStart);
     let at = 0;
     for (let k = 0; k < count; k++) {
       recordOffset[k] = this.offsets[k];
@@ -107,6 +105,8 @@ export interface PoolOptions {
   /** batches dispatched but not yet delivered, at most */
   maxInFlight: number;
   config: WorkerConfig;
+  /** the worker script (default workerFile()); tests substitute one with planted faults */
+  workerFile?: string;
   /** called once per batch, in batch order */
   deliver: (outcome: BatchOutcome) => void;
 }
@@ -130,7 +130,7 @@ export class BatchPool {
     this.maxInFlight = Math.max(1, options.maxInFlight);
     this.deliver = options.deliver;
     this.piscina = new Piscina({
-      filename: workerFile(),
+      filename: options.workerFile ?? workerFile(),
       minThreads: options.workers,
       maxThreads: options.workers,
       idleTimeout: Infinity,
@@ -152,8 +152,9 @@ export class BatchPool {
   async warmUp(tasks: number): Promise<void> {
     const runs: Promise<unknown>[] = [];
     for (let k = 0; k < tasks; k++) {
-      const buffer = new ArrayBuffer(8);
-      runs.push(this.piscina.run({ batchIndex: -1, count: 0, dataStart: 8, buffer, warmUp: true } satisfies BatchTask, { transferList: [buffer] }));
+      const dataStart = batchDataStart(0);
+      const buffer = new ArrayBuffer(dataStart);
+      runs.push(this.piscina.run({ batchIndex: -1, count: 0, dataStart, buffer, warmUp: true } satisfies BatchTask, { transferList: [buffer] }));
     }
     await Promise.all(runs);
   }

@@ -4,7 +4,8 @@
 import { parseArgs, type CommandIo, type CommandMain, type CommandSpec, type OptionSpec, type ParsedArgs } from '../args.js';
 import { UsageError } from '../../errors.js';
 import { CLUSTER_OPTIONS, GRID_OPTIONS, clusterSettingsFrom, gridFrom } from '../common-options.js';
-import { DEFAULT_BATCH, DEFAULT_CHECK, findRate, inputErrorOf, runEvents, scanWorkers, type CheckOption, type RunOptions } from '../../pipeline/run.js';
+import { DEFAULT_BATCH, DEFAULT_CHECK, inputErrorOf, runEvents, type CheckOption, type RunOptions } from '../../pipeline/run.js';
+import { findRate, scanWorkers } from '../../pipeline/studies.js';
 import { describeMachine, type RunSummary } from '../../measure/summary.js';
 import { LISTED_MAX } from '../../measure/run-tally.js';
 import { formatReport } from '../../measure/report.js';

@@ -1,0 +1,159 @@
+// The main thread's side of a run's results: each batch's outcome, delivered by the pool in
+// batch order, is tallied (events, stage times, latency, budget, check), its problems become
+// one line each, its disagreeing events go to the repro file and its jets to the jets file.
+
+import { RunTally, STAGES } from '../measure/run-tally.js';
+import { describeDifference } from '../validate/bit-exact.js';
+import type { OutputFile } from '../output/record-writer.js';
+import type { ReproWriter } from '../output/repro-writer.js';
+import type { BatchOutcome } from './pool.js';
+import { resultViews, STAGE_CHECK, STAGE_CLUSTER, STAGE_COUNT, STAGE_ENCODE, STAGE_INDEX, STATUS_OK, type BatchResult } from './worker-contract.js';
+
+export interface DeliveryContext {
+  /** the input as named in problem lines */
+  label: string;
+  /** open loop: the budget holds against end-to-end latency, else against the worker's time */
+  openLoop: boolean;
+  budgetNs: number;
+  /** the repro file's path, for problem lines */
+  reproPath: string | null;
+  /** one line per problem (invalid event, failed batch, check difference) */
+  onProblem?: (line: string) => void;
+}
+
+export class RunDelivery {
+  readonly tally = new RunTally();
+  /** the clusterer the workers report (the configured one until a result comes back) */
+  engineName: string;
+  /** the jets file's latest write that has not finished; the reader waits on it before a batch */
+  private jetsPending: Promise<void> | undefined;
+  private readonly reproPending: Promise<void>[] = [];
+
+  constructor(
+    private readonly context: DeliveryContext,
+    engineName: string,
+    private readonly jetsFile: OutputFile | null,
+    jetsHeaderPending: Promise<void> | undefined,
+    private readonly repro: ReproWriter | null,
+  ) {
+    this.engineName = engineName;
+    this.jetsPending = jetsHeaderPending;
+  }
+
+  private problem(line: string): void {
+    if (this.context.onProblem) this.context.onProblem(line);
+  }
+
+  /** The pool's deliver callback: one batch's outcome, in batch order. */
+  deliver(outcome: BatchOutcome): void {
+    const { count, result } = outcome;
+    this.tally.read += count;
+    if (result === null) {
+      this.tallyFailedBatch(outcome);
+      return;
+    }
+    this.engineName = result.engine;
+    this.tallyEvents(outcome, result);
+    this.tallyBatch(result);
+    this.writeDisagreeing(result);
+    if (this.jetsFile && result.jetsBytes) {
+      // the stream queues what it cannot take yet; the reader waits on this before the next batch
+      const pending = this.jetsFile.write(result.jetsBytes);
+      if (pending) this.jetsPending = pending;
+    }
+  }
+
+  private tallyFailedBatch(outcome: BatchOutcome): void {
+    const { count, firstRecord, recordOffsets } = outcome;
+    this.tally.addFailedBatch({ firstRecord, events: count, offset: recordOffsets[0], reason: outcome.failure ?? 'unknown failure' });
+    this.problem(`${this.context.label}, records ${firstRecord}..${firstRecord + count - 1}, byte ${recordOffsets[0]}: batch failed: ${outcome.failure}`);
+  }
+
+  /** per event: invalid ones listed; valid ones' stage times, latency and budget recorded */
+  private tallyEvents(outcome: BatchOutcome, result: BatchResult): void {
+    const { tally } = this;
+    const { label, openLoop, budgetNs } = this.context;
+    const views = resultViews(result.buffer, outcome.count);
+    const invalidReasons = new Map<number, string>();
+    for (const entry of result.invalid) invalidReasons.set(entry.index, entry.reason);
+    for (let k = 0; k < outcome.count; k++) {
+      const at = k * STAGE_COUNT;
+      if (views.status[k] !== STATUS_OK) {
+        const event = views.eventNumber[k] >= 0 ? views.eventNumber[k] : null;
+        const reason = invalidReasons.get(k) ?? 'invalid';
+        tally.addInvalid({ event, record: outcome.firstRecord + k, offset: outcome.recordOffsets[k], reason });
+        this.problem(`${label}, ${event === null ? `record ${outcome.firstRecord + k}` : `event ${event}`}, byte ${outcome.recordOffsets[k]}: ${reason}`);
+        continue;
+      }
+      tally.ok++;
+      const clusterNs = views.stageNs[at + STAGE_CLUSTER];
+      tally.cluster.recordNs(clusterNs);
+      for (const stage of STAGES) {
+        const index = STAGE_INDEX[stage];
+        const value = views.stageNs[at + index];
+        // stages that did not run for this event (check not sampled, no jets file) are not recorded
+        if ((index === STAGE_CHECK || index === STAGE_ENCODE) && value === 0) continue;
+        tally.stages[stage].recordNs(value);
+      }
+      tally.multiplicity.record(views.towersClustered[k], clusterNs);
+      const endToEndNs = outcome.finishedNs - outcome.startNs[k];
+      tally.endToEnd.recordNs(endToEndNs);
+      // a closed loop has no arrivals: its events wait for the batches before them by design,
+      // so the budget is held against the event's own time in the worker; the reference check
+      // is validation of the tool's engine, not work a trigger would do, so it is left out
+      let workerNs = 0;
+      for (let s = 0; s < STAGE_COUNT; s++) if (s !== STAGE_CHECK) workerNs += views.stageNs[at + s];
+      if ((openLoop ? endToEndNs : workerNs) > budgetNs) tally.overBudget++;
+    }
+  }
+
+  /** the batch's counts: jets, towers, check agreement and differences */
+  private tallyBatch(result: BatchResult): void {
+    const { tally } = this;
+    tally.jets += result.jets;
+    tally.towers.offered += result.towersOffered;
+    tally.towers.belowThreshold += result.towersBelowThreshold;
+    tally.towers.outsideAcceptance += result.towersOutsideAcceptance;
+    tally.towers.clustered += result.towersOffered - result.towersBelowThreshold;
+    tally.check.checked += result.checked;
+    tally.check.agreeing += result.agreeing;
+    tally.check.disagreeing += result.checked - result.agreeing;
+    for (const difference of result.differences) {
+      tally.addDifference(difference);
+      this.problem(`${this.context.label}: check: ${describeDifference(difference.event, difference)}`);
+    }
+  }
+
+  private writeDisagreeing(result: BatchResult): void {
+    if (!this.repro) return;
+    for (const { event, bytes } of result.disagreeing) {
+      try {
+        const pending = this.repro.writeRecord(event, bytes);
+        if (pending) this.reproPending.push(pending);
+      } catch (error) {
+        this.problem(`${this.context.label}, event ${event}: not written to ${this.context.reproPath}: ${(error as Error).message}`);
+      }
+    }
+  }
+
+  /** Resolves when the jets file has taken what it was given so far. */
+  async jetsWritten(): Promise<void> {
+    if (this.jetsPending) { await this.jetsPending; this.jetsPending = undefined; }
+  }
+
+  /** After a failed run: neither output file is left behind. */
+  async abortOutputs(): Promise<void> {
+    await this.jetsFile?.abort();
+    await this.repro?.abort();
+  }
+
+  async closeRepro(): Promise<void> {
+    if (!this.repro) return;
+    await Promise.all(this.reproPending);
+    await this.repro.close();
+  }
+
+  async closeJets(): Promise<void> {
+    await this.jetsFile?.close();
+  }
+}

@@ -1,0 +1,92 @@
+// The reading side of a run: event records from the file, this shard's share of them, gathered
+// into batches and handed to the pool. Closed loop: a batch goes when it is full. Open loop:
+// each event waits for its scheduled arrival, and what is already due goes at once.
+
+import { InputError } from '../errors.js';
+import type { RawRecord } from '../input/record-reader.js';
+import { nowNs, sleepUntilNs, type ArrivalSchedule } from './arrivals.js';
+import { BatchBuilder, type BatchPool } from './pool.js';
+import type { RunDelivery } from './run-delivery.js';
+
+export interface FeedPlan {
+  /** events per batch, at most */
+  batch: number;
+  shard: { index: number; count: number };
+  /** stop after this many event records (of the whole file, before sharding) */
+  maxEvents: number | null | undefined;
+  signal: AbortSignal | undefined;
+}
+
+export class RecordFeed {
+  /** event records seen in the file */
+  records = 0;
+  /** byte offset of the last record read */
+  lastOffset = 0;
+  /** why the run stopped before the end of its input, if it did */
+  partialReason: string | null = null;
+  inputError: InputError | null = null;
+  private readonly builder = new BatchBuilder();
+  private dispatchIndex = 0;
+  private builderFirstRecord = 0;
+  /** scheduled arrival of each event in the builder (open loop) */
+  private readonly builderStartNs: number[] = [];
+
+  constructor(
+    private readonly plan: FeedPlan,
+    private readonly schedule: ArrivalSchedule,
+    private readonly pool: BatchPool,
+    private readonly delivery: RunDelivery,
+  ) {}
+
+  /** Reads records until the input ends, breaks or the run is stopped; dispatches every batch. */
+  async feed(records: AsyncIterable<RawRecord>, startNs: number): Promise<void> {
+    const { batch, shard, maxEvents, signal } = this.plan;
+    const builder = this.builder;
+    try {
+      for await (const record of records) {
+        if (signal?.aborted) { this.partialReason = 'interrupted: reading stopped, batches in flight drained'; break; }
+        if (maxEvents != null && this.records >= maxEvents) break;
+        const record0 = this.records++;
+        this.lastOffset = record.offset;
+        // shards take every n-th group of `batch` records, whatever the run's timing
+        if (Math.floor(record0 / batch) % shard.count !== shard.index) continue;
+        if (this.schedule.openLoop) {
+          const dueNs = startNs + this.schedule.next();
+          // events already due go now rather than wait for this one
+          if (builder.count > 0 && (builder.count >= batch || dueNs > nowNs())) await this.send();
+          await sleepUntilNs(dueNs);
+          if (builder.count === 0) this.builderFirstRecord = record0;
+          builder.add(record.bytes, record.offset);
+          this.builderStartNs.push(dueNs);
+        } else {
+          if (builder.count === 0) this.builderFirstRecord = record0;
+          builder.add(record.bytes, record.offset);
+          if (builder.count >= batch) await this.send();
+        }
+      }
+    } catch (error) {
+      if (!(error instanceof InputError)) throw error;
+      // the rest of the file is unreadable: keep what came before it
+      this.inputError = error;
+      this.partialReason = `input unreadable from here on: ${error.message}`;
+    }
+    if (builder.count > 0) await this.send();
+  }
+
+  /** Seals the builder's batch and dispatches it once the jets file and the pool have room. */
+  private async send(): Promise<void> {
+    await this.delivery.jetsWritten();
+    await this.pool.waitForRoom();
+    const sealed = this.builder.seal(this.dispatchIndex++);
+    const starts = new Float64Array(sealed.task.count);
+    const dispatchNs = nowNs();
+    if (this.schedule.openLoop) {
+      for (let k = 0; k < starts.length; k++) {
+        starts[k] = this.builderStartNs[k];
+        this.delivery.tally.dispatchLag.recordNs(dispatchNs - this.builderStartNs[k]);
+      }
+    } else starts.fill(dispatchNs);
+    this.builderStartNs.length = 0;
+    this.pool.dispatch(sealed, this.builderFirstRecord, starts);
+  }
+}

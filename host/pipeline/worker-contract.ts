@@ -1,0 +1,122 @@
+// What the pool (pool.ts, main thread) and a pool worker (worker.ts) exchange: the worker's
+// configuration, one message each way per batch, and the layouts of the two buffers those
+// messages carry. Both sides build their views with the functions below, so the layout is
+// written here only.
+//
+// Batch buffer (host -> worker, one transferred ArrayBuffer, BatchTask.buffer):
+//   Float64 recordOffset[count]       byte offset of each record in the file (for error texts)
+//   Uint32  recordStart[count + 1]    where each record starts in the record bytes; the last
+//                                     entry is their total length
+//   pad to a multiple of 8 bytes      (BatchTask.dataStart = batchDataStart(count))
+//   Uint8   record bytes              the records of the batch, back to back, as read
+//
+// Result buffer (worker -> host, one transferred ArrayBuffer, BatchResult.buffer):
+//   Float64 eventNumber[count]                 -1 for a record that broke before its number
+//   Float64 stageNs[count * STAGE_COUNT]       event-major: event k's stage s at k * STAGE_COUNT + s
+//   Int32   towersClustered[count]             towers above the threshold (valid events)
+//   Uint8   status[count]                      STATUS_OK or STATUS_INVALID
+// Everything else (invalid events' reasons, check differences, jets bytes) travels as small
+// plain fields of BatchResult beside the buffer.
+
+import type { EngineName } from '../clustering/clusterers.js';
+import type { JetDifference } from '../validate/bit-exact.js';
+import type { ClusterSettings, Grid } from '../types.js';
+
+// ---- the stage table: one column per stage of an event's way through the worker ----------
+// Named as measure/ reports them (STAGE_INDEX below maps those names to these columns).
+export const STAGE_DECODE = 0;
+export const STAGE_BIN = 1;
+export const STAGE_CLUSTER = 2;
+/** 0 when the event was not in the check sample */
+export const STAGE_CHECK = 3;
+/** 0 when no jets file is written */
+export const STAGE_ENCODE = 4;
+export const STAGE_COUNT = 5;
+
+/** The stage table's column of each stage, by the stage's reported name. */
+export const STAGE_INDEX = {
+  decode: STAGE_DECODE,
+  bin: STAGE_BIN,
+  cluster: STAGE_CLUSTER,
+  check: STAGE_CHECK,
+  encode: STAGE_ENCODE,
+} as const;
+
+export const STATUS_OK = 0;
+export const STATUS_INVALID = 1;
+
+/** Given to every worker when the pool starts (piscina's workerData). */
+export interface WorkerConfig {
+  grid: Grid;
+  settings: ClusterSettings;
+  /** the engine or the reference; never swapped silently for the other */
+  engine: EngineName;
+  /** fraction of events compared with the reference: 1 all, 0 none */
+  checkFraction: number;
+  checkSeed: number;
+  /** encode each event's jets for a jets file */
+  encodeJets: boolean;
+}
+
+/** Host -> worker, one per batch. */
+export interface BatchTask {
+  batchIndex: number;
+  count: number;
+  dataStart: number;
+  buffer: ArrayBuffer;
+  /** an empty batch that warms the engine up (pool start) */
+  warmUp?: boolean;
+}
+
+export interface InvalidEntry {
+  /** the event's place in its batch */
+  index: number;
+  reason: string;
+}
+
+/** Worker -> host, one per batch. */
+export interface BatchResult {
+  batchIndex: number;
+  count: number;
+  engine: string;
+  buffer: ArrayBuffer;
+  invalid: InvalidEntry[];
+  differences: (JetDifference & { event: number })[];
+  /** the record bytes of each disagreeing event, for a repro file */
+  disagreeing: { event: number; bytes: Uint8Array }[];
+  checked: number;
+  agreeing: number;
+  jets: number;
+  towersOffered: number;
+  towersBelowThreshold: number;
+  towersOutsideAcceptance: number;
+  /** delimited jets records of this batch's events in order, when encodeJets is on */
+  jetsBytes: Uint8Array | null;
+}
+
+/** Where the record bytes start in a batch buffer of `count` records. */
+export function batchDataStart(count: number): number {
+  return Math.ceil((8 * count + 4 * (count + 1)) / 8) * 8;
+}
+
+/** Views into a batch buffer (the host fills them, the worker reads them). */
+export function batchViews(buffer: ArrayBuffer, count: number, dataStart: number) {
+  const recordOffset = new Float64Array(buffer, 0, count);
+  const recordStart = new Uint32Array(buffer, 8 * count, count + 1);
+  const data = new Uint8Array(buffer, dataStart);
+  return { recordOffset, recordStart, data };
+}
+
+export function resultBytes(count: number): number {
+  return 8 * count + 8 * count * STAGE_COUNT + 4 * count + count;
+}
+
+/** Views into a result buffer (the worker fills them, the host reads them). */
+export function resultViews(buffer: ArrayBuffer, count: number) {
+  let at = 0;
+  const eventNumber = new Float64Array(buffer, at, count); at += 8 * count;
+  const stageNs = new Float64Array(buffer, at, count * STAGE_COUNT); at += 8 * count * STAGE_COUNT;
+  const towersClustered = new Int32Array(buffer, at, count); at += 4 * count;
+  const status = new Uint8Array(buffer, at, count);
+  return { eventNumber, stageNs, towersClustered, status };
+}

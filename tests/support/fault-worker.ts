@@ -1,0 +1,67 @@
+// A pool worker with planted faults, to show the host copes. It is the product worker plus the
+// switches below, read from the environment when the thread starts; tests hand its compiled
+// file (dist/tests/support/fault-worker.js, built by `npm run build:host`) to runEvents or
+// BatchPool as their workerFile.
+//   JETLAG_TEST_FAULT=throw:B     batch B throws inside the worker
+//   JETLAG_TEST_FAULT=exit:B      the worker thread exits while running batch B
+//   JETLAG_TEST_FAULT=stall:B:MS  batch B sleeps MS milliseconds before it starts
+//   JETLAG_TEST_PERTURB_EVENT=E   the engine's first jet of event E gets its pt one ulp higher,
+//                                 so the check has a disagreement to find
+//   JETLAG_TEST_SYNTHETIC_TIMES=1 stage times are a fixed function of the event, not measured,
+//                                 so two runs over the same events record identical values
+
+import { makeBatchRunner } from '../../host/pipeline/worker.js';
+import type { WorkerHooks } from '../../host/pipeline/cluster-batch.js';
+import { STAGE_BIN, STAGE_CHECK, STAGE_CLUSTER, STAGE_DECODE, STAGE_ENCODE, type BatchTask } from '../../host/pipeline/worker-contract.js';
+import type { JetSet } from '../../host/types.js';
+
+interface PlantedFault { kind: 'throw' | 'exit' | 'stall'; batch: number; ms: number }
+
+function plantedFault(): PlantedFault | null {
+  const text = process.env.JETLAG_TEST_FAULT;
+  if (!text) return null;
+  const [kind, batch, ms] = text.split(':');
+  if (kind !== 'throw' && kind !== 'exit' && kind !== 'stall') return null;
+  return { kind, batch: Number(batch), ms: Number(ms ?? 0) };
+}
+
+/** The jets with the first jet's pt moved up by one ulp. */
+function perturbed(jets: JetSet): JetSet {
+  if (jets.count === 0) return jets;
+  const pt = Float64Array.from(jets.pt);
+  const bits = new BigInt64Array(pt.buffer, 0, 1);
+  bits[0] += 1n;
+  return { ...jets, pt };
+}
+
+function hooksFromEnvironment(): WorkerHooks {
+  const hooks: WorkerHooks = {};
+  const perturbEvent = process.env.JETLAG_TEST_PERTURB_EVENT;
+  if (perturbEvent !== undefined) {
+    const event = Number(perturbEvent);
+    hooks.engineJets = (eventNumber, jets) => (eventNumber === event ? perturbed(jets) : jets);
+  }
+  if (process.env.JETLAG_TEST_SYNTHETIC_TIMES === '1') {
+    // decode 1 µs, bin 2 µs, cluster 50 ns per tower + 1 µs; check and encode only if they ran
+    hooks.stageTimes = (stageNs, at, towersClustered) => {
+      stageNs[at + STAGE_DECODE] = 1000;
+      stageNs[at + STAGE_BIN] = 2000;
+      stageNs[at + STAGE_CLUSTER] = 1000 + 50 * towersClustered;
+      stageNs[at + STAGE_CHECK] = stageNs[at + STAGE_CHECK] > 0 ? 500 : 0;
+      stageNs[at + STAGE_ENCODE] = stageNs[at + STAGE_ENCODE] > 0 ? 300 : 0;
+    };
+  }
+  return hooks;
+}
+
+const fault = plantedFault();
+const runBatch = makeBatchRunner(hooksFromEnvironment());
+
+export default async function runBatchWithFaults(task: BatchTask): Promise<unknown> {
+  if (fault && fault.batch === task.batchIndex) {
+    if (fault.kind === 'throw') throw new Error(`planted fault in batch ${task.batchIndex}`);
+    if (fault.kind === 'exit') process.exit(3);
+    if (fault.kind === 'stall') await new Promise((resolve) => setTimeout(resolve, fault.ms));
+  }
+  return runBatch(task);
+}
