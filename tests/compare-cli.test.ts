@@ -43,7 +43,7 @@ describe('jetlag compare exit codes', () => {
     writeFileSync(join(directory, 'bad.csv'), '0,30,0,1\n');
     const result = jetlag('compare', 'events.pb', 'bad.csv');
     expect(result.code).toBe(2);
-    expect(result.stderr.trim().split('\n').at(-1)).toBe('jetlag: bad.csv, byte 0: missing header: expected "event,pt,y,phi" or "event,pt,y,phi,m", got "0,30,0,1"');
+    expect(result.stderr.trim().split('\n').at(-1)).toBe('jetlag compare: bad.csv, line 1, byte 0: missing header: expected "event,pt,y,phi" or "event,pt,y,phi,m", got "0,30,0,1"');
   });
 
   it('2 for a --require outside [0, 1]', () => {

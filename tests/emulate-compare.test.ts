@@ -16,11 +16,11 @@ const eventsPath = join(dir, 'events.pb');
 
 async function emulateAndCompare(mode: string, format: 'jets' | 'jsonl') {
   const candidate = join(dir, `${mode.replace(':', '-')}.${format}`);
-  const clusterCode = await clusterMain([eventsPath, '--emulate', mode, '--threshold', '0.5', '--ptmin', '20', '--format', format, '--out', candidate, '--quiet'], fakeIo().io);
+  const clusterCode = await clusterMain([eventsPath, '--emulate', mode, '--threshold', '0.5', '--ptmin', '20', '--format', format, '--out', candidate, '--quiet', '--force'], fakeIo().io); // tests repeat a mode
   expect(clusterCode).toBe(0);
   const json = join(dir, `${mode.replace(':', '-')}-${format}.json`);
   const extra = format === 'jsonl' ? ['--threshold', '0.5', '--ptmin', '20'] : [];
-  const code = await compareMain([eventsPath, candidate, '--json', json, ...extra], fakeIo().io);
+  const code = await compareMain([eventsPath, candidate, '--json', json, '--force', ...extra], fakeIo().io);
   return { code, report: JSON.parse(readFileSync(json, 'utf8')) };
 }
 

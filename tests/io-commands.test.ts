@@ -71,12 +71,12 @@ describe('jetlag import', () => {
     const r = await run(importMain, ['--csv', csv, '--out', out]);
     expect(r.code).toBe(0);
     expect(r.stderr).toBe(
-      `jetlag import: ${csv}, event 1, byte 27: et "1e" is not a decimal number (kept as an invalid event)\n` +
+      `jetlag import: ${csv}, event 1 (line 3), byte 27: et "1e" is not a decimal number (kept as an invalid event)\n` +
       `jetlag import: wrote 3 events (2 towers, 1 invalid) to ${out}\n`);
     const { events } = await recordsOf(out);
     expect(events.map((e) => [e.event, e.towerEt.length, e.error])).toEqual([
       [0, 1, ''],
-      [1, 0, `et "1e" is not a decimal number (CSV ${csv}, row at byte 27)`],
+      [1, 0, `et "1e" is not a decimal number (CSV ${csv}, line 3, byte 27)`],
       [2, 1, ''],
     ]);
   });
@@ -150,7 +150,7 @@ describe('jetlag export of events', () => {
     expect(r.code).toBe(0);
     expect(r.stdout).toBe([
       '{"event":0,"towers":[[1,2,0.5],[1,3,7]]}',
-      formatErrorLine(1, `et "x" is not a decimal number (CSV ${csv}, row at byte 37)`),
+      formatErrorLine(1, `et "x" is not a decimal number (CSV ${csv}, line 4, byte 37)`),
       '{"event":2,"towers":[]}',
       '{"event":3,"towers":[[0,0,1]]}',
     ].join('\n') + '\n');

@@ -21,7 +21,7 @@ const ORDER = [5, 3, 3, 10];
 async function exportToCsv(path: string) {
   const out = `${path}.csv`;
   const fake = fakeIo();
-  const code = await exportMain([path, '--format', 'csv', '--out', out], fake.io);
+  const code = await exportMain([path, '--format', 'csv', '--out', out, '--force'], fake.io); // each test exports again
   return { code, csv: readFileSync(out, 'utf8'), stderr: fake.stderr() };
 }
 

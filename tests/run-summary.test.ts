@@ -80,7 +80,7 @@ describe('run summaries', () => {
     const a = render(tallyOf([1, 2, 3]), 0, 2);
     const b = render(tallyOf([4, 5, 6]), 1, 2);
     b.configuration = { ...b.configuration, settings: { ...b.configuration.settings, radius: 0.6 } };
-    expect(() => mergeSummaries([{ name: 'a.json', summary: a }, { name: 'b.json', summary: b }])).toThrow('b.json: configuration differs from a.json');
+    expect(() => mergeSummaries([{ name: 'a.json', summary: a }, { name: 'b.json', summary: b }])).toThrow('b.json: configuration differs from a.json: settings.radius is 0.6, there 0.4 (');
   });
 
   it('will not render counts that do not add up', () => {

@@ -3,6 +3,7 @@
 import { type OptionSpec, type ParsedArgs } from './args.js';
 import { UsageError } from '../errors.js';
 import { checkGrid } from '../clustering/grid.js';
+import { DEFAULT_MAX_EVENT_GAP } from '../input/csv-towers.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS, type ClusterSettings, type Grid } from '../types.js';
 
 export const ALGORITHM_EXPONENTS: Record<string, number> = {
@@ -31,6 +32,21 @@ export const GRID_OPTIONS: OptionSpec[] = [
 export const FORCE_OPTION: OptionSpec = {
   name: 'force', kind: 'flag', description: 'replace output files that exist (devices, pipes and - are always written in place)',
 };
+
+/** commands that read CSV tower files take it (spec section 1, maxEventGap) */
+export const MAX_EVENT_GAP_OPTION: OptionSpec = {
+  name: 'max-event-gap', kind: 'integer', argument: '<n>',
+  description: `CSV towers: largest jump of event numbers from one row to the next; a larger one makes the rest of the file unreadable (default: ${DEFAULT_MAX_EVENT_GAP})`,
+};
+
+/** --max-event-gap, checked: undefined when not given */
+export function maxEventGapFrom(args: ParsedArgs, command: string): number | undefined {
+  const value = args.values['max-event-gap'] as number | undefined;
+  if (value !== undefined && !(Number.isSafeInteger(value) && value >= 1)) {
+    throw new UsageError(`${command}: --max-event-gap must be an integer >= 1, got ${value}`);
+  }
+  return value;
+}
 
 /** true when any algorithm option was given (a file header's settings are then overridden) */
 export function hasClusterOptions(args: ParsedArgs): boolean {

@@ -6,7 +6,7 @@ import { readFileSync } from 'node:fs';
 import { InputError } from '../errors.js';
 import { LatencyRecorder } from './latency.js';
 import { RunTally, STAGES } from './run-tally.js';
-import { renderSummary, type MachineInfo, type RunConfiguration, type RunSummary } from './summary.js';
+import { renderSummary, SUMMARY_VERSION, type MachineInfo, type RunConfiguration, type RunSummary } from './summary.js';
 
 /** Rebuilds the tally of a summary (histograms decoded, counts and lists copied). */
 export function tallyFromSummary(summary: RunSummary, where = 'summary'): RunTally {
@@ -24,9 +24,13 @@ export function tallyFromSummary(summary: RunSummary, where = 'summary'): RunTal
   tally.check.agreeing = summary.check.agreeing;
   tally.check.disagreeing = summary.check.disagreeing;
   tally.check.differences.push(...summary.check.differences);
-  tally.cluster.merge(LatencyRecorder.decode(summary.histograms.cluster, `${where}: histograms.cluster`));
-  tally.endToEnd.merge(LatencyRecorder.decode(summary.histograms.endToEnd, `${where}: histograms.endToEnd`));
-  tally.dispatchLag.merge(LatencyRecorder.decode(summary.histograms.dispatchLag, `${where}: histograms.dispatchLag`));
+  const histograms = summary.histograms;
+  tally.service.merge(LatencyRecorder.decode(histograms.service, `${where}: histograms.service`));
+  tally.wait.merge(LatencyRecorder.decode(histograms.wait, `${where}: histograms.wait`));
+  tally.returnTrip.merge(LatencyRecorder.decode(histograms.return, `${where}: histograms.return`));
+  tally.endToEnd.merge(LatencyRecorder.decode(histograms.endToEnd, `${where}: histograms.endToEnd`));
+  tally.dispatchLateness.merge(LatencyRecorder.decode(histograms.dispatchLateness, `${where}: histograms.dispatchLateness`));
+  tally.towersPerEvent.merge(LatencyRecorder.decode(histograms.towersPerEvent, `${where}: histograms.towersPerEvent`));
   for (const stage of STAGES) {
     tally.stages[stage].merge(LatencyRecorder.decode(summary.histograms.stages[stage], `${where}: histograms.stages.${stage}`));
   }
@@ -36,25 +40,56 @@ export function tallyFromSummary(summary: RunSummary, where = 'summary'): RunTal
     tally.multiplicity.sumTowers[entry.bin] = entry.sumTowers;
   }
   tally.overBudget = summary.budget?.over ?? 0;
+  tally.saturation = summary.saturation ? { ...summary.saturation } : null;
+  tally.machineLoad = summary.machineLoad ? { ...summary.machineLoad } : null;
   return tally;
 }
 
-/** What must agree between summaries for their sum to mean anything. */
-function mergeKey(configuration: RunConfiguration): string {
+/** What must agree between summaries for their sum to mean anything, named as the reader knows it. */
+function mergeFields(configuration: RunConfiguration): Record<string, unknown> {
   const { grid, settings, batch, arrival, budgetUs, check, engine, maxEvents } = configuration;
-  return JSON.stringify({ grid, settings, batch, arrival, budgetUs, check, engine, maxEvents, shardCount: configuration.shard.count, input: configuration.input?.label });
+  return { 'input label': configuration.input?.label, grid, settings, batch, arrival, budgetUs, check, engine, '--events': maxEvents, 'shard count': configuration.shard.count };
+}
+
+function mergeKey(configuration: RunConfiguration): string {
+  return JSON.stringify(mergeFields(configuration));
+}
+
+/** The first field (one level into objects: settings.radius) on which two configurations differ, with both values. */
+function firstDifference(a: RunConfiguration, b: RunConfiguration): string {
+  const left = mergeFields(a);
+  const right = mergeFields(b);
+  for (const field of Object.keys(left)) {
+    const x = left[field];
+    const y = right[field];
+    if (JSON.stringify(x) === JSON.stringify(y)) continue;
+    if (x !== null && y !== null && typeof x === 'object' && typeof y === 'object') {
+      const xs = x as Record<string, unknown>;
+      const ys = y as Record<string, unknown>;
+      for (const key of new Set([...Object.keys(xs), ...Object.keys(ys)])) {
+        if (JSON.stringify(xs[key]) !== JSON.stringify(ys[key])) return `${field}.${key} is ${JSON.stringify(ys[key]) ?? 'absent'}, there ${JSON.stringify(xs[key]) ?? 'absent'}`;
+      }
+    }
+    return `${field} is ${JSON.stringify(y) ?? 'absent'}, there ${JSON.stringify(x) ?? 'absent'}`;
+  }
+  return 'the configurations differ';
 }
 
 /**
  * Adds shard summaries into one. They must share grid, settings, batch size, arrivals, budget,
- * check mode, engine and shard count, and cover distinct shards. Merged throughput is the sum
- * of the shards' events/s (shards of a job array run side by side); wall time is the longest.
+ * check mode, engine and shard count, and cover distinct shards. Shards of a job array run side
+ * by side, so the merged rate is all events over the longest shard's wall time (not the sum of
+ * the shards' rates, which overstates it when shards start at different times); the bytes read
+ * count once, and alpha is fitted again from the added multiplicity bins.
  */
 export function mergeSummaries(summaries: readonly { name: string; summary: RunSummary }[]): RunSummary {
   if (summaries.length === 0) throw new Error('merge: no summaries given');
   for (const { name, summary } of summaries) {
-    if (summary?.format !== 'jetlag-run-summary' || summary.version !== 1 || typeof summary.configuration !== 'object') {
+    if (summary?.format !== 'jetlag-run-summary' || typeof summary.configuration !== 'object') {
       throw new Error(`${name}: not a jetlag run summary (format ${JSON.stringify(summary?.format)})`);
+    }
+    if (summary.version !== SUMMARY_VERSION) {
+      throw new Error(`${name}: summary version ${JSON.stringify(summary.version)}, this jetlag reads version ${SUMMARY_VERSION} only (rerun that shard with this jetlag)`);
     }
   }
   const first = summaries[0];
@@ -62,17 +97,13 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
   let records: number | null = null;
   const seen = new Map<number, string>();
   const tally = new RunTally();
-  let eventsPerSecond = 0;
   let wallSeconds = 0;
   let partial = false;
   const reasons: string[] = [];
   const machines: MachineInfo[] = [];
   for (const { name, summary } of summaries) {
-    if (summary?.format !== 'jetlag-run-summary' || summary.version !== 1) {
-      throw new Error(`${name}: not a jetlag run summary (format ${JSON.stringify(summary?.format)})`);
-    }
     if (mergeKey(summary.configuration) !== key) {
-      throw new Error(`${name}: configuration differs from ${first.name} (input label, grid, settings, batch, arrivals, budget, check, engine, --events and shard count must agree)`);
+      throw new Error(`${name}: configuration differs from ${first.name}: ${firstDifference(first.summary.configuration, summary.configuration)} (input label, grid, settings, batch, arrivals, budget, check, engine, --events and shard count must agree)`);
     }
     const own = summary.configuration.input?.records ?? null;
     if (own !== null && records !== null && own !== records) {
@@ -85,7 +116,6 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
       seen.set(shard.index, name);
     }
     tally.merge(tallyFromSummary(summary, name));
-    eventsPerSecond += summary.throughput.eventsPerSecond;
     wallSeconds = Math.max(wallSeconds, summary.throughput.wallSeconds);
     if (summary.partial) {
       partial = true;
@@ -110,21 +140,42 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
     partial,
     partialReason: partial ? reasons.join('; ') : null,
     wallSeconds,
-    eventsPerSecond,
+    rateBasis: `all shards' events over the longest shard's wall time`,
   });
 }
 
 /** Reads a summary written by `jetlag run --json` (its shape is checked by mergeSummaries). */
 export function readSummary(path: string): RunSummary {
-  let text: string;
+  let bytes: Buffer;
   try {
-    text = readFileSync(path, 'utf8');
+    bytes = readFileSync(path);
   } catch (error) {
-    throw new InputError(path, `cannot read: ${(error as Error).message}`);
+    const code = (error as NodeJS.ErrnoException).code;
+    throw new InputError(path, code === 'ENOENT' ? 'cannot open: no such file'
+      : code === 'EISDIR' ? 'cannot read: is a directory'
+      : code === 'EACCES' ? 'cannot open: permission denied'
+      : `cannot read (${code ?? 'error'})`);
   }
+  // binary data is named, never printed: control bytes other than tab and line ends
+  for (let k = 0; k < bytes.length; k++) {
+    const b = bytes[k];
+    if ((b < 0x20 && b !== 0x09 && b !== 0x0a && b !== 0x0d) || b === 0x7f) {
+      const what = bytes[0] === 0x1f && bytes[1] === 0x8b ? 'gzip data' : `binary data (byte 0x${b.toString(16).padStart(2, '0')})`;
+      throw new InputError(path, `not a JSON summary: ${what}`, undefined, k);
+    }
+  }
+  const text = bytes.toString('utf8');
   try {
     return JSON.parse(text) as RunSummary;
   } catch (error) {
-    throw new InputError(path, `not JSON: ${(error as Error).message}`);
+    // the engine's message quotes the input; keep only what is wrong and where
+    const message = (error as Error).message;
+    const position = /position (\d+)/.exec(message);
+    const offset = position ? Buffer.byteLength(text.slice(0, Number(position[1])), 'utf8') : undefined;
+    const located = /^(.*) in JSON at position \d+/.exec(message);
+    const reason = /^Unexpected end/.test(message) ? 'it ends too early'
+      : located ? located[1].replace(/^Unexpected non-whitespace character after JSON$/, 'more text after the JSON value')
+      : /^Unexpected token/.test(message) ? 'an unexpected character' : 'not valid JSON';
+    throw new InputError(path, `not a JSON summary: ${reason}`, undefined, offset);
   }
 }

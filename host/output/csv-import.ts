@@ -1,12 +1,13 @@
 // A CSV tower file (clustering-spec.md section 1) into an event file (the command is
 // cli/commands/import.ts). Every event number comes through: an invalid CSV event becomes an
-// event record carrying its error text (with the CSV byte offset of the offending row), and
+// event record carrying its error text (with the CSV line and byte offset of the offending
+// row), and
 // empty events (numbers with no rows) become empty records. When a line makes the rest of the
 // CSV unreadable, the events before it are still written; when nothing could be read at all,
 // no output is left behind.
 
-import { InputError } from '../errors.js';
-import { readCsvTowers } from '../input/csv-towers.js';
+import { describePlace, InputError } from '../errors.js';
+import { openCsvTowers } from '../input/csv-towers.js';
 import { EventFileWriter } from './record-writer.js';
 import type { Grid } from '../types.js';
 import { producerName } from '../version.js';
@@ -16,7 +17,12 @@ export interface CsvImportOptions {
   csv: string | NodeJS.ReadableStream;
   /** the CSV's name in messages and error records */
   csvLabel: string;
+  /** the grid when the CSV states none (a CSV that states its grid is read on that) */
   grid: Grid;
+  /** the largest jump of event numbers (csv-towers.ts) */
+  maxEventGap?: number;
+  /** replace an existing output file */
+  force?: boolean;
   /** event file path, - for stdout */
   out: string;
   /** free text for the file header */
@@ -38,22 +44,36 @@ export interface CsvImportResult {
 
 export async function importCsvTowers(options: CsvImportOptions): Promise<CsvImportResult> {
   const { csvLabel } = options;
-  const writer = await EventFileWriter.open(
-    options.out,
-    { grid: options.grid, producer: producerName('import'), label: options.label },
-    { gzip: options.gzip, stdout: options.stdout },
-  );
+  let opened;
+  try {
+    opened = await openCsvTowers(options.csv, { grid: options.grid, fileLabel: csvLabel, maxEventGap: options.maxEventGap });
+  } catch (error) {
+    // no such file, or a grid statement that cannot be used: nothing is written
+    if (error instanceof InputError) return { events: 0, towers: 0, invalid: 0, unreadable: error };
+    throw error;
+  }
+  let writer: EventFileWriter;
+  try {
+    writer = await EventFileWriter.open(
+      options.out,
+      { grid: opened.grid, producer: producerName('import'), label: options.label },
+      { gzip: options.gzip, stdout: options.stdout, force: options.force },
+    );
+  } catch (error) {
+    await opened.events.return(undefined);
+    throw error;
+  }
   let events = 0;
   let towers = 0;
   let invalid = 0;
   let unreadable: InputError | null = null;
   try {
-    for await (const event of readCsvTowers(options.csv, { grid: options.grid, fileLabel: csvLabel })) {
+    for await (const event of opened.events) {
       events++;
       if (event.problem !== null) {
         invalid++;
-        options.onInvalid(`${csvLabel}, event ${event.event}, byte ${event.offset}: ${event.problem} (kept as an invalid event)`);
-        await writer.writeEvent({ event: event.event, error: `${event.problem} (CSV ${csvLabel}, row at byte ${event.offset})` });
+        options.onInvalid(`${describePlace(csvLabel, event.event, event.line, event.offset)}: ${event.problem} (kept as an invalid event)`);
+        await writer.writeEvent({ event: event.event, error: `${event.problem} (CSV ${csvLabel}, line ${event.line}, byte ${event.offset})` });
         continue;
       }
       towers += event.towerIndex.length;

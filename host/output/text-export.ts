@@ -5,7 +5,9 @@
 // of an event come together and event numbers never decrease (spec section 1), so an event
 // with rows whose number is not above the last one written (a file out of order, or with an
 // event twice) is named and left out too: the CSV stays readable and means what the file meant.
-// Numbers are written with String(x), so every double reads back identical.
+// Numbers are written with String(x), so every double reads back identical. A tower CSV of a
+// grid other than the default states its grid in a `# grid` line before the header
+// (input/csv-grid.ts), so that it reads back on the grid it came from.
 
 import { InputError } from '../errors.js';
 import { openRecordFile, type RecordSource } from '../input/event-source.js';
@@ -13,6 +15,9 @@ import { EventTowerReader } from '../input/event-towers.js';
 import { decodeJetsRecord } from '../formats/jets-codec.js';
 import { formatErrorLine, formatJetsLine, jsonNumber } from '../formats/jets-jsonl.js';
 import { TextFileWriter } from './record-writer.js';
+import { csvGridLine } from '../input/csv-grid.js';
+import { sameGrid } from '../clustering/grid.js';
+import { DEFAULT_GRID } from '../types.js';
 import type { Grid, JetSet } from '../types.js';
 
 /** the jets CSV columns: the CSV form `jetlag compare` reads (candidate-reader.ts) */
@@ -41,6 +46,10 @@ export interface TextExportOptions {
   /** the grid of CSV towers when grid options were given */
   grid?: Grid;
   maxRecordBytes?: number;
+  /** CSV input: the largest jump of event numbers (csv-towers.ts) */
+  maxEventGap?: number;
+  /** replace an existing output file */
+  force?: boolean;
   format: TextFormat;
   /** output path, - for stdout */
   out: string;
@@ -61,8 +70,8 @@ export interface TextExportResult {
 /** Reads the file and writes it as text; the output is closed (or removed on an unexpected error). */
 export async function exportAsText(options: TextExportOptions): Promise<TextExportResult> {
   const { format, onProblem } = options;
-  const source = await openRecordFile(options.input, { grid: options.grid, maxRecordBytes: options.maxRecordBytes, fileLabel: options.fileLabel });
-  const out = await TextFileWriter.open(options.out, { stdout: options.stdout });
+  const source = await openRecordFile(options.input, { grid: options.grid, maxRecordBytes: options.maxRecordBytes, maxEventGap: options.maxEventGap, fileLabel: options.fileLabel });
+  const out = await TextFileWriter.open(options.out, { stdout: options.stdout, force: options.force });
   const tally: ExportTally = { events: 0, rows: 0, invalid: 0, broken: 0, outOfOrder: 0, lastCsvEvent: -1, outsideAcceptance: 0 };
   let unreadable: InputError | null = null;
   try {
@@ -93,7 +102,10 @@ function csvOrderAllows(event: number, tally: ExportTally, onProblem: (line: str
 async function exportEvents(source: RecordSource, format: TextFormat, out: TextFileWriter, tally: ExportTally, onProblem: (line: string) => void): Promise<void> {
   const reader = new EventTowerReader(source.header.grid);
   const phiBins = source.header.grid.phiBins;
-  if (format === 'csv') await out.write('event,ieta,iphi,et\n');
+  if (format === 'csv') {
+    if (!sameGrid(source.header.grid, DEFAULT_GRID)) await out.write(csvGridLine(source.header.grid));
+    await out.write('event,ieta,iphi,et\n');
+  }
   for await (const record of source.records) {
     tally.events++;
     const result = reader.read(record.bytes);

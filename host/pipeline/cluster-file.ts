@@ -10,6 +10,7 @@
 import { InputError, UsageError } from '../errors.js';
 import { makeClusterer, type EngineName } from '../clustering/clusterers.js';
 import { emulationName, type EmulationMode } from '../clustering/emulation-mode.js';
+import { describeWindow } from '../clustering/window-finder.js';
 import { openEventSource } from '../input/event-source.js';
 import { EventTowerReader } from '../input/event-towers.js';
 import { sameGrid } from '../clustering/grid.js';
@@ -25,6 +26,10 @@ export interface ClusterFileOptions {
   /** the grid of CSV towers when grid options were given; an events file carries its own */
   grid?: Grid;
   maxRecordBytes?: number;
+  /** CSV towers: the largest jump of event numbers (csv-towers.ts) */
+  maxEventGap?: number;
+  /** replace an existing output file */
+  force?: boolean;
   engine: EngineName;
   emulation: EmulationMode | null;
   settings: ClusterSettings;
@@ -56,7 +61,7 @@ export interface ClusterFileResult {
 
 export async function clusterFile(options: ClusterFileOptions): Promise<ClusterFileResult> {
   const { settings, withTowers, out } = options;
-  const source = await openEventSource(options.input, { grid: options.grid, maxRecordBytes: options.maxRecordBytes });
+  const source = await openEventSource(options.input, { grid: options.grid, maxRecordBytes: options.maxRecordBytes, maxEventGap: options.maxEventGap });
   if (source.format === 'events-file' && options.grid !== undefined && !sameGrid(options.grid, source.header.grid)) {
     throw new UsageError(`cluster: ${source.label} carries its own grid; the grid options apply to CSV tower files only`);
   }
@@ -64,14 +69,18 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
   const clusterer = makeClusterer(options.engine, grid, settings, options.emulation);
   if ('withTowers' in clusterer) (clusterer as { withTowers: boolean }).withTowers = withTowers;
   const engineName = options.emulation ? emulationName(options.emulation) : clusterer.name;
+  // the window finder's settings live in its engine name; the label spells them out, and says
+  // that p and R in the header are those of the reference it is meant to be compared with
+  const window = options.emulation !== null && typeof options.emulation === 'object' && 'window' in options.emulation ? options.emulation.window : null;
+  const windowLabel = window ? `${describeWindow(window)} (algorithm and R: the reference to compare with); ` : '';
   const reader = new EventTowerReader(grid);
 
   const jetsFile = options.format === 'jets'
     ? await JetsFileWriter.open(out, grid, { ...settings, engine: engineName },
-      { producer: producerName('cluster'), label: options.label ?? `jets of ${source.label}` },
-      { gzip: options.gzip, stdout: options.stdout })
+      { producer: producerName('cluster'), label: options.label ?? `${windowLabel}jets of ${source.label}` },
+      { gzip: options.gzip, stdout: options.stdout, force: options.force })
     : null;
-  const lines = options.format === 'jsonl' ? await TextFileWriter.open(out, { stdout: options.stdout }) : null;
+  const lines = options.format === 'jsonl' ? await TextFileWriter.open(out, { stdout: options.stdout, force: options.force }) : null;
 
   let events = 0;
   let invalid = 0;

@@ -22,6 +22,7 @@ import { describeSettings } from '../clustering/describe-settings.js';
 import { ToleranceMatcher, type ToleranceSettings } from './tolerance-compare.js';
 import { DEFAULT_SETTINGS, type ClusterSettings, type Grid } from '../types.js';
 import { ValidationAccumulator } from './validation-accumulator.js';
+import { TurnOnAccumulator, type TurnOnCurve, type TurnOnRequest } from './turn-on.js';
 import type { ValidationReport } from './validation-report.js';
 
 export interface CompareOptions {
@@ -32,12 +33,16 @@ export interface CompareOptions {
   csvGrid: () => Grid;
   /** grid options were given: an events file, which carries its own grid, must not be given them */
   gridGiven: boolean;
+  /** CSV events: the largest jump of event numbers (csv-towers.ts) */
+  maxEventGap?: number;
   /** the algorithm settings: `base` (the candidate header's, else the defaults) with the options over it */
   settingsOver: (base: ClusterSettings) => ClusterSettings;
   tolerance: Omit<ToleranceSettings, 'ptMin'>;
   worst: number;
   /** what computes the reference jets (default: the reference) */
   engine?: EngineName;
+  /** turn-on curves to fill (spec section 13), over the events compared; none when absent */
+  turnOn?: TurnOnRequest[];
   /** notes for stderr (setting overrides, candidate without settings) */
   note: (line: string) => void;
 }
@@ -49,6 +54,8 @@ export interface CompareResult {
   candidate: { format: CandidateSource['format']; engine: string | null; producer: string | null };
   /** an input that became unreadable part way (the report covers what came before) */
   inputError: InputError | null;
+  /** the turn-on curves asked for, in the order asked */
+  turnOn: TurnOnCurve[];
 }
 
 const SETTING_NAMES: [keyof ClusterSettings, string][] = [
@@ -64,7 +71,7 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
   const candidate = await openCandidate(candidatePath);
   let events: Awaited<ReturnType<typeof openEventSource>>;
   try {
-    events = await openEventSource(eventsPath, { grid: options.csvGrid() });
+    events = await openEventSource(eventsPath, { grid: options.csvGrid(), maxEventGap: options.maxEventGap });
   } catch (error) {
     await candidate.events.return(undefined as never);
     throw error;
@@ -107,6 +114,7 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
   const tolerance: ToleranceSettings = { ...options.tolerance, ptMin: settings.ptMin };
   const matcher = new ToleranceMatcher(tolerance);
   const accumulator = new ValidationAccumulator(tolerance, options.worst);
+  const turnOnCurves = (options.turnOn ?? []).map((request) => new TurnOnAccumulator(request, settings.ptMin));
   const reference = makeClusterer(options.engine ?? 'reference', grid, { ...settings, ptMin: 0 });
   if ('withTowers' in reference) (reference as { withTowers: boolean }).withTowers = false;
   const towerReader = new EventTowerReader(grid);
@@ -206,6 +214,8 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
       const jets = reference.cluster(towers.towerIndex, towers.towerEt);
       matcher.match(jets, mine);
       accumulator.addCompared(event, matcher, jets, mine, mine.hasMass ? mine.mass : null);
+      // every event valid on both sides counts once in each curve (spec section 13)
+      for (const curve of turnOnCurves) curve.add(jets.pt, jets.count, mine.pt, mine.count);
     }
   } catch (error) {
     if (!(error instanceof InputError)) throw error;
@@ -225,5 +235,6 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
     grid,
     candidate: { format: candidate.format, engine: header?.settings?.engine ?? null, producer: header?.producer ?? null },
     inputError: inputError ?? candidateState.error,
+    turnOn: turnOnCurves.map((curve) => curve.curve()),
   };
 }

@@ -11,7 +11,7 @@
 import { parseArgs, type CommandIo, type CommandSpec } from '../args.js';
 import { UsageError } from '../../errors.js';
 import { parseEngineName } from '../../clustering/clusterers.js';
-import { CLUSTER_OPTIONS, GRID_OPTIONS, clusterSettingsFrom, gridFrom, hasGridOptions } from '../common-options.js';
+import { CLUSTER_OPTIONS, FORCE_OPTION, GRID_OPTIONS, MAX_EVENT_GAP_OPTION, clusterSettingsFrom, gridFrom, hasGridOptions, maxEventGapFrom } from '../common-options.js';
 import { describeSettings } from '../../clustering/describe-settings.js';
 import { parseEmulation } from '../../clustering/emulation-mode.js';
 import { DEFAULT_MAX_RECORD_BYTES } from '../../input/record-reader.js';
@@ -24,7 +24,7 @@ export const spec: CommandSpec = {
   positionals: { min: 1, max: 1 },
   options: [
     { name: 'engine', kind: 'string', argument: '<name>', description: 'wasm (the engine) or reference (the plain TypeScript reference) (default: wasm)' },
-    { name: 'emulate', kind: 'string', argument: '<f32|fixed:LSB>', description: 'cluster with single precision (f32) or tower energies quantised to LSB GeV (fixed:0.25) instead' },
+    { name: 'emulate', kind: 'string', argument: '<f32|fixed:LSB|window:W:SEEDET>', description: 'cluster with single precision (f32) or tower energies quantised to LSB GeV (fixed:0.25) instead, or run the level-1 style window finder: W x W towers around local maxima of et >= SEEDET GeV (window = window:9:5)' },
     { name: 'format', kind: 'string', argument: '<jets|jsonl>', description: 'a jets file, or one JSON line per event (default: jets)' },
     { name: 'out', kind: 'string', argument: '<file>', description: 'output file, - for stdout (default: -)' },
     { name: 'no-towers', kind: 'flag', description: 'leave out the constituent tower indices' },
@@ -32,8 +32,10 @@ export const spec: CommandSpec = {
     { name: 'label', kind: 'string', argument: '<text>', description: 'free-text label in the jets file header' },
     { name: 'max-record-bytes', kind: 'integer', argument: '<n>', description: `largest record accepted (default: ${DEFAULT_MAX_RECORD_BYTES})` },
     { name: 'quiet', kind: 'flag', short: 'q', description: 'no summary line on stderr' },
+    FORCE_OPTION,
     ...CLUSTER_OPTIONS,
     ...GRID_OPTIONS,
+    MAX_EVENT_GAP_OPTION,
   ],
 };
 
@@ -55,6 +57,8 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     input,
     grid: hasGridOptions(args) ? gridFrom(args, 'cluster') : undefined,
     maxRecordBytes: args.values['max-record-bytes'] as number | undefined,
+    maxEventGap: maxEventGapFrom(args, 'cluster'),
+    force: args.values.force === true,
     engine,
     emulation,
     settings,
@@ -71,7 +75,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   const { events, invalid, outsideAcceptance, unreadable } = result;
   if (shownProblems > PROBLEM_LINES_MAX) io.stderr.write(`jetlag cluster: ... and ${shownProblems - PROBLEM_LINES_MAX} more invalid events\n`);
   if (unreadable) {
-    io.stderr.write(`jetlag: ${unreadable.message}; the ${events} events before it were clustered and written\n`);
+    io.stderr.write(`jetlag cluster: ${unreadable.message}; the ${events} events before it were clustered and written\n`);
     return 2;
   }
   if (!quiet) {

@@ -5,7 +5,7 @@
 
 import { parseArgs, type CommandIo, type CommandSpec, type ParsedArgs } from '../args.js';
 import { UsageError } from '../../errors.js';
-import { CLUSTER_OPTIONS, GRID_OPTIONS, clusterSettingsFrom, gridFrom, hasGridOptions } from '../common-options.js';
+import { CLUSTER_OPTIONS, FORCE_OPTION, GRID_OPTIONS, MAX_EVENT_GAP_OPTION, clusterSettingsFrom, gridFrom, hasGridOptions, maxEventGapFrom } from '../common-options.js';
 import { describeGrid } from '../../clustering/grid.js';
 import { parseEngineName } from '../../clustering/clusterers.js';
 import { describeSettings } from '../../clustering/describe-settings.js';
@@ -13,6 +13,8 @@ import { writeTextFile } from '../../output/record-writer.js';
 import { DEFAULT_TOLERANCE, checkToleranceSettings, type ToleranceSettings } from '../../validate/tolerance-compare.js';
 import { compareFiles } from '../../validate/compare-files.js';
 import { formatValidationReport } from '../../validate/validation-text.js';
+import { formatTurnOnCurves } from '../../validate/turn-on.js';
+import { TURN_ON_OPTIONS, turnOnRequestsFrom } from '../turn-on-options.js';
 
 export const DEFAULT_REQUIRE = 0.999;
 
@@ -29,10 +31,14 @@ export const spec: CommandSpec = {
     { name: 'json', kind: 'string', argument: '<file>', description: 'write the report as JSON here; - for stdout, which moves the text report to stderr (default: none)' },
     { name: 'engine', kind: 'string', argument: '<reference|wasm>', description: 'what computes the reference jets: the reference itself, or the engine, which the project holds to the very same bits (jetlag run --check all shows it) and is several times faster (default: reference)' },
     { name: 'worst', kind: 'integer', argument: '<n>', description: 'list this many of the events furthest from agreeing (default: 10)' },
+    FORCE_OPTION,
+    { name: 'quiet', kind: 'flag', short: 'q', description: 'print only the PASS or FAIL line, not the report' },
     ...CLUSTER_OPTIONS.map((o) => (o.name === 'ptmin'
       ? { ...o, description: 'jets with pt >= this must agree; softer ones take part in matching only (default: the candidate header\'s, else 0)' }
       : { ...o, description: `${o.description.replace(/ \(default: .*\)$/, '')} (default: the candidate header's, else ${o.description.match(/\(default: (.*)\)$/)?.[1] ?? 'none'})` })),
     ...GRID_OPTIONS.map((o) => ({ ...o, description: `CSV events: ${o.description}` })),
+    MAX_EVENT_GAP_OPTION,
+    ...TURN_ON_OPTIONS,
   ],
 };
 
@@ -61,15 +67,19 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   if (worst < 0) throw new UsageError(`compare: --worst must be >= 0, got ${worst}`);
   const json = args.values.json as string | undefined;
   const text = json === '-' ? io.stderr : io.stdout;
+  const quiet = args.values.quiet === true;
+  const turnOn = turnOnRequestsFrom(args, 'compare');
 
   const engine = parseEngineName((args.values.engine as string | undefined) ?? 'reference', 'compare');
   const result = await compareFiles(eventsPath, candidatePath, {
     csvGrid: () => gridFrom(args, 'compare'),
     gridGiven: hasGridOptions(args),
+    maxEventGap: maxEventGapFrom(args, 'compare'),
     settingsOver: (base) => clusterSettingsFrom(args, 'compare', base),
     tolerance,
     worst,
     engine,
+    turnOn,
     note: (line) => io.stderr.write(line + '\n'),
   });
   const { report } = result;
@@ -77,9 +87,12 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   const passed = fraction !== null && fraction >= require && result.inputError === null;
 
   const candidateEngine = result.candidate.engine !== null ? `, engine ${result.candidate.engine}` : '';
-  text.write(`compare: ${candidatePath} (${result.candidate.format}${candidateEngine}) against the reference on ${eventsPath}\n`);
-  text.write(`settings: ${describeSettings(result.settings)}; grid ${describeGrid(result.grid)}${engine === 'reference' ? '' : `; reference jets by ${engine}`}\n`);
-  text.write(formatValidationReport(report));
+  if (!quiet) {
+    text.write(`compare: ${candidatePath} (${result.candidate.format}${candidateEngine}) against the reference on ${eventsPath}\n`);
+    text.write(`settings: ${describeSettings(result.settings)}; grid ${describeGrid(result.grid)}${engine === 'reference' ? '' : `; reference jets by ${engine}`}\n`);
+    text.write(formatValidationReport(report));
+    if (result.turnOn.length > 0) text.write(formatTurnOnCurves(result.turnOn));
+  }
   const verdict = fraction === null
     ? 'no valid events to compare'
     : `agreeing fraction ${fraction} ${fraction >= require ? '>=' : '<'} --require ${require}`;
@@ -97,13 +110,14 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
       passed,
       inputError: result.inputError?.message ?? null,
       ...report,
+      turnOn: result.turnOn,
     };
     const body = JSON.stringify(document, null, 2) + '\n';
     if (json === '-') io.stdout.write(body);
-    else await writeTextFile(json, body);
+    else await writeTextFile(json, body, { force: args.values.force === true });
   }
   if (result.inputError !== null) {
-    io.stderr.write(`jetlag: ${result.inputError.message}\n`);
+    io.stderr.write(`jetlag compare: ${result.inputError.message}\n`);
     return 2;
   }
   return passed ? 0 : 1;

@@ -11,6 +11,7 @@ import { UsageError } from '../../errors.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../../types.js';
 import { writeGeneratedEvents } from '../../generator/generate-file.js';
 import { MAX_PILEUP } from './generate.js';
+import { FORCE_OPTION } from '../common-options.js';
 import { parseCheck, positiveInteger, positiveNumber, runOption } from './run.js';
 import { formatReport } from '../../measure/report.js';
 import { runEvents } from '../../pipeline/run.js';
@@ -33,6 +34,7 @@ export const spec: CommandSpec = {
     runOption('budget-us', String(DEMO_BUDGET_US)),
     runOption('check', String(DEMO_CHECK.fraction)),
     { name: 'keep', kind: 'string', argument: '<dir>', description: 'write the demo event file into this directory and keep it (default: a temporary directory, removed)' },
+    FORCE_OPTION,
   ],
 };
 
@@ -54,7 +56,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     await writeGeneratedEvents(file, DEFAULT_GRID, { events, pileup, seed: 1 }, {
       producer: producerName('demo'),
       label: `invented demo events (Halden ring toy): pileup ${pileup}, seed 1, ${events} events`,
-    });
+    }, { force: args.values.force === true });
     io.stdout.write(`jetlag demo: wrote ${file}; streaming it through the worker pool (anti-kt R=0.4, ${check.fraction * 100}% of events checked against the reference)\n\n`);
     const summary = await runEvents({
       input: file,
@@ -63,7 +65,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
       settings: { ...DEFAULT_SETTINGS },
       check,
       progress: io.isTty ? io.stderr : null,
-      onProblem: (line) => io.stderr.write(`jetlag: ${line}\n`),
+      onProblem: (line) => io.stderr.write(`jetlag demo: ${line}\n`),
     });
     io.stdout.write(formatReport(summary));
     return summary.check.disagreeing > 0 || summary.events.failed > 0 ? 1 : 0;

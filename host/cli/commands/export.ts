@@ -1,7 +1,9 @@
 // jetlag export FILE: an event file, a CSV tower file or a jets file as CSV or JSON lines.
 //
 // events, CSV   event,ieta,iphi,et, one row per tower in record order (what import reads
-//               back); raw deposits are binned onto the header's grid first. CSV has no
+//               back); raw deposits are binned onto the header's grid first. A grid other
+//               than the default is stated in a `# grid ...` line before the header, which
+//               every CSV reader of jetlag takes back (input/csv-grid.ts). CSV has no
 //               place for an invalid event or for empty events after the last tower: invalid
 //               events are reported on stderr and left out. CSV rows of an event come
 //               together and event numbers never decrease (spec section 1), so an event
@@ -20,7 +22,7 @@
 
 import { parseArgs, type CommandIo, type CommandMain, type CommandSpec } from '../args.js';
 import { UsageError } from '../../errors.js';
-import { GRID_OPTIONS, gridFrom, hasGridOptions } from '../common-options.js';
+import { FORCE_OPTION, GRID_OPTIONS, MAX_EVENT_GAP_OPTION, gridFrom, hasGridOptions, maxEventGapFrom } from '../common-options.js';
 import { DEFAULT_MAX_RECORD_BYTES } from '../../input/record-reader.js';
 import { exportAsText } from '../../output/text-export.js';
 
@@ -33,7 +35,9 @@ export const spec: CommandSpec = {
     { name: 'format', kind: 'string', argument: '<csv|jsonl>', description: 'output form (default: csv)' },
     { name: 'out', kind: 'string', argument: '<file>', description: 'where to write; - for stdout (default: -)' },
     ...GRID_OPTIONS.map((o) => ({ ...o, description: o.description.replace(' (default:', ', for CSV input (default:') })),
+    MAX_EVENT_GAP_OPTION,
     { name: 'max-record-bytes', kind: 'integer', argument: '<n>', description: `largest record accepted (default: ${DEFAULT_MAX_RECORD_BYTES})` },
+    FORCE_OPTION,
     { name: 'quiet', kind: 'flag', short: 'q', description: 'do not print the per-event problems and the summary line' },
   ],
 };
@@ -70,6 +74,8 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
     fileLabel: input === '-' ? '<stdin>' : input,
     grid,
     maxRecordBytes,
+    maxEventGap: maxEventGapFrom(args, 'export'),
+    force: args.values.force === true,
     format,
     out: outPath,
     stdout: io.stdout,

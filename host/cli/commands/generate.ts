@@ -2,7 +2,7 @@
 
 import { parseArgs, type CommandIo, type CommandSpec } from '../args.js';
 import { UsageError } from '../../errors.js';
-import { GRID_OPTIONS, gridFrom } from '../common-options.js';
+import { FORCE_OPTION, GRID_OPTIONS, gridFrom } from '../common-options.js';
 import { writeGeneratedEvents } from '../../generator/generate-file.js';
 import { producerName } from '../../version.js';
 
@@ -24,6 +24,8 @@ export const spec: CommandSpec = {
     { name: 'raw', kind: 'flag', description: 'write raw deposits (eta, phi, et) instead of binned towers' },
     { name: 'gzip', kind: 'flag', description: 'gzip-compress the output' },
     { name: 'label', kind: 'string', argument: '<text>', description: 'free-text label in the file header (default: a description of the settings)' },
+    FORCE_OPTION,
+    { name: 'quiet', kind: 'flag', short: 'q', description: 'no summary line on stderr' },
     ...GRID_OPTIONS,
   ],
 };
@@ -47,7 +49,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   const raw = Boolean(args.values.raw);
   const label = (args.values.label as string | undefined) ??
     `invented demo events (Halden ring toy): pileup ${pileup}, seed ${seed}, ${events} events${raw ? ', raw deposits' : ''}`;
-  await writeGeneratedEvents(out, grid, { events, pileup, seed, maxHardJets, raw }, { producer: producerName('generate'), label }, { gzip: Boolean(args.values.gzip) });
-  if (out !== '-') io.stderr.write(`jetlag generate: wrote ${events} events to ${out}\n`);
+  await writeGeneratedEvents(out, grid, { events, pileup, seed, maxHardJets, raw }, { producer: producerName('generate'), label }, { gzip: Boolean(args.values.gzip), force: args.values.force === true });
+  if (out !== '-' && args.values.quiet !== true) io.stderr.write(`jetlag generate: wrote ${events} events to ${out}\n`);
   return 0;
 }

@@ -7,7 +7,7 @@
 
 import { parseArgs, type CommandIo, type CommandMain, type CommandSpec } from '../args.js';
 import { UsageError } from '../../errors.js';
-import { GRID_OPTIONS, gridFrom } from '../common-options.js';
+import { FORCE_OPTION, GRID_OPTIONS, MAX_EVENT_GAP_OPTION, gridFrom, maxEventGapFrom } from '../common-options.js';
 import { importCsvTowers } from '../../output/csv-import.js';
 
 export const spec: CommandSpec = {
@@ -19,6 +19,8 @@ export const spec: CommandSpec = {
     { name: 'csv', kind: 'string', argument: '<file>', description: 'CSV tower file, plain or gzip; - for stdin (required)' },
     { name: 'out', kind: 'string', argument: '<events>', description: 'event file to write; - for stdout (required)' },
     ...GRID_OPTIONS,
+    MAX_EVENT_GAP_OPTION,
+    FORCE_OPTION,
     { name: 'label', kind: 'string', argument: '<text>', description: 'free text stored in the file header (default: none)' },
     { name: 'gzip', kind: 'flag', description: 'compress the event file with gzip (default: off)' },
     { name: 'quiet', kind: 'flag', short: 'q', description: 'do not print the per-event problems and the summary line' },
@@ -43,6 +45,8 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
     csv: csv === '-' ? io.stdin : csv,
     csvLabel: csv === '-' ? '<stdin>' : csv,
     grid,
+    maxEventGap: maxEventGapFrom(args, 'import'),
+    force: args.values.force === true,
     out,
     label: (args.values.label as string | undefined) ?? '',
     gzip: args.values.gzip === true,

@@ -8,6 +8,7 @@ import type { RunSummary } from '../../measure/summary.js';
 import { mergeSummaries, readSummary } from '../../measure/summary-merge.js';
 import { formatReport } from '../../measure/report.js';
 import { writeTextFile } from '../../output/record-writer.js';
+import { FORCE_OPTION } from '../common-options.js';
 
 export const spec: CommandSpec = {
   name: 'merge',
@@ -17,6 +18,7 @@ export const spec: CommandSpec = {
   options: [
     { name: 'json', kind: 'string', argument: '<file>', description: 'write the merged summary here (default: none)' },
     { name: 'quiet', kind: 'flag', short: 'q', description: 'do not print the report' },
+    FORCE_OPTION,
   ],
 };
 
@@ -30,7 +32,7 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
     throw new UsageError(`merge: ${(error as Error).message}`);
   }
   const json = args.values.json as string | undefined;
-  if (json) await writeTextFile(json, JSON.stringify(merged, null, 2) + '\n');
+  if (json) await writeTextFile(json, JSON.stringify(merged, null, 2) + '\n', { force: args.values.force === true });
   if (args.values.quiet !== true) io.stdout.write(formatReport(merged));
   if (merged.partial) {
     // a summary of part of the file must not pass for the whole
