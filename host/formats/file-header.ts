@@ -28,7 +28,11 @@ export interface FileHeader {
   /** what wrote the file, e.g. "jetlag 0.1.0 generate" */
   producer: string;
   label: string;
-  /** jets files only */
+  /**
+   * jets files: the settings the jets were made with (required); events files: optional, the
+   * settings a clustering program is to use (the event stream jetlag writes to an engine
+   * program, pipeline/exec-engine.ts); absent in ordinary event files
+   */
   settings?: JetsFileSettings;
   formatVersion: number;
 }
@@ -168,11 +172,11 @@ export function decodeFileHeader(bytes: Uint8Array): FileHeader {
   if (raw.grid === null) throw new Error('file header has no grid');
   checkGrid(raw.grid, 'file header grid');
   const header: FileHeader = { kind, grid: raw.grid, producer: raw.producer, label: raw.label, formatVersion: raw.formatVersion };
-  if (kind === 'jets') {
-    if (raw.settings === null) throw new Error('jets file header has no cluster settings');
+  if (kind === 'jets' && raw.settings === null) throw new Error('jets file header has no cluster settings');
+  if (raw.settings !== null) {
     const { recombinationCode, ...rest } = raw.settings;
     if (recombinationCode !== 0 && recombinationCode !== 1) {
-      throw new Error(`jets file header has unknown recombination ${recombinationCode} (expected 0 E-scheme or 1 winner-take-all)`);
+      throw new Error(`${kind} file header has unknown recombination ${recombinationCode} (expected 0 E-scheme or 1 winner-take-all)`);
     }
     header.settings = { ...rest, recombination: recombinationCode === 0 ? 'e' : 'wta' };
   }
