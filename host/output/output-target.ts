@@ -8,6 +8,9 @@
 //                                     straight through the handle, never replaced
 //     throws OutputError: a regular file there without force, a directory, a block device or
 //     a socket, a missing directory, no permission
+//   checkOutputAllowed(path, { force? }): Promise<void>
+//                                     the same refusals, without opening anything: for an
+//                                     output written only at the end of a long run
 //   cannotWrite(path, error): OutputError   one line from a system error
 //
 // Why devices and pipes are opened at once and checked through the handle: between a stat()
@@ -46,6 +49,21 @@ function kindOfNode(stats: { isDirectory(): boolean; isBlockDevice(): boolean; i
   if (stats.isBlockDevice()) return 'it is a block device; outputs are regular files, character devices or pipes';
   if (stats.isSocket()) return 'it is a socket; outputs are regular files, character devices or pipes';
   return null;
+}
+
+export async function checkOutputAllowed(path: string, options: ExamineOptions = {}): Promise<void> {
+  if (path === '-') return;
+  let stats;
+  try {
+    stats = await stat(path);
+  } catch (error) {
+    const e = error as NodeJS.ErrnoException;
+    if (e.code === 'ENOENT') return;
+    throw cannotWrite(path, e);
+  }
+  if (stats.isFile() && !options.force) throw new OutputError(path, 'the file exists (give --force to replace it)', 'EEXIST');
+  const refused = kindOfNode(stats);
+  if (refused) throw new OutputError(path, refused);
 }
 
 export async function examineOutput(path: string, options: ExamineOptions = {}): Promise<OutputTarget> {

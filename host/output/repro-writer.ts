@@ -28,6 +28,8 @@ export interface ReproOptions {
   /** the clusterer that disagreed with the reference, named in the label */
   engine?: string;
   gzip?: boolean;
+  /** replace an existing file */
+  force?: boolean;
 }
 
 export class ReproWriter {
@@ -39,7 +41,7 @@ export class ReproWriter {
   static async open(path: string, options: ReproOptions): Promise<ReproWriter> {
     const label = `events on which ${options.engine ?? 'the engine'} and the reference disagree` +
       (options.source !== undefined ? `, from ${options.source}` : '');
-    const writer = await EventFileWriter.open(path, { grid: options.grid, producer: producerName('run --check'), label }, { gzip: Boolean(options.gzip) });
+    const writer = await EventFileWriter.open(path, { grid: options.grid, producer: producerName('run --check'), label }, { gzip: Boolean(options.gzip), force: options.force });
     return new ReproWriter(writer);
   }
 

@@ -63,6 +63,10 @@ export interface RunOptions {
   out?: string | null;
   /** grid of a CSV tower file (an event file carries its own) */
   grid?: Grid;
+  /** CSV towers: the largest jump of event numbers (csv-towers.ts) */
+  maxEventGap?: number;
+  /** replace output files that exist (--out, --repro) */
+  force?: boolean;
   /** event file of the events on which the engine and the reference disagree (repro-writer.ts) */
   repro?: string | null;
   /** stop after this many event records (of the whole file, before sharding) */
@@ -173,18 +177,18 @@ function workerConfigOf(plan: RunPlan, grid: Grid, encodeJets: boolean): WorkerC
  * renamed when complete ('-' is stdout).
  */
 async function openOutputs(options: RunOptions, plan: RunPlan, grid: Grid, inputLabel: string) {
-  const jetsFile = options.out ? await OutputFile.open(options.out) : null;
+  const jetsFile = options.out ? await OutputFile.open(options.out, { force: options.force }) : null;
   const jetsHeaderPending = jetsFile
     ? jetsFile.write(encodeJetsFileHeader(grid, { ...plan.settings, engine: plan.engine }, { producer: producerName('run'), label: inputLabel }))
     : undefined;
-  const repro = options.repro ? await ReproWriter.open(options.repro, { grid, source: plan.label, engine: plan.engine }) : null;
+  const repro = options.repro ? await ReproWriter.open(options.repro, { grid, source: plan.label, engine: plan.engine, force: options.force }) : null;
   return { jetsFile, jetsHeaderPending, repro };
 }
 
 export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const plan = planRun(options);
   const schedule = new ArrivalSchedule(plan.arrival);
-  const source = await openEventSource(options.input, { fileLabel: plan.label, grid: options.grid });
+  const source = await openEventSource(options.input, { fileLabel: plan.label, grid: options.grid, maxEventGap: options.maxEventGap });
   const grid: Grid = source.header.grid;
   if (plan.engine === 'wasm') refuseUnusableEngine(grid, plan.settings);
   const bytesTotal = progressBytesTotal(options);

@@ -14,7 +14,7 @@ export async function findRate(options: RunOptions, closedLoop: RunSummary, budg
   const ceiling = Math.max(1, closedLoop.throughput.eventsPerSecond);
   const runAt = async (rateHz: number) => {
     const arrival: ArrivalMode = poisson ? { kind: 'poisson', rateHz, seed: 1 } : { kind: 'fixed', rateHz };
-    const summary = await runEvents({ ...options, arrival, out: null, progress: null, onProblem: undefined });
+    const summary = await runEvents({ ...options, arrival, out: null, repro: null, progress: null, onProblem: undefined });
     const p99 = summary.latency.endToEnd.p99_us;
     return { rateHz, p99_us: p99, withinBudget: p99 !== null && p99 <= budgetUs, events: summary.events.read };
   };
@@ -41,7 +41,7 @@ export async function findRate(options: RunOptions, closedLoop: RunSummary, budg
 export async function scanWorkers(options: RunOptions, cores: number) {
   const points: { workers: number; eventsPerSecond: number; speedup: number; cluster_p50_us: number | null; endToEnd_p99_us: number | null }[] = [];
   for (let workers = 1; workers <= cores; workers++) {
-    const summary = await runEvents({ ...options, workers, arrival: { kind: 'closed' }, out: null, progress: null, onProblem: undefined });
+    const summary = await runEvents({ ...options, workers, arrival: { kind: 'closed' }, out: null, repro: null, progress: null, onProblem: undefined });
     const eventsPerSecond = summary.throughput.eventsPerSecond;
     points.push({
       workers,

@@ -3,7 +3,8 @@
 
 import { parseArgs, type CommandIo, type CommandMain, type CommandSpec, type OptionSpec, type ParsedArgs } from '../args.js';
 import { UsageError } from '../../errors.js';
-import { CLUSTER_OPTIONS, GRID_OPTIONS, clusterSettingsFrom, gridFrom } from '../common-options.js';
+import { CLUSTER_OPTIONS, FORCE_OPTION, GRID_OPTIONS, MAX_EVENT_GAP_OPTION, clusterSettingsFrom, gridFrom, maxEventGapFrom } from '../common-options.js';
+import { checkOutputAllowed } from '../../output/output-target.js';
 import { DEFAULT_BATCH, DEFAULT_CHECK, inputErrorOf, runEvents, type CheckOption, type RunOptions } from '../../pipeline/run.js';
 import { findRate, scanWorkers } from '../../pipeline/studies.js';
 import { describeMachine, type RunSummary } from '../../measure/summary.js';
@@ -42,8 +43,10 @@ export const spec: CommandSpec = {
   positionals: { min: 1, max: 1 },
   options: [
     ...RUN_OPTIONS,
+    FORCE_OPTION,
     ...CLUSTER_OPTIONS,
     ...GRID_OPTIONS.map((o) => ({ ...o, description: `CSV input: ${o.description}` })),
+    MAX_EVENT_GAP_OPTION,
   ],
 };
 
@@ -113,6 +116,8 @@ export function runOptionsFrom(args: ParsedArgs): RunOptions & { findRate: boole
     check: parseCheck(args.values.check as string | undefined, seed),
     settings: clusterSettingsFrom(args, 'run'),
     grid: gridFrom(args, 'run'),
+    maxEventGap: maxEventGapFrom(args, 'run'),
+    force: args.values.force === true,
     engine: engine === undefined ? 'wasm' : engine,
     shard: parseShard(args.values.shard as string | undefined),
     out: (args.values.out as string | undefined) ?? null,
@@ -129,6 +134,8 @@ export function runOptionsFrom(args: ParsedArgs): RunOptions & { findRate: boole
 export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   const args = parseArgs(spec, argv);
   const options = runOptionsFrom(args);
+  // the summary is written at the end: an output that would be refused must not cost the run
+  if (options.json) await checkOutputAllowed(options.json, { force: options.force });
   const controller = new AbortController();
   const onSigint = () => {
     if (controller.signal.aborted) process.exit(130); // a second Ctrl-C does not wait
@@ -138,7 +145,7 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   process.on('SIGINT', onSigint);
   let problems = 0;
   const onProblem = (line: string) => {
-    if (problems++ < PROBLEM_LINES_MAX) io.stderr.write(`jetlag: ${line}\n`);
+    if (problems++ < PROBLEM_LINES_MAX) io.stderr.write(`jetlag run: ${line}\n`);
   };
   let summary: RunSummary;
   try {
@@ -157,15 +164,15 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   } finally {
     process.off('SIGINT', onSigint);
   }
-  if (options.json) await writeTextFile(options.json, JSON.stringify(summary, null, 2) + '\n', { stdout: io.stdout });
+  if (options.json) await writeTextFile(options.json, JSON.stringify(summary, null, 2) + '\n', { stdout: io.stdout, force: options.force });
   // with the jets or the summary on stdout, the text report goes to stderr
   (options.out === '-' || options.json === '-' ? io.stderr : io.stdout).write(formatReport(summary));
   if (problems > PROBLEM_LINES_MAX) {
-    io.stderr.write(`jetlag: ${problems - PROBLEM_LINES_MAX} more problems not shown (invalid events ${summary.events.invalid}, failed ${summary.events.failed}, disagreeing ${summary.check.disagreeing}); the --json summary lists up to ${LISTED_MAX} invalid events and failed batches\n`);
+    io.stderr.write(`jetlag run: ${problems - PROBLEM_LINES_MAX} more problems not shown (invalid events ${summary.events.invalid}, failed ${summary.events.failed}, disagreeing ${summary.check.disagreeing}); the --json summary lists up to ${LISTED_MAX} invalid events and failed batches\n`);
   }
   const inputError = inputErrorOf(summary);
   if (inputError) {
-    io.stderr.write(`jetlag: ${inputError.message}\n`);
+    io.stderr.write(`jetlag run: ${inputError.message}\n`);
     return 2;
   }
   if (controller.signal.aborted) return 130;
