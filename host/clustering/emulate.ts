@@ -23,10 +23,12 @@ import { UsageError } from '../errors.js';
 import type { EmulationMode } from './emulation-mode.js';
 import { QuantisedClusterer } from './quantised-clusterer.js';
 import { SinglePrecisionClusterer } from './single-precision-clusterer.js';
+import { WindowFinder } from './window-finder.js';
 import type { ClusterSettings, Clusterer, Grid } from '../types.js';
 
 export function makeEmulatedClusterer(grid: Grid, settings: ClusterSettings, mode: EmulationMode): Clusterer {
   if (mode === 'f32') return new SinglePrecisionClusterer(grid, settings);
+  if ('window' in mode) return new WindowFinder(grid, settings, mode.window);
   if (!(Number.isFinite(mode.lsbGeV) && mode.lsbGeV > 0)) {
     throw new UsageError(`--emulate fixed:LSB needs an LSB in GeV that is a finite number > 0, got ${mode.lsbGeV}`);
   }
