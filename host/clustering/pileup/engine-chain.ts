@@ -2,25 +2,39 @@
 // reference's (chain.ts) but on flat arrays reserved once per chain:
 //   threshold -> SoftKiller -> ghosts -> WebAssembly clustering -> areas, ρ, subtraction -> ptMin
 // Ghosts are towers, so the engine clusters the ghost-filled grid as it is; the steps around it
-// are a few passes over the grid's cells, cheap beside the clustering.
+// are a few passes over the event's towers or the grid's cells, cheap beside the clustering.
+// The last steps, from the engine's final jets to the reported ones, are in engine-jets.ts.
 //
-// Layout (C = grid cells, P = patches of the SoftKiller or ρ layout, J = C jets at most):
-//   cellEt f64[C]       et of the real tower in each cell, this event (valid where cellReal = 1)
+// Layout (C = grid cells, P = patches of the SoftKiller or ρ layout):
+//   cellEt f64[C]       et of the real tower in each cell this event, 0 where none (so that a
+//                       patch sum may add every cell: adding +0 changes no sum's bits)
 //   cellReal u8[C]      1 while the cell holds a real tower (after threshold and SoftKiller)
-//   inputIndex i32[C]   inputEt f64[C]    the clustering's input: real towers, and ghosts with areas
-//   ktIndex i32[C]      ktEt f64[C]       the kt-ρ clustering's input when areas are off
+//   realCells i32[C]    the cells holding real towers, realCount of them, in input order
+//   inputIndex i32[C]   inputEt f64[C]    the clustering's input: real towers, and ghosts with
+//                       areas (then inputIndex is 0..C-1 once and for all)
+//   ktIndex i32[C]      ktEt f64[C]       the kt-ρ clustering's ghost-filled input without areas
 //   patchValue f64[P]   per patch: SoftKiller's maxima, then ρ's sums and densities
-//   median f64[max(P, J)]                 sort scratch for a median
-//   jet* [J]            the reported jets before ptMin and ordering, row = engine output rank
-//   order i32[J]        their output permutation
+//   median f64[C]       sort scratch for a median (P <= C values, or kt jets <= C)
 
 import { MIN_ET } from '../grid.js';
-import { ENGINE_INDEX_OUTSIDE, ENGINE_INDEX_REPEATED, ENGINE_OK, WasmClusterer, type BatchJets } from '../engine.js';
-import { allocateJetSet } from '../jet-set.js';
+import { ENGINE_INDEX_OUTSIDE, ENGINE_INDEX_REPEATED, ENGINE_OK, WasmClusterer } from '../engine.js';
 import type { ClusterSettings, Clusterer, Grid, JetSet, PileupSettings, RhoEstimator } from '../../types.js';
 import { rhoEstimatorOf } from './chain.js';
+import { ReportedJets } from './engine-jets.js';
 import { cellAreaOf, makePatchLayout, type PatchLayout } from './patches.js';
 import { checkPileupSettings } from './settings.js';
+
+/** the chain's stages, as rows of EnginePileupClusterer.stageNs */
+export const STAGE_SOFTKILLER = 0;
+/** threshold, ghosts and the clustering itself */
+export const STAGE_CLUSTERING = 1;
+export const STAGE_RHO_PATCHES = 2;
+/** the kt-ρ estimator's second clustering */
+export const STAGE_RHO_KT = 3;
+/** areas, subtraction, ptMin, order and the reported jets' arrays */
+export const STAGE_SUBTRACTION = 4;
+export const STAGE_COUNT = 5;
+export const STAGE_NAMES = ['softkiller', 'clustering', 'rho-patches', 'rho-kt', 'subtraction'] as const;
 
 export interface EngineChainOptions {
   module?: WebAssembly.Module;
@@ -33,6 +47,8 @@ export class EnginePileupClusterer implements Clusterer {
   readonly pileup: PileupSettings;
   /** status of the last event: ENGINE_OK, or ENGINE_INDEX_OUTSIDE / ENGINE_INDEX_REPEATED */
   status = ENGINE_OK;
+  /** the last event's time in each stage (STAGE_*), ns; 0 for a stage that is off */
+  readonly stageNs = new Float64Array(STAGE_COUNT);
 
   private readonly grid: Grid;
   private readonly cellCount: number;
@@ -43,8 +59,11 @@ export class EnginePileupClusterer implements Clusterer {
   private readonly softKillerPatches: PatchLayout | null;
   private readonly rhoPatches: PatchLayout | null;
 
+  private readonly reported: ReportedJets;
+
   private readonly cellEt: Float64Array;
   private readonly cellReal: Uint8Array;
+  private readonly realCells: Int32Array;
   private readonly inputIndex: Int32Array;
   private readonly inputEt: Float64Array;
   private readonly ktIndex: Int32Array;
@@ -52,19 +71,6 @@ export class EnginePileupClusterer implements Clusterer {
   private readonly inputStart = new Int32Array(2);
   private readonly patchValue: Float64Array;
   private readonly median: Float64Array;
-  private readonly jetPx: Float64Array;
-  private readonly jetPy: Float64Array;
-  private readonly jetPz: Float64Array;
-  private readonly jetEnergy: Float64Array;
-  private readonly jetPt: Float64Array;
-  private readonly jetMass: Float64Array;
-  private readonly jetPtRaw: Float64Array;
-  private readonly jetArea: Float64Array;
-  private readonly jetGhosts: Int32Array;
-  private readonly jetReal: Int32Array;
-  private readonly jetIndex: Int32Array;
-  private readonly jetRow: Int32Array;
-  private readonly order: Int32Array;
 
   constructor(grid: Grid, settings: ClusterSettings, pileup: PileupSettings, command = 'cluster', options: EngineChainOptions = {}) {
     checkPileupSettings(grid, settings, pileup, command);
@@ -84,28 +90,19 @@ export class EnginePileupClusterer implements Clusterer {
 
     const cells = this.cellCount;
     const patches = Math.max(this.softKillerPatches?.patchCount ?? 0, this.rhoPatches?.patchCount ?? 0);
+    this.reported = new ReportedJets(cells, this.cellArea, pileup.areas, pileup.subtract, settings.ptMin);
     this.cellEt = new Float64Array(cells);
     this.cellReal = new Uint8Array(cells);
+    this.realCells = new Int32Array(cells);
     this.inputIndex = new Int32Array(cells);
     this.inputEt = new Float64Array(cells);
+    if (pileup.areas) for (let t = 0; t < cells; t++) this.inputIndex[t] = t;
     const ktSeparate = this.ktClusterer !== null && !pileup.areas;
     this.ktIndex = new Int32Array(ktSeparate ? cells : 0);
     this.ktEt = new Float64Array(ktSeparate ? cells : 0);
+    for (let t = 0; t < this.ktIndex.length; t++) this.ktIndex[t] = t;
     this.patchValue = new Float64Array(patches);
     this.median = new Float64Array(Math.max(patches, cells));
-    this.jetPx = new Float64Array(cells);
-    this.jetPy = new Float64Array(cells);
-    this.jetPz = new Float64Array(cells);
-    this.jetEnergy = new Float64Array(cells);
-    this.jetPt = new Float64Array(cells);
-    this.jetMass = new Float64Array(cells);
-    this.jetPtRaw = new Float64Array(cells);
-    this.jetArea = new Float64Array(cells);
-    this.jetGhosts = new Int32Array(cells);
-    this.jetReal = new Int32Array(cells);
-    this.jetIndex = new Int32Array(cells);
-    this.jetRow = new Int32Array(cells);
-    this.order = new Int32Array(cells);
   }
 
   /** One event's towers, any order, before the threshold; throws on a bad index like WasmClusterer. */
@@ -117,8 +114,11 @@ export class EnginePileupClusterer implements Clusterer {
 
   /** Towers from..to of the arrays as one event; null with `status` set for a bad index. */
   clusterEvent(towerIndex: Int32Array, towerEt: Float64Array, from: number, to: number): JetSet | null {
-    const { cellEt, cellReal, pileup } = this;
+    const { cellEt, cellReal, realCells, pileup } = this;
     const cells = this.cellCount;
+    const stageNs = this.stageNs;
+    stageNs.fill(0);
+    let clock = performance.now();
 
     // threshold (spec section 1), and the engine's index checks: outside first, then repeats
     this.status = ENGINE_OK;
@@ -129,7 +129,9 @@ export class EnginePileupClusterer implements Clusterer {
       }
     }
     cellReal.fill(0);
+    cellEt.fill(0);
     const threshold = this.settings.threshold;
+    let realCount = 0;
     for (let k = from; k < to; k++) {
       const et = towerEt[k];
       if (!(et > threshold && et >= MIN_ET)) continue;
@@ -140,57 +142,85 @@ export class EnginePileupClusterer implements Clusterer {
       }
       cellReal[t] = 1;
       cellEt[t] = et;
+      realCells[realCount++] = t;
     }
+    clock = this.lap(STAGE_CLUSTERING, clock);
 
     let etCut = 0;
     let killed = 0;
     if (this.softKillerPatches) {
-      etCut = this.softKillerCut(this.softKillerPatches);
-      for (let t = 0; t < cells; t++) {
-        if (cellReal[t] === 1 && cellEt[t] < etCut) {
+      etCut = this.softKillerCut(this.softKillerPatches, realCount);
+      let kept = 0;
+      for (let k = 0; k < realCount; k++) {
+        const t = realCells[k];
+        if (cellEt[t] < etCut) {
           cellReal[t] = 0;
-          killed++;
+          cellEt[t] = 0;
+        } else {
+          realCells[kept++] = t;
         }
       }
+      killed = realCount - kept;
+      realCount = kept;
+      clock = this.lap(STAGE_SOFTKILLER, clock);
     }
 
-    // the clustering's input: real towers, and a ghost on every other cell with areas
+    // the clustering's input: real towers (the engine orders them), and with areas a ghost on
+    // every other cell
     let inputCount = 0;
-    for (let t = 0; t < cells; t++) {
-      if (cellReal[t] === 0 && !pileup.areas) continue;
-      this.inputIndex[inputCount] = t;
-      this.inputEt[inputCount] = cellReal[t] === 1 ? cellEt[t] : pileup.ghostEt;
-      inputCount++;
+    if (pileup.areas) {
+      for (let t = 0; t < cells; t++) this.inputEt[t] = cellReal[t] === 1 ? cellEt[t] : pileup.ghostEt;
+      inputCount = cells;
+    } else {
+      for (let k = 0; k < realCount; k++) {
+        this.inputIndex[k] = realCells[k];
+        this.inputEt[k] = cellEt[realCells[k]];
+      }
+      inputCount = realCount;
     }
+    clock = this.lap(STAGE_CLUSTERING, clock);
 
     let rho = 0;
-    if (this.rhoPatches) rho = this.patchRho(this.rhoPatches);
-    else if (this.ktClusterer) rho = this.ktRho(this.ktClusterer, inputCount);
+    if (this.rhoPatches) {
+      rho = this.patchRho(this.rhoPatches);
+      clock = this.lap(STAGE_RHO_PATCHES, clock);
+    } else if (this.ktClusterer) {
+      rho = this.ktRho(this.ktClusterer);
+      clock = this.lap(STAGE_RHO_KT, clock);
+    }
 
     this.inputStart[1] = inputCount;
     const batch = this.clusterer.clusterBatch(1, this.inputStart, this.inputIndex, this.inputEt, true);
-    return this.finish(batch, rho, etCut, killed);
+    clock = this.lap(STAGE_CLUSTERING, clock);
+    const jets = this.reported.report(batch, cellReal, { rho, etCut, killed });
+    this.lap(STAGE_SUBTRACTION, clock);
+    return jets;
+  }
+
+  /** adds the time since `since` (ms, performance.now()) to a stage; returns the time now */
+  private lap(stage: number, since: number): number {
+    const now = performance.now();
+    this.stageNs[stage] += (now - since) * 1e6;
+    return now;
   }
 
   /** SoftKiller's cut: the median over patches of each patch's hardest real tower (spec section 10) */
-  private softKillerCut(layout: PatchLayout): number {
+  private softKillerCut(layout: PatchLayout, realCount: number): number {
     const maximum = this.patchValue;
     maximum.fill(0, 0, layout.patchCount);
-    for (let t = 0; t < this.cellCount; t++) {
-      if (this.cellReal[t] === 0) continue;
+    for (let k = 0; k < realCount; k++) {
+      const t = this.realCells[k];
       const patch = layout.patchOfTower[t];
       if (this.cellEt[t] > maximum[patch]) maximum[patch] = this.cellEt[t];
     }
     return this.medianOf(maximum, layout.patchCount);
   }
 
-  /** ρ from patches (spec section 9): sums in increasing flat index, density per patch, median */
+  /** ρ from patches (spec section 9): sums over every cell in increasing flat index, densities, median */
   private patchRho(layout: PatchLayout): number {
     const value = this.patchValue;
     value.fill(0, 0, layout.patchCount);
-    for (let t = 0; t < this.cellCount; t++) {
-      if (this.cellReal[t] === 1) value[layout.patchOfTower[t]] += this.cellEt[t];
-    }
+    for (let t = 0; t < this.cellCount; t++) value[layout.patchOfTower[t]] += this.cellEt[t];
     for (let patch = 0; patch < layout.patchCount; patch++) {
       value[patch] = value[patch] / (layout.cellsInPatch[patch] * this.cellArea);
     }
@@ -198,20 +228,15 @@ export class EnginePileupClusterer implements Clusterer {
   }
 
   /** ρ from kt jets with ghosts (spec section 9); the input is the ghost-filled grid */
-  private ktRho(kt: WasmClusterer, inputCount: number): number {
+  private ktRho(kt: WasmClusterer): number {
     let index = this.inputIndex;
     let et = this.inputEt;
-    let count = inputCount;
     if (!this.pileup.areas) {
       index = this.ktIndex;
       et = this.ktEt;
-      for (let t = 0; t < this.cellCount; t++) {
-        index[t] = t;
-        et[t] = this.cellReal[t] === 1 ? this.cellEt[t] : this.pileup.ghostEt;
-      }
-      count = this.cellCount;
+      for (let t = 0; t < this.cellCount; t++) et[t] = this.cellReal[t] === 1 ? this.cellEt[t] : this.pileup.ghostEt;
     }
-    this.inputStart[1] = count;
+    this.inputStart[1] = this.cellCount;
     const jets = kt.clusterBatch(1, this.inputStart, index, et, false);
     const radius = (this.rho as { radius: number }).radius;
     const low = this.grid.etaMin + radius;
@@ -228,115 +253,50 @@ export class EnginePileupClusterer implements Clusterer {
     return this.medianOf(this.median, kept);
   }
 
-  /** the spec's median of values[0..n): sorted in place (part two, notation) */
+  /**
+   * The spec's median of values[0..n) (part two, notation): the same one or two middle elements
+   * a full sort would give, found by selection in the scratch (a sort of 130 patches costs
+   * several µs, more than the rest of SoftKiller).
+   */
   private medianOf(values: Float64Array, n: number): number {
     if (n === 0) return 0;
-    if (values !== this.median) this.median.set(values.subarray(0, n));
-    const sorted = this.median.subarray(0, n).sort();
-    if (n % 2 === 1) return sorted[(n - 1) / 2];
-    return 0.5 * (sorted[n / 2 - 1] + sorted[n / 2]);
+    const scratch = this.median;
+    if (values !== scratch) for (let k = 0; k < n; k++) scratch[k] = values[k];
+    const upper = n >> 1;
+    selectNth(scratch, n, upper);
+    if (n % 2 === 1) return scratch[upper];
+    // the lower middle element is the largest of those selection left below the upper one
+    let lower = scratch[0];
+    for (let k = 1; k < upper; k++) if (scratch[k] > lower) lower = scratch[k];
+    return 0.5 * (lower + scratch[upper]);
   }
+}
 
-  /** areas, subtraction, ptMin and order on the engine's final jets; packs the reported ones */
-  private finish(batch: BatchJets, rho: number, etCut: number, killed: number): JetSet {
-    const { cellReal, pileup } = this;
-    let count = 0;
-    let subtractedAway = 0;
-    for (let r = 0; r < batch.pt.length; r++) {
-      let real = 0;
-      const start = batch.towerStart[r];
-      for (let k = start; k < start + batch.towerCount[r]; k++) real += cellReal[batch.towers[k]];
-      if (real === 0) continue; // a pure-ghost jet is never reported
-      const area = pileup.areas ? batch.towerCount[r] * this.cellArea : 0;
-      let px = batch.px[r];
-      let py = batch.py[r];
-      let pz = batch.pz[r];
-      let energy = batch.energy[r];
-      let pt = batch.pt[r];
-      let mass = batch.mass[r];
-      if (pileup.subtract) {
-        const ptSub = pt - rho * area;
-        if (ptSub <= 0) {
-          subtractedAway++;
-          continue;
-        }
-        const f = ptSub / pt;
-        px = px * f;
-        py = py * f;
-        pz = pz * f;
-        energy = energy * f;
-        mass = Math.sqrt(Math.max(0, energy * energy - px * px - py * py - pz * pz));
-        pt = ptSub;
-      }
-      if (!(pt >= this.settings.ptMin)) continue;
-      this.jetPx[count] = px;
-      this.jetPy[count] = py;
-      this.jetPz[count] = pz;
-      this.jetEnergy[count] = energy;
-      this.jetPt[count] = pt;
-      this.jetMass[count] = mass;
-      this.jetPtRaw[count] = batch.pt[r];
-      this.jetArea[count] = area;
-      this.jetReal[count] = real;
-      this.jetGhosts[count] = batch.towerCount[r] - real;
-      this.jetIndex[count] = batch.jetIndex[r];
-      this.jetRow[count] = r;
-      count++;
-    }
-
-    // decreasing pt, ties to the smaller index; without subtraction the engine's order stands,
-    // with it the order is nearly kept, so an insertion sort moves few jets
-    const order = this.order;
-    for (let m = 0; m < count; m++) {
-      let at = m;
-      while (at > 0 && this.comesBefore(m, order[at - 1])) {
-        order[at] = order[at - 1];
-        at--;
-      }
-      order[at] = m;
-    }
-    return this.pack(batch, count, { rho, etCut, killed, subtractedAway });
-  }
-
-  private comesBefore(a: number, b: number): boolean {
-    if (this.jetPt[a] !== this.jetPt[b]) return this.jetPt[a] > this.jetPt[b];
-    return this.jetIndex[a] < this.jetIndex[b];
-  }
-
-  private pack(batch: BatchJets, count: number, event: { rho: number; etCut: number; killed: number; subtractedAway: number }): JetSet {
-    const jets = allocateJetSet(count);
-    const ghosts = new Int32Array(count);
-    const area = new Float64Array(count);
-    const ptRaw = new Float64Array(count);
-    let towerTotal = 0;
-    for (let n = 0; n < count; n++) {
-      const m = this.order[n];
-      const r = this.jetRow[m];
-      jets.px[n] = this.jetPx[m];
-      jets.py[n] = this.jetPy[m];
-      jets.pz[n] = this.jetPz[m];
-      jets.energy[n] = this.jetEnergy[m];
-      jets.pt[n] = this.jetPt[m];
-      jets.rapidity[n] = batch.rapidity[r];
-      jets.phi[n] = batch.phi[r];
-      jets.mass[n] = this.jetMass[m];
-      jets.towerCount[n] = this.jetReal[m];
-      jets.towerStart[n] = towerTotal;
-      towerTotal += this.jetReal[m];
-      ghosts[n] = this.jetGhosts[m];
-      area[n] = this.jetArea[m];
-      ptRaw[n] = this.jetPtRaw[m];
-    }
-    jets.towers = new Int32Array(towerTotal);
-    for (let n = 0; n < count; n++) {
-      const r = this.jetRow[this.order[n]];
-      let at = jets.towerStart[n];
-      const start = batch.towerStart[r];
-      for (let k = start; k < start + batch.towerCount[r]; k++) {
-        if (this.cellReal[batch.towers[k]] === 1) jets.towers[at++] = batch.towers[k];
+/**
+ * Rearranges values[0..n) so that values[nth] holds the element a sort would put there, with no
+ * larger one before it and no smaller one after it (Hoare's selection, middle pivot). Values
+ * must not hold NaN.
+ */
+function selectNth(values: Float64Array, n: number, nth: number): void {
+  let low = 0;
+  let high = n - 1;
+  while (low < high) {
+    const pivot = values[(low + high) >> 1];
+    let i = low;
+    let j = high;
+    while (i <= j) {
+      while (values[i] < pivot) i++;
+      while (values[j] > pivot) j--;
+      if (i <= j) {
+        const swap = values[i];
+        values[i] = values[j];
+        values[j] = swap;
+        i++;
+        j--;
       }
     }
-    jets.pileup = { ...event, ghosts, area, ptRaw };
-    return jets;
+    if (nth <= j) high = j;
+    else if (nth >= i) low = i;
+    else return;
   }
 }
