@@ -180,7 +180,7 @@ if (!streamingOnly) {
     const summary = await runEvents({ ...base, workers: 2 });
     mainSeconds += mainThreadCpuSeconds() - before - startupSeconds;
     events += summary.events.read;
-    clusterNs += summary.histograms.cluster.sumNs;
+    clusterNs += summary.histograms.service.sumNs;
     decodeBinNs += summary.histograms.stages.decode.sumNs + summary.histograms.stages.bin.sumNs;
   }
   const mainUs = (mainSeconds * 1e6) / events;

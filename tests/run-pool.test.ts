@@ -39,7 +39,7 @@ describe('a streamed run', () => {
   it('counts every event once: ok + invalid + failed = read = events in the file', async () => {
     const summary = await runEvents({ input: file.path, workers: 2, batch: 7, check: { mode: 'none', fraction: 0, seed: 1 } });
     expect(summary.events).toEqual({ read: events.length, ok: events.length, invalid: 0, failed: 0 });
-    expect(summary.latency.cluster.count).toBe(events.length);
+    expect(summary.latency.service.count).toBe(events.length);
     expect(summary.partial).toBe(false);
   });
 
@@ -134,10 +134,10 @@ describe('a streamed run', () => {
       { name: 'shard1.json', summary: JSON.parse(JSON.stringify(shard1)) },
     ]);
     expect(merged.events).toEqual(single.events);
-    expect(merged.latency.cluster).toEqual(single.latency.cluster);
+    expect(merged.latency.service).toEqual(single.latency.service);
     expect(merged.latency.stages).toEqual(single.latency.stages);
-    expect(merged.multiplicity).toEqual(single.multiplicity);
-    expect(merged.histograms.cluster).toEqual(single.histograms.cluster);
+    expect(merged.scaling).toEqual(single.scaling);
+    expect(merged.histograms.service).toEqual(single.histograms.service);
   });
 });
 

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { describeMachine, renderSummary, type RunConfiguration, type RunSummary } from '../host/measure/summary.js';
-import { fitMultiplicity, MULTIPLICITY_EDGES, MultiplicityBins } from '../host/measure/multiplicity-fit.js';
+import { MULTIPLICITY_EDGES, MultiplicityBins } from '../host/measure/multiplicity-fit.js';
 import { RunTally } from '../host/measure/run-tally.js';
 import { mergeSummaries } from '../host/measure/summary-merge.js';
 import { formatReport } from '../host/measure/report.js';
@@ -33,11 +33,10 @@ function tallyOf(events: number[]): RunTally {
     tally.ok++;
     const towers = 10 + (k % 700);
     const clusterNs = Math.round(50 * towers ** 1.3 * (1 + 0.01 * ((k * 7919) % 13)));
-    tally.cluster.recordNs(clusterNs);
+    tally.recordService(towers, clusterNs);
     tally.stages.cluster.recordNs(clusterNs);
-    tally.multiplicity.record(towers, clusterNs);
     const endNs = clusterNs + ((k * 104_729) % 40_000);
-    tally.endToEnd.recordNs(endNs);
+    tally.recordOpenLoopEvent(endNs - clusterNs, 0, endNs);
     if (endNs > 500_000) tally.overBudget++;
   }
   return tally;
@@ -64,7 +63,8 @@ describe('run summaries', () => {
     const merged = mergeSummaries([{ name: 'a.json', summary: shard0 }, { name: 'b.json', summary: shard1 }]);
     expect(merged.events).toEqual(single.events);
     expect(merged.latency).toEqual(single.latency);
-    expect(merged.multiplicity).toEqual(single.multiplicity);
+    expect(merged.scaling).toEqual(single.scaling);
+    expect(merged.towersPerEvent).toEqual(single.towersPerEvent);
     expect(merged.budget).toEqual(single.budget);
     expect(merged.invalidEvents).toEqual(single.invalidEvents);
     expect(merged.shards).toEqual([{ index: 0, count: 2 }, { index: 1, count: 2 }]);
@@ -87,17 +87,6 @@ describe('run summaries', () => {
     const tally = tallyOf([1, 2, 3]);
     tally.read++;
     expect(() => render(tally)).toThrow('event counts do not add up');
-  });
-
-  it('fit the exponent of time against towers', () => {
-    const summary = render(tallyOf(all));
-    // times were made ∝ N^1.3 with a small spread; bins mix N, so allow a few hundredths
-    expect(summary.multiplicity.alpha).not.toBeNull();
-    expect(Math.abs(summary.multiplicity.alpha! - 1.3)).toBeLessThan(0.05);
-  });
-
-  it('fit no exponent from a single bin', () => {
-    expect(fitMultiplicity([{ towersMin: 16, towersMax: 31, count: 10, meanTowers: 20, mean_us: 5, p50_us: 5, p99_us: 6 }]).alpha).toBeNull();
   });
 
   it('print a report with the percentiles, counts and budget misses', () => {

@@ -14,6 +14,12 @@ import type { Histogram } from 'hdr-histogram-js';
 const SIGNIFICANT_DIGITS = 3;
 const HIGHEST_TRACKABLE_NS = 3600e9;
 
+/** The part of hdr-histogram-js's plain JavaScript histogram that buckets() walks (not in its public type). */
+interface BucketWalk {
+  recordedValuesIterator: { reset(): void; hasNext(): boolean; next(): { valueIteratedTo: number; countAtValueIteratedTo: number } };
+  highestEquivalentValue(value: number): number;
+}
+
 export interface EncodedLatency {
   count: number;
   sumNs: number;
@@ -72,6 +78,24 @@ export class LatencyRecorder {
   percentileNs(percentile: number): number {
     if (this.count === 0) return 0;
     return Math.min(this.histogram.getValueAtPercentile(percentile), this.maxNs);
+  }
+
+  /**
+   * The recorded values bucket by bucket, ascending: each bucket's value as percentileNs gives
+   * it (its highest equivalent value, never above the maximum) and how many values it holds.
+   */
+  buckets(): { valuesNs: Float64Array; counts: Float64Array } {
+    const valuesNs: number[] = [];
+    const counts: number[] = [];
+    const histogram = this.histogram as unknown as BucketWalk;
+    const iterator = histogram.recordedValuesIterator;
+    iterator.reset();
+    while (iterator.hasNext()) {
+      const step = iterator.next();
+      valuesNs.push(Math.min(histogram.highestEquivalentValue(step.valueIteratedTo), this.maxNs));
+      counts.push(step.countAtValueIteratedTo);
+    }
+    return { valuesNs: Float64Array.from(valuesNs), counts: Float64Array.from(counts) };
   }
 
   meanNs(): number {

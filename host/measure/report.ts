@@ -1,10 +1,22 @@
 // The compact terminal report of a run (or a merge): one block of plain text, widths fixed so
-// that runs line up when printed one after another.
+// that runs line up when printed one after another. Every figure says what it includes: the
+// header names every setting that changes the result, every percentile row its event count,
+// and a high percentile resting on few events is marked.
 
 import type { LatencyStats } from './latency.js';
 import type { RunSummary } from './summary.js';
 
-const COLUMNS = ['p50', 'p90', 'p99', 'p99.9', 'max', 'mean'] as const;
+const COLUMNS = ['events', 'p50', 'p90', 'p99', 'p99.9', 'max', 'mean'] as const;
+const LABEL_WIDTH = 20;
+const CELL_WIDTH = 10;
+
+/**
+ * Fewer events than these and the percentile rests on under ten events above it: marked.
+ * (A p99 on 1,000 events is the 10th-highest value; common practice.)
+ */
+export const P99_MIN_EVENTS = 1000;
+export const P999_MIN_EVENTS = 10_000;
+const FEW_EVENTS_MARK = '*';
 
 function micros(value: number): string {
   if (value >= 1000) return value.toFixed(0);
@@ -12,41 +24,119 @@ function micros(value: number): string {
   return value.toFixed(2);
 }
 
-function latencyRow(label: string, stats: LatencyStats): string {
-  if (stats.count === 0) return `  ${label.padEnd(12)}${'—'.padStart(10)}`;
-  const cells = [stats.p50_us, stats.p90_us, stats.p99_us, stats.p999_us, stats.max_us, stats.mean_us];
-  return `  ${label.padEnd(12)}${cells.map((v) => (v === null ? '—' : micros(v)).padStart(10)).join('')}`;
+function grouped(value: number): string {
+  return Math.round(value).toLocaleString('en-US');
+}
+
+/** The row's cells; a p99 or p99.9 on too few events carries the mark. */
+function latencyRow(label: string, stats: LatencyStats): { text: string; marked: boolean } {
+  const head = `  ${label.padEnd(LABEL_WIDTH)}${grouped(stats.count).padStart(CELL_WIDTH)}`;
+  if (stats.count === 0) return { text: `${head}${'—'.padStart(CELL_WIDTH)}`, marked: false };
+  const cell = (value: number | null, few: boolean) => (value === null ? '—' : micros(value) + (few ? FEW_EVENTS_MARK : ''));
+  const fewP99 = stats.count < P99_MIN_EVENTS;
+  const fewP999 = stats.count < P999_MIN_EVENTS;
+  const cells = [
+    cell(stats.p50_us, false), cell(stats.p90_us, false), cell(stats.p99_us, fewP99), cell(stats.p999_us, fewP999),
+    cell(stats.max_us, false), cell(stats.mean_us, false),
+  ];
+  return { text: head + cells.map((c) => c.padStart(CELL_WIDTH)).join(''), marked: fewP99 || fewP999 };
 }
 
 function algorithmName(p: number): string {
   if (p === -1) return 'anti-kt';
   if (p === 0) return 'Cambridge/Aachen';
   if (p === 1) return 'kt';
-  return `generalised kt p=${p}`;
+  return 'generalised kt';
 }
 
-function grouped(value: number): string {
-  return Math.round(value).toLocaleString('en-US');
-}
-
-export function formatReport(summary: RunSummary): string {
+/** Every setting that changes the result, in one line. */
+function headerLine(summary: RunSummary): string {
   const c = summary.configuration;
   const s = c.settings;
-  const arrival = c.arrival.mode === 'closed'
+  const g = c.grid;
+  const loop = c.arrival.mode === 'closed'
     ? 'closed loop'
     : `open loop ${c.arrival.mode === 'poisson' ? 'Poisson' : 'fixed'} ${grouped(c.arrival.rateHz ?? 0)} Hz`;
   const shardText = summary.shards.length === 1 && c.shard.count === 1
     ? ''
     : ` · shards ${summary.shards.map((x) => x.index).join(',')} of ${c.shard.count}`;
-  const lines: string[] = [];
-  lines.push(`${c.file} · ${algorithmName(s.p)} R=${s.radius}${s.recombination === 'wta' ? ' WTA' : ''} · ${c.engine} · ${c.workers} worker${c.workers === 1 ? '' : 's'}, batch ${c.batch} · ${arrival}${shardText}`);
+  return `${c.file} · ${algorithmName(s.p)} p=${s.p} R=${s.radius} ${s.recombination === 'wta' ? 'WTA' : 'E-scheme'}` +
+    ` ptMin ${s.ptMin} GeV threshold ${s.threshold} GeV · grid η ${g.etaMin}..${g.etaMax} ${g.etaBins}×${g.phiBins}` +
+    ` · engine ${c.engine} · ${c.workers} worker${c.workers === 1 ? '' : 's'}, batch ${c.batch} · ${loop}${shardText}`;
+}
+
+function latencyLines(summary: RunSummary): string[] {
+  const openLoop = summary.configuration.arrival.mode !== 'closed';
+  const l = summary.latency;
+  const rows = [latencyRow('service', l.service)];
+  if (openLoop) {
+    rows.push(latencyRow('wait', l.wait), latencyRow('return', l.return), latencyRow('end-to-end', l.endToEnd));
+    rows.push(latencyRow('harness: dispatch late', summary.harness.dispatchLateness));
+  }
+  const lines = [`  ${'latency µs'.padEnd(LABEL_WIDTH)}${COLUMNS.map((col) => col.padStart(CELL_WIDTH)).join('')}`];
+  lines.push(...rows.map((row) => row.text));
+  lines.push(`  ${''.padEnd(LABEL_WIDTH)}service: the engine's own time per event, measured inside the worker around clustering`);
+  if (openLoop) {
+    lines.push(`  ${''.padEnd(LABEL_WIDTH)}end-to-end = wait + service + return, per event, from its scheduled arrival to its result on the main thread;`);
+    lines.push(`  ${''.padEnd(LABEL_WIDTH)}dispatch late: the harness handing events over after their scheduled time (part of wait)`);
+  } else {
+    lines.push(`  ${''.padEnd(LABEL_WIDTH)}a closed loop measures capacity; latency under load needs an open loop (--rate or --poisson)`);
+  }
+  if (rows.some((row) => row.marked)) {
+    lines.push(`  ${''.padEnd(LABEL_WIDTH)}${FEW_EVENTS_MARK} p99 on fewer than ${grouped(P99_MIN_EVENTS)} events or p99.9 on fewer than ${grouped(P999_MIN_EVENTS)}: few events above it, a rough figure`);
+  }
+  return lines;
+}
+
+function throughputLine(summary: RunSummary): string {
+  const t = summary.throughput;
+  const what = summary.configuration.arrival.mode === 'closed' ? 'capacity' : 'throughput';
+  const basis = t.basis.startsWith('events read / wall time') ? '' : ` (${t.basis})`;
+  const load = summary.machineLoad;
+  const cpu = load && summary.events.read > 0 ? ` · CPU ${micros((load.cpuSeconds * 1e6) / summary.events.read)} µs per event, all threads` : '';
+  return `  ${what.padEnd(12)}${grouped(t.eventsPerSecond)} events/s over ${t.wallSeconds.toFixed(2)} s${basis}${cpu}`;
+}
+
+function scalingLines(summary: RunSummary): string[] {
+  const s = summary.scaling;
+  const bins = s.bins.filter((b) => b.nLow > 0).map((b) => `${b.nLow}-${b.nHigh}: ${grouped(b.events)}`).join(' · ');
+  const lines = s.alpha === null
+    ? [`  scaling     no exponent: ${s.reason}`]
+    : [`  scaling     service ∝ N^${s.alpha.toFixed(2)} ± ${s.alphaError.toFixed(2)} (seeded bootstrap over events), N ${s.nMin}..${s.nMax}`];
+  if (bins) lines.push(`              events per N bin: ${bins}`);
+  return lines;
+}
+
+function findRateLine(summary: RunSummary): string | null {
+  const f = summary.findRate;
+  if (!f) return null;
+  const lowest = Math.min(...f.trials.map((t) => t.rateHz));
+  const main = f.rateHz === null
+    ? `  find-rate   p99 over ${f.budgetUs} µs even at the lowest rate tried, ${grouped(lowest)} Hz`
+    : `  find-rate   p99 within ${f.budgetUs} µs up to ${grouped(f.rateHz)} Hz (${f.trials.length} open-loop trials)`;
+  const fewest = Math.min(...f.trials.map((t) => t.events));
+  return fewest < P99_MIN_EVENTS ? `${main}; each trial's p99 rests on only ${grouped(fewest)} events` : main;
+}
+
+export function formatReport(summary: RunSummary): string {
+  const c = summary.configuration;
+  const lines: string[] = [headerLine(summary)];
+  const towers = summary.towersPerEvent;
+  lines.push(towers.mean === null
+    ? '  towers      none clustered'
+    : `  towers      per event: mean ${towers.mean.toFixed(1)} · p50 ${grouped(towers.p50!)} · max ${grouped(towers.max!)}`);
   const e = summary.events;
   lines.push(`  events      read ${grouped(e.read)} · ok ${grouped(e.ok)} · invalid ${grouped(e.invalid)} · failed ${grouped(e.failed)}`);
-  lines.push(`  latency µs  ${COLUMNS.map((col) => col.padStart(10)).join('')}`);
-  lines.push(latencyRow('cluster', summary.latency.cluster));
-  lines.push(latencyRow('end-to-end', summary.latency.endToEnd));
-  if (summary.latency.dispatchLag.count > 0) lines.push(latencyRow('  to dispatch', summary.latency.dispatchLag));
-  lines.push(`  throughput  ${grouped(summary.throughput.eventsPerSecond)} events/s over ${summary.throughput.wallSeconds.toFixed(2)} s`);
+  const load = summary.machineLoad;
+  if (load?.busy) lines.push(`  BUSY        figures taken on a busy machine: ${load.busyReason}`);
+  lines.push(...latencyLines(summary));
+  lines.push(throughputLine(summary));
+  const saturation = summary.saturation;
+  if (saturation) {
+    lines.push(saturation.saturated
+      ? `  SATURATED   offered ${grouped(saturation.offeredHz)} Hz, sustained ${grouped(saturation.sustainedHz)} Hz: the pool did not keep up, the queue grew through the run`
+      : `  rate        offered ${grouped(saturation.offeredHz)} Hz, sustained ${grouped(saturation.sustainedHz)} Hz`);
+  }
   if (summary.budget) {
     const b = summary.budget;
     lines.push(`  budget      ${b.budgetUs} µs on ${b.measuredOn}: ${grouped(b.over)} events over (${(b.fractionOver * 100).toFixed(3)} %)`);
@@ -57,19 +147,16 @@ export function formatReport(summary: RunSummary): string {
     const k = summary.check;
     lines.push(`  check       ${grouped(k.checked)} checked against the reference · ${grouped(k.agreeing)} agree · ${grouped(k.disagreeing)} disagree`);
   }
-  if (summary.multiplicity.alpha !== null) {
-    lines.push(`  scaling     cluster time ∝ N^${summary.multiplicity.alpha.toFixed(2)} over ${summary.multiplicity.binsUsed} tower-multiplicity bins`);
-  }
-  if (summary.findRate) {
-    const f = summary.findRate;
-    const lowest = Math.min(...f.trials.map((t) => t.rateHz));
-    lines.push(f.rateHz === null
-      ? `  find-rate   p99 over ${f.budgetUs} µs even at the lowest rate tried, ${grouped(lowest)} Hz`
-      : `  find-rate   p99 within ${f.budgetUs} µs up to ${grouped(f.rateHz)} Hz (${f.trials.length} open-loop trials)`);
-  }
+  lines.push(...scalingLines(summary));
+  const findRate = findRateLine(summary);
+  if (findRate) lines.push(findRate);
   if (summary.scanWorkers) {
     const points = summary.scanWorkers.points.map((p) => `${p.workers}: ${grouped(p.eventsPerSecond)}/s ×${p.speedup.toFixed(2)}`);
     lines.push(`  workers     ${points.join(' · ')}`);
+  }
+  if (load) {
+    lines.push(`  machine     load average ${load.loadAverageStart.toFixed(2)} before, ${load.loadAverageEnd.toFixed(2)} after, ${load.cores} cores · ` +
+      `CPU ${load.cpuSeconds.toFixed(2)} s received for ${load.workerBusySeconds.toFixed(2)} s of worker time on events`);
   }
   if (summary.partial) lines.push(`  PARTIAL     ${summary.partialReason ?? 'run stopped early'}`);
   return lines.join('\n') + '\n';

@@ -3,6 +3,7 @@
 
 import { LatencyRecorder } from './latency.js';
 import { MultiplicityBins } from './multiplicity-fit.js';
+import { combineMachineLoads, type MachineLoad, type MachineLoadProbe } from './machine-load.js';
 import type { TowerCounts } from '../types.js';
 import type { JetDifference } from '../validate/bit-exact.js';
 
@@ -37,6 +38,19 @@ export interface CheckedDifference extends JetDifference {
   event: number;
 }
 
+/**
+ * A sustained rate this far below the offered one counts as saturation: a run that keeps up
+ * still falls short by its last event's latency over the run's length, and Poisson arrivals
+ * wander; 5 % leaves room for both on runs of a second or more.
+ */
+export const SATURATION_SHORTFALL = 0.05;
+
+export interface Saturation {
+  offeredHz: number;
+  sustainedHz: number;
+  saturated: boolean;
+}
+
 export class RunTally {
   read = 0;
   ok = 0;
@@ -48,12 +62,21 @@ export class RunTally {
   readonly failedBatches: FailedBatch[] = [];
   readonly towers: TowerCounts = { offered: 0, belowThreshold: 0, outsideAcceptance: 0, clustered: 0 };
   readonly check = { checked: 0, agreeing: 0, disagreeing: 0, differences: [] as CheckedDifference[] };
-  /** per-event clustering time inside the worker */
-  readonly cluster = new LatencyRecorder();
-  /** per event, scheduled (open loop) or dispatch (closed loop) time to its result back on the host */
+  /**
+   * service time: the engine's own time per event, measured inside the worker around
+   * clustering (both loops)
+   */
+  readonly service = new LatencyRecorder();
+  /** open loop, per event: scheduled arrival to its start in a worker */
+  readonly wait = new LatencyRecorder();
+  /** open loop, per event: end of its service to its result back on the main thread */
+  readonly returnTrip = new LatencyRecorder();
+  /** open loop, per event: scheduled arrival to its result back on the main thread */
   readonly endToEnd = new LatencyRecorder();
-  /** open loop: how late the host handed each event to the pool after its scheduled arrival */
-  readonly dispatchLag = new LatencyRecorder();
+  /** open loop, a property of the harness: actual hand-over to the pool minus the scheduled time */
+  readonly dispatchLateness = new LatencyRecorder();
+  /** towers that entered clustering, per clustered event (the main driver of service time) */
+  readonly towersPerEvent = new LatencyRecorder();
   readonly stages: Record<Stage, LatencyRecorder> = {
     decode: new LatencyRecorder(),
     bin: new LatencyRecorder(),
@@ -67,6 +90,48 @@ export class RunTally {
    * from the scheduled arrival; closed loop (no arrivals), their own time in the worker
    */
   overBudget = 0;
+  /** open loop: offered against sustained rate (recordRates); null in a closed loop */
+  saturation: Saturation | null = null;
+  /** the machine as measured (machine-load.ts); null until the run ends */
+  machineLoad: MachineLoad | null = null;
+
+  /** One clustered event, either loop: its tower multiplicity and service time. */
+  recordService(towers: number, serviceNs: number): void {
+    this.service.recordNs(serviceNs);
+    this.towersPerEvent.recordNs(towers);
+    this.multiplicity.record(towers, serviceNs);
+  }
+
+  /** One clustered event of an open loop: wait + service + return = end-to-end, all from its scheduled arrival. */
+  recordOpenLoopEvent(waitNs: number, returnNs: number, endToEndNs: number): void {
+    this.wait.recordNs(waitNs);
+    this.returnTrip.recordNs(returnNs);
+    this.endToEnd.recordNs(endToEndNs);
+  }
+
+  /** Open loop, per event handed to the pool: how late the harness was against its schedule. */
+  recordDispatchLatenessNs(latenessNs: number): void {
+    this.dispatchLateness.recordNs(latenessNs);
+  }
+
+  /**
+   * Open loop, once at the end: the rate the schedule offered, the rate results came back, and
+   * whether the backlog of due events grew through the run. Saturated when either says so.
+   */
+  recordRates(offeredHz: number, sustainedHz: number, backlogGrew: boolean): void {
+    this.saturation = {
+      offeredHz,
+      sustainedHz,
+      saturated: backlogGrew || sustainedHz < offeredHz * (1 - SATURATION_SHORTFALL),
+    };
+  }
+
+  /** Once, right after the timed run: the machine as measured (the workers' busy time from the stage times). */
+  recordMachineLoad(probe: MachineLoadProbe): void {
+    let workerBusyNs = 0;
+    for (const stage of STAGES) workerBusyNs += this.stages[stage].sumNs;
+    this.machineLoad = probe.finish(workerBusyNs);
+  }
 
   addInvalid(entry: InvalidEvent): void {
     this.invalid++;
@@ -87,7 +152,8 @@ export class RunTally {
     this.ok += other.ok;
     this.invalid += other.invalid;
     this.failed += other.failed;
-    this.bytesRead += other.bytesRead;
+    // every shard reads the whole file (and skips the others' batches): the bytes are read once
+    this.bytesRead = Math.max(this.bytesRead, other.bytesRead);
     this.jets += other.jets;
     for (const entry of other.invalidEvents) if (this.invalidEvents.length < LISTED_MAX) this.invalidEvents.push(entry);
     this.invalidEvents.sort((a, b) => a.record - b.record);
@@ -102,11 +168,24 @@ export class RunTally {
     this.check.disagreeing += other.check.disagreeing;
     for (const entry of other.check.differences) this.addDifference(entry);
     this.check.differences.sort((a, b) => a.event - b.event);
-    this.cluster.merge(other.cluster);
+    this.service.merge(other.service);
+    this.wait.merge(other.wait);
+    this.returnTrip.merge(other.returnTrip);
     this.endToEnd.merge(other.endToEnd);
-    this.dispatchLag.merge(other.dispatchLag);
+    this.dispatchLateness.merge(other.dispatchLateness);
+    this.towersPerEvent.merge(other.towersPerEvent);
     for (const stage of STAGES) this.stages[stage].merge(other.stages[stage]);
     this.multiplicity.merge(other.multiplicity);
     this.overBudget += other.overBudget;
+    // shards run side by side: their rates add, and one saturated shard saturates the whole
+    if (other.saturation) {
+      const own = this.saturation;
+      this.saturation = own === null ? { ...other.saturation } : {
+        offeredHz: own.offeredHz + other.saturation.offeredHz,
+        sustainedHz: own.sustainedHz + other.saturation.sustainedHz,
+        saturated: own.saturated || other.saturation.saturated,
+      };
+    }
+    if (other.machineLoad) this.machineLoad = this.machineLoad ? combineMachineLoads(this.machineLoad, other.machineLoad) : { ...other.machineLoad };
   }
 }

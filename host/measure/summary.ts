@@ -4,9 +4,10 @@
 // Invariant, checked on every render: events.ok + events.invalid + events.failed = events.read.
 
 import os from 'node:os';
-import type { EncodedLatency, LatencyStats } from './latency.js';
-import { fitMultiplicity, multiplicityTable, type MultiplicityBin } from './multiplicity-fit.js';
-import { STAGES, type CheckedDifference, type FailedBatch, type InvalidEvent, type RunTally, type Stage } from './run-tally.js';
+import { LatencyRecorder, type EncodedLatency, type LatencyStats } from './latency.js';
+import { fitScaling, scalingSamples, type Scaling } from './scaling-fit.js';
+import { STAGES, type CheckedDifference, type FailedBatch, type InvalidEvent, type RunTally, type Saturation, type Stage } from './run-tally.js';
+import type { MachineLoad } from './machine-load.js';
 import type { TowerCounts } from '../types.js';
 
 export interface MachineInfo {
@@ -46,9 +47,22 @@ export interface RunConfiguration {
   input: { label: string; records: number | null };
 }
 
+/**
+ * The summary's layout version; merge reads this one only. 2: latency.service (was cluster),
+ * latency.wait/return/endToEnd open loop only, harness.dispatchLateness, saturation, scaling
+ * (was multiplicity), towersPerEvent, machineLoad.
+ */
+export const SUMMARY_VERSION = 2;
+
+export interface TowersPerEvent {
+  mean: number | null;
+  p50: number | null;
+  max: number | null;
+}
+
 export interface RunSummary {
   format: 'jetlag-run-summary';
-  version: 1;
+  version: typeof SUMMARY_VERSION;
   partial: boolean;
   partialReason: string | null;
   configuration: RunConfiguration;
@@ -63,21 +77,44 @@ export interface RunSummary {
   jets: number;
   check: { checked: number; agreeing: number; disagreeing: number; differences: CheckedDifference[] };
   latency: {
-    cluster: LatencyStats;
+    /** the engine's own time per event, measured inside the worker around clustering */
+    service: LatencyStats;
+    /** open loop only (empty in a closed loop): scheduled arrival to the event's start in a worker */
+    wait: LatencyStats;
+    /** open loop only: end of service to the result back on the main thread */
+    return: LatencyStats;
+    /** open loop only: scheduled arrival to the result back on the main thread, per event */
     endToEnd: LatencyStats;
-    /** open loop: scheduled arrival to hand-over to the pool (part of endToEnd): waiting for room in the pool, and timer lateness */
-    dispatchLag: LatencyStats;
     stages: Record<Stage, LatencyStats>;
   };
+  /** the harness's own figures, apart from the events' */
+  harness: {
+    /** open loop: actual hand-over to the pool minus the scheduled time */
+    dispatchLateness: LatencyStats;
+  };
+  /** open loop: offered against sustained rate; null in a closed loop */
+  saturation: Saturation | null;
+  /** towers that entered clustering, per clustered event */
+  towersPerEvent: TowersPerEvent;
+  /** the machine as measured around the run; null when not measured */
+  machineLoad: MachineLoad | null;
   /** measuredOn: 'end-to-end' (open loop) or 'worker time' (closed loop: decode to encode of the event itself, the reference check left out) */
   budget: { budgetUs: number; measuredOn: 'end-to-end' | 'worker time'; over: number; fractionOver: number } | null;
-  /** events read / wall time from the first dispatch to the last result; bytesRead: uncompressed offset of the last record read */
-  throughput: { eventsPerSecond: number; wallSeconds: number; bytesRead: number };
-  multiplicity: { bins: MultiplicityBin[]; alpha: number | null; binsUsed: number };
+  /**
+   * events read / wall time from the first dispatch to the last result (a merge: all shards'
+   * events over the longest shard's wall time, as `basis` says); bytesRead: uncompressed offset
+   * of the last record read
+   */
+  throughput: { eventsPerSecond: number; wallSeconds: number; bytesRead: number; basis: string };
+  /** service time ∝ N^alpha over tower multiplicity N */
+  scaling: Scaling;
   histograms: {
-    cluster: EncodedLatency;
+    service: EncodedLatency;
+    wait: EncodedLatency;
+    return: EncodedLatency;
     endToEnd: EncodedLatency;
-    dispatchLag: EncodedLatency;
+    dispatchLateness: EncodedLatency;
+    towersPerEvent: EncodedLatency;
     stages: Record<Stage, EncodedLatency>;
     multiplicity: { bin: number; sumTowers: number; histogram: EncodedLatency }[];
   };
@@ -104,8 +141,18 @@ export interface RenderContext {
   partial: boolean;
   partialReason: string | null;
   wallSeconds: number;
-  /** when given (a merge), used instead of events / wallSeconds */
-  eventsPerSecond?: number;
+  /** how eventsPerSecond was reached, when not events / wallSeconds (a merge) */
+  rateBasis?: string;
+}
+
+/** Open-loop-only figures of a closed loop are empty, whatever was recorded. */
+function openLoopStats(recorder: LatencyRecorder, openLoop: boolean): LatencyStats {
+  return (openLoop ? recorder : new LatencyRecorder()).stats();
+}
+
+function towersPerEventOf(recorder: LatencyRecorder): TowersPerEvent {
+  if (recorder.count === 0) return { mean: null, p50: null, max: null };
+  return { mean: Math.round(recorder.meanNs() * 10) / 10, p50: recorder.percentileNs(50), max: recorder.maxNs };
 }
 
 export function renderSummary(tally: RunTally, context: RenderContext): RunSummary {
@@ -119,14 +166,15 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
     stagesStats[stage] = tally.stages[stage].stats();
     stagesEncoded[stage] = tally.stages[stage].encode();
   }
-  const bins = multiplicityTable(tally.multiplicity);
-  const fit = fitMultiplicity(bins);
+  const towers = tally.towersPerEvent;
+  const scaling = fitScaling(scalingSamples(tally.multiplicity), towers.count > 0 ? towers.minNs : null, towers.count > 0 ? towers.maxNs : null);
+  const openLoop = context.configuration.arrival.mode !== 'closed';
   const budgetUs = context.configuration.budgetUs;
-  const timed = tally.endToEnd.count;
+  const timed = tally.service.count;
   const wallSeconds = context.wallSeconds;
   return {
     format: 'jetlag-run-summary',
-    version: 1,
+    version: SUMMARY_VERSION,
     partial: context.partial,
     partialReason: context.partialReason,
     configuration: context.configuration,
@@ -139,7 +187,17 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
     towers: { ...tally.towers },
     jets: tally.jets,
     check: { ...tally.check },
-    latency: { cluster: tally.cluster.stats(), endToEnd: tally.endToEnd.stats(), dispatchLag: tally.dispatchLag.stats(), stages: stagesStats },
+    latency: {
+      service: tally.service.stats(),
+      wait: openLoopStats(tally.wait, openLoop),
+      return: openLoopStats(tally.returnTrip, openLoop),
+      endToEnd: openLoopStats(tally.endToEnd, openLoop),
+      stages: stagesStats,
+    },
+    harness: { dispatchLateness: openLoopStats(tally.dispatchLateness, openLoop) },
+    saturation: openLoop ? tally.saturation : null,
+    towersPerEvent: towersPerEventOf(towers),
+    machineLoad: tally.machineLoad,
     budget: budgetUs === null ? null : {
       budgetUs,
       measuredOn: context.configuration.arrival.mode === 'closed' ? 'worker time' : 'end-to-end',
@@ -147,15 +205,19 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
       fractionOver: timed === 0 ? 0 : tally.overBudget / timed,
     },
     throughput: {
-      eventsPerSecond: context.eventsPerSecond ?? (wallSeconds > 0 ? events.read / wallSeconds : 0),
+      eventsPerSecond: wallSeconds > 0 ? events.read / wallSeconds : 0,
       wallSeconds,
       bytesRead: tally.bytesRead,
+      basis: context.rateBasis ?? 'events read / wall time of the run',
     },
-    multiplicity: { bins, alpha: fit.alpha, binsUsed: fit.binsUsed },
+    scaling,
     histograms: {
-      cluster: tally.cluster.encode(),
+      service: tally.service.encode(),
+      wait: tally.wait.encode(),
+      return: tally.returnTrip.encode(),
       endToEnd: tally.endToEnd.encode(),
-      dispatchLag: tally.dispatchLag.encode(),
+      dispatchLateness: tally.dispatchLateness.encode(),
+      towersPerEvent: towers.encode(),
       stages: stagesEncoded,
       multiplicity: tally.multiplicity.recorders.flatMap((recorder, bin) =>
         recorder ? [{ bin, sumTowers: tally.multiplicity.sumTowers[bin], histogram: recorder.encode() }] : []),

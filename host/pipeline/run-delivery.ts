@@ -87,7 +87,7 @@ export class RunDelivery {
       }
       tally.ok++;
       const clusterNs = views.stageNs[at + STAGE_CLUSTER];
-      tally.cluster.recordNs(clusterNs);
+      tally.recordService(views.towersClustered[k], clusterNs);
       for (const stage of STAGES) {
         const index = STAGE_INDEX[stage];
         const value = views.stageNs[at + index];
@@ -95,7 +95,6 @@ export class RunDelivery {
         if ((index === STAGE_CHECK || index === STAGE_ENCODE) && value === 0) continue;
         tally.stages[stage].recordNs(value);
       }
-      tally.multiplicity.record(views.towersClustered[k], clusterNs);
       const endToEndNs = outcome.finishedNs - outcome.startNs[k];
       tally.endToEnd.recordNs(endToEndNs);
       // a closed loop has no arrivals: its events wait for the batches before them by design,

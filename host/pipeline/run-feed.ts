@@ -83,7 +83,7 @@ export class RecordFeed {
     if (this.schedule.openLoop) {
       for (let k = 0; k < starts.length; k++) {
         starts[k] = this.builderStartNs[k];
-        this.delivery.tally.dispatchLag.recordNs(dispatchNs - this.builderStartNs[k]);
+        this.delivery.tally.recordDispatchLatenessNs(dispatchNs - this.builderStartNs[k]);
       }
     } else starts.fill(dispatchNs);
     this.builderStartNs.length = 0;

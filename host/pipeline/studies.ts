@@ -47,7 +47,7 @@ export async function scanWorkers(options: RunOptions, cores: number) {
       workers,
       eventsPerSecond,
       speedup: points.length ? eventsPerSecond / points[0].eventsPerSecond : 1,
-      cluster_p50_us: summary.latency.cluster.p50_us,
+      cluster_p50_us: summary.latency.service.p50_us,
       endToEnd_p99_us: summary.latency.endToEnd.p99_us,
     });
   }

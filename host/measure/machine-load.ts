@@ -1,0 +1,101 @@
+// The machine as measured: a latency figure taken while other programs held the cores is a
+// figure of that machine at that moment, so the summary records the load average around the
+// run and the CPU time the process received against the time its workers spent on events, and
+// the report says when the machine was busy.
+
+import os from 'node:os';
+
+export interface MachineLoad {
+  cores: number;
+  /** 1-minute load average just before the run */
+  loadAverageStart: number;
+  /** 1-minute load average just after the run (it includes the run's own threads) */
+  loadAverageEnd: number;
+  /** CPU time the whole process (main thread and workers) received during the run */
+  cpuSeconds: number;
+  wallSeconds: number;
+  /** wall time the workers spent on events, summed over events (every stage, in the worker) */
+  workerBusySeconds: number;
+  busy: boolean;
+  /** why the machine counts as busy, in words; null when it does not */
+  busyReason: string | null;
+}
+
+/**
+ * A worker on an idle core gets CPU for all its busy wall time; the process's CPU time also
+ * holds the main thread's, so a share below this means the workers were descheduled for a
+ * good part of their events.
+ */
+export const BUSY_CPU_SHARE = 0.8;
+
+function coresOf(): number {
+  return typeof os.availableParallelism === 'function' ? os.availableParallelism() : os.cpus().length;
+}
+
+/** Started just before the timed run, finished just after. */
+export class MachineLoadProbe {
+  private readonly loadStart = os.loadavg()[0];
+  private readonly cpuStart = process.cpuUsage();
+  private readonly wallStartNs = process.hrtime.bigint();
+
+  /** workerBusyNs: the workers' wall time on events, summed (from the run's stage times) */
+  finish(workerBusyNs: number): MachineLoad {
+    const cpu = process.cpuUsage(this.cpuStart);
+    const wallSeconds = Number(process.hrtime.bigint() - this.wallStartNs) / 1e9;
+    return judgeMachineLoad({
+      cores: coresOf(),
+      loadAverageStart: this.loadStart,
+      loadAverageEnd: os.loadavg()[0],
+      cpuSeconds: (cpu.user + cpu.system) / 1e6,
+      wallSeconds,
+      workerBusySeconds: workerBusyNs / 1e9,
+    });
+  }
+}
+
+function round(value: number, digits: number): number {
+  const scale = 10 ** digits;
+  return Math.round(value * scale) / scale;
+}
+
+/**
+ * Busy when the load of other programs exceeded the cores, or the workers got markedly less
+ * CPU than wall time. The load at the end counts the run's own threads, about its CPU time
+ * over its wall time; that much is taken off before comparing with the cores.
+ */
+export function judgeMachineLoad(measured: Omit<MachineLoad, 'busy' | 'busyReason'>): MachineLoad {
+  const { cores, loadAverageStart, loadAverageEnd, cpuSeconds, wallSeconds, workerBusySeconds } = measured;
+  const ownThreads = wallSeconds > 0 ? cpuSeconds / wallSeconds : 0;
+  const othersAtEnd = loadAverageEnd - ownThreads;
+  const reasons: string[] = [];
+  if (loadAverageStart > cores) reasons.push(`load average ${loadAverageStart.toFixed(2)} before the run on ${cores} cores`);
+  else if (othersAtEnd > cores) reasons.push(`load average ${loadAverageEnd.toFixed(2)} after the run on ${cores} cores, ${othersAtEnd.toFixed(2)} of it not this run's`);
+  if (workerBusySeconds > 0 && cpuSeconds < BUSY_CPU_SHARE * workerBusySeconds) {
+    reasons.push(`the process got ${cpuSeconds.toFixed(2)} s of CPU for ${workerBusySeconds.toFixed(2)} s its workers spent on events`);
+  }
+  return {
+    cores,
+    loadAverageStart: round(loadAverageStart, 2),
+    loadAverageEnd: round(loadAverageEnd, 2),
+    cpuSeconds: round(cpuSeconds, 3),
+    wallSeconds: round(wallSeconds, 3),
+    workerBusySeconds: round(workerBusySeconds, 3),
+    busy: reasons.length > 0,
+    busyReason: reasons.length > 0 ? reasons.join('; ') : null,
+  };
+}
+
+/** Shards of one job: the highest loads, CPU and busy time added, busy when any shard was. */
+export function combineMachineLoads(a: MachineLoad, b: MachineLoad): MachineLoad {
+  const reasons = [a.busyReason, b.busyReason].filter((r): r is string => r !== null);
+  return {
+    cores: Math.max(a.cores, b.cores),
+    loadAverageStart: Math.max(a.loadAverageStart, b.loadAverageStart),
+    loadAverageEnd: Math.max(a.loadAverageEnd, b.loadAverageEnd),
+    cpuSeconds: round(a.cpuSeconds + b.cpuSeconds, 3),
+    wallSeconds: Math.max(a.wallSeconds, b.wallSeconds),
+    workerBusySeconds: round(a.workerBusySeconds + b.workerBusySeconds, 3),
+    busy: a.busy || b.busy,
+    busyReason: reasons.length > 0 ? reasons.join('; ') : null,
+  };
+}
