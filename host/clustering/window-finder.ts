@@ -45,27 +45,39 @@ export function checkWindowSettings(window: WindowSettings, where = 'window'): v
 }
 
 /**
- * Reads `window`, `window:W` or `window:W:SEEDET` (W odd, in towers; SEEDET in GeV); the parts
- * left out take the defaults 9 and 5. Returns null when the text does not start with `window`.
+ * Reads `window`, `window:W` or `window:W:SEEDET` (W odd, in towers; SEEDET in GeV), the value
+ * of `option`; the parts left out take the defaults 9 and 5. Returns null when the text does
+ * not start with `window`.
  */
-export function parseWindowEmulation(text: string): WindowSettings | null {
+export function parseWindowEmulation(text: string, option = '--emulate'): WindowSettings | null {
   const trimmed = text.trim();
   if (trimmed !== 'window' && !trimmed.startsWith('window:')) return null;
   const parts = trimmed.split(':').slice(1);
-  if (parts.length > 2) throw new UsageError(`--emulate window:W:SEEDET takes at most two numbers, got ${JSON.stringify(text)}`);
+  if (parts.length > 2) throw new UsageError(`${option} window:W:SEEDET takes at most two numbers, got ${JSON.stringify(text)}`);
   const number = (part: string | undefined, fallback: number): number => {
     if (part === undefined) return fallback;
-    if (part.trim() === '') throw new UsageError(`--emulate window:W:SEEDET has an empty number in ${JSON.stringify(text)}`);
+    if (part.trim() === '') throw new UsageError(`${option} window:W:SEEDET has an empty number in ${JSON.stringify(text)}`);
     return Number(part);
   };
   const window = { windowTowers: number(parts[0], DEFAULT_WINDOW.windowTowers), seedEt: number(parts[1], DEFAULT_WINDOW.seedEt) };
-  checkWindowSettings(window, '--emulate window:W:SEEDET');
+  checkWindowSettings(window, `${option} window:W:SEEDET`);
   return window;
 }
 
-/** The clusterer name for a window finder: `window-W-SEEDET`, e.g. `window-9-5`. */
-export function windowFinderName(window: WindowSettings): string {
+/** The name of a window finder as a clusterer, engine and jets file engine: `window-9-5`. */
+export type WindowEngineName = `window-${number}-${number}`;
+
+export function windowFinderName(window: WindowSettings): WindowEngineName {
   return `window-${window.windowTowers}-${window.seedEt}`;
+}
+
+/** The settings back from a name of windowFinderName; null for any other name. */
+export function windowSettingsOfName(name: string): WindowSettings | null {
+  const match = /^window-(\d+)-(.+)$/.exec(name);
+  if (!match) return null;
+  const window = { windowTowers: Number(match[1]), seedEt: Number(match[2]) };
+  checkWindowSettings(window, name);
+  return window;
 }
 
 /** A one-line description for labels and reports. */

@@ -12,6 +12,8 @@ import { LISTED_MAX } from '../../measure/run-tally.js';
 import { formatReport } from '../../measure/report.js';
 import { writeTextFile } from '../../output/record-writer.js';
 import type { ArrivalMode } from '../../pipeline/arrivals.js';
+import type { EngineName } from '../../clustering/clusterers.js';
+import { parseWindowEmulation, windowFinderName } from '../../clustering/window-finder.js';
 
 /** problem lines (invalid events, failed batches, check differences) written to stderr */
 const PROBLEM_LINES_MAX = 20;
@@ -32,7 +34,7 @@ const RUN_OPTIONS: OptionSpec[] = [
   { name: 'out', kind: 'string', argument: '<file>', description: 'write the jets of every event to a jets file (default: none)' },
   { name: 'shard', kind: 'string', argument: '<k/n>', description: 'process only every n-th batch of events starting with batch k, for job arrays (default: 0/1)' },
   { name: 'events', kind: 'integer', argument: '<n>', description: 'stop after the first n events of the file (default: all)' },
-  { name: 'engine', kind: 'string', argument: '<wasm|reference>', description: 'clusterer in the workers: the engine or the plain reference (default: wasm)' },
+  { name: 'engine', kind: 'string', argument: '<wasm|reference|window[:W:SEEDET]>', description: 'clusterer in the workers: the engine, the plain reference, or the level-1 style window finder (W x W towers around maxima of et >= SEEDET GeV, default 9:5; no --check) (default: wasm)' },
   { name: 'quiet', kind: 'flag', short: 'q', description: 'no progress bar' },
 ];
 
@@ -103,22 +105,30 @@ export function runOptionsFrom(args: ParsedArgs): RunOptions & { findRate: boole
   const budgetUs = positiveNumber(args, 'budget-us') ?? null;
   const wantFindRate = args.values['find-rate'] === true;
   if (wantFindRate && budgetUs === null) throw new UsageError('run: --find-rate needs --budget-us');
-  const engine = args.values.engine as string | undefined;
-  if (engine !== undefined && engine !== 'wasm' && engine !== 'reference') {
-    throw new UsageError(`run: --engine must be wasm or reference, got ${JSON.stringify(engine)}`);
+  const engineText = args.values.engine as string | undefined;
+  const window = engineText === undefined ? null : parseWindowEmulation(engineText, 'run: --engine');
+  if (engineText !== undefined && window === null && engineText !== 'wasm' && engineText !== 'reference') {
+    throw new UsageError(`run: --engine must be wasm, reference or window[:W:SEEDET], got ${JSON.stringify(engineText)}`);
   }
+  // the window finder is not generalised kt (spec section 11): there is nothing to hold its
+  // jets to bit for bit, so the check is off; its accuracy is `jetlag compare`'s business
+  const check = args.values.check as string | undefined;
+  if (window !== null && check !== undefined && check !== 'none') {
+    throw new UsageError(`run: --engine ${engineText} is not generalised kt and has no reference to be checked against bit for bit; leave out --check (use jetlag compare for its accuracy)`);
+  }
+  const engine: EngineName = window !== null ? windowFinderName(window) : engineText === 'reference' ? 'reference' : 'wasm';
   return {
     input: args.positionals[0],
     workers: positiveInteger(args, 'workers'),
     batch: positiveInteger(args, 'batch'),
     arrival,
     budgetUs,
-    check: parseCheck(args.values.check as string | undefined, seed),
+    check: parseCheck(window !== null ? 'none' : check, seed),
     settings: clusterSettingsFrom(args, 'run'),
     grid: gridFrom(args, 'run'),
     maxEventGap: maxEventGapFrom(args, 'run'),
     force: args.values.force === true,
-    engine: engine === undefined ? 'wasm' : engine,
+    engine,
     shard: parseShard(args.values.shard as string | undefined),
     out: (args.values.out as string | undefined) ?? null,
     repro: (args.values.repro as string | undefined) ?? null,
