@@ -29,7 +29,7 @@ describe('an isolated hard anti-kt jet', () => {
       expect(cells).toBeGreaterThanOrEqual(47);
       expect(cells).toBeLessThanOrEqual(49);
       expect(jets.pileup!.area[0]).toBe(cells * cellAreaOf(DEFAULT_GRID));
-    });
+    }, 60_000);
   }
 });
 
@@ -55,7 +55,7 @@ describe('reported jets with areas on', () => {
         expect(seen.sort((a, b) => a - b)).toEqual(Array.from(event.towerIndex).sort((a, b) => a - b));
       }
     }
-  });
+  }, 60_000);
 
   it('report zero ghosts and zero area when areas are off', () => {
     const event = smallEvent(grid, { towers: 30 }, seededRandom(4));
@@ -63,5 +63,5 @@ describe('reported jets with areas on', () => {
     expect(jets.count).toBeGreaterThan(0);
     expect(Array.from(jets.pileup!.ghosts).every((g) => g === 0)).toBe(true);
     expect(Array.from(jets.pileup!.area).every((a) => a === 0)).toBe(true);
-  });
+  }, 60_000);
 });

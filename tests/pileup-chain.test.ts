@@ -22,7 +22,7 @@ describe('the pileup chain', () => {
       expect(jets).toEqual(plain);
       expect(Array.from(pileup!.ptRaw)).toEqual(Array.from(plain.pt));
     }
-  });
+  }, 60_000);
 
   it('clusters only the towers SoftKiller kept, with ghosts on at most the other cells', () => {
     const random = seededRandom(5);
@@ -38,5 +38,5 @@ describe('the pileup chain', () => {
     // at most the cells that are not real towers
     const reportedGhosts = ghosts.reduce((sum, g) => sum + g, 0);
     expect(reportedGhosts).toBeLessThanOrEqual(grid.etaBins * grid.phiBins - kept.length);
-  });
+  }, 60_000);
 });

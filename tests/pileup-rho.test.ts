@@ -28,7 +28,7 @@ describe('rho from patches', () => {
     const rho = rhoFromPatches(DEFAULT_GRID, event.towerIndex, event.towerEt, { etaRows: 5, phiColumns: 5 });
     // a uniform density is its own median: S / (cells * cellArea) with S = cells (spec section 9)
     expect(ulpsApart(rho, 1 / cellAreaOf(DEFAULT_GRID))).toBeLessThanOrEqual(1);
-  });
+  }, 60_000);
 
   it('is the median of the patch densities, counting the smaller last patches by their own cells', () => {
     // 4 x 4 grid cut 2:3: patches of 2 x 3 cells (columns 0-2) and 2 x 1 cells (column 3)
@@ -41,11 +41,11 @@ describe('rho from patches', () => {
     const densities = [12 / (6 * a), 6 / (2 * a), 12 / (6 * a), 1 / (2 * a)].sort((x, y) => x - y);
     const rho = rhoFromPatches(grid, towerIndex, towerEt, { etaRows: 2, phiColumns: 3 });
     expect(rho).toBe(0.5 * (densities[1] + densities[2]));
-  });
+  }, 60_000);
 
   it('is 0 for an event without towers: every patch density is 0', () => {
     expect(rhoFromPatches(DEFAULT_GRID, new Int32Array(0), new Float64Array(0), { etaRows: 5, phiColumns: 5 })).toBe(0);
-  });
+  }, 60_000);
 });
 
 describe('rho from kt jets', () => {
@@ -63,13 +63,13 @@ describe('rho from kt jets', () => {
     const rho = rhoFromKtJets(tables, towerIndex, towerEt, 0.6, 1e-100);
     // left after dropping 10 and 7: the 3 GeV tower and the ghost of column 3
     expect(rho).toBe(0.5 * (1e-100 / a + 3 / a));
-  });
+  }, 60_000);
 
   it('is 0 when the grid has no jet inside the rapidity window', () => {
     const towerIndex = Int32Array.from([4, 5, 6, 7]);
     const towerEt = Float64Array.from([1, 2, 3, 4]);
     expect(rhoFromKtJets(tables, towerIndex, towerEt, 1.5, 1e-100)).toBe(0);
-  });
+  }, 60_000);
 
   it('of a uniform event lies within 3 % below 1 / cellArea (jets add towers as vectors)', () => {
     const small: Grid = { etaMin: -1.5, etaMax: 1.5, etaBins: 30, phiBins: 32 };
@@ -78,5 +78,5 @@ describe('rho from kt jets', () => {
     // arXiv:0707.1378: the median of pt / area estimates the uniform density
     expect(rho).toBeLessThanOrEqual(1 / cellAreaOf(small));
     expect(rho).toBeGreaterThan(0.97 / cellAreaOf(small));
-  });
+  }, 60_000);
 });

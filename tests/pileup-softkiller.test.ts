@@ -32,7 +32,7 @@ describe('SoftKiller', () => {
     expect(Array.from(result.towerIndex)).toEqual(expectedKept);
     expect(result.killed).toBe(towerIndex.length - expectedKept.length);
     expect(result.killed).toBeGreaterThan(0);
-  });
+  }, 60_000);
 
   it('cuts at the mean of the two middle maxima for an even number of patches, empty patches counting 0', () => {
     // 2 x 4 grid cut 1:2: four patches with maxima 0 (empty), 2, 5 and 9: the cut is 3.5
@@ -44,7 +44,7 @@ describe('SoftKiller', () => {
     // 1.5 and 2 go; 3.5 equals the cut and stays
     expect(Array.from(result.towerIndex)).toEqual([4, 5, 6]);
     expect(result.killed).toBe(2);
-  });
+  }, 60_000);
 
   it('runs after the threshold in the chain: below-threshold towers are neither maxima nor killed', () => {
     const grid: Grid = { etaMin: 0, etaMax: 1, etaBins: 2, phiBins: 4 };
@@ -57,5 +57,5 @@ describe('SoftKiller', () => {
     expect(jets.pileup!.etCut).toBe(3.5);
     expect(jets.pileup!.killed).toBe(2);
     expect(Array.from(jets.towers).sort((a, b) => a - b)).toEqual([4, 5, 6]);
-  });
+  }, 60_000);
 });

@@ -13,12 +13,12 @@ describe('subtracting rho * area from one jet', () => {
     // pt 5 (3, 4), rho * area = 2 * 1.25 = 2.5: f = 0.5, every value exact in binary
     const jet = subtractFromJet(3, 4, 12, 14, 5, 1.25, 2);
     expect(jet).toEqual({ px: 1.5, py: 2, pz: 6, energy: 7, pt: 2.5, mass: Math.sqrt(49 - 2.25 - 4 - 36) });
-  });
+  }, 60_000);
 
   it('removes a jet whose subtracted pt is exactly zero or below', () => {
     expect(subtractFromJet(3, 4, 12, 14, 5, 2.5, 2)).toBeNull();
     expect(subtractFromJet(3, 4, 12, 14, 5, 3, 2)).toBeNull();
-  });
+  }, 60_000);
 });
 
 describe('subtraction in the chain', () => {
@@ -48,14 +48,14 @@ describe('subtraction in the chain', () => {
     expect(jets.pt[1]).toBeCloseTo(4.5, 12);
     expect(values.ptRaw[0]).toBeCloseTo(10, 12);
     expect(values.ptRaw[1]).toBeCloseTo(12, 12);
-  });
+  }, 60_000);
 
   it('applies ptMin to the subtracted pt, without counting those jets as subtracted away', () => {
     const jets = clusterWithPileup(tables, towerIndex, towerEt, { ...settings, ptMin: 4.8 }, pileup);
     expect(jets.count).toBe(1);
     expect(jets.towers[0]).toBe(2);
     expect(jets.pileup!.subtractedAway).toBe(2);
-  });
+  }, 60_000);
 
   it('follows the spec formula to the bit on random events, in decreasing subtracted pt', () => {
     const small: Grid = { etaMin: -1.2, etaMax: 1.2, etaBins: 24, phiBins: 32 };
@@ -93,5 +93,5 @@ describe('subtraction in the chain', () => {
       removed += away;
     }
     expect(removed).toBeGreaterThan(0);
-  });
+  }, 60_000);
 });
