@@ -9,7 +9,7 @@ import { describe, expect, it } from 'vitest';
 const hostRoot = join(import.meta.dirname, '..', 'host');
 
 /** From the top of the data path to the bottom; a folder imports only from later entries (or its own). */
-const LAYERS: readonly string[] = ['cli', 'pipeline', 'measure', 'validate', 'generator', 'output', 'input', 'formats', 'clustering', '.'];
+const LAYERS: readonly string[] = ['cli', 'report', 'pipeline', 'measure', 'validate', 'generator', 'output', 'input', 'formats', 'clustering', '.'];
 
 function hostFiles(dir: string): string[] {
   return readdirSync(dir).flatMap((name) => {

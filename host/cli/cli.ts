@@ -27,6 +27,7 @@ const COMMANDS: Record<string, CommandEntry> = {
   import: { summary: 'turn a CSV tower file into an event file' },
   export: { summary: 'write an event or jets file as CSV or JSON lines' },
   merge: { summary: 'add up the summaries of sharded runs exactly' },
+  report: { summary: 'write a self-contained HTML report from run and compare summaries' },
 };
 
 function topHelp(): string {
