@@ -64,7 +64,60 @@ export interface JetSet {
   towers: Int32Array;
   /** set only when pileup steps ran (spec part two, sections 8-10) */
   pileup?: PileupValues;
+  /** set only when trimming ran (spec section 12); row k belongs to jet k */
+  trim?: TrimmedJets;
+  /** set only when soft drop ran (spec section 12); row k belongs to jet k */
+  softDrop?: SoftDropJets;
 }
+
+/**
+ * What grooming (spec section 12) makes of each reported jet: one row per jet of the JetSet, in
+ * its order. The groomed four-vector, its pt, y, phi, mass, and the towers it keeps.
+ */
+export interface GroomedFourVectors {
+  px: Float64Array;
+  py: Float64Array;
+  pz: Float64Array;
+  energy: Float64Array;
+  pt: Float64Array;
+  rapidity: Float64Array;
+  phi: Float64Array;
+  mass: Float64Array;
+  towerCount: Int32Array;
+}
+
+/** Trimming's rows: also the number of kept subjets (0: the trimmed jet is empty, all values 0). */
+export interface TrimmedJets extends GroomedFourVectors {
+  subjets: Int32Array;
+}
+
+/** Soft drop's rows: also zg and Rg, the z and dR of the step that stopped (0 for one tower). */
+export interface SoftDropJets extends GroomedFourVectors {
+  zg: Float64Array;
+  deltaRg: Float64Array;
+}
+
+/** Trimming (spec section 12, `trim:RSUB:FCUT`). */
+export interface TrimSettings {
+  /** RSUB: kt re-clustering radius of the subjets */
+  subjetRadius: number;
+  /** FCUT: a subjet is kept when its pt >= FCUT * the jet's pt */
+  ptFraction: number;
+}
+
+/** Soft drop (spec section 12, `softdrop:ZCUT:BETA`). */
+export interface SoftDropSettings {
+  zCut: number;
+  beta: number;
+}
+
+/** Grooming of each reported jet (spec section 12); each groomer off when null. */
+export interface GroomingSettings {
+  trim: TrimSettings | null;
+  softDrop: SoftDropSettings | null;
+}
+
+export const NO_GROOMING: Readonly<GroomingSettings> = Object.freeze({ trim: null, softDrop: null });
 
 /** A patch of towers (spec section 9): `etaRows` rows by `phiColumns` columns of the grid. */
 export interface PatchSize {

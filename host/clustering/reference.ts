@@ -64,6 +64,29 @@ export interface ReferenceOptions {
   history?: ClusterStep[];
   /** when given, receives each reported jet's index in the sequence (spec section 4), in output order */
   jetIndex?: number[];
+  /** no beam candidates: only pairs compete, down to a single jet (spec section 12, soft drop) */
+  pairsOnly?: boolean;
+  /** when given, receives every jet of the sequence, towers and merges (the merging tree) */
+  tree?: ClusterTree;
+}
+
+/**
+ * Every jet of one clustering sequence by its index (spec section 4): the four-vector, kt2, y and
+ * phi as the sequence carries them, the two jets a merge made it from (parentA < parentB, -1 for
+ * a tower) and its number of towers. `jetCount` jets, towers first.
+ */
+export interface ClusterTree {
+  jetCount: number;
+  px: Float64Array;
+  py: Float64Array;
+  pz: Float64Array;
+  energy: Float64Array;
+  kt2: Float64Array;
+  y: Float64Array;
+  phi: Float64Array;
+  parentA: Int32Array;
+  parentB: Int32Array;
+  towerCount: Int32Array;
 }
 
 /**
@@ -79,6 +102,7 @@ export function clusterReference(
 ): JetSet {
   const withTowers = options.withTowers ?? true;
   const history = options.history;
+  const pairsOnly = options.pairsOnly ?? false;
   const { p, radius, recombination } = settings;
   const phiBins = tables.grid.phiBins;
   const towerCount = towerIndex.length;
@@ -147,12 +171,16 @@ export function clusterReference(
   let nextJet = towerCount;
 
   while (active.length > 0) {
+    if (pairsOnly && active.length === 1) {
+      finals.push(active.pop()!);
+      break;
+    }
     // the smallest candidate: each jet offers its beam and its pair with its nearest neighbour
     let bestMeasure = Infinity;
     let bestA = NONE;
     let bestB = NONE;
     for (const i of active) {
-      if (bestA === NONE || candidateBefore(weight[i], i, BEAM, bestMeasure, bestA, bestB)) {
+      if (!pairsOnly && (bestA === NONE || candidateBefore(weight[i], i, BEAM, bestMeasure, bestA, bestB))) {
         bestMeasure = weight[i];
         bestA = i;
         bestB = BEAM;
@@ -162,7 +190,7 @@ export function clusterReference(
         const measure = (Math.min(weight[i], weight[j]) * deltaR2(y[i], phi[i], y[j], phi[j])) * invR2;
         const a = Math.min(i, j);
         const b = Math.max(i, j);
-        if (candidateBefore(measure, a, b, bestMeasure, bestA, bestB)) {
+        if (bestA === NONE || candidateBefore(measure, a, b, bestMeasure, bestA, bestB)) {
           bestMeasure = measure;
           bestA = a;
           bestB = b;
@@ -227,6 +255,10 @@ export function clusterReference(
       energy[k] = pt * Math.cosh(y[k]);
     }
     weight[k] = weightOf(kt2[k], p);
+  }
+
+  if (options.tree) {
+    Object.assign(options.tree, { jetCount: nextJet, px, py, pz, energy, kt2, y, phi, parentA, parentB, towerCount: constituents });
   }
 
   // output: pt >= ptMin, decreasing pt, ties to the smaller index (spec section 6)

@@ -30,6 +30,8 @@ export interface BruteForceOptions {
    * tests use it to show events where it goes wrong.
    */
   geometricShortcut?: boolean;
+  /** no beam candidates: only pairs compete, down to a single jet (spec section 12, soft drop) */
+  pairsOnly?: boolean;
 }
 
 /** the beam counts as larger than every jet index (section 4) */
@@ -97,12 +99,17 @@ export function clusterBruteForce(
   for (;;) {
     const live = jets.flatMap((jet, i) => (jet ? [i] : []));
     if (live.length === 0) break;
+    if (options.pairsOnly && live.length === 1) {
+      finals.push(live[0]);
+      finalJets.push(jets[live[0]]!);
+      break;
+    }
     let best: Candidate | null = null;
     const offer = (measure: number, a: number, b: number) => {
       const candidate = { measure, a, b };
       if (best === null || comesBefore(candidate, best)) best = candidate;
     };
-    for (const i of live) offer(jets[i]!.w, i, BEAM);
+    if (!options.pairsOnly) for (const i of live) offer(jets[i]!.w, i, BEAM);
     if (options.geometricShortcut) {
       for (const i of live) {
         let nearest = -1;

@@ -1,0 +1,30 @@
+// Making grooming's rows (types.ts TrimmedJets, SoftDropJets): one place that knows every field.
+// Row k belongs to the JetSet's jet k; every value starts at zero, which is also what an empty
+// trimmed jet reports (spec section 12).
+
+import type { GroomedFourVectors, SoftDropJets, TrimmedJets } from '../../types.js';
+
+function allocateFourVectors(count: number): GroomedFourVectors {
+  return {
+    px: new Float64Array(count),
+    py: new Float64Array(count),
+    pz: new Float64Array(count),
+    energy: new Float64Array(count),
+    pt: new Float64Array(count),
+    rapidity: new Float64Array(count),
+    phi: new Float64Array(count),
+    mass: new Float64Array(count),
+    towerCount: new Int32Array(count),
+  };
+}
+
+export function allocateTrimmedJets(count: number): TrimmedJets {
+  return { ...allocateFourVectors(count), subjets: new Int32Array(count) };
+}
+
+export function allocateSoftDropJets(count: number): SoftDropJets {
+  return { ...allocateFourVectors(count), zg: new Float64Array(count), deltaRg: new Float64Array(count) };
+}
+
+/** the groomed fields in a fixed order, for codecs and comparisons */
+export const GROOMED_DOUBLE_FIELDS = ['px', 'py', 'pz', 'energy', 'pt', 'rapidity', 'phi', 'mass'] as const;
