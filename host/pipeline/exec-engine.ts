@@ -43,6 +43,8 @@ export function defaultEngineTimeoutMs(budgetNs: number | null): number {
 export interface ExecEngineOptions {
   /** the program and its arguments (exec-command.ts splits the option's text) */
   argv: string[];
+  /** added to jetlag's environment for the program */
+  env?: Record<string, string>;
   /** how error lines name the program, e.g. exec:./my-clusterer */
   label: string;
   grid: Grid;
@@ -161,6 +163,7 @@ export class ExecEngine {
     const started = new ProgramProcess(
       {
         argv: this.options.argv,
+        env: this.options.env,
         label: this.options.label,
         grid: this.options.grid,
         settings: this.options.settings,

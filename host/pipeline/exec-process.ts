@@ -42,6 +42,8 @@ export interface ProcessHandlers {
 
 export interface ProcessSettings {
   argv: string[];
+  /** added to jetlag's environment for the program */
+  env?: Record<string, string>;
   /** name in error lines, e.g. exec:./my-clusterer */
   label: string;
   grid: Grid;
@@ -84,7 +86,10 @@ export class ProgramProcess {
 
   constructor(private readonly config: ProcessSettings, private readonly handlers: ProcessHandlers) {
     this.framer = new RecordFramer(config.maxRecordBytes);
-    this.child = spawn(config.argv[0], config.argv.slice(1), { stdio: ['pipe', 'pipe', 'pipe'] });
+    this.child = spawn(config.argv[0], config.argv.slice(1), {
+      stdio: ['pipe', 'pipe', 'pipe'],
+      env: config.env ? { ...process.env, ...config.env } : process.env,
+    });
     this.child.on('error', (error) => {
       this.spawnError = error;
       this.fault('exited', null, `cannot start: ${error.message}`);
