@@ -83,32 +83,35 @@ function slope(xs: readonly number[], ys: readonly number[]): number | null {
   return sxx > 0 ? sxy / sxx : null;
 }
 
-/** The k-th smallest (0-based) of values[0..n), by quickselect; reorders values. */
-function select(values: Float64Array, n: number, k: number): number {
-  let lo = 0;
-  let hi = n - 1;
-  while (lo < hi) {
-    const pivot = values[(lo + hi) >> 1];
-    let i = lo;
-    let j = hi;
-    while (i <= j) {
-      while (values[i] < pivot) i++;
-      while (values[j] > pivot) j--;
-      if (i <= j) { const t = values[i]; values[i] = values[j]; values[j] = t; i++; j--; }
-    }
-    if (k <= j) hi = j; else if (k >= i) lo = i; else return values[k];
+/** A standard normal draw (Box–Muller, from memory). */
+function normal(random: () => number): number {
+  return Math.sqrt(-2 * Math.log(1 - random())) * Math.cos(2 * Math.PI * random());
+}
+
+/** A Gamma(shape, 1) draw for shape >= 1 (Marsaglia and Tsang, ACM TOMS 26 (2000) 363). */
+function gamma(shape: number, random: () => number): number {
+  const d = shape - 1 / 3;
+  const c = 1 / Math.sqrt(9 * d);
+  for (;;) {
+    const x = normal(random);
+    const v = (1 + c * x) ** 3;
+    if (v <= 0) continue;
+    if (Math.log(1 - random()) < 0.5 * x * x + d - d * v + d * Math.log(v)) return d * v;
   }
-  return values[k];
 }
 
 /**
- * Median of one resample of a bin's events: draw its event count of ranks with replacement,
- * take their median rank (the same rank HDR's p50 takes, ceil(n/2)), and read the bucket there.
+ * Median of one resample of a bin's n events, without drawing them: the resample's ranks are
+ * floor(n·U) of n uniforms U, so its median rank (the m-th smallest, m = ceil(n/2), the rank
+ * HDR's p50 takes) is floor(n·U_(m)), and the m-th smallest of n uniforms is Beta(m, n-m+1)
+ * distributed (order statistics, common practice), drawn as a ratio of two Gamma draws.
  */
-function resampledMedianNs(sample: ScalingSample, cumulative: Float64Array, scratch: Float64Array, random: () => number): number {
+function resampledMedianNs(sample: ScalingSample, cumulative: Float64Array, random: () => number): number {
   const n = sample.events;
-  for (let k = 0; k < n; k++) scratch[k] = Math.floor(random() * n);
-  const rank = select(scratch, n, Math.ceil(n / 2) - 1);
+  const m = Math.ceil(n / 2);
+  const x = gamma(m, random);
+  const y = gamma(n - m + 1, random);
+  const rank = Math.min(n - 1, Math.floor((n * x) / (x + y)));
   // first bucket whose cumulative count passes the rank
   let lo = 0;
   let hi = cumulative.length - 1;
@@ -151,7 +154,6 @@ export function fitScaling(samples: readonly ScalingSample[], nMin: number | nul
   if (alpha === null) return none('the bins do not differ in N');
 
   const random = makeRandom(BOOTSTRAP_SEED);
-  const scratch = new Float64Array(Math.max(...used.map((s) => s.events)));
   const cumulatives = used.map((s) => {
     const cumulative = new Float64Array(s.counts.length);
     let total = 0;
@@ -162,7 +164,7 @@ export function fitScaling(samples: readonly ScalingSample[], nMin: number | nul
   let sum = 0;
   let sumSquares = 0;
   for (let replicate = 0; replicate < BOOTSTRAP_REPLICATES; replicate++) {
-    for (let b = 0; b < used.length; b++) ys[b] = Math.log(Math.max(resampledMedianNs(used[b], cumulatives[b], scratch, random), 1));
+    for (let b = 0; b < used.length; b++) ys[b] = Math.log(Math.max(resampledMedianNs(used[b], cumulatives[b], random), 1));
     const replicateAlpha = slope(xs, ys)!;
     sum += replicateAlpha;
     sumSquares += replicateAlpha * replicateAlpha;
