@@ -9,7 +9,8 @@
 //                                                    with our signature (content detection)
 
 import { checkGrid } from '../clustering/grid.js';
-import type { ClusterSettings, Grid, Recombination } from '../types.js';
+import type { ClusterSettings, Grid, PileupSettings, Recombination } from '../types.js';
+import { decodePileupSettings, encodePileupSettings } from './pileup-settings-codec.js';
 import { ProtoWriter, WireCursor, WIRE_FIXED64, WIRE_LENGTH_DELIMITED, WIRE_VARINT } from './wire.js';
 
 export const FILE_SIGNATURE = 'jetlag';
@@ -20,6 +21,8 @@ export type FileKind = 'events' | 'jets';
 /** Settings a jets file was made with, and by which clusterer. */
 export interface JetsFileSettings extends ClusterSettings {
   engine: string;
+  /** the pileup steps the jets were made with (spec part two); absent when none ran */
+  pileup?: PileupSettings;
 }
 
 export interface FileHeader {
@@ -64,12 +67,13 @@ export function encodeFileHeader(header: Omit<FileHeader, 'formatVersion'> & { f
       .doubleField(3, s.ptMin)
       .doubleField(4, s.threshold)
       .uintField(5, RECOMBINATION_CODES[s.recombination])
-      .stringField(6, s.engine)
-      .finish();
-    out.messageField(7, settings);
+      .stringField(6, s.engine);
+    if (s.pileup) settings.messageField(7, encodePileupSettings(s.pileup));
+    out.messageField(7, settings.finish());
   }
   return out.finish();
 }
+
 
 interface RawHeader {
   signature: string;
@@ -101,7 +105,7 @@ function readGrid(cursor: WireCursor, end: number): Grid {
 }
 
 function readSettings(cursor: WireCursor, end: number): NonNullable<RawHeader['settings']> {
-  const s = { p: 0, radius: 0, ptMin: 0, threshold: 0, recombinationCode: 0, engine: '' };
+  const s: NonNullable<RawHeader['settings']> = { p: 0, radius: 0, ptMin: 0, threshold: 0, recombinationCode: 0, engine: '' };
   // fields of a sub-message must end inside it
   const outerEnd = cursor.end;
   cursor.end = end;
@@ -114,6 +118,12 @@ function readSettings(cursor: WireCursor, end: number): NonNullable<RawHeader['s
       case 4: cursor.expect(tag, WIRE_FIXED64, 'settings.threshold'); s.threshold = cursor.readDouble(); break;
       case 5: cursor.expect(tag, WIRE_VARINT, 'settings.recombination'); s.recombinationCode = cursor.readVarint(); break;
       case 6: cursor.expect(tag, WIRE_LENGTH_DELIMITED, 'settings.engine'); s.engine = cursor.readString(); break;
+      case 7: {
+        cursor.expect(tag, WIRE_LENGTH_DELIMITED, 'settings.pileup');
+        const length = cursor.readLength();
+        s.pileup = decodePileupSettings(cursor, cursor.pos + length);
+        break;
+      }
       default: cursor.skip(tag & 7);
     }
   }

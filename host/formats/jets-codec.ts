@@ -15,6 +15,12 @@
 //
 // Constituents: written when jets.towers holds them (length = sum of towerCount); a record
 // without them decodes with hasTowers false and an empty towers array.
+//
+// Pileup values (spec part two, fields 14-20): written when jets.pileup is set. A record read
+// back gets jets.pileup when it holds any of them, or always with decodeJetsRecord(bytes,
+// { pileup: true }) (a jets file whose header names pileup steps): proto3 leaves zeros
+// unwritten, so an event with rho 0 and no jets holds none. Per-jet arrays left out read as
+// ghosts 0, area 0 and ptRaw = pt (the values without areas and without subtraction).
 
 import { encodeFileHeader, type FileHeader, type JetsFileSettings } from './file-header.js';
 import type { Grid, JetSet } from '../types.js';
@@ -49,6 +55,13 @@ const FIELD_COUNT = 10;
 const FIELD_TOWERS = 11;
 const FIELD_TIME = 12;
 const FIELD_ERROR = 13;
+const FIELD_RHO = 14;
+const FIELD_ET_CUT = 15;
+const FIELD_KILLED = 16;
+const FIELD_SUBTRACTED_AWAY = 17;
+const FIELD_GHOSTS = 18;
+const FIELD_AREA = 19;
+const FIELD_PT_RAW = 20;
 
 const sharedWriter = new ProtoWriter(4096);
 
@@ -76,6 +89,17 @@ export function encodeJetsRecord(fields: JetsRecordFields, writer = sharedWriter
       writer.packedVarints(FIELD_TOWERS, ordered);
     }
   }
+  const pileup = jets?.pileup;
+  if (pileup) {
+    const n = jets!.count;
+    writer.doubleField(FIELD_RHO, pileup.rho);
+    writer.doubleField(FIELD_ET_CUT, pileup.etCut);
+    writer.uintField(FIELD_KILLED, pileup.killed);
+    writer.uintField(FIELD_SUBTRACTED_AWAY, pileup.subtractedAway);
+    writer.packedVarints(FIELD_GHOSTS, pileup.ghosts, n);
+    writer.packedDoubles(FIELD_AREA, pileup.area, n);
+    writer.packedDoubles(FIELD_PT_RAW, pileup.ptRaw, n);
+  }
   const time = fields.clusterTimeNs ?? 0;
   if (!(time >= 0) || !Number.isFinite(time)) throw new Error(`cluster time must be >= 0 ns, got ${time}`);
   writer.uintField(FIELD_TIME, Math.round(time));
@@ -101,7 +125,12 @@ export function encodeJetsFileHeader(grid: Grid, settings: JetsFileSettings, tex
   return delimit(encodeFileHeader(jetsFileHeader(grid, settings, text)));
 }
 
-export function decodeJetsRecord(bytes: Uint8Array): DecodedJets {
+export interface DecodeJetsOptions {
+  /** give every valid event jets.pileup, even one whose record holds no pileup value */
+  pileup?: boolean;
+}
+
+export function decodeJetsRecord(bytes: Uint8Array, options: DecodeJetsOptions = {}): DecodedJets {
   const c = new WireCursor(bytes);
   let event = 0;
   let clusterTimeNs = 0;
@@ -109,6 +138,22 @@ export function decodeJetsRecord(bytes: Uint8Array): DecodedJets {
   const doubles: number[][] = DOUBLE_FIELDS.map(() => []);
   const counts: number[] = [];
   const towers: number[] = [];
+  const eventPileup = { rho: 0, etCut: 0, killed: 0, subtractedAway: 0, seen: false };
+  const ghosts: number[] = [];
+  const area: number[] = [];
+  const ptRaw: number[] = [];
+  const readDoubles = (out: number[], name: string, field: number, wireType: number) => {
+    if (wireType === WIRE_FIXED64) out.push(c.readDouble());
+    else if (wireType === WIRE_LENGTH_DELIMITED) {
+      const at = c.pos;
+      const length = c.readLength();
+      if (length % 8 !== 0) c.fail(at, `packed field ${field} (${name}) has length ${length}, not a multiple of 8`);
+      for (let k = 0; k < length; k += 8) out.push(c.view.getFloat64(c.pos + k, true));
+      c.pos += length;
+    } else {
+      c.fail(c.fieldStart, `field ${field} (${name}) has wire type ${wireType} (${wireTypeName(wireType)}), expected packed or fixed64`);
+    }
+  };
   const readVarints = (out: number[], int32: boolean, name: string, tag: number) => {
     const wireType = tag & 7;
     if (wireType === WIRE_VARINT) {
@@ -126,17 +171,7 @@ export function decodeJetsRecord(bytes: Uint8Array): DecodedJets {
     const field = tag >>> 3;
     const wireType = tag & 7;
     if (field >= 2 && field <= 9) {
-      const out = doubles[field - 2];
-      if (wireType === WIRE_FIXED64) out.push(c.readDouble());
-      else if (wireType === WIRE_LENGTH_DELIMITED) {
-        const at = c.pos;
-        const length = c.readLength();
-        if (length % 8 !== 0) c.fail(at, `packed field ${field} (${DOUBLE_FIELDS[field - 2]}) has length ${length}, not a multiple of 8`);
-        for (let k = 0; k < length; k += 8) out.push(c.view.getFloat64(c.pos + k, true));
-        c.pos += length;
-      } else {
-        c.fail(c.fieldStart, `field ${field} (${DOUBLE_FIELDS[field - 2]}) has wire type ${wireType} (${wireTypeName(wireType)}), expected packed or fixed64`);
-      }
+      readDoubles(doubles[field - 2], DOUBLE_FIELDS[field - 2], field, wireType);
       continue;
     }
     switch (field) {
@@ -156,6 +191,13 @@ export function decodeJetsRecord(bytes: Uint8Array): DecodedJets {
       case FIELD_TOWERS: readVarints(towers, true, 'constituent_towers', tag); break;
       case FIELD_TIME: c.expect(tag, WIRE_VARINT, 'cluster_time_ns'); clusterTimeNs = c.readVarint(); break;
       case FIELD_ERROR: c.expect(tag, WIRE_LENGTH_DELIMITED, 'error'); error = c.readString(); break;
+      case FIELD_RHO: c.expect(tag, WIRE_FIXED64, 'rho'); eventPileup.rho = c.readDouble(); eventPileup.seen = true; break;
+      case FIELD_ET_CUT: c.expect(tag, WIRE_FIXED64, 'et_cut'); eventPileup.etCut = c.readDouble(); eventPileup.seen = true; break;
+      case FIELD_KILLED: c.expect(tag, WIRE_VARINT, 'killed'); eventPileup.killed = c.readVarint(); eventPileup.seen = true; break;
+      case FIELD_SUBTRACTED_AWAY: c.expect(tag, WIRE_VARINT, 'subtracted_away'); eventPileup.subtractedAway = c.readVarint(); eventPileup.seen = true; break;
+      case FIELD_GHOSTS: readVarints(ghosts, false, 'ghosts', tag); break;
+      case FIELD_AREA: readDoubles(area, 'area', field, wireType); break;
+      case FIELD_PT_RAW: readDoubles(ptRaw, 'pt_raw', field, wireType); break;
       default: c.skip(wireType);
     }
   }
@@ -173,6 +215,9 @@ export function decodeJetsRecord(bytes: Uint8Array): DecodedJets {
     problem = `constituent_towers has ${towers.length} values but constituent_count adds up to ${total}`;
   }
   if (problem === '' && error !== '' && jetCount > 0) problem = `the record has an error text and ${jetCount} jets`;
+  for (const [name, values] of [['ghosts', ghosts], ['area', area], ['pt_raw', ptRaw]] as const) {
+    if (problem === '' && values.length > 0 && values.length !== jetCount) problem = `${name} has ${values.length} values but px has ${jetCount}`;
+  }
   const jets: JetSet = {
     count: jetCount,
     px: Float64Array.from(doubles[0]),
@@ -187,5 +232,17 @@ export function decodeJetsRecord(bytes: Uint8Array): DecodedJets {
     towerStart,
     towers: Int32Array.from(towers),
   };
+  const anyPileup = eventPileup.seen || ghosts.length > 0 || area.length > 0 || ptRaw.length > 0;
+  if (problem === '' && error === '' && (anyPileup || options.pileup)) {
+    jets.pileup = {
+      rho: eventPileup.rho,
+      etCut: eventPileup.etCut,
+      killed: eventPileup.killed,
+      subtractedAway: eventPileup.subtractedAway,
+      ghosts: ghosts.length > 0 ? Int32Array.from(ghosts) : new Int32Array(jetCount),
+      area: area.length > 0 ? Float64Array.from(area) : new Float64Array(jetCount),
+      ptRaw: ptRaw.length > 0 ? Float64Array.from(ptRaw) : jets.pt.slice(),
+    };
+  }
   return { event, jets, hasTowers: towers.length > 0 || total === 0, clusterTimeNs, error, problem };
 }

@@ -7,6 +7,9 @@
 // written as -0. JSON has no NaN or infinity: such a value is written as null. "towers" (the
 // flat tower indices of the constituents, increasing) is left out when the jets carry no
 // constituent indices.
+// Jets with pileup values (spec part two) add, per event, "rho", "etCut", "killed" and
+// "subtractedAway" after "event", and per jet "ghosts", "area" and "ptRaw" after "n":
+//   {"event":n,"rho":…,"etCut":…,"killed":…,"subtractedAway":…,"jets":[{…,"n":…,"ghosts":…,"area":…,"ptRaw":…,"towers":[…]}]}
 //
 // API
 //   formatJetsLine(event, jets, withTowers?): string      one line, without the newline
@@ -26,16 +29,21 @@ export function formatErrorLine(event: number, error: string): string {
 
 export function formatJetsLine(event: number, jets: JetSet, withTowers = jets.towers.length > 0 || jets.count === 0): string {
   const parts: string[] = [];
+  const pileup = jets.pileup;
   for (let k = 0; k < jets.count; k++) {
     let line =
       `{"pt":${jsonNumber(jets.pt[k])},"y":${jsonNumber(jets.rapidity[k])},"phi":${jsonNumber(jets.phi[k])},"m":${jsonNumber(jets.mass[k])},` +
       `"px":${jsonNumber(jets.px[k])},"py":${jsonNumber(jets.py[k])},"pz":${jsonNumber(jets.pz[k])},"E":${jsonNumber(jets.energy[k])},` +
       `"n":${jets.towerCount[k]}`;
+    if (pileup) line += `,"ghosts":${pileup.ghosts[k]},"area":${jsonNumber(pileup.area[k])},"ptRaw":${jsonNumber(pileup.ptRaw[k])}`;
     if (withTowers) {
       const start = jets.towerStart[k];
       line += `,"towers":[${Array.prototype.join.call(jets.towers.subarray(start, start + jets.towerCount[k]), ',')}]`;
     }
     parts.push(line + '}');
   }
-  return `{"event":${event},"jets":[${parts.join(',')}]}`;
+  const perEvent = pileup
+    ? `"rho":${jsonNumber(pileup.rho)},"etCut":${jsonNumber(pileup.etCut)},"killed":${pileup.killed},"subtractedAway":${pileup.subtractedAway},`
+    : '';
+  return `{"event":${event},${perEvent}"jets":[${parts.join(',')}]}`;
 }

@@ -10,7 +10,8 @@
 //               writes them (jets-jsonl.ts): {"event":n,"jets":[{"pt":…,"y":…,"phi":…,"m":…}]}
 //               or {"event":n,"error":"…"}; other keys are ignored. Every event has a line
 //               (a line can hold "jets":[]), so an event with no line is missing.
-//   CSV         header `event,pt,y,phi` or `event,pt,y,phi,m`, then one row per jet, rows of
+//   CSV         header `event,pt,y,phi` or `event,pt,y,phi,m` (or `jetlag export`'s with the
+//               pileup columns after m, read but not compared), then one row per jet, rows of
 //               an event together. CSV cannot list an event without jets, so an event with
 //               no rows has no jets.
 //
@@ -69,7 +70,8 @@ export interface CandidateOptions {
   maxRecordBytes?: number;
 }
 
-export const CANDIDATE_CSV_HEADERS = ['event,pt,y,phi', 'event,pt,y,phi,m'] as const;
+/** the third: `jetlag export` of jets with pileup values (spec part two); the columns after m are not compared */
+export const CANDIDATE_CSV_HEADERS = ['event,pt,y,phi', 'event,pt,y,phi,m', 'event,pt,y,phi,m,ghosts,area,ptRaw,rho,etCut,killed,subtractedAway'] as const;
 /** a JSON line or CSV row longer than this makes the rest unreadable */
 export const MAX_CANDIDATE_LINE_BYTES = 64 * 1024 * 1024;
 
@@ -234,7 +236,7 @@ async function* csvEvents(input: AsyncGenerator<Line>, label: string): AsyncGene
   let blankOffset = -1;
   let blankLine = 0;
   const finish = (): CandidateEvent => {
-    const out = currentError !== '' ? emptyEvent(current, currentOffset, currentError) : columns.take(current!, currentOffset, fields === 5);
+    const out = currentError !== '' ? emptyEvent(current, currentOffset, currentError) : columns.take(current!, currentOffset, fields >= 5);
     columns.count = 0;
     currentError = '';
     return out;
@@ -247,7 +249,7 @@ async function* csvEvents(input: AsyncGenerator<Line>, label: string): AsyncGene
       if (header < 0) {
         throw new InputError(label, `missing header: expected "${CANDIDATE_CSV_HEADERS[0]}" or "${CANDIDATE_CSV_HEADERS[1]}", got ${quote(text)}`, undefined, offset, number);
       }
-      fields = header === 0 ? 4 : 5;
+      fields = CANDIDATE_CSV_HEADERS[header].split(',').length;
       headerSeen = true;
       continue;
     }
@@ -280,11 +282,11 @@ async function* csvEvents(input: AsyncGenerator<Line>, label: string): AsyncGene
       if (!DECIMAL.test(parts[k]) || !Number.isFinite(Number(parts[k]))) { bad = k; break; }
     }
     if (bad > 0) {
-      const names = ['event', 'pt', 'y', 'phi', 'm'];
+      const names = CANDIDATE_CSV_HEADERS[2].split(',');
       currentError = `row at line ${number}, byte ${offset}: bad ${names[bad]} ${quote(parts[bad])}`;
       continue;
     }
-    columns.push(Number(parts[1]), Number(parts[2]), Number(parts[3]), fields === 5 ? Number(parts[4]) : 0);
+    columns.push(Number(parts[1]), Number(parts[2]), Number(parts[3]), fields >= 5 ? Number(parts[4]) : 0);
   }
   if (!headerSeen) throw new InputError(label, `missing header: expected "${CANDIDATE_CSV_HEADERS[0]}"`, undefined, 0, 1);
   if (current !== null) yield finish();

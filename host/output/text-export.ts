@@ -11,6 +11,7 @@
 
 import { InputError } from '../errors.js';
 import { openRecordFile, type RecordSource } from '../input/event-source.js';
+import { CANDIDATE_CSV_HEADERS } from '../input/candidate-reader.js';
 import { EventTowerReader } from '../input/event-towers.js';
 import { decodeJetsRecord } from '../formats/jets-codec.js';
 import { formatErrorLine, formatJetsLine, jsonNumber } from '../formats/jets-jsonl.js';
@@ -22,6 +23,12 @@ import type { Grid, JetSet } from '../types.js';
 
 /** the jets CSV columns: the CSV form `jetlag compare` reads (candidate-reader.ts) */
 export const JETS_CSV_HEADER = 'event,pt,y,phi,m';
+/**
+ * jets made with pileup steps (the jets file header names them): each jet's ghosts, area and
+ * ptRaw, then its event's rho, etCut, killed and subtractedAway, repeated on every row of the
+ * event (an event without jets has no row, so its values are not in the CSV)
+ */
+export const PILEUP_JETS_CSV_HEADER = CANDIDATE_CSV_HEADERS[2];
 
 export type TextFormat = 'csv' | 'jsonl';
 
@@ -144,21 +151,26 @@ async function exportEvents(source: RecordSource, format: TextFormat, out: TextF
 
 function jetCsvRows(event: number, jets: JetSet): string {
   let text = '';
+  const pileup = jets.pileup;
+  const perEvent = pileup ? `,${jsonNumber(pileup.rho)},${jsonNumber(pileup.etCut)},${pileup.killed},${pileup.subtractedAway}` : '';
   for (let k = 0; k < jets.count; k++) {
-    text += `${event},${jsonNumber(jets.pt[k])},${jsonNumber(jets.rapidity[k])},${jsonNumber(jets.phi[k])},${jsonNumber(jets.mass[k])}\n`;
+    text += `${event},${jsonNumber(jets.pt[k])},${jsonNumber(jets.rapidity[k])},${jsonNumber(jets.phi[k])},${jsonNumber(jets.mass[k])}`;
+    if (pileup) text += `,${pileup.ghosts[k]},${jsonNumber(pileup.area[k])},${jsonNumber(pileup.ptRaw[k])}${perEvent}`;
+    text += '\n';
   }
   return text;
 }
 
 async function exportJets(source: RecordSource, format: TextFormat, out: TextFileWriter, tally: ExportTally, onProblem: (line: string) => void): Promise<void> {
-  if (format === 'csv') await out.write(`${JETS_CSV_HEADER}\n`);
+  const withPileup = source.header.settings?.pileup !== undefined;
+  if (format === 'csv') await out.write(`${withPileup ? PILEUP_JETS_CSV_HEADER : JETS_CSV_HEADER}\n`);
   let record = -1;
   for await (const raw of source.records) {
     record++;
     tally.events++;
     let decoded;
     try {
-      decoded = decodeJetsRecord(raw.bytes);
+      decoded = decodeJetsRecord(raw.bytes, { pileup: withPileup });
     } catch (error) {
       tally.broken++;
       onProblem(`${source.label}, record ${record}, byte ${raw.offset}: bad jets record: ${(error as Error).message}`);
