@@ -170,12 +170,38 @@ export function readSummary(path: string): RunSummary {
   } catch (error) {
     // the engine's message quotes the input; keep only what is wrong and where
     const message = (error as Error).message;
-    const position = /position (\d+)/.exec(message);
-    const offset = position ? Buffer.byteLength(text.slice(0, Number(position[1])), 'utf8') : undefined;
+    const offset = Buffer.byteLength(text.slice(0, firstJsonErrorAt(text)), 'utf8');
     const located = /^(.*) in JSON at position \d+/.exec(message);
     const reason = /^Unexpected end/.test(message) ? 'it ends too early'
       : located ? located[1].replace(/^Unexpected non-whitespace character after JSON$/, 'more text after the JSON value')
       : /^Unexpected token/.test(message) ? 'an unexpected character' : 'not valid JSON';
     throw new InputError(path, `not a JSON summary: ${reason}`, undefined, offset);
   }
+}
+
+/**
+ * Where JSON text first goes wrong, in characters. The parser names a position for some errors
+ * only, so this asks it about prefixes: a prefix that parses, or fails only because it ends,
+ * holds no error; the longest such prefix ends where the error is (binary search, O(n log n)).
+ */
+function firstJsonErrorAt(text: string): number {
+  const clean = (length: number): boolean => {
+    try {
+      JSON.parse(text.slice(0, length));
+      return true;
+    } catch (error) {
+      const message = (error as Error).message;
+      if (/^Unexpected end|^Unterminated/.test(message)) return true;
+      const position = /position (\d+)/.exec(message);
+      return position !== null && Number(position[1]) >= length;
+    }
+  };
+  if (clean(text.length)) return text.length; // it only ends too early
+  let low = 0; // clean(low) holds
+  let high = text.length; // clean(high) fails: the whole text does not parse
+  while (high - low > 1) {
+    const middle = (low + high) >>> 1;
+    if (clean(middle)) low = middle; else high = middle;
+  }
+  return low;
 }
