@@ -126,7 +126,8 @@ export interface FindRateResult {
   budgetUs: number;
   /** highest rate tried whose end-to-end p99 stayed within the budget; null if none did */
   rateHz: number | null;
-  trials: { rateHz: number; p99_us: number | null; withinBudget: boolean; events: number }[];
+  /** saturated: the pool did not sustain the rate (a failed trial whatever its p99) */
+  trials: { rateHz: number; p99_us: number | null; saturated: boolean; withinBudget: boolean; events: number }[];
 }
 
 export interface ScanWorkersResult {

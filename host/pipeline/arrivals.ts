@@ -1,5 +1,5 @@
-// When each event is due. Closed loop: events go as fast as the pool takes them, and an event's
-// latency starts when its batch is handed to the pool. Open loop: event i is due at a scheduled
+// When each event is due. Closed loop: events go as fast as the pool takes them (it measures
+// capacity, not latency under load). Open loop: event i is due at a scheduled
 // time fixed before the run (fixed spacing for --rate, exponential gaps from a seeded generator
 // for --poisson), and its latency starts at that scheduled time whatever the host was doing,
 // so a stalled pool shows up as queueing delay instead of hiding it (no coordinated omission).
@@ -49,22 +49,4 @@ export class ArrivalSchedule {
     this.elapsedNs += (-Math.log(1 - this.uniform!()) * 1e9) / mode.rateHz;
     return Math.round(this.elapsedNs);
   }
-}
-
-/** below this the wait spins on the event loop (results keep flowing); above it, a timer sleeps */
-const SPIN_BELOW_MS = 0.25;
-
-/**
- * Resolves at (or just after) an absolute time on nowNs()'s clock. Timers fire up to about
- * 1 ms late; spinning all the way would cost a core that the workers need at high rates, so
- * only the last SPIN_BELOW_MS spin. The lateness is measured (summary latency.dispatchLag)
- * and is part of every open-loop event's end-to-end latency.
- */
-export function sleepUntilNs(targetNs: number): Promise<void> {
-  const remainingMs = (targetNs - nowNs()) / 1e6;
-  if (remainingMs <= 0) return Promise.resolve();
-  if (remainingMs > SPIN_BELOW_MS) {
-    return new Promise((resolve) => setTimeout(resolve, Math.max(0, Math.floor(remainingMs - SPIN_BELOW_MS)))).then(() => sleepUntilNs(targetNs));
-  }
-  return new Promise((resolve) => setImmediate(resolve)).then(() => sleepUntilNs(targetNs));
 }

@@ -26,6 +26,10 @@ export interface WorkerHooks {
   engineJets?: (event: number, jets: JetSet) => JetSet;
   /** rewrites one valid event's stage times, stageNs[at .. at + STAGE_COUNT), once measured */
   stageTimes?: (stageNs: Float64Array, at: number, towersClustered: number) => void;
+  /** a clusterer of known cost in place of the configured one (a stub for timing tests) */
+  clusterer?: () => Clusterer;
+  /** runs inside one event's timed clustering (a clusterer without a batch call only) */
+  duringService?: (event: number) => void;
 }
 
 /** What a worker keeps from batch to batch. */
@@ -58,7 +62,7 @@ function nowNs(): number {
 type ResultViews = ReturnType<typeof resultViews>;
 
 /** The events of one batch and where their results go. */
-interface BatchWork {
+export interface BatchWork {
   task: BatchTask;
   recordStart: Uint32Array;
   data: Uint8Array;
@@ -69,22 +73,35 @@ interface BatchWork {
 }
 
 export function clusterBatch(state: WorkerState, task: BatchTask, hooks: WorkerHooks): BatchResult {
+  return finishBatch(state, readBatch(state, task), hooks);
+}
+
+/**
+ * Pass 1 alone (decode, validate, bin); finishBatch does the rest. An open-loop worker reads
+ * an event before it is due and clusters it when it is (open-loop-serve.ts).
+ */
+export function readBatch(state: WorkerState, task: BatchTask): BatchWork {
   const { count } = task;
   const { recordStart, data } = batchViews(task.buffer, count, task.dataStart);
   const buffer = new ArrayBuffer(resultBytes(count));
   const clusterer = state.clusterer!;
   const result: BatchResult = {
     batchIndex: task.batchIndex, count, engine: clusterer.name, buffer,
-    invalid: [], differences: [], disagreeing: [],
+    invalid: [], differences: [], disagreeing: [], sampled: [],
     checked: 0, agreeing: 0, jets: 0,
     towersOffered: 0, towersBelowThreshold: 0, towersOutsideAcceptance: 0,
     jetsBytes: null,
   };
   const work: BatchWork = { task, recordStart, data, out: resultViews(buffer, count), result, validCount: 0 };
   readEvents(state, work);
-  const jetsOf = clusterValidEvents(state, clusterer, work, hooks);
+  return work;
+}
+
+/** Passes 2 and 3 of a batch read by readBatch: cluster, then check (sampled) and encode. */
+export function finishBatch(state: WorkerState, work: BatchWork, hooks: WorkerHooks): BatchResult {
+  const jetsOf = clusterValidEvents(state, state.clusterer!, work, hooks);
   checkAndEncode(state, work, jetsOf, hooks);
-  return result;
+  return work.result;
 }
 
 /** Grows a typed array to at least `needed` entries, keeping its contents. */
@@ -173,6 +190,7 @@ function clusterValidEvents(state: WorkerState, clusterer: Clusterer, work: Batc
     const sets: JetSet[] = [];
     for (let v = 0; v < valid; v++) {
       const t2 = nowNs();
+      hooks.duringService?.(out.eventNumber[validEvent[v]]);
       const jets = clusterer.cluster(state.batchIndex.subarray(batchStart[v], batchStart[v + 1]), state.batchEt.subarray(batchStart[v], batchStart[v + 1]));
       out.stageNs[validEvent[v] * STAGE_COUNT + STAGE_CLUSTER] = nowNs() - t2;
       result.jets += jets.count;
@@ -209,7 +227,10 @@ function checkAndEncode(state: WorkerState, work: BatchWork, jetsOf: (v: number)
     const slot = v++;
     const t3 = nowNs();
     let t4 = t3;
-    if (reference && inCheckSample(event, config.checkFraction, config.checkSeed)) {
+    if (config.checkApart && inCheckSample(event, config.checkFraction, config.checkSeed)) {
+      // the reference runs after the timed pass, in its own workers (check-pass.ts)
+      result.sampled.push({ index: k, event, bytes: data.slice(recordStart[k], recordStart[k + 1]) });
+    } else if (reference && inCheckSample(event, config.checkFraction, config.checkSeed)) {
       const expected = reference.cluster(state.batchIndex.subarray(from, to), state.batchEt.subarray(from, to));
       const difference = firstJetDifference(jetsOf(slot), expected);
       result.checked++;

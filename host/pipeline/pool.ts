@@ -23,7 +23,8 @@ import { Piscina } from 'piscina';
 import { setFlagsFromString } from 'node:v8';
 import { fileURLToPath } from 'node:url';
 import { nowNs } from './arrivals.js';
-import { batchDataStart, batchViews, type BatchResult, type BatchTask, type WorkerConfig } from './worker-contract.js';
+import type { MessagePort } from 'node:worker_threads';
+import { batchDataStart, batchViews, type BatchResult, type BatchTask, type ServeTask, type WorkerConfig } from './worker-contract.js';
 
 // Node 20 can abort the whole process (a native assertion in node_platform.cc, exit 134) when a
 // worker thread is torn down while V8 is still optimising its code on a background thread;
@@ -96,6 +97,8 @@ export interface BatchOutcome {
   startNs: Float64Array;
   /** when the result (or the failure) reached the main thread */
   finishedNs: number;
+  /** open loop (one event): when a worker started on it, after its arrival (shared clock) */
+  workerStartNs?: number;
   result: BatchResult | null;
   failure: string | null;
 }
@@ -157,6 +160,14 @@ export class BatchPool {
       runs.push(this.piscina.run({ batchIndex: -1, count: 0, dataStart, buffer, warmUp: true } satisfies BatchTask, { transferList: [buffer] }));
     }
     await Promise.all(runs);
+  }
+
+  /**
+   * Runs one task outside the batch order: an open-loop serve task, which holds its worker
+   * for the whole run (open-loop-feed.ts).
+   */
+  runTask(task: ServeTask, transferList: MessagePort[]): Promise<unknown> {
+    return this.piscina.run(task, { transferList: transferList as never });
   }
 
   /** Resolves when another batch may be dispatched. */

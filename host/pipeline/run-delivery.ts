@@ -21,8 +21,19 @@ export interface DeliveryContext {
   onProblem?: (line: string) => void;
 }
 
+/** An event of the check sample, kept from the timed pass for the check pass (check-pass.ts). */
+export interface SampledRecord {
+  bytes: Uint8Array;
+  /** its byte offset in the input */
+  offset: number;
+  /** its ordinal among the input's event records */
+  record: number;
+}
+
 export class RunDelivery {
   readonly tally = new RunTally();
+  /** the timed pass's check sample, in input order */
+  readonly checkSample: SampledRecord[] = [];
   /** the clusterer the workers report (the configured one until a result comes back) */
   engineName: string;
   /** the jets file's latest write that has not finished; the reader waits on it before a batch */
@@ -53,6 +64,9 @@ export class RunDelivery {
       return;
     }
     this.engineName = result.engine;
+    for (const { index, bytes } of result.sampled) {
+      this.checkSample.push({ bytes, offset: outcome.recordOffsets[index], record: outcome.firstRecord + index });
+    }
     this.tallyEvents(outcome, result);
     this.tallyBatch(result);
     this.writeDisagreeing(result);
@@ -95,14 +109,21 @@ export class RunDelivery {
         if ((index === STAGE_CHECK || index === STAGE_ENCODE) && value === 0) continue;
         tally.stages[stage].recordNs(value);
       }
-      const endToEndNs = outcome.finishedNs - outcome.startNs[k];
-      tally.endToEnd.recordNs(endToEndNs);
+      if (openLoop) {
+        // one event per outcome, timed from its scheduled arrival (open-loop-feed.ts)
+        const dueNs = outcome.startNs[k];
+        const startNs = outcome.workerStartNs ?? dueNs;
+        const endToEndNs = outcome.finishedNs - dueNs;
+        tally.recordOpenLoopEvent(startNs - dueNs, outcome.finishedNs - startNs - clusterNs, endToEndNs);
+        if (endToEndNs > budgetNs) tally.overBudget++;
+        continue;
+      }
       // a closed loop has no arrivals: its events wait for the batches before them by design,
       // so the budget is held against the event's own time in the worker; the reference check
       // is validation of the tool's engine, not work a trigger would do, so it is left out
       let workerNs = 0;
       for (let s = 0; s < STAGE_COUNT; s++) if (s !== STAGE_CHECK) workerNs += views.stageNs[at + s];
-      if ((openLoop ? endToEndNs : workerNs) > budgetNs) tally.overBudget++;
+      if (workerNs > budgetNs) tally.overBudget++;
     }
   }
 
@@ -114,6 +135,12 @@ export class RunDelivery {
     tally.towers.belowThreshold += result.towersBelowThreshold;
     tally.towers.outsideAcceptance += result.towersOutsideAcceptance;
     tally.towers.clustered += result.towersOffered - result.towersBelowThreshold;
+    this.tallyCheck(result);
+  }
+
+  /** check agreement and differences (a timed pass has none: its sample is checked apart) */
+  private tallyCheck(result: BatchResult): void {
+    const { tally } = this;
     tally.check.checked += result.checked;
     tally.check.agreeing += result.agreeing;
     tally.check.disagreeing += result.checked - result.agreeing;
@@ -121,6 +148,26 @@ export class RunDelivery {
       tally.addDifference(difference);
       this.problem(`${this.context.label}: check: ${describeDifference(difference.event, difference)}`);
     }
+  }
+
+  /**
+   * The check pass's callback (check-pass.ts): one batch of the check sample, in input order;
+   * only its check results, the reference's time per event and the repro file are taken, the
+   * rest was counted in the timed pass.
+   */
+  deliverCheck(outcome: BatchOutcome): void {
+    const { result } = outcome;
+    if (result === null) {
+      this.problem(`${this.context.label}, records ${outcome.firstRecord}.., byte ${outcome.recordOffsets[0]}: check failed: ${outcome.failure}`);
+      return;
+    }
+    const views = resultViews(result.buffer, outcome.count);
+    for (let k = 0; k < outcome.count; k++) {
+      const checkNs = views.stageNs[k * STAGE_COUNT + STAGE_CHECK];
+      if (views.status[k] === STATUS_OK && checkNs > 0) this.tally.stages.check.recordNs(checkNs);
+    }
+    this.tallyCheck(result);
+    this.writeDisagreeing(result);
   }
 
   private writeDisagreeing(result: BatchResult): void {

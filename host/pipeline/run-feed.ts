@@ -1,10 +1,10 @@
-// The reading side of a run: event records from the file, this shard's share of them, gathered
-// into batches and handed to the pool. Closed loop: a batch goes when it is full. Open loop:
-// each event waits for its scheduled arrival, and what is already due goes at once.
+// The reading side of a closed-loop run: event records from the file, this shard's share of
+// them, gathered into batches and handed to the pool; a batch goes when it is full. (An open
+// loop dispatches each event at its arrival: open-loop-feed.ts.)
 
 import { InputError } from '../errors.js';
 import type { RawRecord } from '../input/record-reader.js';
-import { nowNs, sleepUntilNs, type ArrivalSchedule } from './arrivals.js';
+import { nowNs } from './arrivals.js';
 import { BatchBuilder, type BatchPool } from './pool.js';
 import type { RunDelivery } from './run-delivery.js';
 
@@ -28,18 +28,15 @@ export class RecordFeed {
   private readonly builder = new BatchBuilder();
   private dispatchIndex = 0;
   private builderFirstRecord = 0;
-  /** scheduled arrival of each event in the builder (open loop) */
-  private readonly builderStartNs: number[] = [];
 
   constructor(
     private readonly plan: FeedPlan,
-    private readonly schedule: ArrivalSchedule,
     private readonly pool: BatchPool,
     private readonly delivery: RunDelivery,
   ) {}
 
   /** Reads records until the input ends, breaks or the run is stopped; dispatches every batch. */
-  async feed(records: AsyncIterable<RawRecord>, startNs: number): Promise<void> {
+  async feed(records: AsyncIterable<RawRecord>): Promise<void> {
     const { batch, shard, maxEvents, signal } = this.plan;
     const builder = this.builder;
     try {
@@ -50,19 +47,9 @@ export class RecordFeed {
         this.lastOffset = record.offset;
         // shards take every n-th group of `batch` records, whatever the run's timing
         if (Math.floor(record0 / batch) % shard.count !== shard.index) continue;
-        if (this.schedule.openLoop) {
-          const dueNs = startNs + this.schedule.next();
-          // events already due go now rather than wait for this one
-          if (builder.count > 0 && (builder.count >= batch || dueNs > nowNs())) await this.send();
-          await sleepUntilNs(dueNs);
-          if (builder.count === 0) this.builderFirstRecord = record0;
-          builder.add(record.bytes, record.offset);
-          this.builderStartNs.push(dueNs);
-        } else {
-          if (builder.count === 0) this.builderFirstRecord = record0;
-          builder.add(record.bytes, record.offset);
-          if (builder.count >= batch) await this.send();
-        }
+        if (builder.count === 0) this.builderFirstRecord = record0;
+        builder.add(record.bytes, record.offset);
+        if (builder.count >= batch) await this.send();
       }
     } catch (error) {
       if (!(error instanceof InputError)) throw error;
@@ -78,15 +65,8 @@ export class RecordFeed {
     await this.delivery.jetsWritten();
     await this.pool.waitForRoom();
     const sealed = this.builder.seal(this.dispatchIndex++);
-    const starts = new Float64Array(sealed.task.count);
-    const dispatchNs = nowNs();
-    if (this.schedule.openLoop) {
-      for (let k = 0; k < starts.length; k++) {
-        starts[k] = this.builderStartNs[k];
-        this.delivery.tally.recordDispatchLatenessNs(dispatchNs - this.builderStartNs[k]);
-      }
-    } else starts.fill(dispatchNs);
-    this.builderStartNs.length = 0;
+    // when each event was handed over (the batch's events have no arrivals of their own)
+    const starts = new Float64Array(sealed.task.count).fill(nowNs());
     this.pool.dispatch(sealed, this.builderFirstRecord, starts);
   }
 }

@@ -2,14 +2,18 @@
 // runEvents() is the programmatic entry (commands/run.ts and the demo call it). One run reads
 // the input once; --find-rate and --scan-workers repeat runs (studies.ts). The steps of a run:
 //   planRun -> open the input -> refuse an unusable engine -> openOutputs -> pool and warm-up
-//   -> RecordFeed.feed (run-feed.ts: records into batches, batches to the pool)
-//   -> RunDelivery.deliver per batch (run-delivery.ts: tally, problem lines, output files)
-//   -> drain, close the outputs -> summarize
+//   -> the timed pass: closed loop, RecordFeed.feed (run-feed.ts: records into batches,
+//      batches to the pool); open loop, OpenLoopFeed.feed (open-loop-feed.ts: each event to a
+//      worker at its scheduled arrival)
+//   -> RunDelivery.deliver per batch or event (run-delivery.ts: tally, problem lines, outputs)
+//   -> the check pass (check-pass.ts: the --check sample against the reference, untimed)
+//   -> close the outputs -> summarize
 //
-// Latency starts, per event: closed loop, when its batch is handed to the pool; open loop,
-// at its scheduled arrival (arrivals.ts). It ends when the batch's result reaches the main
-// thread. Events whose results wait for an earlier batch before being written in input order
-// are not charged for that wait: in-order output is a property of the file, not of a trigger.
+// A closed loop measures capacity: events/s and each event's service time in its worker. An
+// open loop measures latency under load: per event from its scheduled arrival (arrivals.ts) to
+// its result back on the main thread. Events whose results wait for an earlier one before being
+// written in input order are not charged for that wait: in-order output is a property of the
+// file, not of a trigger.
 
 import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { openEventSource } from '../input/event-source.js';
@@ -20,6 +24,10 @@ import { ArrivalSchedule, nowNs, type ArrivalMode } from './arrivals.js';
 import { BatchPool } from './pool.js';
 import { RecordFeed } from './run-feed.js';
 import { RunDelivery } from './run-delivery.js';
+import { OpenLoopFeed } from './open-loop-feed.js';
+import { runCheckPass } from './check-pass.js';
+import { DEFAULT_MAX_RECORD_BYTES } from '../input/record-reader.js';
+import { MachineLoadProbe } from '../measure/machine-load.js';
 import type { WorkerConfig } from './worker-contract.js';
 import { describeMachine, renderSummary, type RunConfiguration, type RunSummary } from '../measure/summary.js';
 import { ProgressBar } from '../measure/progress.js';
@@ -168,7 +176,8 @@ function checkFractionOf(check: CheckOption): number {
 }
 
 function workerConfigOf(plan: RunPlan, grid: Grid, encodeJets: boolean): WorkerConfig {
-  return { grid, settings: plan.settings, engine: plan.engine, checkFraction: checkFractionOf(plan.check), checkSeed: plan.check.seed, encodeJets };
+  // the timed pass sends its check sample back; the reference runs after it (check-pass.ts)
+  return { grid, settings: plan.settings, engine: plan.engine, checkFraction: checkFractionOf(plan.check), checkSeed: plan.check.seed, encodeJets, checkApart: true };
 }
 
 /**
@@ -208,15 +217,25 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   });
   // threads and engines are made before the clock starts: start-up is not throughput
   await pool.warmUp(plan.workers);
-  const feed = new RecordFeed({ batch: plan.batch, shard: plan.shard, maxEvents: options.maxEvents, signal: options.signal }, schedule, pool, delivery);
+  const feedPlan = { batch: plan.batch, shard: plan.shard, maxEvents: options.maxEvents, signal: options.signal };
+  const feed = schedule.openLoop
+    ? new OpenLoopFeed({ ...feedPlan, workers: plan.workers, maxRecordBytes: DEFAULT_MAX_RECORD_BYTES }, schedule, pool, delivery)
+    : new RecordFeed(feedPlan, pool, delivery);
   const progress = new ProgressBar(options.progress ?? process.stderr, { eventsDone: () => delivery.tally.read, bytesDone: () => feed.lastOffset }, bytesTotal, Boolean(options.progress));
-  const startNs = nowNs();
-  let endNs = startNs;
+  let wallSeconds = 0;
   progress.start();
+  const machineLoad = new MachineLoadProbe();
   try {
-    await feed.feed(source.records, startNs);
-    await pool.drain();
-    endNs = nowNs();
+    if (feed instanceof OpenLoopFeed) {
+      await feed.feed(source.records);
+      wallSeconds = Math.max(0, feed.endNs - feed.startNs) / 1e9;
+    } else {
+      const startNs = nowNs();
+      await feed.feed(source.records);
+      await pool.drain();
+      wallSeconds = (nowNs() - startNs) / 1e9;
+    }
+    delivery.tally.recordMachineLoad(machineLoad);
     await delivery.jetsWritten();
   } catch (error) {
     await delivery.abortOutputs();
@@ -225,14 +244,21 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
     progress.stop();
     await pool.close();
   }
+  // the reference after the timing, in workers of its own
+  try {
+    await runCheckPass(delivery.checkSample, { workers: plan.workers, batch: plan.batch, config, workerFile: options.workerFile, signal: options.signal }, delivery);
+  } catch (error) {
+    await delivery.abortOutputs();
+    throw error;
+  }
   await delivery.closeRepro();
   delivery.tally.bytesRead = feed.lastOffset;
   await delivery.closeJets();
-  return summarize(options, plan, delivery, feed, { grid, inputLabel: source.header.label, wallSeconds: (endNs - startNs) / 1e9 });
+  return summarize(options, plan, delivery, feed, { grid, inputLabel: source.header.label, wallSeconds });
 }
 
 /** The run's summary, with the input error that cut it short (if any) kept off the JSON. */
-function summarize(options: RunOptions, plan: RunPlan, delivery: RunDelivery, feed: RecordFeed, run: { grid: Grid; inputLabel: string; wallSeconds: number }): RunSummary {
+function summarize(options: RunOptions, plan: RunPlan, delivery: RunDelivery, feed: RecordFeed | OpenLoopFeed, run: { grid: Grid; inputLabel: string; wallSeconds: number }): RunSummary {
   const { arrival, check, shard } = plan;
   const configuration: RunConfiguration = {
     file: plan.label,

@@ -21,6 +21,8 @@
 import type { EngineName } from '../clustering/clusterers.js';
 import type { JetDifference } from '../validate/bit-exact.js';
 import type { ClusterSettings, Grid } from '../types.js';
+import type { MessagePort } from 'node:worker_threads';
+import type { RingBuffers } from './event-ring.js';
 
 // ---- the stage table: one column per stage of an event's way through the worker ----------
 // Named as measure/ reports them (STAGE_INDEX below maps those names to these columns).
@@ -56,6 +58,11 @@ export interface WorkerConfig {
   checkSeed: number;
   /** encode each event's jets for a jets file */
   encodeJets: boolean;
+  /**
+   * a timed pass: the reference does not run here; the records of the check sample come back
+   * in BatchResult.sampled, and are checked after the timing (check-pass.ts)
+   */
+  checkApart?: boolean;
 }
 
 /** Host -> worker, one per batch. */
@@ -90,8 +97,37 @@ export interface BatchResult {
   towersOffered: number;
   towersBelowThreshold: number;
   towersOutsideAcceptance: number;
+  /** checkApart: the records of this batch's events in the check sample, for the check pass */
+  sampled: { index: number; event: number; bytes: Uint8Array }[];
   /** delimited jets records of this batch's events in order, when encodeJets is on */
   jetsBytes: Uint8Array | null;
+}
+
+/**
+ * Host -> worker, once per worker of an open-loop run: serve the event ring (event-ring.ts)
+ * until it is closed and empty, one EventMessage per event on `port`; resolves with the number
+ * of events served.
+ */
+export interface ServeTask {
+  serve: {
+    ring: RingBuffers;
+    /** this worker's place in the ring's WORKER_HOLDS table */
+    workerIndex: number;
+    port: MessagePort;
+  };
+}
+
+/** Worker -> host, one per open-loop event, on the serve task's port. */
+export interface EventMessage {
+  /** the event's place in the run's open-loop order */
+  ordinal: number;
+  /** when the worker started on it (after waiting for its arrival), shared clock ns */
+  startNs: number;
+  /** the worker claimed it before it was due, and waited for it */
+  claimedEarly: boolean;
+  /** one-event result; null when the worker failed on it */
+  result: BatchResult | null;
+  failure: string | null;
 }
 
 /** Where the record bytes start in a batch buffer of `count` records. */

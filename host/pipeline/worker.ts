@@ -15,14 +15,16 @@ import { ReferenceClusterer } from '../clustering/reference.js';
 import { EventTowerReader } from '../input/event-towers.js';
 import { encodeDelimitedJetsRecord } from '../formats/jets-codec.js';
 import { clusterBatch, type WorkerHooks, type WorkerState } from './cluster-batch.js';
-import type { BatchTask, WorkerConfig } from './worker-contract.js';
+import { serveRing } from './open-loop-serve.js';
+import type { BatchTask, ServeTask, WorkerConfig } from './worker-contract.js';
 
-function makeState(config: WorkerConfig): WorkerState {
+function makeState(config: WorkerConfig, hooks: WorkerHooks): WorkerState {
   return {
     config,
     reader: new EventTowerReader(config.grid),
-    clusterer: makeClusterer(config.engine, config.grid, config.settings),
-    reference: config.checkFraction > 0 ? new ReferenceClusterer(config.grid, config.settings) : null,
+    clusterer: hooks.clusterer ? hooks.clusterer() : makeClusterer(config.engine, config.grid, config.settings),
+    // a timed pass leaves the reference to the check pass (check-pass.ts)
+    reference: config.checkFraction > 0 && !config.checkApart ? new ReferenceClusterer(config.grid, config.settings) : null,
     batchIndex: new Int32Array(1 << 16),
     batchEt: new Float64Array(1 << 16),
     batchStart: new Int32Array(1),
@@ -37,9 +39,13 @@ function makeState(config: WorkerConfig): WorkerState {
  */
 export function makeBatchRunner(hooks: WorkerHooks = {}): (task: BatchTask) => Promise<unknown> {
   let state: WorkerState | null = null;
-  return async function runBatch(task: BatchTask): Promise<unknown> {
-    if (!state) state = makeState(piscinaWorkerData as WorkerConfig);
-    if (!state.clusterer) state.clusterer = makeClusterer(state.config.engine, state.config.grid, state.config.settings);
+  const ensureClusterer = (s: WorkerState) => {
+    if (!s.clusterer) s.clusterer = hooks.clusterer ? hooks.clusterer() : makeClusterer(s.config.engine, s.config.grid, s.config.settings);
+  };
+  return async function runBatch(task: BatchTask | ServeTask): Promise<unknown> {
+    if (!state) state = makeState(piscinaWorkerData as WorkerConfig, hooks);
+    if ('serve' in task) return serveRing(state, task.serve, hooks, ensureClusterer);
+    ensureClusterer(state);
     if (state.validEvent.length < task.count) {
       state.validEvent = new Int32Array(task.count);
       state.batchStart = new Int32Array(task.count + 1);

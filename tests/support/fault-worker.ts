@@ -9,11 +9,16 @@
 //                                 so the check has a disagreement to find
 //   JETLAG_TEST_SYNTHETIC_TIMES=1 stage times are a fixed function of the event, not measured,
 //                                 so two runs over the same events record identical values
+//   JETLAG_TEST_STUB_US=US        a stub clusterer of known cost in place of the engine: it spins
+//                                 US µs per event and finds no jets (service time = US)
+//   JETLAG_TEST_STUB_STALL=E:MS   event number E sleeps MS ms inside its timed clustering, once
+//                                 per worker thread (a stalled worker)
 
 import { makeBatchRunner } from '../../host/pipeline/worker.js';
 import type { WorkerHooks } from '../../host/pipeline/cluster-batch.js';
 import { STAGE_BIN, STAGE_CHECK, STAGE_CLUSTER, STAGE_DECODE, STAGE_ENCODE, type BatchTask } from '../../host/pipeline/worker-contract.js';
-import type { JetSet } from '../../host/types.js';
+import { emptyJetSet } from '../../host/formats/jets-codec.js';
+import { DEFAULT_SETTINGS, type Clusterer, type JetSet } from '../../host/types.js';
 
 interface PlantedFault { kind: 'throw' | 'exit' | 'stall'; batch: number; ms: number }
 
@@ -51,7 +56,33 @@ function hooksFromEnvironment(): WorkerHooks {
       stageNs[at + STAGE_ENCODE] = stageNs[at + STAGE_ENCODE] > 0 ? 300 : 0;
     };
   }
+  const stubUs = process.env.JETLAG_TEST_STUB_US;
+  if (stubUs !== undefined) hooks.clusterer = () => spinningClusterer(Number(stubUs));
+  const stall = process.env.JETLAG_TEST_STUB_STALL;
+  if (stall !== undefined) {
+    const [event, ms] = stall.split(':').map(Number);
+    let stalled = false;
+    const sleeper = new Int32Array(new SharedArrayBuffer(4));
+    hooks.duringService = (eventNumber) => {
+      if (eventNumber !== event || stalled) return;
+      stalled = true;
+      Atomics.wait(sleeper, 0, 0, ms);
+    };
+  }
   return hooks;
+}
+
+/** A clusterer whose cost is known: it spins `us` µs on the clock and finds no jets. */
+function spinningClusterer(us: number): Clusterer {
+  return {
+    name: `stub-${us}us`,
+    settings: { ...DEFAULT_SETTINGS },
+    cluster(): JetSet {
+      const until = performance.now() + us / 1000;
+      while (performance.now() < until) { /* the stub's cost */ }
+      return emptyJetSet();
+    },
+  };
 }
 
 const fault = plantedFault();

@@ -1,0 +1,240 @@
+// The main thread's side of an open-loop run. It reads records, gives each its scheduled arrival
+// (arrivals.ts) and publishes it to the event ring (event-ring.ts) shortly before it is due; the
+// workers claim events from the ring and start each at its arrival (open-loop-serve.ts). One
+// result message per event comes back; results are delivered in input order (RunDelivery), with
+// the event's own times:
+//
+//   due ────── wait ──────► start in a worker ── service ──► ... ── return ──► back on this thread
+//   (scheduled arrival)      (after its arrival)  (clustering)                  (message received)
+//   └──────────────────────────────── end-to-end ─────────────────────────────────────────────┘
+//
+// Dispatch lateness, a property of the harness, is taken apart from the events' waiting: for
+// an event a worker was ready for before it was due, start - due (how late the waiting worker
+// woke); for an event the reader published after it was due while the ring had room, publish -
+// due (the reader fell behind). An event that arrives while every worker is busy waits in the
+// ring: that is queueing, measured in its wait, not lateness of the harness.
+
+import { MessageChannel, type MessagePort } from 'node:worker_threads';
+import { InputError } from '../errors.js';
+import type { RawRecord } from '../input/record-reader.js';
+import type { ArrivalSchedule } from './arrivals.js';
+import { CLAIMED, makeRingBuffers, RingWriter, SLOT_COUNT, WORKER_HOLDS } from './event-ring.js';
+import { sharedClockNs } from './shared-clock.js';
+import type { BatchOutcome, BatchPool } from './pool.js';
+import type { RunDelivery } from './run-delivery.js';
+import type { EventMessage, ServeTask } from './worker-contract.js';
+
+/** Events are published this long before they are due (the reader sleeps on a ms-coarse timer). */
+export const PUBLISH_AHEAD_NS = 30_000_000;
+/** The first event is due this long after the run starts, so it is published ahead like the rest. */
+export const START_LEAD_NS = 5_000_000;
+
+export interface OpenLoopPlan {
+  workers: number;
+  /** shards take every n-th group of `batch` records, as in a closed loop */
+  batch: number;
+  shard: { index: number; count: number };
+  maxEvents: number | null | undefined;
+  signal: AbortSignal | undefined;
+  maxRecordBytes: number;
+}
+
+interface Received {
+  message: EventMessage;
+  receivedNs: number;
+}
+
+export class OpenLoopFeed {
+  records = 0;
+  lastOffset = 0;
+  partialReason: string | null = null;
+  inputError: InputError | null = null;
+  /** shared clock ns at the run's start and when its last result came back */
+  startNs = 0;
+  endNs = 0;
+  private readonly ring: RingWriter;
+  private readonly dueOf = new Float64Array(SLOT_COUNT);
+  private readonly recordOf = new Float64Array(SLOT_COUNT);
+  private readonly offsetOf = new Float64Array(SLOT_COUNT);
+  private readonly pending = new Map<number, Received>();
+  private delivered = 0;
+  private received = 0;
+  /** published events due by the latest result's arrival (for the backlog) */
+  private dueSeen = 0;
+  private firstDueNs = 0;
+  /** first exception thrown while delivering a result; re-thrown by feed() */
+  private deliverError: unknown = null;
+  private lastReceivedNs = 0;
+  /** least-squares sums of (ordinal, return time from the start): the sustained rate's fit */
+  private readonly fit = { n: 0, x: 0, xx: 0, y: 0, xy: 0 };
+  /** backlog (events due, result not back) at each result, in the order results came: saturation data */
+  private backlogAt: number[] = [];
+  private readonly ports: MessagePort[] = [];
+  private readonly serving: Promise<void>[] = [];
+  private wake: (() => void) | null = null;
+  private readingDone = false;
+
+  constructor(
+    private readonly plan: OpenLoopPlan,
+    private readonly schedule: ArrivalSchedule,
+    private readonly pool: BatchPool,
+    private readonly delivery: RunDelivery,
+  ) {
+    this.ring = new RingWriter(makeRingBuffers(plan.maxRecordBytes));
+  }
+
+  /** Starts the serving workers, reads and publishes every event, and waits for every result. */
+  async feed(records: AsyncIterable<RawRecord>): Promise<void> {
+    for (let w = 0; w < this.plan.workers; w++) this.serve(w);
+    this.startNs = sharedClockNs() + START_LEAD_NS;
+    try {
+      await this.publishAll(records);
+    } finally {
+      this.readingDone = true;
+      this.ring.close();
+    }
+    while (this.delivered < this.ring.count) await this.nextResult();
+    await Promise.all(this.serving);
+    for (const port of this.ports) port.close();
+    this.endNs = this.lastReceivedNs || sharedClockNs();
+    this.recordRates();
+  }
+
+  private async publishAll(records: AsyncIterable<RawRecord>): Promise<void> {
+    const { batch, shard, maxEvents, signal } = this.plan;
+    try {
+      for await (const record of records) {
+        if (signal?.aborted) { this.partialReason = 'interrupted: reading stopped, events in flight drained'; break; }
+        if (maxEvents != null && this.records >= maxEvents) break;
+        const record0 = this.records++;
+        this.lastOffset = record.offset;
+        if (Math.floor(record0 / batch) % shard.count !== shard.index) continue;
+        await this.publish(record, record0);
+      }
+    } catch (error) {
+      if (!(error instanceof InputError)) throw error;
+      this.inputError = error;
+      this.partialReason = `input unreadable from here on: ${error.message}`;
+    }
+  }
+
+  private async publish(record: RawRecord, record0: number): Promise<void> {
+    const dueNs = this.startNs + this.schedule.next();
+    await this.delivery.jetsWritten();
+    let waitedForRoom = false;
+    while (this.ring.count - this.delivered >= SLOT_COUNT || !this.ring.fits(record.bytes.length)) {
+      waitedForRoom = true;
+      await this.nextResult();
+    }
+    const aheadMs = (dueNs - PUBLISH_AHEAD_NS - sharedClockNs()) / 1e6;
+    if (aheadMs >= 1) await new Promise((resolve) => setTimeout(resolve, Math.floor(aheadMs)));
+    const ordinal = this.ring.publish(dueNs, record.bytes, record.offset);
+    const slot = ordinal % SLOT_COUNT;
+    this.dueOf[slot] = dueNs;
+    this.recordOf[slot] = record0;
+    this.offsetOf[slot] = record.offset;
+    if (ordinal === 0) this.firstDueNs = dueNs;
+    const latenessNs = sharedClockNs() - dueNs;
+    // published after its arrival with room in the ring: the reader itself was late
+    if (latenessNs > 0 && !waitedForRoom) this.delivery.tally.recordDispatchLatenessNs(latenessNs);
+  }
+
+  /** Runs one serve task on the pool for worker slot w; if its thread dies, fails its event and serves again. */
+  private serve(w: number): void {
+    const { port1, port2 } = new MessageChannel();
+    port1.on('message', (message: EventMessage) => this.onMessage(message));
+    this.ports.push(port1);
+    const task: ServeTask = { serve: { ring: this.ring.buffers, workerIndex: w, port: port2 } };
+    this.serving.push(this.pool.runTask(task, [port2]).then(
+      () => undefined,
+      (error: unknown) => {
+        const held = Atomics.load(this.ring.views.control, WORKER_HOLDS + w) - 1;
+        Atomics.store(this.ring.views.control, WORKER_HOLDS + w, 0);
+        const reason = error instanceof Error ? (error.message.split('\n')[0] || error.name) : String(error);
+        if (held >= this.delivered && !this.pending.has(held)) {
+          this.onMessage({ ordinal: held, startNs: sharedClockNs(), claimedEarly: false, result: null, failure: reason });
+        }
+        if (!this.readingDone || Atomics.load(this.ring.views.control, CLAIMED) < this.ring.count) this.serve(w);
+      },
+    ));
+  }
+
+  private onMessage(message: EventMessage): void {
+    const receivedNs = sharedClockNs();
+    if (message.ordinal < this.delivered || this.pending.has(message.ordinal)) return;
+    this.pending.set(message.ordinal, { message, receivedNs });
+    this.received++;
+    this.lastReceivedNs = receivedNs;
+    if (this.dueSeen < this.delivered) this.dueSeen = this.delivered;
+    while (this.dueSeen < this.ring.count && this.dueOf[this.dueSeen % SLOT_COUNT] <= receivedNs) this.dueSeen++;
+    this.backlogAt.push(this.dueSeen - this.received);
+    while (this.pending.has(this.delivered)) {
+      const next = this.pending.get(this.delivered)!;
+      this.pending.delete(this.delivered);
+      try {
+        this.deliver(next);
+      } catch (error) {
+        this.deliverError ??= error;
+      }
+      this.delivered++;
+    }
+    const wake = this.wake;
+    this.wake = null;
+    wake?.();
+  }
+
+  private deliver({ message, receivedNs }: Received): void {
+    const slot = message.ordinal % SLOT_COUNT;
+    const fit = this.fit;
+    const x = message.ordinal;
+    const y = receivedNs - this.startNs;
+    fit.n++; fit.x += x; fit.xx += x * x; fit.y += y; fit.xy += x * y;
+    const dueNs = this.dueOf[slot];
+    if (message.claimedEarly && message.result) this.delivery.tally.recordDispatchLatenessNs(message.startNs - dueNs);
+    const outcome: BatchOutcome = {
+      batchIndex: message.ordinal,
+      count: 1,
+      recordOffsets: Float64Array.of(this.offsetOf[slot]),
+      firstRecord: this.recordOf[slot],
+      startNs: Float64Array.of(dueNs),
+      finishedNs: receivedNs,
+      workerStartNs: message.startNs,
+      result: message.result,
+      failure: message.failure,
+    };
+    this.delivery.deliver(outcome);
+  }
+
+  private async nextResult(): Promise<void> {
+    await new Promise<void>((resolve) => { this.wake = resolve; });
+    if (this.deliverError) throw this.deliverError;
+  }
+
+  /**
+   * Offered rate: events over the span of their arrivals. Sustained rate: one over the slope of
+   * a straight line fitted (least squares) to each event's return time against its place in
+   * the run; a pool that keeps up returns events as they arrive, one that does not at its own
+   * pace, and a late first or last event moves a fitted slope far less than a span. The backlog
+   * grew when it was markedly larger over the last quarter of the results than over the first.
+   */
+  private recordRates(): void {
+    const events = this.ring.count;
+    const fit = this.fit;
+    if (events < 2 || fit.n < 2) return;
+    const firstDue = this.firstDueNs;
+    const lastDue = this.dueOf[(events - 1) % SLOT_COUNT];
+    const offeredHz = lastDue > firstDue ? ((events - 1) * 1e9) / (lastDue - firstDue) : Infinity;
+    const slopeNs = (fit.n * fit.xy - fit.x * fit.y) / (fit.n * fit.xx - fit.x * fit.x);
+    const sustainedHz = slopeNs > 0 ? 1e9 / slopeNs : Infinity;
+    const samples = this.backlogAt.length;
+    const quarter = Math.max(1, Math.floor(samples / 4));
+    let first = 0;
+    let last = 0;
+    for (let k = 0; k < quarter; k++) {
+      first += this.backlogAt[k];
+      last += this.backlogAt[samples - 1 - k];
+    }
+    const backlogGrew = last / quarter > 2 * (first / quarter) + 2 * this.plan.workers;
+    this.delivery.tally.recordRates(offeredHz, sustainedHz, backlogGrew);
+  }
+}
