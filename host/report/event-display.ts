@@ -7,8 +7,8 @@
 // towers near the seam repeated there (shaded band), and every jet is drawn at φ, φ - 2π and
 // φ + 2π, clipped to the plot: a jet across the seam is drawn whole at both edges.
 //
-// Each jet's outline is its own layer named jet_outline_<k>, which vega turns into an SVG group
-// of class jet_outline_<k>_marks; the page's tests count them.
+// Each jet's outline is its own layer named jet_outline_<panel>_<k>, which vega turns into an
+// SVG group of class jet_outline_<panel>_<k>_marks; the page's tests count them.
 
 import { chartFigure, type ChartSpec } from './render-chart.js';
 import { FAINT, HEAT_COLOURS, INK, JET_COLOURS } from './theme.js';
@@ -126,7 +126,7 @@ function towerRows(display: DisplayEvent, margin: number): object[] {
   return rows;
 }
 
-function panelSpec(display: DisplayEvent, panel: DisplayPanel, segments: Segment[][], margin: number, towers: object[], etDomain: [number, number]): object {
+function panelSpec(display: DisplayEvent, panelIndex: number, panel: DisplayPanel, segments: Segment[][], margin: number, towers: object[], etDomain: [number, number]): object {
   const { etaMin, etaMax } = display.grid;
   const x = { type: 'quantitative', scale: { domain: [etaMin, etaMax], nice: false, zero: false }, axis: { title: 'η (pseudorapidity)' } };
   const y = { type: 'quantitative', scale: { domain: [-margin, TWO_PI + margin], nice: false, zero: false }, axis: { title: 'φ [rad]', values: [0, Math.PI / 2, Math.PI, 1.5 * Math.PI, TWO_PI], format: '.2f' } };
@@ -168,7 +168,7 @@ function panelSpec(display: DisplayEvent, panel: DisplayPanel, segments: Segment
   layers.push({ data: { values: outlines.flat() }, mark: { type: 'rule', color: '#ffffff', strokeWidth: 4.5, strokeCap: 'square', clip: true }, encoding: segmentEncoding });
   outlines.forEach((copies, k) => {
     layers.push({
-      name: `jet_outline_${k}`,
+      name: `jet_outline_${panelIndex}_${k}`,
       data: { values: copies },
       mark: { type: 'rule', color: JET_COLOURS[k % JET_COLOURS.length], strokeWidth: 2.2, strokeCap: 'square', clip: true },
       encoding: segmentEncoding,
@@ -213,7 +213,7 @@ export async function eventDisplayFigure(display: DisplayEvent): Promise<string>
   const etDomain: [number, number] = low === Infinity ? [0.1, 1] : [low, Math.max(high, low * 10)];
   const spec = {
     title: `Event ${display.event} (${display.why})`,
-    hconcat: display.panels.map((panel, k) => panelSpec(display, panel, outlines[k], margin, towers, etDomain)),
+    hconcat: display.panels.map((panel, k) => panelSpec(display, k, panel, outlines[k], margin, towers, etDomain)),
     resolve: { scale: { color: 'shared' } },
   };
   const figure = await chartFigure('event-display', spec as unknown as ChartSpec,
