@@ -169,6 +169,9 @@ export function looksLikeFileHeader(bytes: Uint8Array): boolean {
   }
 }
 
+/** longest producer, label or engine name a file header may carry */
+export const MAX_HEADER_TEXT_CHARS = 65536;
+
 export function decodeFileHeader(bytes: Uint8Array): FileHeader {
   const raw = readRawHeader(bytes);
   if (raw.signature !== FILE_SIGNATURE) {
@@ -181,6 +184,10 @@ export function decodeFileHeader(bytes: Uint8Array): FileHeader {
   if (kind === undefined) throw new Error(`file header has unknown kind ${raw.kindCode} (expected 1 events or 2 jets)`);
   if (raw.grid === null) throw new Error('file header has no grid');
   checkGrid(raw.grid, 'file header grid');
+  // free text is echoed into reports and outputs: a hostile header must not fill them
+  for (const [name, text] of [['producer', raw.producer], ['label', raw.label], ['settings.engine', raw.settings?.engine ?? '']] as const) {
+    if (text.length > MAX_HEADER_TEXT_CHARS) throw new Error(`file header ${name} is ${text.length} characters long, more than the limit of ${MAX_HEADER_TEXT_CHARS}`);
+  }
   const header: FileHeader = { kind, grid: raw.grid, producer: raw.producer, label: raw.label, formatVersion: raw.formatVersion };
   if (kind === 'jets' && raw.settings === null) throw new Error('jets file header has no cluster settings');
   if (raw.settings !== null) {
