@@ -19,7 +19,16 @@ export interface DeliveryContext {
   reproPath: string | null;
   /** one line per problem (invalid event, failed batch, check difference) */
   onProblem?: (line: string) => void;
+  /** every clustered event, in input order (per-event CSV, the report's thinned sample) */
+  onEvent?: EventObserver;
 }
+
+/**
+ * One clustered event: its number, towers that entered clustering, service time, and in an
+ * open loop its scheduled arrival, start in a worker and result back on the main thread (ns
+ * on the run's clock); in a closed loop the three times are those of its batch.
+ */
+export type EventObserver = (event: number, towers: number, serviceNs: number, scheduledNs: number, startNs: number, doneNs: number) => void;
 
 /** An event of the check sample, kept from the timed pass for the check pass (check-pass.ts). */
 export interface SampledRecord {
@@ -102,6 +111,8 @@ export class RunDelivery {
       tally.ok++;
       const clusterNs = views.stageNs[at + STAGE_CLUSTER];
       tally.recordService(views.towersClustered[k], clusterNs);
+      const onEvent = this.context.onEvent;
+      if (onEvent) onEvent(views.eventNumber[k], views.towersClustered[k], clusterNs, outcome.startNs[k], outcome.workerStartNs ?? outcome.startNs[k], outcome.finishedNs);
       for (const stage of STAGES) {
         const index = STAGE_INDEX[stage];
         const value = views.stageNs[at + index];

@@ -23,7 +23,7 @@ import type { EngineName } from '../clustering/clusterers.js';
 import { ArrivalSchedule, nowNs, type ArrivalMode } from './arrivals.js';
 import { BatchPool } from './pool.js';
 import { RecordFeed } from './run-feed.js';
-import { RunDelivery } from './run-delivery.js';
+import { RunDelivery, type EventObserver } from './run-delivery.js';
 import { OpenLoopFeed } from './open-loop-feed.js';
 import { runCheckPass } from './check-pass.js';
 import { DEFAULT_MAX_RECORD_BYTES } from '../input/record-reader.js';
@@ -85,6 +85,8 @@ export interface RunOptions {
   progress?: NodeJS.WritableStream | null;
   /** one line per problem (invalid event, failed batch, check difference); the caller limits them */
   onProblem?: (line: string) => void;
+  /** every clustered event, in input order (run-delivery.ts) */
+  onEvent?: EventObserver;
   /** batches out at once (default 2 per worker, so a worker never waits for the host) */
   maxInFlight?: number;
   /** the pool's worker script (default: the product worker); tests run one with planted faults */
@@ -204,7 +206,7 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const config = workerConfigOf(plan, grid, Boolean(options.out));
   const { jetsFile, jetsHeaderPending, repro } = await openOutputs(options, plan, grid, source.header.label);
   const delivery = new RunDelivery(
-    { label: plan.label, openLoop: schedule.openLoop, budgetNs: plan.budgetNs, reproPath: options.repro ?? null, onProblem: options.onProblem },
+    { label: plan.label, openLoop: schedule.openLoop, budgetNs: plan.budgetNs, reproPath: options.repro ?? null, onProblem: options.onProblem, onEvent: options.onEvent },
     plan.engine, jetsFile, jetsHeaderPending, repro,
   );
 
