@@ -10,6 +10,7 @@ import { findRate, scanWorkers } from '../../pipeline/studies.js';
 import { describeMachine, type RunSummary } from '../../measure/summary.js';
 import { LISTED_MAX } from '../../measure/run-tally.js';
 import { formatReport } from '../../measure/report.js';
+import { runFailures } from '../../measure/run-verdict.js';
 import { writeTextFile } from '../../output/record-writer.js';
 import type { ArrivalMode } from '../../pipeline/arrivals.js';
 import type { EngineName } from '../../clustering/clusterers.js';
@@ -26,6 +27,7 @@ const RUN_OPTIONS: OptionSpec[] = [
   { name: 'poisson', kind: 'number', argument: '<hz>', description: 'open loop: events due at Poisson arrivals of this mean rate, seeded by --seed' },
   { name: 'seed', kind: 'integer', argument: '<n>', description: 'seed of the Poisson arrivals and of the --check sample (default: 1)' },
   { name: 'budget-us', kind: 'number', argument: '<us>', description: 'latency budget per event; events over it are counted (default: none)' },
+  { name: 'max-miss-fraction', kind: 'number', argument: '<F>', description: 'fail the run (exit code 1) when more than this fraction of the clustered events miss --budget-us, for CI (default: none)' },
   { name: 'find-rate', kind: 'flag', description: 'also search the highest open-loop rate whose end-to-end p99 stays within --budget-us (7 open-loop runs over the input; bound them with --events)' },
   { name: 'scan-workers', kind: 'flag', description: 'also repeat the closed-loop run with 1 .. cores workers and report the scaling' },
   { name: 'check', kind: 'string', argument: '<all|fraction|none>', description: `compare the engine's jets with the reference bit for bit on all events, a seeded fraction, or none (default: ${DEFAULT_CHECK.fraction})` },
@@ -40,7 +42,7 @@ const RUN_OPTIONS: OptionSpec[] = [
 
 export const spec: CommandSpec = {
   name: 'run',
-  summary: 'Stream an event file through a pool of workers, cluster every event and report per-event latency.\nExit code 1 also when a batch of events failed in a worker; 130 when interrupted (the summary is then marked partial).',
+  summary: 'Stream an event file through a pool of workers, cluster every event and report per-event latency.\nExit code 1 also when a batch of events failed in a worker, when no event was clustered, or when more than --max-miss-fraction of the events missed --budget-us; 130 when interrupted (the summary is then marked partial).',
   usage: 'jetlag run <events> [options]',
   positionals: { min: 1, max: 1 },
   options: [
@@ -95,7 +97,7 @@ export function parseShard(text: string | undefined): { index: number; count: nu
 }
 
 /** The run's options from a command line (pure: no file is touched). */
-export function runOptionsFrom(args: ParsedArgs): RunOptions & { findRate: boolean; scanWorkers: boolean; json: string | null; quiet: boolean; poisson: boolean } {
+export function runOptionsFrom(args: ParsedArgs): RunOptions & { maxMissFraction: number | null; findRate: boolean; scanWorkers: boolean; json: string | null; quiet: boolean; poisson: boolean } {
   const rate = positiveNumber(args, 'rate');
   const poissonRate = positiveNumber(args, 'poisson');
   if (rate !== undefined && poissonRate !== undefined) throw new UsageError('run: give --rate or --poisson, not both');
@@ -103,6 +105,11 @@ export function runOptionsFrom(args: ParsedArgs): RunOptions & { findRate: boole
   const arrival: ArrivalMode = rate !== undefined ? { kind: 'fixed', rateHz: rate }
     : poissonRate !== undefined ? { kind: 'poisson', rateHz: poissonRate, seed } : { kind: 'closed' };
   const budgetUs = positiveNumber(args, 'budget-us') ?? null;
+  const maxMissFraction = (args.values['max-miss-fraction'] as number | undefined) ?? null;
+  if (maxMissFraction !== null && !(maxMissFraction >= 0 && maxMissFraction <= 1)) {
+    throw new UsageError(`run: --max-miss-fraction must be a fraction in [0, 1], got ${maxMissFraction}`);
+  }
+  if (maxMissFraction !== null && budgetUs === null) throw new UsageError('run: --max-miss-fraction needs --budget-us');
   const wantFindRate = args.values['find-rate'] === true;
   if (wantFindRate && budgetUs === null) throw new UsageError('run: --find-rate needs --budget-us');
   const engineText = args.values.engine as string | undefined;
@@ -133,6 +140,7 @@ export function runOptionsFrom(args: ParsedArgs): RunOptions & { findRate: boole
     out: (args.values.out as string | undefined) ?? null,
     repro: (args.values.repro as string | undefined) ?? null,
     maxEvents: positiveInteger(args, 'events') ?? null,
+    maxMissFraction,
     findRate: wantFindRate,
     scanWorkers: args.values['scan-workers'] === true,
     json: (args.values.json as string | undefined) ?? null,
@@ -186,5 +194,7 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
     return 2;
   }
   if (controller.signal.aborted) return 130;
-  return summary.check.disagreeing > 0 || summary.events.failed > 0 ? 1 : 0;
+  const failures = runFailures(summary, { maxMissFraction: options.maxMissFraction });
+  for (const failure of failures) io.stderr.write(`jetlag run: ${failure}\n`);
+  return failures.length > 0 || summary.check.disagreeing > 0 || summary.events.failed > 0 ? 1 : 0;
 };
