@@ -49,9 +49,9 @@ describe("the program's answers", () => {
   const jetsHeader = (settings: ClusterSettings) => encodeFileHeader({ kind: 'jets', grid: DEFAULT_GRID, producer: 'x', label: '', settings: { ...settings, engine: 'mine' } });
 
   it('need a jets header with the stream settings', () => {
-    expect(checkProgramHeader(jetsHeader(SETTINGS), DEFAULT_GRID, SETTINGS)).toBeNull();
-    expect(checkProgramHeader(jetsHeader({ ...SETTINGS, radius: 0.4 }), DEFAULT_GRID, SETTINGS)).toBe('its header has radius 0.4; the stream asked for radius 0.6');
-    expect(checkProgramHeader(encodeFileHeader({ kind: 'events', grid: DEFAULT_GRID, producer: 'x', label: '' }), DEFAULT_GRID, SETTINGS)).toBe('its header says kind events, expected jets');
+    expect(checkProgramHeader(jetsHeader(SETTINGS), DEFAULT_GRID, SETTINGS)).toEqual({ engineName: 'mine' });
+    expect(checkProgramHeader(jetsHeader({ ...SETTINGS, radius: 0.4 }), DEFAULT_GRID, SETTINGS)).toEqual({ problem: 'its header has radius 0.4; the stream asked for radius 0.6' });
+    expect(checkProgramHeader(encodeFileHeader({ kind: 'events', grid: DEFAULT_GRID, producer: 'x', label: '' }), DEFAULT_GRID, SETTINGS)).toEqual({ problem: 'its header says kind events, expected jets' });
   });
 
   it('take event 0 from a record that leaves the event number out, and no other event', () => {

@@ -18,8 +18,11 @@ import { emptyJetSet } from '../formats/jets-codec.js';
 import { JetsFileWriter } from '../output/jets-writer.js';
 import { formatErrorLine, formatJetsLine } from '../formats/jets-jsonl.js';
 import { TextFileWriter } from '../output/record-writer.js';
-import type { ClusterSettings, Grid } from '../types.js';
+import { describePileup, pileupStepsOn } from '../clustering/pileup/settings.js';
+import type { ClusterSettings, Grid, JetSet, PileupSettings } from '../types.js';
 import { producerName } from '../version.js';
+import { ExecEngineError, type ExecCounts } from './exec-engine.js';
+import { ProgramTimes, startProgramEngine, type ProgramEngineChoice, type ProgramFigures } from './exec-cluster.js';
 
 export interface ClusterFileOptions {
   input: string;
@@ -32,7 +35,11 @@ export interface ClusterFileOptions {
   force?: boolean;
   engine: EngineName;
   emulation: EmulationMode | null;
+  /** an outside program as the engine (--engine exec:…): `engine` and `emulation` are then unused */
+  program?: ProgramEngineChoice;
   settings: ClusterSettings;
+  /** the pileup steps around the clustering (spec part two); none when absent */
+  pileup?: PileupSettings | null;
   /** write each jet's constituent tower indices */
   withTowers: boolean;
   format: 'jets' | 'jsonl';
@@ -57,6 +64,11 @@ export interface ClusterFileResult {
   outsideAcceptance: number;
   /** the input became unreadable here; the events before it were clustered and written */
   unreadable: InputError | null;
+  /** an engine program: events it failed (written as error records), its counts and times */
+  failed: number;
+  program: { counts: ExecCounts; figures: ProgramFigures } | null;
+  /** the engine program used up its restarts here; the events before were written */
+  stopped: ExecEngineError | null;
 }
 
 export async function clusterFile(options: ClusterFileOptions): Promise<ClusterFileResult> {
@@ -66,18 +78,23 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
     throw new UsageError(`cluster: ${source.label} carries its own grid; the grid options apply to CSV tower files only`);
   }
   const grid = source.header.grid;
-  const clusterer = makeClusterer(options.engine, grid, settings, options.emulation);
-  if ('withTowers' in clusterer) (clusterer as { withTowers: boolean }).withTowers = withTowers;
-  const engineName = options.emulation ? emulationName(options.emulation) : clusterer.name;
+  const pileup = pileupStepsOn(options.pileup) ? options.pileup : null;
+  if (options.program && pileup) throw new UsageError('cluster: an engine program runs the plain clustering only; leave out --areas, --rho, --subtract and --softkiller');
+  const program = options.program ? await startProgramEngine(options.program, grid, settings, source.label, options.maxRecordBytes) : null;
+  const programTimes = new ProgramTimes();
+  const clusterer = program ? null : makeClusterer(options.engine, grid, settings, options.emulation, pileup, 'cluster');
+  if (clusterer && 'withTowers' in clusterer) (clusterer as { withTowers: boolean }).withTowers = withTowers;
+  const engineName = program ? program.engineName || options.program!.label : options.emulation ? emulationName(options.emulation) : clusterer!.name;
   // the window finder's settings live in its engine name; the label spells them out, and says
   // that p and R in the header are those of the reference it is meant to be compared with
   const window = options.emulation !== null && typeof options.emulation === 'object' && 'window' in options.emulation ? options.emulation.window : null;
   const windowLabel = window ? `${describeWindow(window)} (algorithm and R: the reference to compare with); ` : '';
+  const pileupLabel = pileup ? `${describePileup(pileup)}; ` : '';
   const reader = new EventTowerReader(grid);
 
   const jetsFile = options.format === 'jets'
-    ? await JetsFileWriter.open(out, grid, { ...settings, engine: engineName },
-      { producer: producerName('cluster'), label: options.label ?? `${windowLabel}jets of ${source.label}` },
+    ? await JetsFileWriter.open(out, grid, { ...settings, engine: engineName, ...(pileup ? { pileup } : {}) },
+      { producer: producerName('cluster'), label: options.label ?? `${windowLabel}${pileupLabel}jets of ${source.label}` },
       { gzip: options.gzip, stdout: options.stdout, force: options.force })
     : null;
   const lines = options.format === 'jsonl' ? await TextFileWriter.open(out, { stdout: options.stdout, force: options.force }) : null;
@@ -86,6 +103,8 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
   let invalid = 0;
   let outsideAcceptance = 0;
   let unreadable: InputError | null = null;
+  let failed = 0;
+  let stopped: ExecEngineError | null = null;
   try {
     try {
       for await (const record of source.records) {
@@ -103,22 +122,42 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
           continue;
         }
         outsideAcceptance += towers.outsideAcceptance;
-        const started = process.hrtime.bigint();
-        const jets = clusterer.cluster(towers.towerIndex, towers.towerEt);
-        const clusterTimeNs = Number(process.hrtime.bigint() - started);
+        let jets: JetSet;
+        let clusterTimeNs: number;
+        if (program) {
+          const outcome = await program.submit(towers.event, towers.towerIndex, towers.towerEt);
+          if (!outcome.ok) {
+            // the program's fault, named by onFault; the event keeps its number in the output
+            failed++;
+            const pending = jetsFile ? jetsFile.writeJets({ event: outcome.event, jets: emptyJetSet(), error: outcome.message }) : lines!.write(formatErrorLine(outcome.event, outcome.message) + '\n');
+            if (pending) await pending;
+            continue;
+          }
+          jets = withTowers ? outcome.jets : { ...outcome.jets, towers: new Int32Array(0) };
+          clusterTimeNs = outcome.serviceNs;
+          programTimes.add(outcome.serviceNs, outcome.roundTripNs);
+        } else {
+          const started = process.hrtime.bigint();
+          jets = clusterer!.cluster(towers.towerIndex, towers.towerEt);
+          clusterTimeNs = Number(process.hrtime.bigint() - started);
+        }
         const pending = jetsFile
           ? jetsFile.writeJets({ event: towers.event, jets, clusterTimeNs })
           : lines!.write(formatJetsLine(towers.event, jets, withTowers) + '\n');
         if (pending) await pending;
       }
     } catch (error) {
-      if (!(error instanceof InputError)) throw error;
-      unreadable = error;
+      if (error instanceof ExecEngineError) stopped = error;
+      else if (!(error instanceof InputError)) throw error;
+      else unreadable = error;
     }
+    await program?.close();
     await (jetsFile ?? lines)!.close();
   } catch (error) {
+    await program?.close();
     await (jetsFile ?? lines)!.abort();
     throw error;
   }
-  return { engineName, events, invalid, outsideAcceptance, unreadable };
+  const programRun = program ? { counts: { ...program.counts }, figures: programTimes.figures() } : null;
+  return { engineName, events, invalid, outsideAcceptance, unreadable, failed, program: programRun, stopped };
 }

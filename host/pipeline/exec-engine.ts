@@ -97,6 +97,8 @@ type Resolver = (outcome: ExecOutcome) => void;
 
 export class ExecEngine {
   readonly counts: ExecCounts = { sent: 0, answered: 0, refused: 0, exited: 0, timedOut: 0, malformed: 0, faults: 0, restarts: 0 };
+  /** the name the program gives itself in its jets header (settings.engine); '' if none */
+  engineName = '';
   /** the last fault's line, for the error when the restarts run out */
   lastFault: string | null = null;
   private process: ProgramProcess | null = null;
@@ -181,6 +183,7 @@ export class ExecEngine {
       return;
     }
     this.process = started;
+    this.engineName = started.engineName;
   }
 
   private noteFault(fault: ProcessFault): void {

@@ -81,6 +81,8 @@ export class ProgramProcess {
   private inFlightHead = 0;
   private headSinceNs = 0;
   private timer: NodeJS.Timeout | null = null;
+  /** the name the program gives itself in its header (settings.engine) */
+  engineName = '';
   /** spawn failure (ENOENT, EACCES): restarting cannot help */
   spawnError: Error | null = null;
 
@@ -162,8 +164,9 @@ export class ProgramProcess {
 
   private onRecord(bytes: Uint8Array, offset: number, arrivedNs: number): void {
     if (!this.headerSeen) {
-      const problem = checkProgramHeader(bytes, this.config.grid, this.config.settings);
-      if (problem !== null) return this.fault('malformed', null, `output byte ${offset}: ${problem}`);
+      const checked = checkProgramHeader(bytes, this.config.grid, this.config.settings);
+      if ('problem' in checked) return this.fault('malformed', null, `output byte ${offset}: ${checked.problem}`);
+      this.engineName = checked.engineName;
       this.headerSeen = true;
       this.clearTimer();
       const waiter = this.headerWaiter;

@@ -16,8 +16,8 @@
 //   encodeStreamHeader(grid, settings, producer, label): Uint8Array   delimited header record
 //   encodeStreamEvent(event, towerIndex, towerEt, threshold): Uint8Array
 //       the delimited EventRecord of one valid event: selects and orders the towers here
-//   checkProgramHeader(bytes, grid, settings): string | null   what is wrong with the program's
-//       header, null when it fits
+//   checkProgramHeader(bytes, grid, settings): { problem } | { engineName }   what is wrong
+//       with the program's header, or the name it gives itself (settings.engine) when it fits
 //   readProgramAnswer(bytes, expectedEvent, inFlight): ProgramAnswer
 //       one answer record checked against the event that is due; `inFlight` are the events
 //       sent and not yet answered (to tell an answer out of order from one never asked for)
@@ -54,27 +54,27 @@ function describeSetting(key: (typeof SETTING_KEYS)[number], value: unknown): st
   return `${key} ${String(value)}`;
 }
 
-/** null when the program's header is a jets header on our grid with our settings. */
-export function checkProgramHeader(bytes: Uint8Array, grid: Grid, settings: ClusterSettings): string | null {
+/** The name the program gives itself when its header is a jets header on our grid with our settings. */
+export function checkProgramHeader(bytes: Uint8Array, grid: Grid, settings: ClusterSettings): { problem: string } | { engineName: string } {
   let header;
   try {
     header = decodeFileHeader(bytes);
   } catch (error) {
-    return `its first record is not a usable jets file header: ${(error as Error).message}`;
+    return { problem: `its first record is not a usable jets file header: ${(error as Error).message}` };
   }
-  if (header.kind !== 'jets') return `its header says kind ${header.kind}, expected jets`;
+  if (header.kind !== 'jets') return { problem: `its header says kind ${header.kind}, expected jets` };
   const g = header.grid;
   if (g.etaMin !== grid.etaMin || g.etaMax !== grid.etaMax || g.etaBins !== grid.etaBins || g.phiBins !== grid.phiBins) {
-    return `its header has grid eta [${g.etaMin}, ${g.etaMax}) x ${g.etaBins}, phi x ${g.phiBins}; the stream's is eta [${grid.etaMin}, ${grid.etaMax}) x ${grid.etaBins}, phi x ${grid.phiBins}`;
+    return { problem: `its header has grid eta [${g.etaMin}, ${g.etaMax}) x ${g.etaBins}, phi x ${g.phiBins}; the stream's is eta [${grid.etaMin}, ${grid.etaMax}) x ${grid.etaBins}, phi x ${grid.phiBins}` };
   }
   const theirs = header.settings!;
   for (const key of SETTING_KEYS) {
     // Object.is: a program that writes -0 or NaN for a setting did not copy ours
     if (!Object.is(theirs[key], settings[key])) {
-      return `its header has ${describeSetting(key, theirs[key])}; the stream asked for ${describeSetting(key, settings[key])}`;
+      return { problem: `its header has ${describeSetting(key, theirs[key])}; the stream asked for ${describeSetting(key, settings[key])}` };
     }
   }
-  return null;
+  return { engineName: theirs.engine };
 }
 
 export type ProgramAnswer =

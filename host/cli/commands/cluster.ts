@@ -16,14 +16,21 @@ import { describeSettings } from '../../clustering/describe-settings.js';
 import { parseEmulation } from '../../clustering/emulation-mode.js';
 import { DEFAULT_MAX_RECORD_BYTES } from '../../input/record-reader.js';
 import { clusterFile } from '../../pipeline/cluster-file.js';
+import { PILEUP_OPTIONS, pileupSettingsFrom } from '../pileup-options.js';
+import { describePileup } from '../../clustering/pileup/settings.js';
+import { execCommandOf, splitCommand } from '../../pipeline/exec-command.js';
+import { DEFAULT_ENGINE_RESTARTS, DEFAULT_ENGINE_TIMEOUT_MS } from '../../pipeline/exec-engine.js';
+import { describeProgramRun, type ProgramEngineChoice } from '../../pipeline/exec-cluster.js';
 
 export const spec: CommandSpec = {
   name: 'cluster',
   summary: 'Cluster every event of an event file (or CSV tower file) and write the jets.',
-  usage: 'jetlag cluster <events> [--engine wasm|reference] [--format jets|jsonl] [--out FILE] [options]',
+  usage: "jetlag cluster <events> [--engine wasm|reference|exec:'COMMAND ARGS…'] [--format jets|jsonl] [--out FILE] [options]",
   positionals: { min: 1, max: 1 },
   options: [
-    { name: 'engine', kind: 'string', argument: '<name>', description: 'wasm (the engine) or reference (the plain TypeScript reference) (default: wasm)' },
+    { name: 'engine', kind: 'string', argument: '<name>', description: "wasm (the engine), reference (the plain TypeScript reference), or exec:'COMMAND ARGS…', an outside program that turns an event stream into a jets stream (proto/README.md) (default: wasm)" },
+    { name: 'engine-timeout-ms', kind: 'integer', argument: '<ms>', description: `exec: engines: how long the program may take for one event before it is killed and restarted (default: ${DEFAULT_ENGINE_TIMEOUT_MS})` },
+    { name: 'engine-restarts', kind: 'integer', argument: '<n>', description: `exec: engines: how often a failing program is restarted before the command stops (default: ${DEFAULT_ENGINE_RESTARTS})` },
     { name: 'emulate', kind: 'string', argument: '<f32|fixed:LSB|window:W:SEEDET>', description: 'cluster with single precision (f32) or tower energies quantised to LSB GeV (fixed:0.25) instead, or run the level-1 style window finder: W x W towers around local maxima of et >= SEEDET GeV (window = window:9:5)' },
     { name: 'format', kind: 'string', argument: '<jets|jsonl>', description: 'a jets file, or one JSON line per event (default: jets)' },
     { name: 'out', kind: 'string', argument: '<file>', description: 'output file, - for stdout (default: -)' },
@@ -34,6 +41,7 @@ export const spec: CommandSpec = {
     { name: 'quiet', kind: 'flag', short: 'q', description: 'no summary line on stderr' },
     FORCE_OPTION,
     ...CLUSTER_OPTIONS,
+    ...PILEUP_OPTIONS,
     ...GRID_OPTIONS,
     MAX_EVENT_GAP_OPTION,
   ],
@@ -47,9 +55,27 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   const input = args.positionals[0];
   const format = (args.values.format as string | undefined) ?? 'jets';
   if (format !== 'jets' && format !== 'jsonl') throw new UsageError(`cluster: --format must be jets or jsonl, got ${JSON.stringify(format)}`);
-  const engine = parseEngineName((args.values.engine as string | undefined) ?? 'wasm', 'cluster');
+  const engineText = (args.values.engine as string | undefined) ?? 'wasm';
+  const execCommand = execCommandOf(engineText);
+  const engine = execCommand === null ? parseEngineName(engineText, 'cluster') : 'wasm';
   const emulation = args.values.emulate !== undefined ? parseEmulation(args.values.emulate as string) : null;
+  if (execCommand !== null && emulation !== null) throw new UsageError('cluster: --emulate and --engine exec: exclude each other');
+  if (execCommand === null && (args.values['engine-timeout-ms'] !== undefined || args.values['engine-restarts'] !== undefined)) {
+    throw new UsageError('cluster: --engine-timeout-ms and --engine-restarts apply to --engine exec: only');
+  }
+  const timeoutMs = (args.values['engine-timeout-ms'] as number | undefined) ?? DEFAULT_ENGINE_TIMEOUT_MS;
+  const maxRestarts = (args.values['engine-restarts'] as number | undefined) ?? DEFAULT_ENGINE_RESTARTS;
+  if (!(timeoutMs >= 1)) throw new UsageError(`cluster: --engine-timeout-ms must be at least 1, got ${timeoutMs}`);
+  if (!(maxRestarts >= 0)) throw new UsageError(`cluster: --engine-restarts must be 0 or more, got ${maxRestarts}`);
+  const program: ProgramEngineChoice | undefined = execCommand === null ? undefined : {
+    argv: splitCommand(execCommand, 'cluster'),
+    label: engineText,
+    timeoutMs,
+    maxRestarts,
+    onFault: (line) => io.stderr.write(`jetlag cluster: ${line}\n`),
+  };
   const settings = clusterSettingsFrom(args, 'cluster');
+  const pileup = pileupSettingsFrom(args, 'cluster');
   const quiet = Boolean(args.values.quiet);
 
   let shownProblems = 0;
@@ -61,7 +87,9 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     force: args.values.force === true,
     engine,
     emulation,
+    program,
     settings,
+    pileup,
     withTowers: !args.values['no-towers'],
     format,
     out: (args.values.out as string | undefined) ?? '-',
@@ -78,9 +106,17 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     io.stderr.write(`jetlag cluster: ${unreadable.message}; the ${events} events before it were clustered and written\n`);
     return 2;
   }
+  if (result.program && (!quiet || result.stopped)) {
+    io.stderr.write(`jetlag cluster: ${describeProgramRun(engineText, result.engineName, result.program.counts, result.program.figures)}\n`);
+  }
+  if (result.stopped) {
+    io.stderr.write(`jetlag cluster: ${result.stopped.message}; stopped there, the ${events - 1} events before it were written\n`);
+    return 2;
+  }
   if (!quiet) {
     const outside = outsideAcceptance > 0 ? `; ${outsideAcceptance} raw deposit${outsideAcceptance === 1 ? '' : 's'} outside the eta acceptance` : '';
-    io.stderr.write(`jetlag cluster: ${events} events (${events - invalid} clustered, ${invalid} invalid) with ${result.engineName}, ${describeSettings(settings)}${outside}\n`);
+    const failed = result.program ? `, ${result.failed} failed by the program` : '';
+    io.stderr.write(`jetlag cluster: ${events} events (${events - invalid - result.failed} clustered, ${invalid} invalid${failed}) with ${result.engineName}, ${describeSettings(settings)}${describePileup(pileup) ? `, ${describePileup(pileup)}` : ''}${outside}\n`);
   }
   return 0;
 }
