@@ -19,7 +19,7 @@ import { cellTotal, cellY, cellPhi, cellW, cellNnDR2, cellNnKey, cellJet, cellNn
   rowDriftY, rowDriftPhi, cellRow, cellCol, driftList, driftSlot, cellCopyStep,
   padRows, padCols, padStride, padTotal, padY, padPhi, padCell, cellPad, padBits, padRowBytes, bitStep, cellSlot, slotCell,
   getF64, setF64, getI32, setI32 } from './layout';
-import { invR2, etaMin, invEtaPitch, invPhiPitch, insideY, insidePhi, PI, TWO_PI, BEAM } from './settings';
+import { invR2, etaMin, invEtaPitch, invPhiPitch, insideY, insidePhi, PI, TWO_PI, BEAM, beamsOff } from './settings';
 import { weightOf, needsWideSearch } from './kinematics';
 import { setCandidate, setEmptyCandidate } from './tournament';
 
@@ -275,16 +275,17 @@ export function setNeighbour(c: i32, q: i32, dR2: f64, key: f64): void {
 /** Cell c's candidate: the smaller of its beam and its pair with its neighbour (spec section 4). */
 export function refreshCandidate(c: i32): void {
   const w = getF64(cellW, c);
+  const beam = select<f64>(Infinity, w, beamsOff);
   const i = getI32(cellJet, c);
   const q = getI32(cellNn, c);
   if (q >= 0) {
     const j = getI32(cellJet, q);
     const d = (min<f64>(w, getF64(cellW, q)) * getF64(cellNnDR2, c)) * invR2;
     // on equal measures the pair comes first: its smaller index is <= i and its larger < BEAM
-    if (d <= w) {
+    if (d <= beam) {
       setCandidate(getI32(cellSlot, c), d, min<i32>(i, j), max<i32>(i, j));
       return;
     }
   }
-  setCandidate(getI32(cellSlot, c), w, i, BEAM);
+  setCandidate(getI32(cellSlot, c), beam, i, BEAM);
 }

@@ -21,6 +21,8 @@ import { STATUS_OK, REGION_ETA_CENTRE, REGION_SINH_ETA, REGION_COSH_ETA, REGION_
 
 // the numbers the host mirrors, as exported globals for tests/engine-constants.test.ts
 export * from './shared-constants';
+// grooming of large-R jets by an instance set up for it (grooming.ts)
+export { configureGroomer, groomBatch, groomRegion } from './grooming';
 
 // @ts-ignore: decorator
 @external("env", "clock.nowNs")

@@ -23,6 +23,12 @@
 //            its subtree and its measure's bits, tree[L + s] = s and nodeValue[L + s] slot s's)
 //   jets     jetPx jetPy jetPz jetE jetKt2 jetY jetPhi f64[2C]  jetInto jetLabel i32[2C]
 //   finals   finalJet finalOrder finalScratch i32[C]  finalPt f64[C]  redo i32[C]
+//   grooming (grooming.ts; each "event" of a grooming call is one jet's constituents)
+//            groomJetPt f64[EV]   (each jet's reported pt, written by the host)
+//            groomPx groomPy groomPz groomE groomPt groomY groomPhi groomMass f64[EV]
+//            groomTowers groomSubjets i32[EV]  groomZ groomDeltaR f64[EV]   (read by the host)
+//            nodeTowers nodeParentA nodeParentB i32[2C]   (per jet of one re-clustering: its
+//            towers, and the two jets a merge made it from, -1 for a tower)
 //   offsets  offDr offDc i32[O]  offDist f64[O]  offPerm offScratch offTmpI i32[O]  offTmpF f64[O]
 //            offStep i32[O]   (O = OFFSET_LIMIT; offPerm, offScratch, offTmpI, offTmpF only while
 //            the offsets are sorted, offsets.ts)
@@ -128,6 +134,23 @@ export let finalOrder: usize = 0;
 export let finalScratch: usize = 0;
 export let finalPt: usize = 0;
 export let redo: usize = 0;
+
+export let groomJetPt: usize = 0;
+export let groomPx: usize = 0;
+export let groomPy: usize = 0;
+export let groomPz: usize = 0;
+export let groomE: usize = 0;
+export let groomPt: usize = 0;
+export let groomY: usize = 0;
+export let groomPhi: usize = 0;
+export let groomMass: usize = 0;
+export let groomTowers: usize = 0;
+export let groomSubjets: usize = 0;
+export let groomZ: usize = 0;
+export let groomDeltaR: usize = 0;
+export let nodeTowers: usize = 0;
+export let nodeParentA: usize = 0;
+export let nodeParentB: usize = 0;
 
 export let offDr: usize = 0;
 export let offDc: usize = 0;
@@ -260,6 +283,23 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   finalScratch = take(cells << 2);
   finalPt = take(cells << 3);
   redo = take(cells << 2);
+
+  groomJetPt = take(evCap << 3);
+  groomPx = take(evCap << 3);
+  groomPy = take(evCap << 3);
+  groomPz = take(evCap << 3);
+  groomE = take(evCap << 3);
+  groomPt = take(evCap << 3);
+  groomY = take(evCap << 3);
+  groomPhi = take(evCap << 3);
+  groomMass = take(evCap << 3);
+  groomTowers = take(evCap << 2);
+  groomSubjets = take(evCap << 2);
+  groomZ = take(evCap << 3);
+  groomDeltaR = take(evCap << 3);
+  nodeTowers = take(jets << 2);
+  nodeParentA = take(jets << 2);
+  nodeParentB = take(jets << 2);
 
   offDr = take(<usize>OFFSET_LIMIT << 2);
   offDc = take(<usize>OFFSET_LIMIT << 2);

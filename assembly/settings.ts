@@ -21,6 +21,13 @@ export let reach: f64 = 0;
 export let ptMin: f64 = 0;
 export let threshold: f64 = 0;
 export let winnerTakeAll: bool = false;
+/** no beam candidates: only pairs compete (soft drop's re-clustering, grooming.ts); a jet then
+ * offers a beam of measure +Infinity only while no other jet lies within the reach */
+export let beamsOff: bool = false;
+
+export function setBeamsOff(off: bool): void {
+  beamsOff = off;
+}
 export let etaMin: f64 = 0;
 /** approximate row and column pitch, for choosing cells only */
 export let etaPitch: f64 = 0;

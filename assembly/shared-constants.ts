@@ -40,3 +40,20 @@ export const REGION_OUT_TOWER_COUNT: i32 = 21;
 export const REGION_OUT_TOWER_START: i32 = 22;
 export const REGION_OUT_TOWERS: i32 = 23;
 export const REGION_OUT_JET_INDEX: i32 = 24;
+// grooming's regions (grooming.ts), mirrored in host/clustering/grooming/engine-groomer.ts
+export const GROOM_REGION_JET_PT: i32 = 25;
+export const GROOM_REGION_PX: i32 = 26;
+export const GROOM_REGION_PY: i32 = 27;
+export const GROOM_REGION_PZ: i32 = 28;
+export const GROOM_REGION_ENERGY: i32 = 29;
+export const GROOM_REGION_PT: i32 = 30;
+export const GROOM_REGION_RAPIDITY: i32 = 31;
+export const GROOM_REGION_PHI: i32 = 32;
+export const GROOM_REGION_MASS: i32 = 33;
+export const GROOM_REGION_TOWERS: i32 = 34;
+export const GROOM_REGION_SUBJETS: i32 = 35;
+export const GROOM_REGION_ZG: i32 = 36;
+export const GROOM_REGION_DELTA_RG: i32 = 37;
+// grooming modes (grooming.ts configureGroomer)
+export const GROOM_TRIM: i32 = 1;
+export const GROOM_SOFT_DROP: i32 = 2;
