@@ -6,7 +6,10 @@ import type { EmulationMode } from './emulation-mode.js';
 import { WasmClusterer } from './engine.js';
 import { ReferenceClusterer } from './reference.js';
 import { WindowFinder, windowSettingsOfName, type WindowEngineName } from './window-finder.js';
-import type { ClusterSettings, Clusterer, Grid } from '../types.js';
+import { PileupReferenceClusterer } from './pileup/chain.js';
+import { EnginePileupClusterer } from './pileup/engine-chain.js';
+import { pileupStepsOn } from './pileup/settings.js';
+import type { ClusterSettings, Clusterer, Grid, PileupSettings } from '../types.js';
 
 export const ENGINE_NAMES = ['wasm', 'reference'] as const;
 /** the engine, the reference, or the window finder (`jetlag run --engine window:W:SEEDET`) */
@@ -19,10 +22,43 @@ export function parseEngineName(text: string, command: string): EngineName {
   return text as EngineName;
 }
 
-export function makeClusterer(engine: EngineName, grid: Grid, settings: ClusterSettings, emulation?: EmulationMode | null): Clusterer {
+/**
+ * The clusterer a command runs. With a pileup step on (`pileup`, spec part two), the engine or
+ * the reference runs the whole chain; the emulations and the window finder take none of them
+ * (a usage error naming `command`).
+ */
+export function makeClusterer(
+  engine: EngineName, grid: Grid, settings: ClusterSettings, emulation?: EmulationMode | null,
+  pileup?: PileupSettings | null, command = 'cluster',
+): Clusterer {
+  if (pileupStepsOn(pileup)) {
+    refusePileupSteps(engine, emulation ?? null, command);
+    return engine === 'reference'
+      ? new PileupReferenceClusterer(grid, settings, pileup, command)
+      : new EnginePileupClusterer(grid, settings, pileup, command);
+  }
   if (emulation) return makeEmulatedClusterer(grid, settings, emulation);
   if (engine === 'reference') return new ReferenceClusterer(grid, settings);
   const window = windowSettingsOfName(engine);
   if (window !== null) return new WindowFinder(grid, settings, window);
   return new WasmClusterer(grid, settings);
+}
+
+/** The reference a clusterer's jets are checked against: with pileup steps on, the reference's chain. */
+export function makeReferenceClusterer(grid: Grid, settings: ClusterSettings, pileup?: PileupSettings | null, command = 'run'): Clusterer {
+  return pileupStepsOn(pileup) ? new PileupReferenceClusterer(grid, settings, pileup, command) : new ReferenceClusterer(grid, settings);
+}
+
+/**
+ * The window finder is no generalised kt: areas, ρ and subtraction do not apply to it (spec
+ * section 11); the precision emulations model the plain clustering only.
+ */
+function refusePileupSteps(engine: EngineName, emulation: EmulationMode | null, command: string): void {
+  const window = emulation !== null && typeof emulation === 'object' && 'window' in emulation ? emulation.window : windowSettingsOfName(engine);
+  if (window !== null) {
+    throw new UsageError(`${command}: the window finder takes no --areas, --rho, --subtract or --softkiller (areas, ρ and subtraction do not apply to it, spec section 11)`);
+  }
+  if (emulation !== null) {
+    throw new UsageError(`${command}: --emulate ${emulation === 'f32' ? 'f32' : 'fixed'} emulates the plain clustering only; leave out --areas, --rho, --subtract and --softkiller`);
+  }
 }

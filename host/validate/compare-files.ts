@@ -20,7 +20,8 @@ import { describeGrid, sameGrid } from '../clustering/grid.js';
 import { makeClusterer, type EngineName } from '../clustering/clusterers.js';
 import { describeSettings } from '../clustering/describe-settings.js';
 import { ToleranceMatcher, type ToleranceSettings } from './tolerance-compare.js';
-import { DEFAULT_SETTINGS, type ClusterSettings, type Grid } from '../types.js';
+import { describePileup, pileupStepsOn } from '../clustering/pileup/settings.js';
+import { DEFAULT_PILEUP_SETTINGS, DEFAULT_SETTINGS, type ClusterSettings, type Grid, type PileupSettings } from '../types.js';
 import { ValidationAccumulator } from './validation-accumulator.js';
 import { TurnOnAccumulator, type TurnOnCurve, type TurnOnRequest } from './turn-on.js';
 import type { ValidationReport } from './validation-report.js';
@@ -37,6 +38,11 @@ export interface CompareOptions {
   maxEventGap?: number;
   /** the algorithm settings: `base` (the candidate header's, else the defaults) with the options over it */
   settingsOver: (base: ClusterSettings) => ClusterSettings;
+  /**
+   * the pileup steps of the reference side (spec part two): `base` (the candidate header's,
+   * else none) with the options over it; the header's when absent
+   */
+  pileupOver?: (base: PileupSettings) => PileupSettings;
   tolerance: Omit<ToleranceSettings, 'ptMin'>;
   worst: number;
   /** what computes the reference jets (default: the reference) */
@@ -50,6 +56,8 @@ export interface CompareOptions {
 export interface CompareResult {
   report: ValidationReport;
   settings: ClusterSettings;
+  /** the pileup steps the reference side ran; null when none */
+  pileup: PileupSettings | null;
   grid: Grid;
   candidate: { format: CandidateSource['format']; engine: string | null; producer: string | null };
   /** an input that became unreadable part way (the report covers what came before) */
@@ -115,7 +123,22 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
   const matcher = new ToleranceMatcher(tolerance);
   const accumulator = new ValidationAccumulator(tolerance, options.worst);
   const turnOnCurves = (options.turnOn ?? []).map((request) => new TurnOnAccumulator(request, settings.ptMin));
-  const reference = makeClusterer(options.engine ?? 'reference', grid, { ...settings, ptMin: 0 });
+  // the reference side runs the same pileup chain as the candidate was made with (its header's
+  // steps unless the options say otherwise): subtraction then applies before ptMin, as there
+  const headerPileup = header?.settings?.pileup ?? DEFAULT_PILEUP_SETTINGS;
+  const pileupAsked = options.pileupOver ? options.pileupOver(headerPileup) : headerPileup;
+  const pileup = pileupStepsOn(pileupAsked) ? pileupAsked : null;
+  if (header?.settings && describePileup(pileup) !== describePileup(header.settings.pileup)) {
+    options.note(`compare: the reference runs ${describePileup(pileup) || 'no pileup steps'}; the candidate header names ${describePileup(header.settings.pileup) || 'none'}`);
+  }
+  let reference: ReturnType<typeof makeClusterer>;
+  try {
+    reference = makeClusterer(options.engine ?? 'reference', grid, { ...settings, ptMin: 0 }, null, pileup, 'compare');
+  } catch (error) {
+    await candidate.events.return(undefined as never);
+    await events.records.return(undefined as never);
+    throw error;
+  }
   if ('withTowers' in reference) (reference as { withTowers: boolean }).withTowers = false;
   const towerReader = new EventTowerReader(grid);
   const empty: CandidateEvent = {
@@ -232,6 +255,7 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
   return {
     report: accumulator.report(),
     settings,
+    pileup,
     grid,
     candidate: { format: candidate.format, engine: header?.settings?.engine ?? null, producer: header?.producer ?? null },
     inputError: inputError ?? candidateState.error,

@@ -15,6 +15,8 @@ import { compareFiles } from '../../validate/compare-files.js';
 import { formatValidationReport } from '../../validate/validation-text.js';
 import { formatTurnOnCurves } from '../../validate/turn-on.js';
 import { TURN_ON_OPTIONS, turnOnRequestsFrom } from '../turn-on-options.js';
+import { PILEUP_OPTIONS, pileupSettingsFrom } from '../pileup-options.js';
+import { describePileup } from '../../clustering/pileup/settings.js';
 
 export const DEFAULT_REQUIRE = 0.999;
 
@@ -36,6 +38,7 @@ export const spec: CommandSpec = {
     ...CLUSTER_OPTIONS.map((o) => (o.name === 'ptmin'
       ? { ...o, description: 'jets with pt >= this must agree; softer ones take part in matching only (default: the candidate header\'s, else 0)' }
       : { ...o, description: `${o.description.replace(/ \(default: .*\)$/, '')} (default: the candidate header's, else ${o.description.match(/\(default: (.*)\)$/)?.[1] ?? 'none'})` })),
+    ...PILEUP_OPTIONS.map((o) => ({ ...o, description: `reference side: ${o.description.replace(/ \(default: .*\)$/, '')} (default: the candidate header's, else ${o.description.match(/\(default: (.*)\)$/)?.[1] ?? 'off'})` })),
     ...GRID_OPTIONS.map((o) => ({ ...o, description: `CSV events: ${o.description}` })),
     MAX_EVENT_GAP_OPTION,
     ...TURN_ON_OPTIONS,
@@ -76,6 +79,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     gridGiven: hasGridOptions(args),
     maxEventGap: maxEventGapFrom(args, 'compare'),
     settingsOver: (base) => clusterSettingsFrom(args, 'compare', base),
+    pileupOver: (base) => pileupSettingsFrom(args, 'compare', base),
     tolerance,
     worst,
     engine,
@@ -89,7 +93,8 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   const candidateEngine = result.candidate.engine !== null ? `, engine ${result.candidate.engine}` : '';
   if (!quiet) {
     text.write(`compare: ${candidatePath} (${result.candidate.format}${candidateEngine}) against the reference on ${eventsPath}\n`);
-    text.write(`settings: ${describeSettings(result.settings)}; grid ${describeGrid(result.grid)}${engine === 'reference' ? '' : `; reference jets by ${engine}`}\n`);
+    const pileupText = result.pileup ? `, ${describePileup(result.pileup)}` : '';
+    text.write(`settings: ${describeSettings(result.settings)}${pileupText}; grid ${describeGrid(result.grid)}${engine === 'reference' ? '' : `; reference jets by ${engine}`}\n`);
     text.write(formatValidationReport(report));
     if (result.turnOn.length > 0) text.write(formatTurnOnCurves(result.turnOn));
   }
@@ -104,6 +109,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
       files: { events: eventsPath, candidate: candidatePath },
       candidate: result.candidate,
       settings: result.settings,
+      pileup: result.pileup,
       referenceJetsBy: engine,
       grid: result.grid,
       require,

@@ -2,7 +2,7 @@
 // is one UsageError line that names the option, the limit and the value given.
 
 import { UsageError } from '../../errors.js';
-import type { ClusterSettings, Grid, PatchSize, PileupSettings, RhoEstimator } from '../../types.js';
+import { DEFAULT_PILEUP_SETTINGS, type ClusterSettings, type Grid, type PatchSize, type PileupSettings, type RhoEstimator } from '../../types.js';
 
 /** the ghost et's range (section 8): far below any real tower, far above the doubles' floor */
 export const GHOST_ET_MIN = 1e-120;
@@ -80,4 +80,22 @@ function checkPatchSize(grid: Grid, size: PatchSize, option: string, command: st
       `${command}: ${option} patch sizes must be 1..${grid.etaBins} towers in eta and 1..${grid.phiBins} in phi, got ${etaRows}:${phiColumns}`,
     );
   }
+}
+
+/** true when any pileup step runs; with none, a clusterer gives the plain results of sections 1-6 */
+export function pileupStepsOn(pileup: PileupSettings | null | undefined): pileup is PileupSettings {
+  return pileup != null && (pileup.areas || pileup.rho !== null || pileup.subtract || pileup.softKiller !== null);
+}
+
+/** The pileup steps in words, for messages and labels: "areas, ρ kt:0.4, subtraction, SoftKiller 5:5"; '' when none runs. */
+export function describePileup(pileup: PileupSettings | null | undefined): string {
+  if (!pileupStepsOn(pileup)) return '';
+  const parts: string[] = [];
+  if (pileup.areas) parts.push(pileup.ghostEt === DEFAULT_PILEUP_SETTINGS.ghostEt ? 'areas' : `areas (ghost et ${pileup.ghostEt} GeV)`);
+  const rho = pileup.rho;
+  if (rho?.kind === 'patches') parts.push(`ρ patches:${rho.patch.etaRows}:${rho.patch.phiColumns}`);
+  if (rho?.kind === 'kt') parts.push(`ρ kt:${rho.radius}`);
+  if (pileup.subtract) parts.push(rho === null ? 'subtraction (ρ patches:5:5)' : 'subtraction');
+  if (pileup.softKiller) parts.push(`SoftKiller ${pileup.softKiller.etaRows}:${pileup.softKiller.phiColumns}`);
+  return parts.join(', ');
 }
