@@ -3,19 +3,12 @@
 // The building is in report/build-report.ts.
 
 import { readFile } from 'node:fs/promises';
-import { parseArgs, type CommandIo, type CommandMain, type CommandSpec, type OptionSpec, type ParsedArgs } from '../args.js';
+import { parseArgs, type CommandIo, type CommandMain, type CommandSpec } from '../args.js';
+import { DISPLAY_OPTION, displayFrom, writeReport } from '../report-outputs.js';
 import { InputError, UsageError } from '../../errors.js';
 import { FORCE_OPTION } from '../common-options.js';
-import { buildReport, findDisplay } from '../../report/build-report.js';
 import { viewOfDocument, type ReportInput, type RunView } from '../../report/report-data.js';
 import { readPerEventSample } from '../../report/per-event-points.js';
-import { writeTextFile } from '../../output/record-writer.js';
-
-/** --display, shared with run and compare (their --report) */
-export const DISPLAY_OPTION: OptionSpec = {
-  name: 'display', kind: 'integer', argument: '<event>',
-  description: 'the event drawn in the event display (default: the slowest event of a run, the worst of a compare)',
-};
 
 export const spec: CommandSpec = {
   name: 'report',
@@ -29,13 +22,6 @@ export const spec: CommandSpec = {
     FORCE_OPTION,
   ],
 };
-
-export function displayFrom(args: ParsedArgs, command: string): number | null {
-  const event = args.values.display as number | undefined;
-  if (event === undefined) return null;
-  if (!(Number.isInteger(event) && event >= 0)) throw new UsageError(`${command}: --display must be an event number >= 0, got ${event}`);
-  return event;
-}
 
 async function readDocument(path: string): Promise<ReportInput> {
   const text = await readFile(path, 'utf8');
@@ -63,12 +49,6 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
     const run = inputs[first] as RunView;
     inputs[first] = { ...run, points: sample.points(), slowestEvent: run.slowestEvent ?? (sample.slowestEvent >= 0 ? sample.slowestEvent : null) };
   }
-  const notes: string[] = [];
-  const display = await findDisplay(inputs, chosen, (line) => notes.push(line));
-  if (display === null && notes.length === 0) notes.push('no event display: the summaries name no slowest event (give --display EVENT, or --per-event FILE.csv)');
-  for (const line of notes) io.stderr.write(`jetlag report: ${line}\n`);
-  const html = await buildReport({ inputs, display, notes });
-  if (out === '-') io.stdout.write(html);
-  else await writeTextFile(out, html, { force: args.values.force === true });
+  await writeReport(out, inputs, chosen, 'report', io, args.values.force === true);
   return 0;
 };

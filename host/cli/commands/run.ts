@@ -12,6 +12,7 @@ import { LISTED_MAX } from '../../measure/run-tally.js';
 import { formatReport } from '../../measure/report.js';
 import { runFailures } from '../../measure/run-verdict.js';
 import { writeTextFile } from '../../output/record-writer.js';
+import { DISPLAY_OPTION, PER_EVENT_OPTION, REPORT_OPTION, RunReportOutputs } from '../report-outputs.js';
 import type { ArrivalMode } from '../../pipeline/arrivals.js';
 import type { EngineName } from '../../clustering/clusterers.js';
 import { parseWindowEmulation, windowFinderName } from '../../clustering/window-finder.js';
@@ -47,6 +48,9 @@ export const spec: CommandSpec = {
   positionals: { min: 1, max: 1 },
   options: [
     ...RUN_OPTIONS,
+    REPORT_OPTION,
+    PER_EVENT_OPTION,
+    DISPLAY_OPTION,
     FORCE_OPTION,
     ...CLUSTER_OPTIONS,
     ...GRID_OPTIONS.map((o) => ({ ...o, description: `CSV input: ${o.description}` })),
@@ -160,6 +164,7 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
     controller.abort();
     io.stderr.write('jetlag run: interrupted, finishing the batches in flight (Ctrl-C again to quit now)\n');
   };
+  const reportOutputs = await RunReportOutputs.open(args, options.arrival?.kind !== undefined && options.arrival.kind !== 'closed', options.force === true);
   process.on('SIGINT', onSigint);
   let problems = 0;
   const onProblem = (line: string) => {
@@ -172,6 +177,7 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
       signal: controller.signal,
       progress: io.isTty && !options.quiet ? io.stderr : null,
       onProblem,
+      onEvent: reportOutputs.onEvent,
     });
     if (!summary.partial && options.scanWorkers) {
       summary.scanWorkers = await scanWorkers({ ...options, signal: controller.signal }, describeMachine().cores);
@@ -179,10 +185,14 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
     if (!summary.partial && options.findRate) {
       summary.findRate = await findRate({ ...options, signal: controller.signal }, summary, options.budgetUs!, options.poisson);
     }
+  } catch (error) {
+    await reportOutputs.abort();
+    throw error;
   } finally {
     process.off('SIGINT', onSigint);
   }
   if (options.json) await writeTextFile(options.json, JSON.stringify(summary, null, 2) + '\n', { stdout: io.stdout, force: options.force });
+  await reportOutputs.finish(summary, io);
   // with the jets or the summary on stdout, the text report goes to stderr
   (options.out === '-' || options.json === '-' ? io.stderr : io.stdout).write(formatReport(summary));
   if (problems > PROBLEM_LINES_MAX) {
