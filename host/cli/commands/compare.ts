@@ -10,6 +10,7 @@ import { describeGrid } from '../../clustering/grid.js';
 import { parseEngineName } from '../../clustering/clusterers.js';
 import { describeSettings } from '../../clustering/describe-settings.js';
 import { writeTextFile } from '../../output/record-writer.js';
+import { DISPLAY_OPTION, REPORT_OPTION, writeCompareReport } from '../report-outputs.js';
 import { DEFAULT_TOLERANCE, checkToleranceSettings, type ToleranceSettings } from '../../validate/tolerance-compare.js';
 import { compareFiles } from '../../validate/compare-files.js';
 import { formatValidationReport } from '../../validate/validation-text.js';
@@ -35,6 +36,8 @@ export const spec: CommandSpec = {
     { name: 'worst', kind: 'integer', argument: '<n>', description: 'list this many of the events furthest from agreeing (default: 10)' },
     FORCE_OPTION,
     { name: 'quiet', kind: 'flag', short: 'q', description: 'print only the PASS or FAIL line, not the report' },
+    REPORT_OPTION,
+    DISPLAY_OPTION,
     ...CLUSTER_OPTIONS.map((o) => (o.name === 'ptmin'
       ? { ...o, description: 'jets with pt >= this must agree; softer ones take part in matching only (default: the candidate header\'s, else 0)' }
       : { ...o, description: `${o.description.replace(/ \(default: .*\)$/, '')} (default: the candidate header's, else ${o.description.match(/\(default: (.*)\)$/)?.[1] ?? 'none'})` })),
@@ -103,7 +106,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     : `agreeing fraction ${fraction} ${fraction >= require ? '>=' : '<'} --require ${require}`;
   text.write(`${passed ? 'PASS' : 'FAIL'}: ${verdict}\n`);
 
-  if (json !== undefined) {
+  if (json !== undefined || args.values.report !== undefined) {
     const document = {
       command: 'compare',
       files: { events: eventsPath, candidate: candidatePath },
@@ -120,7 +123,8 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     };
     const body = JSON.stringify(document, null, 2) + '\n';
     if (json === '-') io.stdout.write(body);
-    else await writeTextFile(json, body, { force: args.values.force === true });
+    else if (json !== undefined) await writeTextFile(json, body, { force: args.values.force === true });
+    await writeCompareReport(args, document, io);
   }
   if (result.inputError !== null) {
     io.stderr.write(`jetlag compare: ${result.inputError.message}\n`);
