@@ -42,16 +42,24 @@ function tallyOf(events: number[]): RunTally {
   return tally;
 }
 
-function render(tally: RunTally, shardIndex = 0, shardCount = 1): RunSummary {
+function render(tally: RunTally, shardIndex = 0, shardCount = 1, wallSeconds = 1): RunSummary {
   return renderSummary(tally, {
     configuration: configuration(shardIndex, shardCount),
     shards: [{ index: shardIndex, count: shardCount }],
     machine: describeMachine(),
     partial: false,
     partialReason: null,
-    wallSeconds: 1,
+    wallSeconds,
   });
 }
+
+/** a summary through JSON, as merge reads it from a file */
+function asRead(summary: RunSummary): RunSummary {
+  return JSON.parse(JSON.stringify(summary)) as RunSummary;
+}
+
+/** thousands of events through histograms on a shared machine: a generous guard, not a timing */
+const HISTOGRAM_TEST_MS = 30_000;
 
 describe('run summaries', () => {
   const all = Array.from({ length: 3000 }, (_, k) => k);
@@ -68,7 +76,7 @@ describe('run summaries', () => {
     expect(merged.budget).toEqual(single.budget);
     expect(merged.invalidEvents).toEqual(single.invalidEvents);
     expect(merged.shards).toEqual([{ index: 0, count: 2 }, { index: 1, count: 2 }]);
-  });
+  }, HISTOGRAM_TEST_MS);
 
   it('refuse to merge the same shard twice', () => {
     const shard0 = render(tallyOf([1, 2, 3]), 0, 2);
@@ -95,6 +103,81 @@ describe('run summaries', () => {
     expect(text).toContain(`read 3,000 · ok ${summary.events.ok.toLocaleString('en-US')} · invalid ${summary.events.invalid} · failed 0`);
     expect(text).toMatch(/p50\s+p90\s+p99\s+p99\.9\s+max/);
     expect(text).toContain(`500 µs on worker time: ${summary.budget!.over.toLocaleString("en-US")} events over`);
+  });
+});
+
+describe('merged summaries', () => {
+  const evens = Array.from({ length: 1500 }, (_, k) => 2 * k);
+  const odds = Array.from({ length: 1500 }, (_, k) => 2 * k + 1);
+
+  it('give all events over the longest shard\'s wall time as the rate, and say so', () => {
+    const merged = mergeSummaries([
+      { name: 'a.json', summary: asRead(render(tallyOf(evens), 0, 2, 2)) },
+      { name: 'b.json', summary: asRead(render(tallyOf(odds), 1, 2, 4)) },
+    ]);
+    expect(merged.throughput.eventsPerSecond).toBe(3000 / 4);
+    expect(merged.throughput.wallSeconds).toBe(4);
+    expect(merged.throughput.basis).toBe("all shards' events over the longest shard's wall time");
+    expect(formatReport(merged)).toContain("750 events/s over 4.00 s (all shards' events over the longest shard's wall time)");
+  });
+
+  it('count the bytes read once: every shard reads the whole file', () => {
+    const a = tallyOf(evens);
+    const b = tallyOf(odds);
+    a.bytesRead = b.bytesRead = 123_456;
+    const merged = mergeSummaries([{ name: 'a.json', summary: asRead(render(a, 0, 2)) }, { name: 'b.json', summary: asRead(render(b, 1, 2)) }]);
+    expect(merged.throughput.bytesRead).toBe(123_456);
+  });
+
+  it('fit alpha again from the added bins: two shards too narrow in N alone give one alpha together', () => {
+    // shard 0 holds N 250..359, shard 1 N 360..519: neither spans a factor 1.5, both together do
+    const all = Array.from({ length: 3000 }, (_, k) => k).filter((k) => k % 97 !== 0);
+    const towersOf = (k: number) => 10 + (k % 700);
+    const low = all.filter((k) => towersOf(k) >= 250 && towersOf(k) < 360);
+    const high = all.filter((k) => towersOf(k) >= 360 && towersOf(k) < 520);
+    const shard0 = asRead(render(tallyOf(low), 0, 2));
+    const shard1 = asRead(render(tallyOf(high), 1, 2));
+    expect(shard0.scaling.alpha).toBeNull();
+    expect(shard1.scaling.alpha).toBeNull();
+    const merged = mergeSummaries([{ name: 'a.json', summary: shard0 }, { name: 'b.json', summary: shard1 }]);
+    expect(merged.scaling).toEqual(render(tallyOf([...low, ...high])).scaling);
+    expect(merged.scaling.alpha).not.toBeNull();
+  }, HISTOGRAM_TEST_MS);
+
+  it('refuse a summary of a version this jetlag does not read, in one line', () => {
+    const old = { ...asRead(render(tallyOf(evens), 0, 2)), version: 1 } as unknown as RunSummary;
+    expect(() => mergeSummaries([{ name: 'old.json', summary: old }]))
+      .toThrow(/^old\.json: summary version 1, this jetlag reads version 2 only \(rerun that shard with this jetlag\)$/);
+  });
+});
+
+describe('the report', () => {
+  it('marks a p99.9 on fewer than 10,000 events and not a p99 on 1,000 or more', () => {
+    const text = formatReport(render(tallyOf(Array.from({ length: 3000 }, (_, k) => k))));
+    const service = text.split('\n').find((line) => line.trimStart().startsWith('service '))!;
+    const cells = service.trim().split(/\s+/);
+    // service, events, p50, p90, p99, p99.9, max, mean
+    expect(cells[4]).not.toContain('*');
+    expect(cells[5]).toMatch(/\*$/);
+    expect(text).toContain('* p99 on fewer than 1,000 events or p99.9 on fewer than 10,000');
+  });
+
+  it('marks a p99 on fewer than 1,000 events and shows each row\'s event count', () => {
+    const summary = render(tallyOf(Array.from({ length: 500 }, (_, k) => k + 1)));
+    const service = formatReport(summary).split('\n').find((line) => line.trimStart().startsWith('service '))!;
+    const cells = service.trim().split(/\s+/);
+    expect(cells[1]).toBe(String(summary.latency.service.count));
+    expect(cells[4]).toMatch(/\*$/);
+  });
+
+  it('states every setting that changes the result and the towers per event', () => {
+    const text = formatReport(render(tallyOf([1, 2, 3])));
+    expect(text.split('\n')[0]).toBe('events.jl · anti-kt p=-1 R=0.4 E-scheme ptMin 0 GeV threshold 0 GeV · grid η -2.5..2.5 50×64 · engine reference · 2 workers, batch 16 · closed loop');
+    expect(text).toContain('towers      per event: mean 12.0 · p50 12 · max 13');
+  });
+
+  it('says why there is no alpha', () => {
+    expect(formatReport(render(tallyOf([1, 2, 3])))).toContain('scaling     no exponent: N spans only 11..13 towers');
   });
 });
 
