@@ -6,11 +6,13 @@ import { spawnSync } from 'node:child_process';
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { gzipSync } from 'node:zlib';
-import { describe, expect, it } from 'vitest';
+import { describe, expect, it, vi } from 'vitest';
 import { tempDirForSuite } from './support/temp-dir.js';
 
 const cli = join(import.meta.dirname, '..', 'dist', 'host', 'cli', 'cli.js');
 const directory = tempDirForSuite('cli-robust');
+// several process starts per test on a shared machine
+vi.setConfig({ testTimeout: 60_000 });
 
 function jetlag(...args: string[]) {
   const result = spawnSync(process.execPath, [cli, ...args], { cwd: directory, encoding: 'utf8' });

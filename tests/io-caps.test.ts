@@ -23,3 +23,14 @@ describe('a file header', () => {
       .rejects.toThrow(`long.events, byte 0: bad file header: file header label is ${MAX_HEADER_TEXT_CHARS + 1} characters long, more than the limit of ${MAX_HEADER_TEXT_CHARS}`);
   });
 });
+
+describe('free text from a file', () => {
+  it('in an event\'s error text comes back on one line, control characters escaped, capped', async () => {
+    const { EventRecordDecoder, encodeEventRecord } = await import('../host/formats/event-codec.js');
+    const decoder = new EventRecordDecoder();
+    decoder.decode(encodeEventRecord({ event: 3, error: 'bad\nline\u001b[2J\u2028end' }));
+    expect(decoder.error).toBe('bad\\u000aline\\u001b[2J\\u2028end');
+    decoder.decode(encodeEventRecord({ event: 4, error: 'x'.repeat(5000) }));
+    expect(decoder.error).toBe(`${'x'.repeat(1000)}… (4000 more characters)`);
+  });
+});

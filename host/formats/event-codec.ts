@@ -22,6 +22,7 @@
 // longer than 10 bytes, a length running past the record, a packed double field whose length
 // is not a multiple of 8, wire types 3, 4, 6, 7, or an event number above 2^53 - 1 throw.
 
+import { oneLineText } from './line-text.js';
 import { LITTLE_ENDIAN_HOST, ProtoWriter, WireCursor, WIRE_FIXED64, WIRE_LENGTH_DELIMITED, WIRE_VARINT, wireTypeName } from './wire.js';
 
 export interface EventRecordFields {
@@ -138,7 +139,7 @@ export class EventRecordDecoder {
           break;
         case FIELD_ERROR:
           c.expect(tag, WIRE_LENGTH_DELIMITED, 'error');
-          this.error = c.readString();
+          this.error = oneLineText(c.readString()); // echoed in one-line messages
           break;
         default:
           c.skip(wireType);

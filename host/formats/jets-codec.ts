@@ -26,6 +26,7 @@ import { encodeFileHeader, type FileHeader, type JetsFileSettings } from './file
 import type { Grid, JetSet } from '../types.js';
 import { delimit, ProtoWriter, WireCursor, WIRE_FIXED64, WIRE_LENGTH_DELIMITED, WIRE_VARINT, wireTypeName } from './wire.js';
 import { allocateJetSet } from '../clustering/jet-set.js';
+import { oneLineText } from './line-text.js';
 
 export interface JetsRecordFields {
   event: number;
@@ -190,7 +191,7 @@ export function decodeJetsRecord(bytes: Uint8Array, options: DecodeJetsOptions =
       }
       case FIELD_TOWERS: readVarints(towers, true, 'constituent_towers', tag); break;
       case FIELD_TIME: c.expect(tag, WIRE_VARINT, 'cluster_time_ns'); clusterTimeNs = c.readVarint(); break;
-      case FIELD_ERROR: c.expect(tag, WIRE_LENGTH_DELIMITED, 'error'); error = c.readString(); break;
+      case FIELD_ERROR: c.expect(tag, WIRE_LENGTH_DELIMITED, 'error'); error = oneLineText(c.readString()); break;
       case FIELD_RHO: c.expect(tag, WIRE_FIXED64, 'rho'); eventPileup.rho = c.readDouble(); eventPileup.seen = true; break;
       case FIELD_ET_CUT: c.expect(tag, WIRE_FIXED64, 'et_cut'); eventPileup.etCut = c.readDouble(); eventPileup.seen = true; break;
       case FIELD_KILLED: c.expect(tag, WIRE_VARINT, 'killed'); eventPileup.killed = c.readVarint(); eventPileup.seen = true; break;

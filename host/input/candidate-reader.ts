@@ -36,6 +36,7 @@ import { peekInput, readFileHeader } from './event-source.js';
 import type { FileHeader } from '../formats/file-header.js';
 import { decodeJetsRecord } from '../formats/jets-codec.js';
 import { inputLabel } from './record-reader.js';
+import { oneLineText } from '../formats/line-text.js';
 
 export type CandidateFormat = 'jets-file' | 'jsonl' | 'csv';
 
@@ -309,7 +310,7 @@ async function* jsonLineEvents(input: AsyncGenerator<Line>, label: string): Asyn
     try {
       value = JSON.parse(trimmed.startsWith('\ufeff') ? trimmed.slice(1) : trimmed);
     } catch (error) {
-      yield emptyEvent(null, offset, `${at} is not JSON (${(error as Error).message})`);
+      yield emptyEvent(null, offset, `${at} is not JSON (${oneLineText((error as Error).message, 200)})`);
       continue;
     }
     const line = value as { event?: unknown; jets?: unknown; error?: unknown };
@@ -323,7 +324,7 @@ async function* jsonLineEvents(input: AsyncGenerator<Line>, label: string): Asyn
     }
     const event = line.event;
     if (typeof line.error === 'string' && line.error !== '') {
-      yield emptyEvent(event, offset, `the candidate reports the event invalid: ${line.error}`);
+      yield emptyEvent(event, offset, `the candidate reports the event invalid: ${oneLineText(line.error)}`);
       continue;
     }
     if (!Array.isArray(line.jets)) {

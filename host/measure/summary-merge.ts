@@ -5,7 +5,7 @@
 import { readFileSync } from 'node:fs';
 import { InputError } from '../errors.js';
 import { LatencyRecorder } from './latency.js';
-import { RunTally, STAGES } from './run-tally.js';
+import { PILEUP_STAGES, RunTally, STAGES, type PileupStage } from './run-tally.js';
 import { renderSummary, SUMMARY_VERSION, type MachineInfo, type RunConfiguration, type RunSummary } from './summary.js';
 
 /** Rebuilds the tally of a summary (histograms decoded, counts and lists copied). */
@@ -34,6 +34,10 @@ export function tallyFromSummary(summary: RunSummary, where = 'summary'): RunTal
   for (const stage of STAGES) {
     tally.stages[stage].merge(LatencyRecorder.decode(summary.histograms.stages[stage], `${where}: histograms.stages.${stage}`));
   }
+  for (const [stage, encoded] of Object.entries(summary.histograms.pileupStages ?? {})) {
+    if (!(PILEUP_STAGES as readonly string[]).includes(stage)) continue; // a stage of a later version
+    tally.pileupStages[stage as PileupStage].merge(LatencyRecorder.decode(encoded!, `${where}: histograms.pileupStages.${stage}`));
+  }
   for (const entry of summary.histograms.multiplicity) {
     const recorder = LatencyRecorder.decode(entry.histogram, `${where}: histograms.multiplicity[${entry.bin}]`);
     tally.multiplicity.recorders[entry.bin] = recorder;
@@ -48,7 +52,7 @@ export function tallyFromSummary(summary: RunSummary, where = 'summary'): RunTal
 /** What must agree between summaries for their sum to mean anything, named as the reader knows it. */
 function mergeFields(configuration: RunConfiguration): Record<string, unknown> {
   const { grid, settings, batch, arrival, budgetUs, check, engine, maxEvents } = configuration;
-  return { 'input label': configuration.input?.label, grid, settings, batch, arrival, budgetUs, check, engine, '--events': maxEvents, 'shard count': configuration.shard.count };
+  return { 'input label': configuration.input?.label, grid, settings, pileup: configuration.pileup ?? null, batch, arrival, budgetUs, check, engine, '--events': maxEvents, 'shard count': configuration.shard.count };
 }
 
 function mergeKey(configuration: RunConfiguration): string {
@@ -91,6 +95,8 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
     if (summary.version !== SUMMARY_VERSION) {
       throw new Error(`${name}: summary version ${JSON.stringify(summary.version)}, this jetlag reads version ${SUMMARY_VERSION} only (rerun that shard with this jetlag)`);
     }
+    const problem = shapeProblem(summary);
+    if (problem !== null) throw new Error(`${name}: not a jetlag run summary: ${problem}`);
   }
   const first = summaries[0];
   const key = mergeKey(first.summary.configuration);
@@ -142,6 +148,41 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
     wallSeconds,
     rateBasis: `all shards' events over the longest shard's wall time`,
   });
+}
+
+/**
+ * What a summary lacks that merging reads (null when nothing): a file edited by hand or cut
+ * and patched must be named, not crash the merge. Only the shape is checked here; the
+ * histograms check their own encoding when decoded.
+ */
+function shapeProblem(summary: RunSummary): string | null {
+  const at = (path: string): unknown => path.split('.').reduce<unknown>((value, key) => (value !== null && typeof value === 'object' ? (value as Record<string, unknown>)[key] : undefined), summary);
+  const kindOf = (value: unknown) => (value === null ? 'null' : Array.isArray(value) ? 'an array' : typeof value);
+  const objects = ['configuration', 'configuration.shard', 'configuration.grid', 'configuration.settings', 'configuration.check', 'configuration.arrival', 'machine', 'events', 'throughput', 'check', 'histograms', 'histograms.stages', 'towers'];
+  for (const path of objects) {
+    const value = at(path);
+    if (value === null || typeof value !== 'object' || Array.isArray(value)) return `${path} is ${kindOf(value)}, expected an object`;
+  }
+  const numbers = ['configuration.shard.index', 'configuration.shard.count', 'events.read', 'events.ok', 'events.invalid', 'events.failed',
+    'throughput.bytesRead', 'throughput.wallSeconds', 'check.checked', 'check.agreeing', 'check.disagreeing', 'jets'];
+  for (const path of numbers) {
+    if (typeof at(path) !== 'number') return `${path} is ${kindOf(at(path))}, expected a number`;
+  }
+  for (const path of ['shards', 'invalidEvents', 'failedBatches', 'check.differences', 'histograms.multiplicity']) {
+    if (!Array.isArray(at(path))) return `${path} is ${kindOf(at(path))}, expected an array`;
+  }
+  if (summary.machines !== undefined && !Array.isArray(summary.machines)) return `machines is ${kindOf(summary.machines)}, expected an array`;
+  for (const [k, shard] of summary.shards.entries()) {
+    if (typeof shard?.index !== 'number' || typeof shard?.count !== 'number') return `shards[${k}] is not {index, count}`;
+  }
+  for (const [k, entry] of summary.histograms.multiplicity.entries()) {
+    // bins index arrays: only small whole numbers
+    if (!Number.isInteger(entry?.bin) || entry.bin < 0 || entry.bin > 4096 || typeof entry.sumTowers !== 'number') return `histograms.multiplicity[${k}] is not {bin, sumTowers, histogram}`;
+  }
+  for (const [key, value] of Object.entries(summary.towers)) {
+    if (typeof value !== 'number') return `towers.${key} is ${kindOf(value)}, expected a number`;
+  }
+  return null;
 }
 
 /** Reads a summary written by `jetlag run --json` (its shape is checked by mergeSummaries). */
