@@ -9,7 +9,11 @@ import { WindowFinder, windowSettingsOfName, type WindowEngineName } from './win
 import { PileupReferenceClusterer } from './pileup/chain.js';
 import { EnginePileupClusterer } from './pileup/engine-chain.js';
 import { pileupStepsOn } from './pileup/settings.js';
-import type { ClusterSettings, Clusterer, Grid, PileupSettings } from '../types.js';
+import { GroomingClusterer } from './grooming/groomer.js';
+import { EngineGroomer } from './grooming/engine-groomer.js';
+import { ReferenceGroomer } from './grooming/reference-groomer.js';
+import { groomingIsOn } from './grooming/settings.js';
+import type { ClusterSettings, Clusterer, Grid, GroomingSettings, PileupSettings } from '../types.js';
 
 export const ENGINE_NAMES = ['wasm', 'reference'] as const;
 /** the engine, the reference, or the window finder (`jetlag run --engine window:W:SEEDET`) */
@@ -29,8 +33,14 @@ export function parseEngineName(text: string, command: string): EngineName {
  */
 export function makeClusterer(
   engine: EngineName, grid: Grid, settings: ClusterSettings, emulation?: EmulationMode | null,
-  pileup?: PileupSettings | null, command = 'cluster',
+  pileup?: PileupSettings | null, command = 'cluster', grooming?: GroomingSettings | null,
 ): Clusterer {
+  if (groomingIsOn(grooming)) {
+    refuseGrooming(engine, emulation ?? null, command);
+    const base = makeClusterer(engine, grid, settings, emulation, pileup, command);
+    const groomer = engine === 'reference' ? new ReferenceGroomer(grid, grooming!, settings.radius) : new EngineGroomer(grid, grooming!, settings.radius);
+    return new GroomingClusterer(base, groomer);
+  }
   if (pileupStepsOn(pileup)) {
     refusePileupSteps(engine, emulation ?? null, command);
     return engine === 'reference'
@@ -45,8 +55,16 @@ export function makeClusterer(
 }
 
 /** The reference a clusterer's jets are checked against: with pileup steps on, the reference's chain. */
-export function makeReferenceClusterer(grid: Grid, settings: ClusterSettings, pileup?: PileupSettings | null, command = 'run'): Clusterer {
-  return pileupStepsOn(pileup) ? new PileupReferenceClusterer(grid, settings, pileup, command) : new ReferenceClusterer(grid, settings);
+export function makeReferenceClusterer(grid: Grid, settings: ClusterSettings, pileup?: PileupSettings | null, command = 'run', grooming?: GroomingSettings | null): Clusterer {
+  const base = pileupStepsOn(pileup) ? new PileupReferenceClusterer(grid, settings, pileup, command) : new ReferenceClusterer(grid, settings);
+  return groomingIsOn(grooming) ? new GroomingClusterer(base, new ReferenceGroomer(grid, grooming!, settings.radius)) : base;
+}
+
+/** Grooming re-clusters generalised-kt jets' towers: the window finder and the emulations take none. */
+function refuseGrooming(engine: EngineName, emulation: EmulationMode | null, command: string): void {
+  if (emulation !== null || windowSettingsOfName(engine) !== null) {
+    throw new UsageError(`${command}: --trim and --softdrop groom the engine's or the reference's jets only; leave them out with --emulate or the window finder`);
+  }
 }
 
 /**

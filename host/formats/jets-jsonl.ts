@@ -10,13 +10,18 @@
 // Jets with pileup values (spec part two) add, per event, "rho", "etCut", "killed" and
 // "subtractedAway" after "event", and per jet "ghosts", "area" and "ptRaw" after "n":
 //   {"event":n,"rho":…,"etCut":…,"killed":…,"subtractedAway":…,"jets":[{…,"n":…,"ghosts":…,"area":…,"ptRaw":…,"towers":[…]}]}
+// Groomed jets (spec section 12) add per jet, after those, a "trim" object (the trimmed jet and
+// its kept "subjets") and a "softdrop" object (the groomed jet, "zg" and "Rg"); "n" counts the
+// towers each keeps:
+//   "trim":{"pt":…,"y":…,"phi":…,"m":…,"px":…,"py":…,"pz":…,"E":…,"n":…,"subjets":…}
+//   "softdrop":{"pt":…,"y":…,"phi":…,"m":…,"px":…,"py":…,"pz":…,"E":…,"n":…,"zg":…,"Rg":…}
 //
 // API
 //   formatJetsLine(event, jets, withTowers?): string      one line, without the newline
 //   formatErrorLine(event, error): string
 //   jsonNumber(x): string
 
-import type { JetSet } from '../types.js';
+import type { GroomedFourVectors, JetSet } from '../types.js';
 
 export function jsonNumber(x: number): string {
   if (!Number.isFinite(x)) return 'null';
@@ -25,6 +30,12 @@ export function jsonNumber(x: number): string {
 
 export function formatErrorLine(event: number, error: string): string {
   return `{"event":${event},"error":${JSON.stringify(error)}}`;
+}
+
+/** a groomed jet's fields, in the plain jet's order and names */
+function groomedFields(rows: GroomedFourVectors, k: number): string {
+  return `"pt":${jsonNumber(rows.pt[k])},"y":${jsonNumber(rows.rapidity[k])},"phi":${jsonNumber(rows.phi[k])},"m":${jsonNumber(rows.mass[k])},` +
+    `"px":${jsonNumber(rows.px[k])},"py":${jsonNumber(rows.py[k])},"pz":${jsonNumber(rows.pz[k])},"E":${jsonNumber(rows.energy[k])},"n":${rows.towerCount[k]}`;
 }
 
 export function formatJetsLine(event: number, jets: JetSet, withTowers = jets.towers.length > 0 || jets.count === 0): string {
@@ -36,6 +47,8 @@ export function formatJetsLine(event: number, jets: JetSet, withTowers = jets.to
       `"px":${jsonNumber(jets.px[k])},"py":${jsonNumber(jets.py[k])},"pz":${jsonNumber(jets.pz[k])},"E":${jsonNumber(jets.energy[k])},` +
       `"n":${jets.towerCount[k]}`;
     if (pileup) line += `,"ghosts":${pileup.ghosts[k]},"area":${jsonNumber(pileup.area[k])},"ptRaw":${jsonNumber(pileup.ptRaw[k])}`;
+    if (jets.trim) line += `,"trim":{${groomedFields(jets.trim, k)},"subjets":${jets.trim.subjets[k]}}`;
+    if (jets.softDrop) line += `,"softdrop":{${groomedFields(jets.softDrop, k)},"zg":${jsonNumber(jets.softDrop.zg[k])},"Rg":${jsonNumber(jets.softDrop.deltaRg[k])}}`;
     if (withTowers) {
       const start = jets.towerStart[k];
       line += `,"towers":[${Array.prototype.join.call(jets.towers.subarray(start, start + jets.towerCount[k]), ',')}]`;

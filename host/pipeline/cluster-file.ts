@@ -19,7 +19,8 @@ import { JetsFileWriter } from '../output/jets-writer.js';
 import { formatErrorLine, formatJetsLine } from '../formats/jets-jsonl.js';
 import { TextFileWriter } from '../output/record-writer.js';
 import { describePileup, pileupStepsOn } from '../clustering/pileup/settings.js';
-import type { ClusterSettings, Grid, JetSet, PileupSettings } from '../types.js';
+import { describeGrooming, groomingIsOn } from '../clustering/grooming/settings.js';
+import type { ClusterSettings, Grid, GroomingSettings, JetSet, PileupSettings } from '../types.js';
 import { producerName } from '../version.js';
 import { ExecEngineError, type ExecCounts } from './exec-engine.js';
 import { ProgramTimes, startProgramEngine, type ProgramEngineChoice, type ProgramFigures } from './exec-cluster.js';
@@ -40,6 +41,8 @@ export interface ClusterFileOptions {
   settings: ClusterSettings;
   /** the pileup steps around the clustering (spec part two); none when absent */
   pileup?: PileupSettings | null;
+  /** trimming and soft drop of each reported jet (spec section 12); none when absent */
+  grooming?: GroomingSettings | null;
   /** write each jet's constituent tower indices */
   withTowers: boolean;
   format: 'jets' | 'jsonl';
@@ -82,14 +85,16 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
   if (options.program && pileup) throw new UsageError('cluster: an engine program runs the plain clustering only; leave out --areas, --rho, --subtract and --softkiller');
   const program = options.program ? await startProgramEngine(options.program, grid, settings, source.label, options.maxRecordBytes) : null;
   const programTimes = new ProgramTimes();
-  const clusterer = program ? null : makeClusterer(options.engine, grid, settings, options.emulation, pileup, 'cluster');
+  const grooming = groomingIsOn(options.grooming) ? options.grooming : null;
+  if (options.program && grooming) throw new UsageError('cluster: an engine program runs the plain clustering only; leave out --trim and --softdrop');
+  const clusterer = program ? null : makeClusterer(options.engine, grid, settings, options.emulation, pileup, 'cluster', grooming);
   if (clusterer && 'withTowers' in clusterer) (clusterer as { withTowers: boolean }).withTowers = withTowers;
   const engineName = program ? program.engineName || options.program!.label : options.emulation ? emulationName(options.emulation) : clusterer!.name;
   // the window finder's settings live in its engine name; the label spells them out, and says
   // that p and R in the header are those of the reference it is meant to be compared with
   const window = options.emulation !== null && typeof options.emulation === 'object' && 'window' in options.emulation ? options.emulation.window : null;
   const windowLabel = window ? `${describeWindow(window)} (algorithm and R: the reference to compare with); ` : '';
-  const pileupLabel = pileup ? `${describePileup(pileup)}; ` : '';
+  const pileupLabel = `${pileup ? `${describePileup(pileup)}; ` : ''}${grooming ? `${describeGrooming(grooming)}; ` : ''}`;
   const reader = new EventTowerReader(grid);
 
   const jetsFile = options.format === 'jets'

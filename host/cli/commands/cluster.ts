@@ -17,6 +17,8 @@ import { parseEmulation } from '../../clustering/emulation-mode.js';
 import { DEFAULT_MAX_RECORD_BYTES } from '../../input/record-reader.js';
 import { clusterFile } from '../../pipeline/cluster-file.js';
 import { PILEUP_OPTIONS, pileupSettingsFrom } from '../pileup-options.js';
+import { GROOMING_OPTIONS, groomingSettingsFrom } from '../grooming-options.js';
+import { describeGrooming } from '../../clustering/grooming/settings.js';
 import { describePileup } from '../../clustering/pileup/settings.js';
 import { execCommandOf, splitCommand } from '../../pipeline/exec-command.js';
 import { DEFAULT_ENGINE_RESTARTS, DEFAULT_ENGINE_TIMEOUT_MS } from '../../pipeline/exec-engine.js';
@@ -42,6 +44,7 @@ export const spec: CommandSpec = {
     FORCE_OPTION,
     ...CLUSTER_OPTIONS,
     ...PILEUP_OPTIONS,
+    ...GROOMING_OPTIONS,
     ...GRID_OPTIONS,
     MAX_EVENT_GAP_OPTION,
   ],
@@ -76,6 +79,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   };
   const settings = clusterSettingsFrom(args, 'cluster');
   const pileup = pileupSettingsFrom(args, 'cluster');
+  const grooming = groomingSettingsFrom(args, 'cluster');
   const quiet = Boolean(args.values.quiet);
 
   let shownProblems = 0;
@@ -90,6 +94,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     program,
     settings,
     pileup,
+    grooming,
     withTowers: !args.values['no-towers'],
     format,
     out: (args.values.out as string | undefined) ?? '-',
@@ -116,7 +121,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   if (!quiet) {
     const outside = outsideAcceptance > 0 ? `; ${outsideAcceptance} raw deposit${outsideAcceptance === 1 ? '' : 's'} outside the eta acceptance` : '';
     const failed = result.program ? `, ${result.failed} failed by the program` : '';
-    io.stderr.write(`jetlag cluster: ${events} events (${events - invalid - result.failed} clustered, ${invalid} invalid${failed}) with ${result.engineName}, ${describeSettings(settings)}${describePileup(pileup) ? `, ${describePileup(pileup)}` : ''}${outside}\n`);
+    io.stderr.write(`jetlag cluster: ${events} events (${events - invalid - result.failed} clustered, ${invalid} invalid${failed}) with ${result.engineName}, ${describeSettings(settings)}${describePileup(pileup) ? `, ${describePileup(pileup)}` : ''}${describeGrooming(grooming) ? `, ${describeGrooming(grooming)}` : ''}${outside}\n`);
   }
   return 0;
 }

@@ -17,6 +17,8 @@ export class GroomingClusterer implements Clusterer {
   readonly name: string;
   readonly settings: ClusterSettings;
   groomNs = 0;
+  /** report the jets' constituent towers (grooming needs them; they are left out afterwards when false) */
+  withTowers = true;
 
   constructor(readonly base: Clusterer, readonly groomer: JetGroomer) {
     this.name = base.name;
@@ -30,6 +32,7 @@ export class GroomingClusterer implements Clusterer {
     const began = performance.now();
     this.groomer.groom(jets, towerIndex, towerEt);
     this.groomNs = (performance.now() - began) * 1e6;
+    if (!this.withTowers) jets.towers = new Int32Array(0);
     return jets;
   }
 }
