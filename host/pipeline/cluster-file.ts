@@ -87,6 +87,8 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
   const programTimes = new ProgramTimes();
   const grooming = groomingIsOn(options.grooming) ? options.grooming : null;
   if (options.program && grooming) throw new UsageError('cluster: an engine program runs the plain clustering only; leave out --trim and --softdrop');
+  // jets files do not carry groomed values yet: refuse rather than drop them silently
+  if (grooming && options.format === 'jets') throw new UsageError('cluster: --trim and --softdrop need --format jsonl for now (jets files do not carry groomed values yet)');
   const clusterer = program ? null : makeClusterer(options.engine, grid, settings, options.emulation, pileup, 'cluster', grooming);
   if (clusterer && 'withTowers' in clusterer) (clusterer as { withTowers: boolean }).withTowers = withTowers;
   const engineName = program ? program.engineName || options.program!.label : options.emulation ? emulationName(options.emulation) : clusterer!.name;
