@@ -34,10 +34,10 @@ describe('plain latency histogram', () => {
     expect(plain.percentiles.at(-1)!.us).toBe(recorder.maxNs / 1000);
   });
 
-  it('is empty for no events and covers nested stage histograms', () => {
+  it('is empty for no events, covers nested stage histograms and leaves out tower counts', () => {
     const empty = new LatencyRecorder().encode();
     expect(plainHistogram(empty)).toMatchObject({ count: 0, percentiles: [], bins: [] });
-    const tables = plainHistograms({ cluster: recorderOf([5000]).encode(), stages: { decode: recorderOf([100]).encode() }, multiplicity: [] });
+    const tables = plainHistograms({ cluster: recorderOf([5000]).encode(), towersPerEvent: recorderOf([300]).encode(), stages: { decode: recorderOf([100]).encode() }, multiplicity: [] });
     expect(Object.keys(tables)).toEqual(['cluster', 'stages']);
     expect((tables.stages as Record<string, { count: number }>).decode.count).toBe(1);
   });

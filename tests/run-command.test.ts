@@ -89,7 +89,7 @@ describe('the progress bar', () => {
 
   it('draws nothing when disabled', () => {
     const fake = fakeIo();
-    const bar = new ProgressBar(fake.io.stderr, { eventsDone: () => 1, bytesDone: () => 1 }, 10, false);
+    const bar = new ProgressBar(fake.io.stderr, { eventsDone: () => 1, bytesDone: () => 1 }, { bytes: 10 }, false);
     bar.start();
     bar.stop();
     expect(fake.stderr()).toBe('');

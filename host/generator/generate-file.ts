@@ -11,16 +11,21 @@ export interface GeneratedFileHeader {
   label: string;
 }
 
+/** onEvent: called with the number of events written so far after each one (a progress bar reads it) */
 export async function writeGeneratedEvents(
   path: string, grid: Grid, settings: GeneratorSettings, header: GeneratedFileHeader, options: WriterOptions = {},
+  onEvent?: (eventsWritten: number) => void,
 ): Promise<void> {
   const writer = await EventFileWriter.open(path, { grid, producer: header.producer, label: header.label }, options);
+  let written = 0;
   try {
     for (const event of generateEvents(grid, settings)) {
       const pending = settings.raw
         ? writer.writeEvent({ event: event.event, depositEta: event.depositEta, depositPhi: event.depositPhi, depositEt: event.depositEt })
         : writer.writeEvent({ event: event.event, towerIndex: event.towerIndex, towerEt: event.towerEt });
       if (pending) await pending;
+      written++;
+      if (onEvent) onEvent(written);
     }
     await writer.close();
   } catch (error) {

@@ -4,7 +4,8 @@
 // models a real detector; it only has the shapes a trigger test needs:
 //   - 1..maxHardJets hard jets per event: a hard core tower and a shower of softer
 //     deposits whose density falls off with angle from the jet axis;
-//   - a Poisson number of soft pileup interactions with mean `pileup`, each leaving a few soft
+//   - a Poisson number of soft pileup interactions with mean `pileup` (or, with a range, a mean
+//     drawn per event uniformly from pileup..pileupMax), each leaving a few soft
 //     deposits spread over the whole grid (mean pileup of 100-200 soft interactions per
 //     crossing is the regime of current and upgraded hadron colliders: fact of the trade,
 //     common practice);
@@ -19,8 +20,14 @@ import { makeRandom } from '../random.js';
 
 export interface GeneratorSettings {
   events: number;
-  /** mean number of soft pileup interactions per event */
+  /** mean number of soft pileup interactions per event (the lowest mean when pileupMax is given) */
   pileup: number;
+  /**
+   * when given, each event's mean pileup is drawn uniformly from pileup..pileupMax, so that a
+   * file spreads over tower multiplicities (for the fit of time against N); when absent, no
+   * draw is made and a seed gives the very file it gave before ranges existed
+   */
+  pileupMax?: number;
   seed: number;
   /** hard jets per event are drawn uniformly from 1..maxHardJets */
   maxHardJets?: number;
@@ -103,7 +110,10 @@ function generateOne(tables: GridTables, settings: GeneratorSettings, random: ()
   }
 
   // pileup: soft interactions spread over the grid
-  const interactions = poisson(random, settings.pileup);
+  const meanPileup = settings.pileupMax === undefined
+    ? settings.pileup
+    : settings.pileup + (settings.pileupMax - settings.pileup) * random();
+  const interactions = poisson(random, meanPileup);
   for (let n = 0; n < interactions; n++) {
     const deposits = poisson(random, PILEUP_DEPOSITS_MEAN);
     for (let k = 0; k < deposits; k++) {

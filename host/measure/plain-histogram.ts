@@ -56,10 +56,14 @@ export function plainHistogram(encoded: EncodedLatency): PlainHistogram {
   return plain;
 }
 
-/** Every top-level latency histogram of a summary's `histograms`, by the same names (stages included). */
+/** Histograms of a summary that hold no times (towers per event is a count). */
+const NOT_TIMES = new Set(['towersPerEvent']);
+
+/** Every latency histogram of a summary's `histograms`, by the same names (stages included). */
 export function plainHistograms(histograms: Record<string, unknown>): Record<string, PlainHistogram | Record<string, PlainHistogram>> {
   const out: Record<string, PlainHistogram | Record<string, PlainHistogram>> = {};
   for (const [name, value] of Object.entries(histograms)) {
+    if (NOT_TIMES.has(name)) continue;
     if (isEncoded(value)) out[name] = plainHistogram(value);
     else if (value !== null && typeof value === 'object' && !Array.isArray(value)) {
       const inner: Record<string, PlainHistogram> = {};

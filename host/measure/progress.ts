@@ -1,13 +1,25 @@
-// A one-line progress bar for terminals: events done, current rate, and an ETA from the bytes
-// read so far against the file's size. Redrawn on a timer (not per event) and only when the
-// output is a terminal and --quiet is off; otherwise every call is a no-op.
+// A one-line progress bar for terminals: events done, current rate, and, when the size of the
+// job is known, a bar and an ETA. Redrawn on a timer (not per event) and only when the output
+// is a terminal and --quiet is off; otherwise every call is a no-op.
+//
+// The bar's percentage is of what is actually known to be done: events against a known event
+// total, or else bytes of input whose events are done against the input's size. An input of
+// unknown size (stdin, gzip, --events) shows events and rate only, never a guess.
 
 const REDRAW_MS = 200;
 const BAR_WIDTH = 24;
 
 export interface ProgressSource {
+  /** events finished (their results in hand, or written) */
   eventsDone(): number;
-  bytesDone(): number;
+  /** bytes of input up to the last finished event; only read when a byte total is given */
+  bytesDone?(): number;
+}
+
+/** The size of the job, when known: events (preferred) or bytes of input; absent or 0 when unknown. */
+export interface ProgressTotal {
+  events?: number;
+  bytes?: number;
 }
 
 export class ProgressBar {
@@ -21,8 +33,7 @@ export class ProgressBar {
   constructor(
     private readonly out: NodeJS.WritableStream,
     private readonly source: ProgressSource,
-    /** total bytes to read, 0 when unknown (stdin) */
-    private readonly bytesTotal: number,
+    private readonly total: ProgressTotal,
     readonly enabled: boolean,
   ) {}
 
@@ -32,17 +43,27 @@ export class ProgressBar {
     this.timer.unref();
   }
 
-  /** The text of the bar for the given state (pure, so it can be tested). */
-  static line(events: number, ratePerSecond: number, bytesDone: number, bytesTotal: number, elapsedSeconds: number): string {
-    const fraction = bytesTotal > 0 ? Math.min(1, bytesDone / bytesTotal) : 0;
+  /**
+   * The text of the bar for the given state (pure, so it can be tested): done and total in one
+   * unit (events or bytes), total 0 when unknown.
+   */
+  static line(events: number, ratePerSecond: number, done: number, total: number, elapsedSeconds: number): string {
+    const fraction = total > 0 ? Math.min(1, done / total) : 0;
     const filled = Math.round(fraction * BAR_WIDTH);
-    const bar = bytesTotal > 0 ? `[${'#'.repeat(filled)}${'.'.repeat(BAR_WIDTH - filled)}] ${(fraction * 100).toFixed(0).padStart(3)}%` : '';
+    const bar = total > 0 ? `[${'#'.repeat(filled)}${'.'.repeat(BAR_WIDTH - filled)}] ${(fraction * 100).toFixed(0).padStart(3)}%` : '';
     let eta = '';
-    if (bytesTotal > 0 && fraction > 0 && fraction < 1) {
+    if (total > 0 && fraction > 0 && fraction < 1) {
       const remainingSeconds = ((1 - fraction) / fraction) * elapsedSeconds;
       eta = ` ETA ${formatSeconds(remainingSeconds)}`;
     }
     return `${bar} ${events.toLocaleString('en-US')} events ${Math.round(ratePerSecond).toLocaleString('en-US')}/s${eta}`.trimStart();
+  }
+
+  private doneAndTotal(events: number): [number, number] {
+    const { events: eventsTotal, bytes: bytesTotal } = this.total;
+    if (eventsTotal !== undefined && eventsTotal > 0) return [events, eventsTotal];
+    if (bytesTotal !== undefined && bytesTotal > 0 && this.source.bytesDone) return [this.source.bytesDone(), bytesTotal];
+    return [0, 0];
   }
 
   private draw(): void {
@@ -55,7 +76,8 @@ export class ProgressBar {
     }
     this.lastMs = now;
     this.lastEvents = events;
-    this.out.write(`\r${ProgressBar.line(events, this.rate, this.source.bytesDone(), this.bytesTotal, (now - this.startMs) / 1000)}\x1b[K`);
+    const [done, total] = this.doneAndTotal(events);
+    this.out.write(`\r${ProgressBar.line(events, this.rate, done, total, (now - this.startMs) / 1000)}\x1b[K`);
     this.drawn = true;
   }
 

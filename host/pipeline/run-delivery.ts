@@ -41,6 +41,8 @@ export interface SampledRecord {
 
 export class RunDelivery {
   readonly tally = new RunTally();
+  /** byte offset of the last record whose result came back: the progress bar's bytes done */
+  offsetDone = 0;
   /** the timed pass's check sample, in input order */
   readonly checkSample: SampledRecord[] = [];
   /** the clusterer the workers report (the configured one until a result comes back) */
@@ -68,6 +70,7 @@ export class RunDelivery {
   deliver(outcome: BatchOutcome): void {
     const { count, result } = outcome;
     this.tally.read += count;
+    this.offsetDone = outcome.recordOffsets[count - 1];
     if (result === null) {
       this.tallyFailedBatch(outcome);
       return;

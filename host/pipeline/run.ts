@@ -223,7 +223,7 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const feed = schedule.openLoop
     ? new OpenLoopFeed({ ...feedPlan, workers: plan.workers, maxRecordBytes: DEFAULT_MAX_RECORD_BYTES }, schedule, pool, delivery)
     : new RecordFeed(feedPlan, pool, delivery);
-  const progress = new ProgressBar(options.progress ?? process.stderr, { eventsDone: () => delivery.tally.read, bytesDone: () => feed.lastOffset }, bytesTotal, Boolean(options.progress));
+  const progress = new ProgressBar(options.progress ?? process.stderr, { eventsDone: () => delivery.tally.read, bytesDone: () => delivery.offsetDone }, { bytes: bytesTotal }, Boolean(options.progress));
   let wallSeconds = 0;
   progress.start();
   const machineLoad = new MachineLoadProbe();
