@@ -4,10 +4,12 @@
 import { spawn } from 'node:child_process';
 import { readdirSync } from 'node:fs';
 import { join } from 'node:path';
-import { describe, expect, it } from 'vitest';
+import { describe, expect, it, vi } from 'vitest';
 import { tempDirForTest } from './support/temp-dir.js';
 
 const cli = join(__dirname, '..', 'dist', 'host', 'cli', 'cli.js');
+// process starts and a run on a shared machine
+vi.setConfig({ testTimeout: 60_000 });
 
 /** Starts `args`, waits until a temporary file shows in `dir`, sends the signals, returns how it ended. */
 async function stopWhileWriting(dir: string, args: string[], signals: NodeJS.Signals[]) {
