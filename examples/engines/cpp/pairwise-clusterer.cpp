@@ -5,12 +5,13 @@
 //   stdin   FileHeader (events, grid, settings), then one EventRecord per event
 //   stdout  FileHeader (jets, same grid and settings), then one JetsRecord per event, flushed
 //
-// The clustering is a plain generalised-kt written for this example, O(N^2) per event: every
-// jet keeps its geometric nearest neighbour; the smallest of w_i * min(dR2_i, R^2) over all
-// jets is the next step (for the pair measure min(w_i, w_j) * dR2 / R^2 the smallest pair is
-// found at the softer jet's geometric nearest neighbour: Cacciari and Salam,
-// arXiv:hep-ph/0512210). It follows the clustering specification's formulas but not its
-// order of ties, so it agrees with jetlag's reference in tolerance mode, not bit for bit.
+// The clustering is a plain generalised kt written for this example, O(N^2) per event: every
+// jet i keeps its neighbour, the jet j with the smallest (w_i * dR2_ij) / R^2 (ties to the
+// smaller index); the smallest pair measure min(w_i, w_j) * dR2 / R^2 of all is found at the
+// neighbour of the jet with the smaller weight (the nearest-neighbour idea of Cacciari and
+// Salam, arXiv:hep-ph/0512210, with the measure in place of dR2 so that two distances that
+// round to the same measure are ordered as jetlag's clustering specification orders them).
+// It is checked against jetlag's reference in tolerance mode.
 // Its own clock (steady_clock) runs around the clustering only, not around reading and
 // writing, and goes into cluster_time_ns.
 
@@ -19,6 +20,7 @@
 #include <cmath>
 #include <cstdint>
 #include <iostream>
+#include <limits>
 #include <string>
 #include <vector>
 
@@ -117,35 +119,46 @@ std::vector<PseudoJet> clusterEvent(const jetlag::EventRecord& event, const jetl
   const double invR2 = 1 / (settings.radius * settings.radius);
   std::vector<int> live(jets.size());
   for (size_t k = 0; k < jets.size(); k++) live[k] = static_cast<int>(k);
+  // live stays in increasing jet index (a merge makes the largest), so the first of equal
+  // measures met in a scan is the one with the smaller indices
   std::vector<int> nearest(2 * towers, -1);
-  std::vector<double> nearestDr2(2 * towers, 0);
+  std::vector<double> nearestMeasure(2 * towers, INFINITY);
+  auto pairMeasure = [&](int i, int j) { return (jets[i].weight * deltaR2(jets[i], jets[j])) * invR2; };
   auto findNearest = [&](int i) {
     nearest[i] = -1;
-    nearestDr2[i] = INFINITY;
+    nearestMeasure[i] = INFINITY;
     for (int j : live) {
       if (j == i) continue;
-      const double dr2 = deltaR2(jets[i], jets[j]);
-      if (dr2 < nearestDr2[i]) { nearestDr2[i] = dr2; nearest[i] = j; }
+      const double measure = pairMeasure(i, j);
+      if (measure < nearestMeasure[i]) { nearestMeasure[i] = measure; nearest[i] = j; }
     }
   };
   for (int i : live) findNearest(i);
 
-  // jet i's smallest measure: the pair with its neighbour, (w_i * dR2) / R^2, or the beam,
-  // w_i; at equal measures the pair goes first (the beam ranks after every jet)
-  auto measureOf = [&](int i) {
-    const double pair = nearest[i] < 0 ? INFINITY : (jets[i].weight * nearestDr2[i]) * invR2;
-    return std::min(pair, jets[i].weight);
+  // jet i's candidate: the pair with its neighbour or, when that is larger, the beam; ordered
+  // by measure, then the smaller index, then the larger, the beam after every jet
+  constexpr int kBeam = std::numeric_limits<int>::max();
+  struct Candidate { double measure; int low, high; };
+  auto candidateOf = [&](int i) {
+    const int j = nearest[i];
+    if (j >= 0 && nearestMeasure[i] <= jets[i].weight) return Candidate{nearestMeasure[i], std::min(i, j), std::max(i, j)};
+    return Candidate{jets[i].weight, i, kBeam};
+  };
+  auto before = [](const Candidate& a, const Candidate& b) {
+    if (a.measure != b.measure) return a.measure < b.measure;
+    if (a.low != b.low) return a.low < b.low;
+    return a.high < b.high;
   };
   std::vector<PseudoJet> finals;
   while (!live.empty()) {
-    int best = 0;
-    double bestMeasure = measureOf(live[0]);
+    size_t best = 0;
+    Candidate bestCandidate = candidateOf(live[0]);
     for (size_t k = 1; k < live.size(); k++) {
-      const double measure = measureOf(live[k]);
-      if (measure < bestMeasure) { bestMeasure = measure; best = static_cast<int>(k); }
+      const Candidate candidate = candidateOf(live[k]);
+      if (before(candidate, bestCandidate)) { bestCandidate = candidate; best = k; }
     }
     const int i = live[best];
-    const int j = nearest[i] >= 0 && (jets[i].weight * nearestDr2[i]) * invR2 <= jets[i].weight ? nearest[i] : -1;
+    const int j = bestCandidate.high == kBeam ? -1 : nearest[i];
     live.erase(live.begin() + best);
     if (j < 0) {
       finals.push_back(jets[i]);
@@ -163,8 +176,9 @@ std::vector<PseudoJet> clusterEvent(const jetlag::EventRecord& event, const jetl
         if (nearest[k] == i || nearest[k] == j) {
           findNearest(k);
         } else {
-          const double dr2 = deltaR2(jets[k], jets[merged]);
-          if (dr2 < nearestDr2[k]) { nearestDr2[k] = dr2; nearest[k] = merged; }
+          // on equal measures the older neighbour has the smaller index and stays
+          const double measure = pairMeasure(k, merged);
+          if (measure < nearestMeasure[k]) { nearestMeasure[k] = measure; nearest[k] = merged; }
         }
       }
     }

@@ -3,8 +3,8 @@
 
 Reads jetlag's event stream on stdin and writes a jets stream on stdout (proto/README.md, "A
 program as an engine"): a header each way, then one JetsRecord per EventRecord, flushed after
-each. The clustering is the same plain O(N^2) generalised kt as the C++ example (every jet keeps
-its geometric nearest neighbour; arXiv:hep-ph/0512210 for why that finds the smallest pair),
+each. The clustering is the same plain O(N^2) generalised kt as the C++ example (every jet keeps its
+neighbour by the pair measure; arXiv:hep-ph/0512210 for why that finds the smallest pair),
 written for reading, not for speed: expect milliseconds to seconds per event where the engine
 takes microseconds. cluster_time_ns is measured around the clustering only.
 
@@ -109,28 +109,37 @@ def cluster_event(event, grid, settings):
         jets.append(dict(px=et * math.cos(phi), py=et * math.sin(phi), pz=et * math.sinh(eta), e=et * math.cosh(eta),
                          y=eta, phi=phi, kt2=et * et, w=weight_of(et * et, settings['p']), towers=[index]))
     inv_r2 = 1 / (settings['radius'] * settings['radius'])
+    # live stays in increasing jet index (a merge makes the largest): the first of equal
+    # measures met in a scan has the smaller indices
     live = list(range(len(jets)))
-    nearest, nearest_dr2 = {}, {}
+    nearest, nearest_measure = {}, {}
+
+    def pair_measure(i, j):
+        return (jets[i]['w'] * delta_r2(jets[i], jets[j])) * inv_r2
 
     def find_nearest(i):
-        nearest[i], nearest_dr2[i] = -1, math.inf
+        nearest[i], nearest_measure[i] = -1, math.inf
         for j in live:
             if j != i:
-                dr2 = delta_r2(jets[i], jets[j])
-                if dr2 < nearest_dr2[i]:
-                    nearest[i], nearest_dr2[i] = j, dr2
+                measure = pair_measure(i, j)
+                if measure < nearest_measure[i]:
+                    nearest[i], nearest_measure[i] = j, measure
 
-    def pair_measure(i):
-        return math.inf if nearest[i] < 0 else (jets[i]['w'] * nearest_dr2[i]) * inv_r2
+    def candidate(i):
+        # (measure, smaller index, larger index); the beam ranks after every jet
+        j = nearest[i]
+        if j >= 0 and nearest_measure[i] <= jets[i]['w']:
+            return (nearest_measure[i], min(i, j), max(i, j))
+        return (jets[i]['w'], i, math.inf)
 
     for i in live:
         find_nearest(i)
     finals = []
     while live:
-        # the smallest measure; at equal measures a pair goes before a beam
-        best = min(range(len(live)), key=lambda k: min(pair_measure(live[k]), jets[live[k]]['w']))
+        best = min(range(len(live)), key=lambda k: candidate(live[k]))
+        chosen = candidate(live[best])
         i = live.pop(best)
-        j = nearest[i] if pair_measure(i) <= jets[i]['w'] else -1
+        j = -1 if chosen[2] == math.inf else nearest[i]
         if j < 0:
             finals.append(jets[i])
             for k in live:
@@ -148,9 +157,10 @@ def cluster_event(event, grid, settings):
             if nearest[k] in (i, j):
                 find_nearest(k)
             else:
-                dr2 = delta_r2(jets[k], jets[merged])
-                if dr2 < nearest_dr2[k]:
-                    nearest[k], nearest_dr2[k] = merged, dr2
+                # on equal measures the older neighbour has the smaller index and stays
+                measure = pair_measure(k, merged)
+                if measure < nearest_measure[k]:
+                    nearest[k], nearest_measure[k] = merged, measure
     kept = [jet for jet in finals if math.sqrt(jet['kt2']) >= settings['pt_min']]
     kept.sort(key=lambda jet: -jet['kt2'])
     return kept
