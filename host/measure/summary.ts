@@ -8,6 +8,7 @@ import { LatencyRecorder, type EncodedLatency, type LatencyStats } from './laten
 import { fitScaling, scalingSamples, type Scaling } from './scaling-fit.js';
 import { STAGES, type CheckedDifference, type FailedBatch, type InvalidEvent, type RunTally, type Saturation, type Stage } from './run-tally.js';
 import type { MachineLoad } from './machine-load.js';
+import { plainHistograms, type PlainHistogram } from './plain-histogram.js';
 import type { TowerCounts } from '../types.js';
 
 export interface MachineInfo {
@@ -118,6 +119,8 @@ export interface RunSummary {
     stages: Record<Stage, EncodedLatency>;
     multiplicity: { bin: number; sumTowers: number; histogram: EncodedLatency }[];
   };
+  /** the latency histograms above as percentile tables and log-bin counts in µs, readable without an HDR library (plain-histogram.ts) */
+  plainHistograms?: Record<string, PlainHistogram | Record<string, PlainHistogram>>;
   findRate?: FindRateResult;
   scanWorkers?: ScanWorkersResult;
 }
@@ -173,7 +176,7 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
   const budgetUs = context.configuration.budgetUs;
   const timed = tally.service.count;
   const wallSeconds = context.wallSeconds;
-  return {
+  const summary: RunSummary = {
     format: 'jetlag-run-summary',
     version: SUMMARY_VERSION,
     partial: context.partial,
@@ -224,4 +227,6 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
         recorder ? [{ bin, sumTowers: tally.multiplicity.sumTowers[bin], histogram: recorder.encode() }] : []),
     },
   };
+  summary.plainHistograms = plainHistograms(summary.histograms as unknown as Record<string, unknown>);
+  return summary;
 }
