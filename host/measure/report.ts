@@ -5,6 +5,16 @@
 
 import type { LatencyStats } from './latency.js';
 import type { RunSummary } from './summary.js';
+import { PILEUP_STAGES, type PileupStage } from './run-tally.js';
+
+/** the pileup chain's stages as the latency table names them */
+const PILEUP_STAGE_LABELS: Record<PileupStage, string> = {
+  softkiller: 'SoftKiller',
+  clustering: 'ghosts, clustering',
+  'rho-patches': 'ρ from patches',
+  'rho-kt': 'ρ from kt jets',
+  subtraction: 'areas, subtraction',
+};
 
 const COLUMNS = ['events', 'p50', 'p90', 'p99', 'p99.9', 'max', 'mean'] as const;
 const LABEL_WIDTH = 20;
@@ -69,6 +79,11 @@ function latencyLines(summary: RunSummary): string[] {
   const openLoop = summary.configuration.arrival.mode !== 'closed';
   const l = summary.latency;
   const rows = [latencyRow('service', l.service)];
+  const chain = l.pileupStages ?? {};
+  for (const stage of PILEUP_STAGES) {
+    const stats = chain[stage];
+    if (stats) rows.push(latencyRow(`  ${PILEUP_STAGE_LABELS[stage]}`, stats));
+  }
   if (openLoop) {
     rows.push(latencyRow('wait', l.wait), latencyRow('return', l.return), latencyRow('end-to-end', l.endToEnd));
     rows.push(latencyRow('harness: dispatch late', summary.harness.dispatchLateness));
@@ -76,6 +91,7 @@ function latencyLines(summary: RunSummary): string[] {
   const lines = [`  ${'latency µs'.padEnd(LABEL_WIDTH)}${COLUMNS.map((col) => col.padStart(CELL_WIDTH)).join('')}`];
   lines.push(...rows.map((row) => row.text));
   lines.push(`  ${''.padEnd(LABEL_WIDTH)}service: the engine's own time per event, measured inside the worker around clustering`);
+  if (l.pileupStages) lines.push(`  ${''.padEnd(LABEL_WIDTH)}indented: the pileup chain's stages inside service, per event (spec part two)`);
   if (openLoop) {
     lines.push(`  ${''.padEnd(LABEL_WIDTH)}end-to-end = wait + service + return, per event, from its scheduled arrival to its result on the main thread;`);
     lines.push(`  ${''.padEnd(LABEL_WIDTH)}dispatch late: the harness handing events over after their scheduled time (part of wait)`);

@@ -9,6 +9,13 @@ import type { JetDifference } from '../validate/bit-exact.js';
 
 export const STAGES = ['decode', 'bin', 'cluster', 'check', 'encode'] as const;
 export type Stage = (typeof STAGES)[number];
+/**
+ * The pileup chain's stages (spec part two), parts of 'cluster' (so not in the workers' busy
+ * time twice): SoftKiller, ghosts + clustering, ρ from patches, ρ from kt jets (a second
+ * clustering), subtraction. Recorded only for the stages that ran.
+ */
+export const PILEUP_STAGES = ['softkiller', 'clustering', 'rho-patches', 'rho-kt', 'subtraction'] as const;
+export type PileupStage = (typeof PILEUP_STAGES)[number];
 
 /** Invalid events and failed batches are listed up to this many each; the counts stay exact. */
 export const LISTED_MAX = 1000;
@@ -83,6 +90,13 @@ export class RunTally {
     cluster: new LatencyRecorder(),
     check: new LatencyRecorder(),
     encode: new LatencyRecorder(),
+  };
+  readonly pileupStages: Record<PileupStage, LatencyRecorder> = {
+    softkiller: new LatencyRecorder(),
+    clustering: new LatencyRecorder(),
+    'rho-patches': new LatencyRecorder(),
+    'rho-kt': new LatencyRecorder(),
+    subtraction: new LatencyRecorder(),
   };
   readonly multiplicity = new MultiplicityBins();
   /**
@@ -175,6 +189,7 @@ export class RunTally {
     this.dispatchLateness.merge(other.dispatchLateness);
     this.towersPerEvent.merge(other.towersPerEvent);
     for (const stage of STAGES) this.stages[stage].merge(other.stages[stage]);
+    for (const stage of PILEUP_STAGES) this.pileupStages[stage].merge(other.pileupStages[stage]);
     this.multiplicity.merge(other.multiplicity);
     this.overBudget += other.overBudget;
     // shards run side by side: their rates add, and one saturated shard saturates the whole

@@ -6,10 +6,10 @@
 import os from 'node:os';
 import { LatencyRecorder, type EncodedLatency, type LatencyStats } from './latency.js';
 import { fitScaling, scalingSamples, type Scaling } from './scaling-fit.js';
-import { STAGES, type CheckedDifference, type FailedBatch, type InvalidEvent, type RunTally, type Saturation, type Stage } from './run-tally.js';
+import { PILEUP_STAGES, STAGES, type PileupStage, type CheckedDifference, type FailedBatch, type InvalidEvent, type RunTally, type Saturation, type Stage } from './run-tally.js';
 import type { MachineLoad } from './machine-load.js';
 import { plainHistograms, type PlainHistogram } from './plain-histogram.js';
-import type { TowerCounts } from '../types.js';
+import type { PileupSettings, TowerCounts } from '../types.js';
 
 export interface MachineInfo {
   cpuModel: string;
@@ -36,6 +36,8 @@ export interface RunConfiguration {
   engine: string;
   grid: { etaMin: number; etaMax: number; etaBins: number; phiBins: number };
   settings: { p: number; radius: number; ptMin: number; threshold: number; recombination: string };
+  /** the pileup steps around the clustering (spec part two); absent when none ran */
+  pileup?: PileupSettings;
   workers: number;
   batch: number;
   arrival: { mode: 'closed' | 'fixed' | 'poisson'; rateHz: number | null; seed: number | null };
@@ -87,6 +89,8 @@ export interface RunSummary {
     /** open loop only: scheduled arrival to the result back on the main thread, per event */
     endToEnd: LatencyStats;
     stages: Record<Stage, LatencyStats>;
+    /** the pileup chain's stages that ran (parts of service; spec part two); absent without pileup steps */
+    pileupStages?: Partial<Record<PileupStage, LatencyStats>>;
   };
   /** the harness's own figures, apart from the events' */
   harness: {
@@ -117,6 +121,7 @@ export interface RunSummary {
     dispatchLateness: EncodedLatency;
     towersPerEvent: EncodedLatency;
     stages: Record<Stage, EncodedLatency>;
+    pileupStages?: Partial<Record<PileupStage, EncodedLatency>>;
     multiplicity: { bin: number; sumTowers: number; histogram: EncodedLatency }[];
   };
   /** the latency histograms above as percentile tables and log-bin counts in µs, readable without an HDR library (plain-histogram.ts) */
@@ -170,6 +175,15 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
     stagesStats[stage] = tally.stages[stage].stats();
     stagesEncoded[stage] = tally.stages[stage].encode();
   }
+  // the pileup chain's stages, those with events: a run without pileup steps has none
+  const chainStats: Partial<Record<PileupStage, LatencyStats>> = {};
+  const chainEncoded: Partial<Record<PileupStage, EncodedLatency>> = {};
+  for (const stage of PILEUP_STAGES) {
+    if (tally.pileupStages[stage].count === 0) continue;
+    chainStats[stage] = tally.pileupStages[stage].stats();
+    chainEncoded[stage] = tally.pileupStages[stage].encode();
+  }
+  const chainRan = Object.keys(chainStats).length > 0;
   const towers = tally.towersPerEvent;
   const scaling = fitScaling(scalingSamples(tally.multiplicity), towers.count > 0 ? towers.minNs : null, towers.count > 0 ? towers.maxNs : null);
   const openLoop = context.configuration.arrival.mode !== 'closed';
@@ -197,6 +211,7 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
       return: openLoopStats(tally.returnTrip, openLoop),
       endToEnd: openLoopStats(tally.endToEnd, openLoop),
       stages: stagesStats,
+      ...(chainRan ? { pileupStages: chainStats } : {}),
     },
     harness: { dispatchLateness: openLoopStats(tally.dispatchLateness, openLoop) },
     saturation: openLoop ? tally.saturation : null,
@@ -223,6 +238,7 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
       dispatchLateness: tally.dispatchLateness.encode(),
       towersPerEvent: towers.encode(),
       stages: stagesEncoded,
+      ...(chainRan ? { pileupStages: chainEncoded } : {}),
       multiplicity: tally.multiplicity.recorders.flatMap((recorder, bin) =>
         recorder ? [{ bin, sumTowers: tally.multiplicity.sumTowers[bin], histogram: recorder.encode() }] : []),
     },

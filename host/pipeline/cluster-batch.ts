@@ -7,13 +7,15 @@
 
 import { MIN_ET } from '../clustering/grid.js';
 import { batchEventJets, type BatchJets } from '../clustering/engine.js';
-import type { ReferenceClusterer } from '../clustering/reference.js';
+import { EnginePileupClusterer } from '../clustering/pileup/engine-chain.js';
+import { firstPileupDifference } from '../validate/pileup-bit-exact.js';
 import type { EventTowerReader } from '../input/event-towers.js';
 import { firstJetDifference } from '../validate/bit-exact.js';
 import { hashToUnit } from '../random.js';
 import type { Clusterer, JetSet } from '../types.js';
 import {
   batchViews, resultBytes, resultViews, STAGE_BIN, STAGE_CHECK, STAGE_CLUSTER, STAGE_COUNT, STAGE_DECODE, STAGE_ENCODE,
+  PILEUP_STAGE_COUNT, STAGE_PILEUP_FIRST,
   STATUS_INVALID, STATUS_OK, type BatchResult, type BatchTask, type WorkerConfig,
 } from './worker-contract.js';
 
@@ -38,7 +40,8 @@ export interface WorkerState {
   reader: EventTowerReader;
   /** null after a batch failed: it may be poisoned, and is made again for the next batch */
   clusterer: Clusterer | null;
-  reference: ReferenceClusterer | null;
+  /** the plain reference, or the reference's pileup chain when pileup steps are on */
+  reference: Clusterer | null;
   /** the valid events of the batch being worked on: their towers, flat, and their places */
   batchIndex: Int32Array;
   batchEt: Float64Array;
@@ -193,6 +196,10 @@ function clusterValidEvents(state: WorkerState, clusterer: Clusterer, work: Batc
       hooks.duringService?.(out.eventNumber[validEvent[v]]);
       const jets = clusterer.cluster(state.batchIndex.subarray(batchStart[v], batchStart[v + 1]), state.batchEt.subarray(batchStart[v], batchStart[v + 1]));
       out.stageNs[validEvent[v] * STAGE_COUNT + STAGE_CLUSTER] = nowNs() - t2;
+      if (clusterer instanceof EnginePileupClusterer) {
+        const at = validEvent[v] * STAGE_COUNT + STAGE_PILEUP_FIRST;
+        for (let stage = 0; stage < PILEUP_STAGE_COUNT; stage++) out.stageNs[at + stage] = clusterer.stageNs[stage];
+      }
       result.jets += jets.count;
       sets.push(jets);
     }
@@ -232,7 +239,7 @@ function checkAndEncode(state: WorkerState, work: BatchWork, jetsOf: (v: number)
       result.sampled.push({ index: k, event, bytes: data.slice(recordStart[k], recordStart[k + 1]) });
     } else if (reference && inCheckSample(event, config.checkFraction, config.checkSeed)) {
       const expected = reference.cluster(state.batchIndex.subarray(from, to), state.batchEt.subarray(from, to));
-      const difference = firstJetDifference(jetsOf(slot), expected);
+      const difference = firstJetDifference(jetsOf(slot), expected) ?? pileupDifference(jetsOf(slot), expected);
       result.checked++;
       if (difference === null) result.agreeing++;
       else {
@@ -251,6 +258,14 @@ function checkAndEncode(state: WorkerState, work: BatchWork, jetsOf: (v: number)
     hooks.stageTimes?.(out.stageNs, at, out.towersClustered[k]);
   }
   if (encodeJets) result.jetsBytes = joined(jetChunks);
+}
+
+/** the first difference of the pileup values (spec part two), as a jet difference for the summary */
+function pileupDifference(engine: JetSet, reference: JetSet): ReturnType<typeof firstJetDifference> {
+  const difference = firstPileupDifference(engine, reference);
+  if (difference === null) return null;
+  // a per-event value is named on jet 0 with an "event." field, so that the line says which
+  return { ...difference, jet: difference.jet ?? 0, field: difference.jet === null ? `event.${difference.field}` : difference.field };
 }
 
 function joined(chunks: Uint8Array[]): Uint8Array {

@@ -2,12 +2,12 @@
 // batch order, is tallied (events, stage times, latency, budget, check), its problems become
 // one line each, its disagreeing events go to the repro file and its jets to the jets file.
 
-import { RunTally, STAGES } from '../measure/run-tally.js';
+import { PILEUP_STAGES, RunTally, STAGES } from '../measure/run-tally.js';
 import { describeDifference } from '../validate/bit-exact.js';
 import type { OutputFile } from '../output/record-writer.js';
 import type { ReproWriter } from '../output/repro-writer.js';
 import type { BatchOutcome } from './pool.js';
-import { resultViews, STAGE_CHECK, STAGE_CLUSTER, STAGE_COUNT, STAGE_ENCODE, STAGE_INDEX, STATUS_OK, type BatchResult } from './worker-contract.js';
+import { resultViews, STAGE_CHECK, STAGE_CLUSTER, STAGE_COUNT, STAGE_ENCODE, STAGE_INDEX, STAGE_PILEUP_FIRST, STATUS_OK, type BatchResult } from './worker-contract.js';
 
 export interface DeliveryContext {
   /** the input as named in problem lines */
@@ -122,6 +122,11 @@ export class RunDelivery {
         // stages that did not run for this event (check not sampled, no jets file) are not recorded
         if ((index === STAGE_CHECK || index === STAGE_ENCODE) && value === 0) continue;
         tally.stages[stage].recordNs(value);
+      }
+      // the pileup chain's stages, those that ran (0: off, or no pileup steps in this run)
+      for (let stage = 0; stage < PILEUP_STAGES.length; stage++) {
+        const value = views.stageNs[at + STAGE_PILEUP_FIRST + stage];
+        if (value > 0) tally.pileupStages[PILEUP_STAGES[stage]].recordNs(value);
       }
       if (openLoop) {
         // one event per outcome, timed from its scheduled arrival (open-loop-feed.ts)

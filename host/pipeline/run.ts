@@ -19,7 +19,8 @@ import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { openEventSource } from '../input/event-source.js';
 import { InputError, UsageError } from '../errors.js';
 import { loadEngineModule, WasmClusterer } from '../clustering/engine.js';
-import type { EngineName } from '../clustering/clusterers.js';
+import { makeClusterer, type EngineName } from '../clustering/clusterers.js';
+import { pileupStepsOn } from '../clustering/pileup/settings.js';
 import { ArrivalSchedule, nowNs, type ArrivalMode } from './arrivals.js';
 import { BatchPool } from './pool.js';
 import { RecordFeed } from './run-feed.js';
@@ -31,7 +32,7 @@ import { MachineLoadProbe } from '../measure/machine-load.js';
 import type { WorkerConfig } from './worker-contract.js';
 import { describeMachine, renderSummary, type RunConfiguration, type RunSummary } from '../measure/summary.js';
 import { ProgressBar } from '../measure/progress.js';
-import { DEFAULT_SETTINGS, type ClusterSettings, type Grid } from '../types.js';
+import { DEFAULT_SETTINGS, type ClusterSettings, type Grid, type PileupSettings } from '../types.js';
 import { encodeJetsFileHeader } from '../formats/jets-codec.js';
 import { ReproWriter } from '../output/repro-writer.js';
 import { OutputFile } from '../output/record-writer.js';
@@ -65,6 +66,8 @@ export interface RunOptions {
   budgetUs?: number | null;
   check?: CheckOption;
   settings?: ClusterSettings;
+  /** the pileup steps around the clustering (spec part two); none when absent */
+  pileup?: PileupSettings | null;
   engine?: WorkerConfig['engine'];
   shard?: { index: number; count: number };
   /** jets file to write (temporary name, renamed when complete) */
@@ -107,6 +110,8 @@ interface RunPlan {
   arrival: ArrivalMode;
   check: CheckOption;
   settings: ClusterSettings;
+  /** null when no pileup step runs */
+  pileup: PileupSettings | null;
   engine: EngineName;
   shard: { index: number; count: number };
   budgetUs: number | null;
@@ -129,6 +134,7 @@ function planRun(options: RunOptions): RunPlan {
     arrival: options.arrival ?? { kind: 'closed' },
     check: options.check ?? DEFAULT_CHECK,
     settings: options.settings ?? { ...DEFAULT_SETTINGS },
+    pileup: pileupStepsOn(options.pileup) ? { ...options.pileup } : null,
     engine: options.engine ?? 'wasm',
     shard,
     budgetUs,
@@ -179,7 +185,7 @@ function checkFractionOf(check: CheckOption): number {
 
 function workerConfigOf(plan: RunPlan, grid: Grid, encodeJets: boolean): WorkerConfig {
   // the timed pass sends its check sample back; the reference runs after it (check-pass.ts)
-  return { grid, settings: plan.settings, engine: plan.engine, checkFraction: checkFractionOf(plan.check), checkSeed: plan.check.seed, encodeJets, checkApart: true };
+  return { grid, settings: plan.settings, pileup: plan.pileup, engine: plan.engine, checkFraction: checkFractionOf(plan.check), checkSeed: plan.check.seed, encodeJets, checkApart: true };
 }
 
 /**
@@ -190,7 +196,7 @@ function workerConfigOf(plan: RunPlan, grid: Grid, encodeJets: boolean): WorkerC
 async function openOutputs(options: RunOptions, plan: RunPlan, grid: Grid, inputLabel: string) {
   const jetsFile = options.out ? await OutputFile.open(options.out, { force: options.force }) : null;
   const jetsHeaderPending = jetsFile
-    ? jetsFile.write(encodeJetsFileHeader(grid, { ...plan.settings, engine: plan.engine }, { producer: producerName('run'), label: inputLabel }))
+    ? jetsFile.write(encodeJetsFileHeader(grid, { ...plan.settings, engine: plan.engine, ...(plan.pileup ? { pileup: plan.pileup } : {}) }, { producer: producerName('run'), label: inputLabel }))
     : undefined;
   const repro = options.repro ? await ReproWriter.open(options.repro, { grid, source: plan.label, engine: plan.engine, force: options.force }) : null;
   return { jetsFile, jetsHeaderPending, repro };
@@ -202,6 +208,8 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const source = await openEventSource(options.input, { fileLabel: plan.label, grid: options.grid, maxEventGap: options.maxEventGap });
   const grid: Grid = source.header.grid;
   if (plan.engine === 'wasm') refuseUnusableEngine(grid, plan.settings);
+  // the pileup settings' limits need the grid; a chain the workers would refuse is refused here
+  if (plan.pileup) makeClusterer(plan.engine, grid, plan.settings, null, plan.pileup, 'run');
   const bytesTotal = progressBytesTotal(options);
   const config = workerConfigOf(plan, grid, Boolean(options.out));
   const { jetsFile, jetsHeaderPending, repro } = await openOutputs(options, plan, grid, source.header.label);
@@ -267,6 +275,7 @@ function summarize(options: RunOptions, plan: RunPlan, delivery: RunDelivery, fe
     engine: delivery.engineName,
     grid: { ...run.grid },
     settings: { ...plan.settings },
+    ...(plan.pileup ? { pileup: plan.pileup } : {}),
     workers: plan.workers,
     batch: plan.batch,
     arrival: {

@@ -13,6 +13,7 @@
 // Result buffer (worker -> host, one transferred ArrayBuffer, BatchResult.buffer):
 //   Float64 eventNumber[count]                 -1 for a record that broke before its number
 //   Float64 stageNs[count * STAGE_COUNT]       event-major: event k's stage s at k * STAGE_COUNT + s
+//                                              (the five of STAGE_INDEX, then the pileup chain's)
 //   Int32   towersClustered[count]             towers above the threshold (valid events)
 //   Uint8   status[count]                      STATUS_OK or STATUS_INVALID
 // Everything else (invalid events' reasons, check differences, jets bytes) travels as small
@@ -20,7 +21,7 @@
 
 import type { EngineName } from '../clustering/clusterers.js';
 import type { JetDifference } from '../validate/bit-exact.js';
-import type { ClusterSettings, Grid } from '../types.js';
+import type { ClusterSettings, Grid, PileupSettings } from '../types.js';
 import type { MessagePort } from 'node:worker_threads';
 import type { RingBuffers } from './event-ring.js';
 
@@ -33,7 +34,14 @@ export const STAGE_CLUSTER = 2;
 export const STAGE_CHECK = 3;
 /** 0 when no jets file is written */
 export const STAGE_ENCODE = 4;
-export const STAGE_COUNT = 5;
+/**
+ * The pileup chain's own stages (spec part two), parts of STAGE_CLUSTER, in the engine chain's
+ * order (clustering/pileup/engine-chain.ts STAGE_*): column STAGE_PILEUP_FIRST + that stage.
+ * 0 for a stage that is off, and for every event of a run without pileup steps.
+ */
+export const STAGE_PILEUP_FIRST = 5;
+export const PILEUP_STAGE_COUNT = 5;
+export const STAGE_COUNT = STAGE_PILEUP_FIRST + PILEUP_STAGE_COUNT;
 
 /** The stage table's column of each stage, by the stage's reported name. */
 export const STAGE_INDEX = {
@@ -51,6 +59,8 @@ export const STATUS_INVALID = 1;
 export interface WorkerConfig {
   grid: Grid;
   settings: ClusterSettings;
+  /** the pileup steps around the clustering (spec part two); null or absent: none */
+  pileup?: PileupSettings | null;
   /** the engine or the reference; never swapped silently for the other */
   engine: EngineName;
   /** fraction of events compared with the reference: 1 all, 0 none */

@@ -10,8 +10,9 @@
 // What comes in and goes out, and the buffers' layouts: worker-contract.ts.
 
 import { move, transferableSymbol, valueSymbol, workerData as piscinaWorkerData } from 'piscina';
-import { makeClusterer } from '../clustering/clusterers.js';
+import { makeClusterer, makeReferenceClusterer } from '../clustering/clusterers.js';
 import { ReferenceClusterer } from '../clustering/reference.js';
+import { PileupReferenceClusterer } from '../clustering/pileup/chain.js';
 import { EventTowerReader } from '../input/event-towers.js';
 import { encodeDelimitedJetsRecord } from '../formats/jets-codec.js';
 import { clusterBatch, type WorkerHooks, type WorkerState } from './cluster-batch.js';
@@ -22,9 +23,9 @@ function makeState(config: WorkerConfig, hooks: WorkerHooks): WorkerState {
   return {
     config,
     reader: new EventTowerReader(config.grid),
-    clusterer: hooks.clusterer ? hooks.clusterer() : makeClusterer(config.engine, config.grid, config.settings),
+    clusterer: hooks.clusterer ? hooks.clusterer() : makeClusterer(config.engine, config.grid, config.settings, null, config.pileup, 'run'),
     // a timed pass leaves the reference to the check pass (check-pass.ts)
-    reference: config.checkFraction > 0 && !config.checkApart ? new ReferenceClusterer(config.grid, config.settings) : null,
+    reference: config.checkFraction > 0 && !config.checkApart ? makeReferenceClusterer(config.grid, config.settings, config.pileup) : null,
     batchIndex: new Int32Array(1 << 16),
     batchEt: new Float64Array(1 << 16),
     batchStart: new Int32Array(1),
@@ -40,7 +41,7 @@ function makeState(config: WorkerConfig, hooks: WorkerHooks): WorkerState {
 export function makeBatchRunner(hooks: WorkerHooks = {}): (task: BatchTask) => Promise<unknown> {
   let state: WorkerState | null = null;
   const ensureClusterer = (s: WorkerState) => {
-    if (!s.clusterer) s.clusterer = hooks.clusterer ? hooks.clusterer() : makeClusterer(s.config.engine, s.config.grid, s.config.settings);
+    if (!s.clusterer) s.clusterer = hooks.clusterer ? hooks.clusterer() : makeClusterer(s.config.engine, s.config.grid, s.config.settings, null, s.config.pileup, 'run');
   };
   return async function runBatch(task: BatchTask | ServeTask): Promise<unknown> {
     if (!state) state = makeState(piscinaWorkerData as WorkerConfig, hooks);
@@ -91,7 +92,9 @@ function warmUp(state: WorkerState): void {
     x = (Math.imul(x, 1103515245) + 12345) >>> 0;
     towerEt[k] = 0.05 + (x / 4294967296) * (k % 97 === 0 ? 200 : 2);
   }
-  for (let call = 0; call < WARM_UP_CALLS; call++) state.clusterer!.cluster(towerIndex, towerEt);
+  // the reference's pileup chain clusters a full ghost grid, about a second a call
+  const calls = state.clusterer instanceof PileupReferenceClusterer ? 1 : WARM_UP_CALLS;
+  for (let call = 0; call < calls; call++) state.clusterer!.cluster(towerIndex, towerEt);
   state.reference?.cluster(towerIndex.subarray(0, 200), towerEt.subarray(0, 200));
 }
 

@@ -16,6 +16,7 @@ import { DISPLAY_OPTION, PER_EVENT_OPTION, REPORT_OPTION, RunReportOutputs } fro
 import type { ArrivalMode } from '../../pipeline/arrivals.js';
 import type { EngineName } from '../../clustering/clusterers.js';
 import { parseWindowEmulation, windowFinderName } from '../../clustering/window-finder.js';
+import { PILEUP_OPTIONS, pileupSettingsFrom } from '../pileup-options.js';
 
 /** problem lines (invalid events, failed batches, check differences) written to stderr */
 const PROBLEM_LINES_MAX = 20;
@@ -53,6 +54,7 @@ export const spec: CommandSpec = {
     DISPLAY_OPTION,
     FORCE_OPTION,
     ...CLUSTER_OPTIONS,
+    ...PILEUP_OPTIONS,
     ...GRID_OPTIONS.map((o) => ({ ...o, description: `CSV input: ${o.description}` })),
     MAX_EVENT_GAP_OPTION,
   ],
@@ -136,6 +138,7 @@ export function runOptionsFrom(args: ParsedArgs): RunOptions & { maxMissFraction
     budgetUs,
     check: parseCheck(window !== null ? 'none' : check, seed),
     settings: clusterSettingsFrom(args, 'run'),
+    pileup: pileupSettingsFrom(args, 'run'),
     grid: gridFrom(args, 'run'),
     maxEventGap: maxEventGapFrom(args, 'run'),
     force: args.values.force === true,
