@@ -2,10 +2,11 @@
 // after npm run build):
 //   1. the pool's per-task round trip (tinybench), and events/s against the batch size K,
 //      which chose run.ts's DEFAULT_BATCH;
-//   2. 1 against 2 workers at pileup 200 (closed loop);
-//   3. the host's own cost per event (main thread: read, frame, copy, dispatch, collect; worker:
-//      decode and bin) against the clustering time per event;
-//   4. resident memory while streaming a generated file of at least 1 GiB (skipped by --quick).
+//   2. 1 against 2 workers at pileup 200 (closed loop), median of alternating rounds;
+//   3. the main thread's own CPU per event against the service time per event (closed loop);
+//   4. open loop at half the sustained rate: dispatch lateness and end-to-end minus service per
+//      event; then 1 against 2 workers in an open loop (the default worker count);
+//   5. resident memory while streaming a generated file of at least 1 GiB (skipped by --quick).
 // Events are invented (the toy generator, host/generate.ts). Figures go to stdout and to
 // bench/results/pool.json (not committed). The machine is shared: quote medians and ratios.
 
@@ -23,11 +24,12 @@ import { DEFAULT_GRID } from '../host/types.js';
 import { runEvents, type RunOptions } from '../host/pipeline/run.js';
 import { workerFile } from '../host/pipeline/pool.js';
 import { describeMachine } from '../host/measure/summary.js';
+import { LatencyRecorder } from '../host/measure/latency.js';
 
 const quick = process.argv.includes('--quick');
-/** sections 1-3 at full size, without the long streaming run */
+/** sections 1-4 at full size, without the long streaming run */
 const noStreaming = process.argv.includes('--no-streaming');
-/** only section 4 (the long streaming run) */
+/** only section 5 (the long streaming run) */
 const streamingOnly = process.argv.includes('--streaming-only');
 const dir = mkdtempSync(join(tmpdir(), 'jetlag-bench-'));
 const results: Record<string, unknown> = { machine: describeMachine() };
@@ -131,67 +133,134 @@ async function spinScaling(): Promise<number> {
   const two = await spin(2);
   return (2 * one) / Math.max(...two);
 }
+/** CPU ns of the main thread so far, from the scheduler's own count (Linux; 0 elsewhere). */
+function mainThreadCpuNs(): number {
+  try {
+    return Number(readFileSync(`/proc/self/task/${process.pid}/schedstat`, 'utf8').split(' ')[0]);
+  } catch {
+    return 0;
+  }
+}
+
+/** Rounds of the 1- against 2-worker comparison; each round runs both, in turn. */
+const ROUNDS = quick ? 3 : 5;
+let closedTwoWorkersHz = 0;
+let closedOneWorkerHz = 0;
 if (!streamingOnly) {
   const perWorkers: Record<number, number[]> = { 1: [], 2: [] };
   const cpuPerEvent: Record<number, number[]> = { 1: [], 2: [] };
+  const ratios: number[] = [];
   const machine: number[] = [];
-  for (let r = 0; r < 3; r++) {
+  for (let r = 0; r < ROUNDS; r++) {
     machine.push(await spinScaling());
-    for (const workers of [1, 2]) {
+    // the order alternates between rounds, so a machine growing busier favours neither
+    for (const workers of r % 2 === 0 ? [1, 2] : [2, 1]) {
       const before = threadCpuSeconds();
       const summary = await runEvents({ ...base, workers });
       cpuPerEvent[workers].push(((threadCpuSeconds() - before) * 1e6) / summary.events.read);
       perWorkers[workers].push(summary.throughput.eventsPerSecond);
     }
+    ratios.push(perWorkers[2][r] / perWorkers[1][r]);
   }
-  const one = median(perWorkers[1]);
-  const two = median(perWorkers[2]);
-  results.workers = { one, two, ratio: two / one, cpuUsPerEvent: { one: median(cpuPerEvent[1]), two: median(cpuPerEvent[2]) }, machineTwoThreadScaling: median(machine) };
-  line(`workers: 1 → ${one.toFixed(0)} events/s, 2 → ${two.toFixed(0)} events/s, ratio ${(two / one).toFixed(2)} (medians of 3); ` +
+  closedOneWorkerHz = median(perWorkers[1]);
+  closedTwoWorkersHz = median(perWorkers[2]);
+  results.workers = {
+    one: closedOneWorkerHz, two: closedTwoWorkersHz, ratioMedianOfRounds: median(ratios), ratios,
+    cpuUsPerEvent: { one: median(cpuPerEvent[1]), two: median(cpuPerEvent[2]) }, machineTwoThreadScaling: median(machine),
+  };
+  line(`closed loop, workers: 1 → ${closedOneWorkerHz.toFixed(0)} events/s, 2 → ${closedTwoWorkersHz.toFixed(0)} events/s; ` +
+    `2 against 1: median ${median(ratios).toFixed(2)}× of ${ROUNDS} alternating rounds (${ratios.map((x) => x.toFixed(2)).join(', ')}); ` +
     `CPU per event ${median(cpuPerEvent[1]).toFixed(0)} µs with 1, ${median(cpuPerEvent[2]).toFixed(0)} µs with 2; ` +
     `two spinning threads got ${median(machine).toFixed(2)}× one at the time`);
 }
 
-// ---- 3. host overhead against clustering time -----------------------------------------
-// The host's own cost per event: the main thread's CPU time (read, frame, copy, dispatch,
-// collect, tally; from /proc/self/task/<pid>/stat, so other threads and other processes do not
-// count) plus the workers' decode and bin stages, against the clustering time per event. The
-// main thread's cost of starting the pool, measured by a run of zero events, is taken off.
-/** CPU seconds of the main thread so far (Linux; 0 elsewhere). */
-function mainThreadCpuSeconds(): number {
-  try {
-    const stat = readFileSync(`/proc/self/task/${process.pid}/stat`, 'utf8');
-    const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
-    return (Number(fields[11]) + Number(fields[12])) / 100; // utime + stime in clock ticks of 1/100 s
-  } catch {
-    return 0;
-  }
-}
+// ---- 3. the main thread's own cost against service time ------------------------------------
+// The main thread's CPU time (read, frame, copy, dispatch, collect, tally; the scheduler's count
+// for that thread alone, so workers and other processes do not count), per event, against the
+// mean service time; the cost of starting the pool, measured by a run of zero events, is taken
+// off. The workers' decode and bin stages are shown beside it.
 if (!streamingOnly) {
-  const startup0 = mainThreadCpuSeconds();
+  const startup0 = mainThreadCpuNs();
   await runEvents({ ...base, workers: 2, maxEvents: 0 });
-  const startupSeconds = mainThreadCpuSeconds() - startup0;
-  let mainSeconds = 0;
+  const startupNs = mainThreadCpuNs() - startup0;
+  let mainNs = 0;
   let events = 0;
-  let clusterNs = 0;
+  let serviceNs = 0;
   let decodeBinNs = 0;
   for (let r = 0; r < 4; r++) {
-    const before = mainThreadCpuSeconds();
+    const before = mainThreadCpuNs();
     const summary = await runEvents({ ...base, workers: 2 });
-    mainSeconds += mainThreadCpuSeconds() - before - startupSeconds;
+    mainNs += mainThreadCpuNs() - before - startupNs;
     events += summary.events.read;
-    clusterNs += summary.histograms.service.sumNs;
+    serviceNs += summary.histograms.service.sumNs;
     decodeBinNs += summary.histograms.stages.decode.sumNs + summary.histograms.stages.bin.sumNs;
   }
-  const mainUs = (mainSeconds * 1e6) / events;
+  const mainUs = mainNs / 1e3 / events;
   const workerUs = decodeBinNs / 1e3 / events;
-  const clusterUs = clusterNs / 1e3 / events;
-  results.hostOverhead = { mainThreadCpuUsPerEvent: mainUs, workerDecodeBinUsPerEvent: workerUs, clusterMeanUs: clusterUs, ratio: (mainUs + workerUs) / clusterUs, events };
-  line(`host cost per event: main thread ${mainUs.toFixed(1)} µs CPU + worker decode and bin ${workerUs.toFixed(1)} µs ` +
-    `against clustering ${clusterUs.toFixed(1)} µs: ${((100 * (mainUs + workerUs)) / clusterUs).toFixed(1)} % (${events} events)`);
+  const serviceUs = serviceNs / 1e3 / events;
+  results.hostOverhead = { mainThreadCpuUsPerEvent: mainUs, workerDecodeBinUsPerEvent: workerUs, serviceMeanUs: serviceUs, mainThreadShare: mainUs / serviceUs, events };
+  line(`closed loop, main thread's own CPU per event ${mainUs.toFixed(1)} µs against ${serviceUs.toFixed(1)} µs of service: ` +
+    `${((100 * mainUs) / serviceUs).toFixed(1)} %; workers' decode and bin ${workerUs.toFixed(1)} µs (${events} events, 2 workers)`);
 }
 
-// ---- 4. resident memory while streaming >= 1 GiB --------------------------------------------
+// ---- 4. open loop at half the sustained rate --------------------------------------------------
+// Per event: end-to-end minus service (wait for a worker, the engine call around the engine's
+// own timer, encode, the result's trip to the main thread), and the harness's dispatch
+// lateness (open-loop-feed.ts), at half the closed loop's events/s. Then 1 against 2 workers at
+// half of what one worker sustains, both well below capacity: whether a worker per core
+// (the main thread sharing a core with a worker) or cores - 1 workers gives the lower overhead.
+const openLoopEvents = quick ? 600 : 1500;
+async function openLoopRound(workers: number, rateHz: number) {
+  const overhead = new LatencyRecorder();
+  const summary = await runEvents({
+    ...base, workers, maxEvents: openLoopEvents, arrival: { kind: 'fixed', rateHz },
+    onEvent: (_event, _towers, serviceNs, scheduledNs, _startNs, doneNs) => overhead.recordNs(doneNs - scheduledNs - serviceNs),
+  });
+  return { summary, overhead: overhead.stats(), lateness: summary.harness.dispatchLateness };
+}
+const us = (value: number | null) => (value === null ? '—' : value.toFixed(value < 100 ? 1 : 0));
+if (!streamingOnly) {
+  const halfHz = (closedTwoWorkersHz || 1000) / 2;
+  const rounds: Awaited<ReturnType<typeof openLoopRound>>[] = [];
+  for (let r = 0; r < 3; r++) rounds.push(await openLoopRound(2, halfHz));
+  const pick = (f: (x: (typeof rounds)[number]) => number | null) => median(rounds.map((x) => f(x) ?? NaN));
+  const figures = {
+    rateHz: halfHz,
+    latenessP50Us: pick((x) => x.lateness.p50_us), latenessP99Us: pick((x) => x.lateness.p99_us),
+    overheadP50Us: pick((x) => x.overhead.p50_us), overheadP99Us: pick((x) => x.overhead.p99_us),
+    waitP50Us: pick((x) => x.summary.latency.wait.p50_us), returnP50Us: pick((x) => x.summary.latency.return.p50_us),
+    serviceP50Us: pick((x) => x.summary.latency.service.p50_us),
+    loadAverages: rounds.map((x) => x.summary.machineLoad?.loadAverageStart ?? null),
+  };
+  results.openLoop = figures;
+  line(`open loop, 2 workers at ${halfHz.toFixed(0)} Hz (half the closed loop's events/s), ${openLoopEvents} events, medians of 3 runs: ` +
+    `dispatch lateness p50 ${us(figures.latenessP50Us)} µs, p99 ${us(figures.latenessP99Us)} µs; ` +
+    `end-to-end minus service p50 ${us(figures.overheadP50Us)} µs, p99 ${us(figures.overheadP99Us)} µs ` +
+    `(wait p50 ${us(figures.waitP50Us)}, return p50 ${us(figures.returnP50Us)}; service p50 ${us(figures.serviceP50Us)} µs); ` +
+    `load average ${figures.loadAverages.map((x) => x?.toFixed(1)).join(', ')}`);
+
+  const lowHz = (closedOneWorkerHz || 500) / 2;
+  const byWorkers: Record<number, { overheadP50: number[]; overheadP99: number[]; latenessP50: number[] }> = {
+    1: { overheadP50: [], overheadP99: [], latenessP50: [] }, 2: { overheadP50: [], overheadP99: [], latenessP50: [] },
+  };
+  for (let r = 0; r < 3; r++) {
+    for (const workers of r % 2 === 0 ? [1, 2] : [2, 1]) {
+      const round = await openLoopRound(workers, lowHz);
+      byWorkers[workers].overheadP50.push(round.overhead.p50_us ?? NaN);
+      byWorkers[workers].overheadP99.push(round.overhead.p99_us ?? NaN);
+      byWorkers[workers].latenessP50.push(round.lateness.p50_us ?? NaN);
+    }
+  }
+  const summaryOf = (w: number) => ({
+    overheadP50Us: median(byWorkers[w].overheadP50), overheadP99Us: median(byWorkers[w].overheadP99), latenessP50Us: median(byWorkers[w].latenessP50),
+  });
+  results.openLoopWorkers = { rateHz: lowHz, one: summaryOf(1), two: summaryOf(2) };
+  line(`open loop at ${lowHz.toFixed(0)} Hz (half of one worker's events/s), end-to-end minus service p50/p99: ` +
+    `1 worker ${us(summaryOf(1).overheadP50Us)}/${us(summaryOf(1).overheadP99Us)} µs, 2 workers ${us(summaryOf(2).overheadP50Us)}/${us(summaryOf(2).overheadP99Us)} µs; ` +
+    `dispatch lateness p50 1 worker ${us(summaryOf(1).latenessP50Us)} µs, 2 workers ${us(summaryOf(2).latenessP50Us)} µs (medians of 3 alternating rounds)`);
+}
+
+// ---- 5. resident memory while streaming >= 1 GiB --------------------------------------------
 if (!quick && !noStreaming) {
   const bigFile = join(dir, 'big.events');
   const bigEvents = 120_000;

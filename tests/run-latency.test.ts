@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { LatencyRecorder } from '../host/measure/latency.js';
 import { ArrivalSchedule } from '../host/pipeline/arrivals.js';
+import { fittedRise } from '../host/pipeline/open-loop-feed.js';
 import { makeRandom } from '../host/random.js';
 
 /** skewed latencies of the shape clustering times have: a body and a long tail */
@@ -109,5 +110,15 @@ describe('arrival schedules', () => {
 
   it('refuse a rate that is not a positive number', () => {
     expect(() => new ArrivalSchedule({ kind: 'fixed', rateHz: 0 })).toThrow('positive finite');
+  });
+});
+
+describe('the backlog trend of an open loop', () => {
+  it('rises by the ramp\'s height for a steady ramp, and little for one late pile-up that drains', () => {
+    const ramp = Array.from({ length: 101 }, (_, k) => 0.5 * k);
+    expect(fittedRise(ramp)).toBeCloseTo(50, 9);
+    // 60 results with no backlog but a pile-up of 5 events near the end (a stalled machine)
+    const spike = Array.from({ length: 60 }, (_, k) => (k >= 52 && k < 57 ? 57 - k : 0));
+    expect(fittedRise(spike)).toBeLessThan(3);
   });
 });

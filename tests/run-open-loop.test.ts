@@ -11,6 +11,8 @@ import { findRate } from '../host/pipeline/studies.js';
 import type { RunSummary } from '../host/measure/summary.js';
 import { toyEvents, writeEventFile } from './support/run-files.js';
 import { tempDirForSuite } from './support/temp-dir.js';
+import { openRecordFile } from '../host/input/event-source.js';
+import { decodeJetsRecord, encodeJetsRecord } from '../host/formats/jets-codec.js';
 
 const dir = tempDirForSuite('open-loop');
 const events = toyEvents(150, 29, 2);
@@ -22,6 +24,17 @@ function withEnv(name: string, value: string) {
   const before = process.env[name];
   process.env[name] = value;
   return () => { if (before === undefined) delete process.env[name]; else process.env[name] = before; };
+}
+
+/** Each record of a jets file as bytes, encoded again with its clustering time set to 0. */
+async function jetsRecordsWithoutTimes(path: string): Promise<string[]> {
+  const source = await openRecordFile(path);
+  const records: string[] = [];
+  for await (const record of source.records) {
+    const decoded = decodeJetsRecord(record.bytes);
+    records.push(Buffer.from(encodeJetsRecord({ event: decoded.event, jets: decoded.error ? null : decoded.jets, clusterTimeNs: 0, error: decoded.error })).toString('hex'));
+  }
+  return records;
 }
 
 let restore: (() => void)[] = [];
@@ -95,5 +108,20 @@ describe('the rate search with a stub of known cost', () => {
     expect(found.trials.map((t) => t.saturated)).toEqual([false, true, true]);
     expect(found.trials.map((t) => t.withinBudget)).toEqual([true, false, false]);
     expect(found.rateHz).toBeCloseTo(100, 6);
+  });
+});
+
+describe('the outputs of an open loop', () => {
+  it('are those of a closed loop: the same jets records but for their times, the same counts and check results', async () => {
+    const options: RunOptions = { input: file.path, workers: 2, batch: 8, maxEvents: 60, check: { mode: 'fraction', fraction: 0.2, seed: 3 }, progress: null };
+    const closed = await runEvents({ ...options, out: join(dir, 'closed.jets') });
+    const open = await runEvents({ ...options, out: join(dir, 'open.jets'), arrival: { kind: 'poisson', rateHz: 400, seed: 5 } });
+    const closedRecords = await jetsRecordsWithoutTimes(join(dir, 'closed.jets'));
+    expect(closedRecords).toHaveLength(60);
+    expect(await jetsRecordsWithoutTimes(join(dir, 'open.jets'))).toEqual(closedRecords);
+    expect(open.events).toEqual(closed.events);
+    expect(open.check).toEqual(closed.check);
+    expect(open.check.checked).toBeGreaterThan(0);
+    expect(open.jets).toBe(closed.jets);
   });
 });

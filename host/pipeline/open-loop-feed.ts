@@ -29,6 +29,27 @@ export const PUBLISH_AHEAD_NS = 30_000_000;
 /** The first event is due this long after the run starts, so it is published ahead like the rest. */
 export const START_LEAD_NS = 5_000_000;
 
+/** a backlog rising through the run by more than this many events per worker and ... */
+const BACKLOG_RISE_WORKERS = 4;
+/** ... this fraction of the events counts as growing (saturation) */
+const BACKLOG_RISE_FRACTION = 0.05;
+
+/** How much a least-squares line through values[0..n) rises from the first to the last. */
+export function fittedRise(values: readonly number[]): number {
+  const n = values.length;
+  if (n < 2) return 0;
+  const meanX = (n - 1) / 2;
+  let meanY = 0;
+  for (const y of values) meanY += y / n;
+  let sxy = 0;
+  let sxx = 0;
+  for (let x = 0; x < n; x++) {
+    sxy += (x - meanX) * (values[x] - meanY);
+    sxx += (x - meanX) * (x - meanX);
+  }
+  return (sxy / sxx) * (n - 1);
+}
+
 export interface OpenLoopPlan {
   workers: number;
   /** shards take every n-th group of `batch` records, as in a closed loop */
@@ -215,7 +236,10 @@ export class OpenLoopFeed {
    * a straight line fitted (least squares) to each event's return time against its place in
    * the run; a pool that keeps up returns events as they arrive, one that does not at its own
    * pace, and a late first or last event moves a fitted slope far less than a span. The backlog
-   * grew when it was markedly larger over the last quarter of the results than over the first.
+   * grew when a straight line fitted to it rises through the run by more than a few events per
+   * worker and 5 % of the events: a pool that keeps up has a backlog that comes and goes (a
+   * stall of the machine piles up a few events, which then drain), one that does not has a
+   * backlog that climbs with every event.
    */
   private recordRates(): void {
     const events = this.ring.count;
@@ -226,15 +250,7 @@ export class OpenLoopFeed {
     const offeredHz = lastDue > firstDue ? ((events - 1) * 1e9) / (lastDue - firstDue) : Infinity;
     const slopeNs = (fit.n * fit.xy - fit.x * fit.y) / (fit.n * fit.xx - fit.x * fit.x);
     const sustainedHz = slopeNs > 0 ? 1e9 / slopeNs : Infinity;
-    const samples = this.backlogAt.length;
-    const quarter = Math.max(1, Math.floor(samples / 4));
-    let first = 0;
-    let last = 0;
-    for (let k = 0; k < quarter; k++) {
-      first += this.backlogAt[k];
-      last += this.backlogAt[samples - 1 - k];
-    }
-    const backlogGrew = last / quarter > 2 * (first / quarter) + 2 * this.plan.workers;
+    const backlogGrew = fittedRise(this.backlogAt) > Math.max(BACKLOG_RISE_WORKERS * this.plan.workers, BACKLOG_RISE_FRACTION * events);
     this.delivery.tally.recordRates(offeredHz, sustainedHz, backlogGrew);
   }
 }
