@@ -98,6 +98,7 @@ export async function cumulativeCurve(runs: RunView[]): Promise<string> {
   if (rows.length === 0) return '';
   const budgets = [...new Set(runs.map(budgetOf).filter((b): b is number => b !== null))];
   const scales = seriesScales(runs.map((run) => run.name));
+  const quantities = ['service', 'end-to-end'].filter((q) => rows.some((row) => (row as { quantity: string }).quantity === q));
   const spec = {
     width: WIDTH, height: HEIGHT, title: 'Fraction of events done within t',
     layer: [
@@ -108,7 +109,7 @@ export async function cumulativeCurve(runs: RunView[]): Promise<string> {
           x: { field: 'us', type: 'quantitative', scale: { type: 'log' }, axis: { title: 't [µs] (log scale)', format: '~s' } },
           y: { field: 'fraction', type: 'quantitative', scale: { domain: [0, 1] }, axis: { title: 'fraction of events with latency ≤ t', format: '.0%' } },
           color: { field: 'run', type: 'nominal', scale: scales.color, legend: { title: 'run', orient: 'bottom', direction: 'vertical' } },
-          strokeDash: { field: 'quantity', type: 'nominal', scale: { domain: ['service', 'end-to-end'], range: [[], [6, 3]] }, legend: { title: 'latency', orient: 'bottom' } },
+          strokeDash: { field: 'quantity', type: 'nominal', scale: { domain: quantities, range: quantities.map((q) => (q === 'service' ? [] : [6, 3])) }, legend: { title: 'latency', orient: 'bottom' } },
           detail: { field: 'key' },
         },
       },
