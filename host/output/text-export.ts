@@ -64,6 +64,8 @@ export interface TextExportOptions {
   stdout: NodeJS.WritableStream;
   /** one line per event left out or record that cannot be read */
   onProblem: (line: string) => void;
+  /** called once per input record with its byte offset (a progress bar counts them) */
+  onRecord?: (offset: number) => void;
 }
 
 export interface TextExportResult {
@@ -76,14 +78,14 @@ export interface TextExportResult {
 
 /** Reads the file and writes it as text; the output is closed (or removed on an unexpected error). */
 export async function exportAsText(options: TextExportOptions): Promise<TextExportResult> {
-  const { format, onProblem } = options;
+  const { format, onProblem, onRecord } = options;
   const source = await openRecordFile(options.input, { grid: options.grid, maxRecordBytes: options.maxRecordBytes, maxEventGap: options.maxEventGap, fileLabel: options.fileLabel });
   const out = await TextFileWriter.open(options.out, { stdout: options.stdout, force: options.force });
   const tally: ExportTally = { events: 0, rows: 0, invalid: 0, broken: 0, outOfOrder: 0, lastCsvEvent: -1, outsideAcceptance: 0 };
   let unreadable: InputError | null = null;
   try {
-    if (source.format === 'jets-file') await exportJets(source, format, out, tally, onProblem);
-    else await exportEvents(source, format, out, tally, onProblem);
+    if (source.format === 'jets-file') await exportJets(source, format, out, tally, onProblem, onRecord);
+    else await exportEvents(source, format, out, tally, onProblem, onRecord);
   } catch (error) {
     if (!(error instanceof InputError)) {
       await out.abort();
@@ -106,7 +108,7 @@ function csvOrderAllows(event: number, tally: ExportTally, onProblem: (line: str
   return false;
 }
 
-async function exportEvents(source: RecordSource, format: TextFormat, out: TextFileWriter, tally: ExportTally, onProblem: (line: string) => void): Promise<void> {
+async function exportEvents(source: RecordSource, format: TextFormat, out: TextFileWriter, tally: ExportTally, onProblem: (line: string) => void, onRecord?: (offset: number) => void): Promise<void> {
   const reader = new EventTowerReader(source.header.grid);
   const phiBins = source.header.grid.phiBins;
   if (format === 'csv') {
@@ -115,6 +117,7 @@ async function exportEvents(source: RecordSource, format: TextFormat, out: TextF
   }
   for await (const record of source.records) {
     tally.events++;
+    if (onRecord) onRecord(record.offset);
     const result = reader.read(record.bytes);
     if (!result.ok) {
       tally.invalid++;
@@ -161,13 +164,14 @@ function jetCsvRows(event: number, jets: JetSet): string {
   return text;
 }
 
-async function exportJets(source: RecordSource, format: TextFormat, out: TextFileWriter, tally: ExportTally, onProblem: (line: string) => void): Promise<void> {
+async function exportJets(source: RecordSource, format: TextFormat, out: TextFileWriter, tally: ExportTally, onProblem: (line: string) => void, onRecord?: (offset: number) => void): Promise<void> {
   const withPileup = source.header.settings?.pileup !== undefined;
   if (format === 'csv') await out.write(`${withPileup ? PILEUP_JETS_CSV_HEADER : JETS_CSV_HEADER}\n`);
   let record = -1;
   for await (const raw of source.records) {
     record++;
     tally.events++;
+    if (onRecord) onRecord(raw.offset);
     let decoded;
     try {
       decoded = decodeJetsRecord(raw.bytes, { pileup: withPileup });

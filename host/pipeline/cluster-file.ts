@@ -56,6 +56,8 @@ export interface ClusterFileOptions {
   stdout: NodeJS.WritableStream;
   /** one line per invalid event: file, event or record, byte offset, problem */
   onInvalid: (line: string) => void;
+  /** called once per input record with its byte offset (a progress bar counts them) */
+  onRecord?: (offset: number) => void;
 }
 
 export interface ClusterFileResult {
@@ -116,6 +118,7 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
     try {
       for await (const record of source.records) {
         events++;
+        if (options.onRecord) options.onRecord(record.offset);
         const towers = reader.read(record.bytes);
         if (!towers.ok) {
           invalid++;

@@ -51,6 +51,8 @@ export interface CompareOptions {
   turnOn?: TurnOnRequest[];
   /** notes for stderr (setting overrides, candidate without settings) */
   note: (line: string) => void;
+  /** called once per record of EVENTS with its byte offset (a progress bar counts them) */
+  onRecord?: (offset: number) => void;
 }
 
 export interface CompareResult {
@@ -189,6 +191,7 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
   let lastEvent = -1;
   try {
     for await (const record of events.records) {
+      if (options.onRecord) options.onRecord(record.offset);
       const towers = towerReader.read(record.bytes);
       if (towers.event === undefined) {
         accumulator.addInvalidInEvents();

@@ -23,6 +23,7 @@ import { describePileup } from '../../clustering/pileup/settings.js';
 import { execCommandOf, splitCommand } from '../../pipeline/exec-command.js';
 import { DEFAULT_ENGINE_RESTARTS, DEFAULT_ENGINE_TIMEOUT_MS } from '../../pipeline/exec-engine.js';
 import { describeProgramRun, type ProgramEngineChoice } from '../../pipeline/exec-cluster.js';
+import { RecordProgress } from '../../measure/input-progress.js';
 
 export const spec: CommandSpec = {
   name: 'cluster',
@@ -40,7 +41,7 @@ export const spec: CommandSpec = {
     { name: 'gzip', kind: 'flag', description: 'gzip-compress a jets file' },
     { name: 'label', kind: 'string', argument: '<text>', description: 'free-text label in the jets file header' },
     { name: 'max-record-bytes', kind: 'integer', argument: '<n>', description: `largest record accepted (default: ${DEFAULT_MAX_RECORD_BYTES})` },
-    { name: 'quiet', kind: 'flag', short: 'q', description: 'no summary line on stderr' },
+    { name: 'quiet', kind: 'flag', short: 'q', description: 'no progress bar and no summary line on stderr' },
     FORCE_OPTION,
     ...CLUSTER_OPTIONS,
     ...PILEUP_OPTIONS,
@@ -83,6 +84,8 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   const quiet = Boolean(args.values.quiet);
 
   let shownProblems = 0;
+  const progress = new RecordProgress(io.stderr, input, io.isTty && !quiet);
+  progress.start();
   const result = await clusterFile({
     input,
     grid: hasGridOptions(args) ? gridFrom(args, 'cluster') : undefined,
@@ -104,7 +107,8 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     onInvalid: (line) => {
       if (shownProblems++ < PROBLEM_LINES_MAX) io.stderr.write(`jetlag cluster: ${line}\n`);
     },
-  });
+    onRecord: progress.onRecord,
+  }).finally(() => progress.stop());
   const { events, invalid, outsideAcceptance, unreadable } = result;
   if (shownProblems > PROBLEM_LINES_MAX) io.stderr.write(`jetlag cluster: ... and ${shownProblems - PROBLEM_LINES_MAX} more invalid events\n`);
   if (unreadable) {

@@ -18,6 +18,7 @@ import { formatTurnOnCurves } from '../../validate/turn-on.js';
 import { TURN_ON_OPTIONS, turnOnRequestsFrom } from '../turn-on-options.js';
 import { PILEUP_OPTIONS, pileupSettingsFrom } from '../pileup-options.js';
 import { describePileup } from '../../clustering/pileup/settings.js';
+import { RecordProgress } from '../../measure/input-progress.js';
 
 export const DEFAULT_REQUIRE = 0.999;
 
@@ -35,7 +36,7 @@ export const spec: CommandSpec = {
     { name: 'engine', kind: 'string', argument: '<reference|wasm>', description: 'what computes the reference jets: the reference itself, or the engine, which the project holds to the very same bits (jetlag run --check all shows it) and is several times faster (default: reference)' },
     { name: 'worst', kind: 'integer', argument: '<n>', description: 'list this many of the events furthest from agreeing (default: 10)' },
     FORCE_OPTION,
-    { name: 'quiet', kind: 'flag', short: 'q', description: 'print only the PASS or FAIL line, not the report' },
+    { name: 'quiet', kind: 'flag', short: 'q', description: 'print only the PASS or FAIL line, not the report or a progress bar' },
     REPORT_OPTION,
     DISPLAY_OPTION,
     ...CLUSTER_OPTIONS.map((o) => (o.name === 'ptmin'
@@ -77,6 +78,8 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   const turnOn = turnOnRequestsFrom(args, 'compare');
 
   const engine = parseEngineName((args.values.engine as string | undefined) ?? 'reference', 'compare');
+  const progress = new RecordProgress(io.stderr, eventsPath, io.isTty && !quiet);
+  progress.start();
   const result = await compareFiles(eventsPath, candidatePath, {
     csvGrid: () => gridFrom(args, 'compare'),
     gridGiven: hasGridOptions(args),
@@ -88,7 +91,8 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     engine,
     turnOn,
     note: (line) => io.stderr.write(line + '\n'),
-  });
+    onRecord: progress.onRecord,
+  }).finally(() => progress.stop());
   const { report } = result;
   const fraction = report.events.agreeingFraction;
   const passed = fraction !== null && fraction >= require && result.inputError === null;

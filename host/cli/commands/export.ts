@@ -25,6 +25,7 @@ import { UsageError } from '../../errors.js';
 import { FORCE_OPTION, GRID_OPTIONS, MAX_EVENT_GAP_OPTION, gridFrom, hasGridOptions, maxEventGapFrom } from '../common-options.js';
 import { DEFAULT_MAX_RECORD_BYTES } from '../../input/record-reader.js';
 import { exportAsText } from '../../output/text-export.js';
+import { RecordProgress } from '../../measure/input-progress.js';
 
 export const spec: CommandSpec = {
   name: 'export',
@@ -38,7 +39,7 @@ export const spec: CommandSpec = {
     MAX_EVENT_GAP_OPTION,
     { name: 'max-record-bytes', kind: 'integer', argument: '<n>', description: `largest record accepted (default: ${DEFAULT_MAX_RECORD_BYTES})` },
     FORCE_OPTION,
-    { name: 'quiet', kind: 'flag', short: 'q', description: 'do not print the per-event problems and the summary line' },
+    { name: 'quiet', kind: 'flag', short: 'q', description: 'do not print the progress bar, the per-event problems and the summary line' },
   ],
 };
 
@@ -69,6 +70,8 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   if (maxRecordBytes !== undefined && maxRecordBytes < 1) throw new UsageError(`export: --max-record-bytes must be at least 1, got ${maxRecordBytes}`);
 
   const problems = new ProblemLines(io, quiet);
+  const progress = new RecordProgress(io.stderr, input, io.isTty && !quiet);
+  progress.start();
   const { tally, rowsAre, unreadable } = await exportAsText({
     input: input === '-' ? io.stdin : input,
     fileLabel: input === '-' ? '<stdin>' : input,
@@ -80,7 +83,8 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
     out: outPath,
     stdout: io.stdout,
     onProblem: (line) => problems.add(line),
-  });
+    onRecord: progress.onRecord,
+  }).finally(() => progress.stop());
   problems.finish();
   const outLabel = outPath === '-' ? '<stdout>' : outPath;
   if (unreadable) {
