@@ -9,7 +9,8 @@
 //                                                    with our signature (content detection)
 
 import { checkGrid } from '../clustering/grid.js';
-import type { ClusterSettings, Grid, PileupSettings, Recombination } from '../types.js';
+import type { ClusterSettings, Grid, GroomingSettings, PileupSettings, Recombination } from '../types.js';
+import { decodeGroomingSettings, encodeGroomingSettings } from './grooming-settings-codec.js';
 import { decodePileupSettings, encodePileupSettings } from './pileup-settings-codec.js';
 import { ProtoWriter, WireCursor, WIRE_FIXED64, WIRE_LENGTH_DELIMITED, WIRE_VARINT } from './wire.js';
 
@@ -23,6 +24,8 @@ export interface JetsFileSettings extends ClusterSettings {
   engine: string;
   /** the pileup steps the jets were made with (spec part two); absent when none ran */
   pileup?: PileupSettings;
+  /** trimming and soft drop of each reported jet (spec section 12); absent when none ran */
+  grooming?: GroomingSettings;
 }
 
 export interface FileHeader {
@@ -69,6 +72,7 @@ export function encodeFileHeader(header: Omit<FileHeader, 'formatVersion'> & { f
       .uintField(5, RECOMBINATION_CODES[s.recombination])
       .stringField(6, s.engine);
     if (s.pileup) settings.messageField(7, encodePileupSettings(s.pileup));
+    if (s.grooming && (s.grooming.trim || s.grooming.softDrop)) settings.messageField(8, encodeGroomingSettings(s.grooming));
     out.messageField(7, settings.finish());
   }
   return out.finish();
@@ -122,6 +126,12 @@ function readSettings(cursor: WireCursor, end: number): NonNullable<RawHeader['s
         cursor.expect(tag, WIRE_LENGTH_DELIMITED, 'settings.pileup');
         const length = cursor.readLength();
         s.pileup = decodePileupSettings(cursor, cursor.pos + length);
+        break;
+      }
+      case 8: {
+        cursor.expect(tag, WIRE_LENGTH_DELIMITED, 'settings.grooming');
+        const length = cursor.readLength();
+        s.grooming = decodeGroomingSettings(cursor, cursor.pos + length);
         break;
       }
       default: cursor.skip(tag & 7);

@@ -21,12 +21,17 @@
 // { pileup: true }) (a jets file whose header names pileup steps): proto3 leaves zeros
 // unwritten, so an event with rho 0 and no jets holds none. Per-jet arrays left out read as
 // ghosts 0, area 0 and ptRaw = pt (the values without areas and without subtraction).
+//
+// Groomed rows (spec section 12, fields 21 trim and 22 soft_drop): written when jets.trim
+// (jets.softDrop) is set; read back when the record holds them, or always with { trim: true }
+// ({ softDrop: true }); a groomer's array with a length other than the jet count is a problem.
 
 import { encodeFileHeader, type FileHeader, type JetsFileSettings } from './file-header.js';
 import type { Grid, JetSet } from '../types.js';
 import { delimit, ProtoWriter, WireCursor, WIRE_FIXED64, WIRE_LENGTH_DELIMITED, WIRE_VARINT, wireTypeName } from './wire.js';
 import { allocateJetSet } from '../clustering/jet-set.js';
 import { oneLineText } from './line-text.js';
+import { encodeSoftDropJets, encodeTrimmedJets, readGroomedJets, softDropJetsFrom, trimmedJetsFrom, type RawGroomedJets } from './groomed-jets-codec.js';
 
 export interface JetsRecordFields {
   event: number;
@@ -63,6 +68,8 @@ const FIELD_SUBTRACTED_AWAY = 17;
 const FIELD_GHOSTS = 18;
 const FIELD_AREA = 19;
 const FIELD_PT_RAW = 20;
+const FIELD_TRIM = 21;
+const FIELD_SOFT_DROP = 22;
 
 const sharedWriter = new ProtoWriter(4096);
 
@@ -101,6 +108,9 @@ export function encodeJetsRecord(fields: JetsRecordFields, writer = sharedWriter
     writer.packedDoubles(FIELD_AREA, pileup.area, n);
     writer.packedDoubles(FIELD_PT_RAW, pileup.ptRaw, n);
   }
+  // a groomer's message is written whenever it ran, also for no jets (see groomed-jets-codec.ts)
+  if (jets?.trim) writer.messageField(FIELD_TRIM, encodeTrimmedJets(jets.trim, jets.count));
+  if (jets?.softDrop) writer.messageField(FIELD_SOFT_DROP, encodeSoftDropJets(jets.softDrop, jets.count));
   const time = fields.clusterTimeNs ?? 0;
   if (!(time >= 0) || !Number.isFinite(time)) throw new Error(`cluster time must be >= 0 ns, got ${time}`);
   writer.uintField(FIELD_TIME, Math.round(time));
@@ -129,6 +139,9 @@ export function encodeJetsFileHeader(grid: Grid, settings: JetsFileSettings, tex
 export interface DecodeJetsOptions {
   /** give every valid event jets.pileup, even one whose record holds no pileup value */
   pileup?: boolean;
+  /** give every valid event jets.trim (jets.softDrop), even one whose record holds none */
+  trim?: boolean;
+  softDrop?: boolean;
 }
 
 export function decodeJetsRecord(bytes: Uint8Array, options: DecodeJetsOptions = {}): DecodedJets {
@@ -143,6 +156,8 @@ export function decodeJetsRecord(bytes: Uint8Array, options: DecodeJetsOptions =
   const ghosts: number[] = [];
   const area: number[] = [];
   const ptRaw: number[] = [];
+  let trimRaw: RawGroomedJets | null = null;
+  let softDropRaw: RawGroomedJets | null = null;
   const readDoubles = (out: number[], name: string, field: number, wireType: number) => {
     if (wireType === WIRE_FIXED64) out.push(c.readDouble());
     else if (wireType === WIRE_LENGTH_DELIMITED) {
@@ -199,6 +214,18 @@ export function decodeJetsRecord(bytes: Uint8Array, options: DecodeJetsOptions =
       case FIELD_GHOSTS: readVarints(ghosts, false, 'ghosts', tag); break;
       case FIELD_AREA: readDoubles(area, 'area', field, wireType); break;
       case FIELD_PT_RAW: readDoubles(ptRaw, 'pt_raw', field, wireType); break;
+      case FIELD_TRIM: {
+        c.expect(tag, WIRE_LENGTH_DELIMITED, 'trim');
+        const length = c.readLength();
+        trimRaw = readGroomedJets(c, c.pos + length, 'trim');
+        break;
+      }
+      case FIELD_SOFT_DROP: {
+        c.expect(tag, WIRE_LENGTH_DELIMITED, 'soft_drop');
+        const length = c.readLength();
+        softDropRaw = readGroomedJets(c, c.pos + length, 'soft_drop');
+        break;
+      }
       default: c.skip(wireType);
     }
   }
@@ -244,6 +271,17 @@ export function decodeJetsRecord(bytes: Uint8Array, options: DecodeJetsOptions =
       area: area.length > 0 ? Float64Array.from(area) : new Float64Array(jetCount),
       ptRaw: ptRaw.length > 0 ? Float64Array.from(ptRaw) : jets.pt.slice(),
     };
+  }
+  const noRows: RawGroomedJets = { doubles: [[], [], [], [], [], [], [], []], towerCount: [], subjets: [], zg: [], rg: [] };
+  if (problem === '' && error === '' && (trimRaw !== null || options.trim)) {
+    const trimmed = trimmedJetsFrom(trimRaw ?? noRows, jetCount);
+    if (trimmed.problem === '') jets.trim = trimmed.rows;
+    else problem = trimmed.problem;
+  }
+  if (problem === '' && error === '' && (softDropRaw !== null || options.softDrop)) {
+    const groomed = softDropJetsFrom(softDropRaw ?? noRows, jetCount);
+    if (groomed.problem === '') jets.softDrop = groomed.rows;
+    else problem = groomed.problem;
   }
   return { event, jets, hasTowers: towers.length > 0 || total === 0, clusterTimeNs, error, problem };
 }
