@@ -176,6 +176,12 @@ describe('the report', () => {
     expect(text).toContain('towers      per event: mean 12.0 · p50 12 · max 13');
   });
 
+  it('says on how many events a --find-rate trial\'s p99 rests when fewer than 1,000', () => {
+    const summary = render(tallyOf([1, 2, 3]));
+    summary.findRate = { budgetUs: 500, rateHz: 40, trials: [{ rateHz: 40, p99_us: 300, saturated: false, withinBudget: true, events: 100 }, { rateHz: 2000, p99_us: 900, saturated: true, withinBudget: false, events: 100 }] };
+    expect(formatReport(summary)).toContain("find-rate   p99 within 500 µs up to 40 Hz (2 open-loop trials); each trial's p99 rests on only 100 events");
+  });
+
   it('says why there is no alpha', () => {
     expect(formatReport(render(tallyOf([1, 2, 3])))).toContain('scaling     no exponent: N spans only 11..13 towers');
   });

@@ -17,7 +17,7 @@ const PILEUP_STAGE_LABELS: Record<PileupStage, string> = {
 };
 
 const COLUMNS = ['events', 'p50', 'p90', 'p99', 'p99.9', 'max', 'mean'] as const;
-const LABEL_WIDTH = 20;
+const LABEL_WIDTH = 24;
 const CELL_WIDTH = 10;
 
 /**
