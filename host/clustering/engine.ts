@@ -165,6 +165,8 @@ export class WasmClusterer implements Clusterer {
   withTowers = true;
   private readonly exports: EngineExports;
   private views: Views;
+  /** clusterBatchReusing's result arrays, made on its first call: one event of up to the grid's towers */
+  private reusable: BatchJets | null = null;
 
   constructor(grid: Grid, settings: ClusterSettings, options: { module?: WebAssembly.Module; debug?: boolean } = {}) {
     checkGrid(grid);
@@ -237,19 +239,35 @@ export class WasmClusterer implements Clusterer {
    */
   clusterBatch(eventCount: number, towerStart: Int32Array, towerIndex: Int32Array, towerEt: Float64Array, withTowers: boolean): BatchJets {
     const total = towerStart[eventCount] - towerStart[0];
-    const result: BatchJets = {
+    return this.clusterBatchInto(allocateBatchJets(eventCount, total, withTowers), eventCount, towerStart, towerIndex, towerEt, withTowers);
+  }
+
+  /**
+   * clusterBatch for a caller that is done with the jets before its next call (the pileup
+   * chain copies them out): the result's arrays are this clusterer's own, reserved once and
+   * overwritten by the next call, so a 3200-tower event allocates no result arrays (they are
+   * ~260 KB a call otherwise). Other batches (more than one event, or more towers than the grid
+   * has cells) get arrays of their own.
+   */
+  clusterBatchReusing(eventCount: number, towerStart: Int32Array, towerIndex: Int32Array, towerEt: Float64Array, withTowers: boolean): BatchJets {
+    const total = towerStart[eventCount] - towerStart[0];
+    if (eventCount !== 1 || total > this.tables.towerTotal) return this.clusterBatch(eventCount, towerStart, towerIndex, towerEt, withTowers);
+    this.reusable ??= allocateBatchJets(1, this.tables.towerTotal, true);
+    const r = this.reusable;
+    const into: BatchJets = {
       eventCount,
-      jetStart: new Int32Array(eventCount + 1),
-      clusterNs: new Float64Array(eventCount),
-      clustered: new Int32Array(eventCount),
-      status: new Int32Array(eventCount),
-      px: new Float64Array(total), py: new Float64Array(total), pz: new Float64Array(total),
-      energy: new Float64Array(total), pt: new Float64Array(total), rapidity: new Float64Array(total),
-      phi: new Float64Array(total), mass: new Float64Array(total),
-      towerCount: new Int32Array(total), towerStart: new Int32Array(total),
-      towers: new Int32Array(withTowers ? total : 0),
-      jetIndex: new Int32Array(total),
+      jetStart: r.jetStart, clusterNs: r.clusterNs, clustered: r.clustered, status: r.status,
+      px: r.px, py: r.py, pz: r.pz, energy: r.energy, pt: r.pt, rapidity: r.rapidity, phi: r.phi, mass: r.mass,
+      towerCount: r.towerCount, towerStart: r.towerStart, towers: withTowers ? r.towers : r.towers.subarray(0, 0), jetIndex: r.jetIndex,
     };
+    return this.clusterBatchInto(into, eventCount, towerStart, towerIndex, towerEt, withTowers);
+  }
+
+  /** the work of clusterBatch, into `result`'s arrays (at least eventCount + 1 and the batch's towers long) */
+  private clusterBatchInto(
+    result: BatchJets, eventCount: number, towerStart: Int32Array, towerIndex: Int32Array, towerEt: Float64Array, withTowers: boolean,
+  ): BatchJets {
+    result.jetStart[0] = 0;
     let jetsDone = 0;
     let towersDone = 0;
     let first = 0;
@@ -290,6 +308,10 @@ export class WasmClusterer implements Clusterer {
       if (withTowers) towersDone += towersWritten;
       first = last;
     }
+    result.jetStart = result.jetStart.subarray(0, eventCount + 1);
+    result.clusterNs = result.clusterNs.subarray(0, eventCount);
+    result.clustered = result.clustered.subarray(0, eventCount);
+    result.status = result.status.subarray(0, eventCount);
     for (const field of DOUBLE_FIELDS) result[field] = result[field].subarray(0, jetsDone);
     result.towerCount = result.towerCount.subarray(0, jetsDone);
     result.towerStart = result.towerStart.subarray(0, jetsDone);
@@ -314,6 +336,22 @@ export class WasmClusterer implements Clusterer {
     if (n < 0) throw new Error(`engine: ${describeStatus(n)}`);
     return this.currentViews().outTowers.slice(0, n);
   }
+}
+
+function allocateBatchJets(eventCount: number, total: number, withTowers: boolean): BatchJets {
+  return {
+    eventCount,
+    jetStart: new Int32Array(eventCount + 1),
+    clusterNs: new Float64Array(eventCount),
+    clustered: new Int32Array(eventCount),
+    status: new Int32Array(eventCount),
+    px: new Float64Array(total), py: new Float64Array(total), pz: new Float64Array(total),
+    energy: new Float64Array(total), pt: new Float64Array(total), rapidity: new Float64Array(total),
+    phi: new Float64Array(total), mass: new Float64Array(total),
+    towerCount: new Int32Array(total), towerStart: new Int32Array(total),
+    towers: new Int32Array(withTowers ? total : 0),
+    jetIndex: new Int32Array(total),
+  };
 }
 
 export function describeStatus(status: number): string {

@@ -190,7 +190,7 @@ export class EnginePileupClusterer implements Clusterer {
     }
 
     this.inputStart[1] = inputCount;
-    const batch = this.clusterer.clusterBatch(1, this.inputStart, this.inputIndex, this.inputEt, true);
+    const batch = this.clusterer.clusterBatchReusing(1, this.inputStart, this.inputIndex, this.inputEt, true);
     clock = this.lap(STAGE_CLUSTERING, clock);
     const jets = this.reported.report(batch, cellReal, { rho, etCut, killed });
     this.lap(STAGE_SUBTRACTION, clock);
@@ -237,7 +237,7 @@ export class EnginePileupClusterer implements Clusterer {
       for (let t = 0; t < this.cellCount; t++) et[t] = this.cellReal[t] === 1 ? this.cellEt[t] : this.pileup.ghostEt;
     }
     this.inputStart[1] = this.cellCount;
-    const jets = kt.clusterBatch(1, this.inputStart, index, et, false);
+    const jets = kt.clusterBatchReusing(1, this.inputStart, index, et, false);
     const radius = (this.rho as { radius: number }).radius;
     const low = this.grid.etaMin + radius;
     const high = this.grid.etaMax - radius;
