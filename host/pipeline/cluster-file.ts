@@ -89,8 +89,6 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
   const programTimes = new ProgramTimes();
   const grooming = groomingIsOn(options.grooming) ? options.grooming : null;
   if (options.program && grooming) throw new UsageError('cluster: an engine program runs the plain clustering only; leave out --trim and --softdrop');
-  // jets files do not carry groomed values yet: refuse rather than drop them silently
-  if (grooming && options.format === 'jets') throw new UsageError('cluster: --trim and --softdrop need --format jsonl for now (jets files do not carry groomed values yet)');
   const clusterer = program ? null : makeClusterer(options.engine, grid, settings, options.emulation, pileup, 'cluster', grooming);
   if (clusterer && 'withTowers' in clusterer) (clusterer as { withTowers: boolean }).withTowers = withTowers;
   const engineName = program ? program.engineName || options.program!.label : options.emulation ? emulationName(options.emulation) : clusterer!.name;
@@ -102,7 +100,7 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
   const reader = new EventTowerReader(grid);
 
   const jetsFile = options.format === 'jets'
-    ? await JetsFileWriter.open(out, grid, { ...settings, engine: engineName, ...(pileup ? { pileup } : {}) },
+    ? await JetsFileWriter.open(out, grid, { ...settings, engine: engineName, ...(pileup ? { pileup } : {}), ...(grooming ? { grooming } : {}) },
       { producer: producerName('cluster'), label: options.label ?? `${windowLabel}${pileupLabel}jets of ${source.label}` },
       { gzip: options.gzip, stdout: options.stdout, force: options.force })
     : null;
