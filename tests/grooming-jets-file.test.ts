@@ -5,6 +5,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { main as cluster } from '../host/cli/commands/cluster.js';
 import { main as generate } from '../host/cli/commands/generate.js';
+import { main as exportMain } from '../host/cli/commands/export.js';
 import { openRecordFile } from '../host/input/event-source.js';
 import { decodeJetsRecord } from '../host/formats/jets-codec.js';
 import { fakeIo } from './support/command-io.js';
@@ -41,5 +42,31 @@ describe('jetlag cluster with grooming into a jets file', () => {
       trim: [jet.trim.pt, jet.trim.m, jet.trim.subjets, jet.trim.n],
       softdrop: [jet.softdrop.pt, jet.softdrop.m, jet.softdrop.zg, jet.softdrop.Rg],
     })));
+  });
+});
+
+describe('jetlag export of a groomed jets file', () => {
+  it('writes the groomed columns after the plain ones, equal to the file\'s values', async () => {
+    const events = join(dir, 'export-events.pb');
+    const jetsPath = join(dir, 'export-jets.pb');
+    expect(await generate(['--events', '2', '--pileup', '20', '--seed', '22', '--out', events, '-q'], fakeIo().io)).toBe(0);
+    expect(await cluster([events, '--radius', '1.0', '--ptmin', '20', '--trim', '0.2:0.05', '--softdrop', '0.1:1', '-q', '--out', jetsPath], fakeIo().io)).toBe(0);
+    const io = fakeIo();
+    expect(await exportMain([jetsPath, '--format', 'csv', '-q'], io.io)).toBe(0);
+    const [header, ...rows] = io.stdout().split('\n').filter((line) => line !== '');
+    expect(header).toBe('event,pt,y,phi,m,trimPt,trimY,trimPhi,trimM,trimN,trimSubjets,softdropPt,softdropY,softdropPhi,softdropM,softdropN,softdropZg,softdropRg');
+    const source = await openRecordFile(jetsPath);
+    const expected: string[] = [];
+    for await (const record of source.records) {
+      const { event, jets } = decodeJetsRecord(record.bytes);
+      for (let k = 0; k < jets.count; k++) {
+        const t = jets.trim!;
+        const s = jets.softDrop!;
+        expected.push([event, jets.pt[k], jets.rapidity[k], jets.phi[k], jets.mass[k], t.pt[k], t.rapidity[k], t.phi[k], t.mass[k], t.towerCount[k], t.subjets[k],
+          s.pt[k], s.rapidity[k], s.phi[k], s.mass[k], s.towerCount[k], s.zg[k], s.deltaRg[k]].map(String).join(','));
+      }
+    }
+    expect(rows.length).toBeGreaterThan(0);
+    expect(rows).toEqual(expected);
   });
 });

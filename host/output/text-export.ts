@@ -19,7 +19,8 @@ import { TextFileWriter } from './record-writer.js';
 import { csvGridLine } from '../input/csv-grid.js';
 import { sameGrid } from '../clustering/grid.js';
 import { DEFAULT_GRID } from '../types.js';
-import type { Grid, JetSet } from '../types.js';
+import type { Grid, GroomingSettings, JetSet } from '../types.js';
+import { groomedCsvCells, groomedCsvHeader } from './groomed-csv.js';
 
 /** the jets CSV columns: the CSV form `jetlag compare` reads (candidate-reader.ts) */
 export const JETS_CSV_HEADER = 'event,pt,y,phi,m';
@@ -152,13 +153,14 @@ async function exportEvents(source: RecordSource, format: TextFormat, out: TextF
   }
 }
 
-function jetCsvRows(event: number, jets: JetSet): string {
+function jetCsvRows(event: number, jets: JetSet, grooming: GroomingSettings | undefined): string {
   let text = '';
   const pileup = jets.pileup;
   const perEvent = pileup ? `,${jsonNumber(pileup.rho)},${jsonNumber(pileup.etCut)},${pileup.killed},${pileup.subtractedAway}` : '';
   for (let k = 0; k < jets.count; k++) {
     text += `${event},${jsonNumber(jets.pt[k])},${jsonNumber(jets.rapidity[k])},${jsonNumber(jets.phi[k])},${jsonNumber(jets.mass[k])}`;
     if (pileup) text += `,${pileup.ghosts[k]},${jsonNumber(pileup.area[k])},${jsonNumber(pileup.ptRaw[k])}${perEvent}`;
+    if (grooming) text += groomedCsvCells(jets, k, grooming);
     text += '\n';
   }
   return text;
@@ -166,7 +168,9 @@ function jetCsvRows(event: number, jets: JetSet): string {
 
 async function exportJets(source: RecordSource, format: TextFormat, out: TextFileWriter, tally: ExportTally, onProblem: (line: string) => void, onRecord?: (offset: number) => void): Promise<void> {
   const withPileup = source.header.settings?.pileup !== undefined;
-  if (format === 'csv') await out.write(`${withPileup ? PILEUP_JETS_CSV_HEADER : JETS_CSV_HEADER}\n`);
+  // trimming and soft drop (spec section 12): their columns follow the others, when they ran
+  const grooming = source.header.settings?.grooming;
+  if (format === 'csv') await out.write(`${withPileup ? PILEUP_JETS_CSV_HEADER : JETS_CSV_HEADER}${groomedCsvHeader(grooming)}\n`);
   let record = -1;
   for await (const raw of source.records) {
     record++;
@@ -174,7 +178,7 @@ async function exportJets(source: RecordSource, format: TextFormat, out: TextFil
     if (onRecord) onRecord(raw.offset);
     let decoded;
     try {
-      decoded = decodeJetsRecord(raw.bytes, { pileup: withPileup });
+      decoded = decodeJetsRecord(raw.bytes, { pileup: withPileup, trim: !!grooming?.trim, softDrop: !!grooming?.softDrop });
     } catch (error) {
       tally.broken++;
       onProblem(`${source.label}, record ${record}, byte ${raw.offset}: bad jets record: ${(error as Error).message}`);
@@ -197,7 +201,7 @@ async function exportJets(source: RecordSource, format: TextFormat, out: TextFil
     if (format === 'csv' && decoded.jets.count > 0 && !csvOrderAllows(decoded.event, tally, onProblem, `${source.label}, event ${decoded.event}, byte ${raw.offset}`)) continue;
     tally.rows += decoded.jets.count;
     await out.write(format === 'csv'
-      ? jetCsvRows(decoded.event, decoded.jets)
+      ? jetCsvRows(decoded.event, decoded.jets, grooming)
       : formatJetsLine(decoded.event, decoded.jets, decoded.hasTowers) + '\n');
   }
 }

@@ -14,7 +14,8 @@
 // jets, CSV     event,pt,y,phi,m: one row per jet, the CSV form `jetlag compare` reads as a
 //               candidate; CSV has no place for an invalid event (reported on stderr, left
 //               out); an event out of order is left out as for events. Four-vectors and
-//               constituents: use jsonl.
+//               constituents: use jsonl. Jets made with trimming or soft drop add their
+//               groomed columns after these (output/groomed-csv.ts).
 // jets, jsonl   the line form of `jetlag cluster --format jsonl` (jets-jsonl.ts)
 // Numbers are written with String(x), so every double reads back identical.
 // Exit 2 when the file is unreadable (after writing everything before the problem) or a
