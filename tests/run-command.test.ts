@@ -58,7 +58,7 @@ describe('jetlag run and merge', () => {
     expect(Object.keys(summary.latency.endToEnd)).toEqual(['count', 'p50_us', 'p90_us', 'p99_us', 'p999_us', 'max_us', 'mean_us']);
     expect(summary.machine.cores).toBeGreaterThan(0);
     expect(summary.machine.node).toBe(process.version);
-    expect(typeof summary.histograms.cluster.hdr).toBe('string');
+    expect(typeof summary.histograms.service.hdr).toBe('string');
     expect(summary.throughput.eventsPerSecond).toBeGreaterThan(0);
   });
 
