@@ -50,6 +50,16 @@ export function fittedRise(values: readonly number[]): number {
   return (sxy / sxx) * (n - 1);
 }
 
+/** Resolves after `ms`, or at once when the signal aborts. */
+function sleepUnlessAborted(ms: number, signal: AbortSignal | undefined): Promise<void> {
+  if (signal?.aborted) return Promise.resolve();
+  return new Promise((resolve) => {
+    const done = () => { clearTimeout(timer); signal?.removeEventListener('abort', done); resolve(); };
+    const timer = setTimeout(done, ms);
+    signal?.addEventListener('abort', done, { once: true });
+  });
+}
+
 export interface OpenLoopPlan {
   workers: number;
   /** shards take every n-th group of `batch` records, as in a closed loop */
@@ -131,6 +141,7 @@ export class OpenLoopFeed {
         this.lastOffset = record.offset;
         if (Math.floor(record0 / batch) % shard.count !== shard.index) continue;
         await this.publish(record, record0);
+        if (signal?.aborted) { this.partialReason = 'interrupted: reading stopped, events in flight drained'; break; }
       }
     } catch (error) {
       if (!(error instanceof InputError)) throw error;
@@ -148,7 +159,9 @@ export class OpenLoopFeed {
       await this.nextResult();
     }
     const aheadMs = (dueNs - PUBLISH_AHEAD_NS - sharedClockNs()) / 1e6;
-    if (aheadMs >= 1) await new Promise((resolve) => setTimeout(resolve, Math.floor(aheadMs)));
+    if (aheadMs >= 1) await sleepUnlessAborted(Math.floor(aheadMs), this.plan.signal);
+    // stopped while waiting to publish: the event is not sent (the read loop says why)
+    if (this.plan.signal?.aborted) return;
     const ordinal = this.ring.publish(dueNs, record.bytes, record.offset);
     const slot = ordinal % SLOT_COUNT;
     this.dueOf[slot] = dueNs;

@@ -34,6 +34,16 @@ import { batchDataStart, batchViews, type BatchResult, type BatchTask, type Serv
 // here, before the pool starts its threads, covers every worker.
 setFlagsFromString('--no-concurrent-recompilation');
 
+// piscina loads a worker file with require() first and import() if that fails. Node 20.17+
+// lets require() load ES modules; when that fails part way (seen while dist/ was being rebuilt
+// beside a run), the import() after it stops the whole process with an internal assertion
+// ("Unexpected status of a module that is imported again after being required"). Our worker is
+// an ES module: with require() of ES modules off in the workers, piscina goes straight to
+// import(). Older Node versions have neither the feature nor the flag.
+const WORKER_EXEC_ARGV = process.allowedNodeEnvironmentFlags.has('--no-experimental-require-module')
+  ? [...process.execArgv, '--no-experimental-require-module']
+  : process.execArgv;
+
 /** Where the compiled worker lives: beside this file in dist/, or dist/ when run from sources (tests). */
 export function workerFile(): string {
   const here = import.meta.url;
@@ -138,6 +148,7 @@ export class BatchPool {
       maxThreads: options.workers,
       idleTimeout: Infinity,
       workerData: options.config,
+      execArgv: WORKER_EXEC_ARGV,
       recordTiming: false,
     });
   }
