@@ -3,20 +3,26 @@
 // the same events, and each figure is the median over rounds of a paired ratio, since this
 // machine's speed wanders too much for unpaired times to decide 5-10 %. Also the chain's own
 // stage times. Events are invented (tests/support/random-events.ts: ~850-tower pileup-like
-// events over 1-4 hard jets, and full grids of real towers).
+// events over 1-4 hard jets, and full grids of real towers). Last, the engine against the
+// reference on the whole chain (areas, ρ from patches, subtraction) on the toy generator's
+// pileup-200 events, paired event by event.
 //
-//   npm run build:host && node dist/bench/pileup.bench.js [--rounds 30]
+//   npm run bench:pileup   (or: node dist/bench/pileup.bench.js [--rounds 30] [--reference-events 6])
 
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { WasmClusterer } from '../host/clustering/engine.js';
 import { EnginePileupClusterer, STAGE_COUNT, STAGE_NAMES } from '../host/clustering/pileup/engine-chain.js';
+import { PileupReferenceClusterer } from '../host/clustering/pileup/chain.js';
+import { generateEvents } from '../host/generator/generate.js';
 import { DEFAULT_GRID, DEFAULT_PILEUP_SETTINGS, type ClusterSettings, type Clusterer, type PileupSettings } from '../host/types.js';
 import { fullGridEvent, makeRandom, pileupEvents, type TowerArrays } from '../tests/support/random-events.js';
 
 const roundsAt = process.argv.indexOf('--rounds');
 const ROUNDS = roundsAt >= 0 ? Number(process.argv[roundsAt + 1]) : 30;
+const referenceEventsAt = process.argv.indexOf('--reference-events');
+const REFERENCE_EVENTS = referenceEventsAt >= 0 ? Number(process.argv[referenceEventsAt + 1]) : 6;
 const BATCH = 24;
 const settings: ClusterSettings = { p: -1, radius: 0.4, ptMin: 0, threshold: 0, recombination: 'e' };
 const off = DEFAULT_PILEUP_SETTINGS;
@@ -105,6 +111,33 @@ console.table(configurations.map((configuration, c) => {
 console.table(Object.entries(ratios).map(([ratio, value]) => ({ 'paired ratio (median over rounds)': ratio, value: value.toFixed(3) })));
 console.log(`SoftKiller stage / plain clustering of the same events (target <= 0.05): ${softKillerStage.toFixed(4)}`);
 
+// the engine against the reference on the whole chain: each event timed on both, one after the
+// other, so that each ratio is paired; the reference takes about a second an event
+const wholeChain: PileupSettings = { ...off, areas: true, rho: { kind: 'patches', patch: { etaRows: 5, phiColumns: 5 } }, subtract: true };
+const engineChain = chain(wholeChain);
+const referenceChain = new PileupReferenceClusterer(DEFAULT_GRID, settings, wholeChain, 'bench');
+const generated = [...generateEvents(DEFAULT_GRID, { events: REFERENCE_EVENTS, pileup: 200, seed: 200 })];
+const timeOne = (clusterer: Clusterer, towerIndex: Int32Array, towerEt: Float64Array, repeat: number) => {
+  const began = performance.now();
+  for (let k = 0; k < repeat; k++) clusterer.cluster(towerIndex, towerEt);
+  return ((performance.now() - began) * 1000) / repeat;
+};
+const engineOverReference: number[] = [];
+const referenceUs: number[] = [];
+const engineUs: number[] = [];
+referenceChain.cluster(generated[0].towerIndex, generated[0].towerEt);
+for (const event of generated) {
+  const engineTime = timeOne(engineChain, event.towerIndex, event.towerEt, 20);
+  const referenceTime = timeOne(referenceChain, event.towerIndex, event.towerEt, 1);
+  engineUs.push(engineTime);
+  referenceUs.push(referenceTime);
+  engineOverReference.push(referenceTime / engineTime);
+}
+const referenceRatio = median(engineOverReference);
+console.log(`whole chain (areas, ρ patches 5:5, subtraction) on ${REFERENCE_EVENTS} toy-generator pileup-200 events: ` +
+  `reference ${median(referenceUs).toFixed(0)} µs, engine ${median(engineUs).toFixed(0)} µs per event (medians); ` +
+  `reference / engine ${referenceRatio.toFixed(0)}x (median of per-event ratios; target >= 100)`);
+
 const here = dirname(fileURLToPath(import.meta.url));
 const resultsDir = join(here, '..', '..', 'bench', 'results');
 mkdirSync(resultsDir, { recursive: true });
@@ -114,5 +147,6 @@ writeFileSync(join(resultsDir, 'pileup.json'), JSON.stringify({
   medianUsPerEvent: Object.fromEntries(configurations.map((configuration, c) => [configuration.name, median(times[c])])),
   ratios,
   softKillerStageRatio: softKillerStage,
+  wholeChainReferenceOverEngine: referenceRatio,
 }, null, 2));
 console.log(`written ${join(resultsDir, 'pileup.json')}`);

@@ -80,7 +80,32 @@ export function* generateEvents(grid: Grid, settings: GeneratorSettings): Genera
   }
 }
 
-function generateOne(tables: GridTables, settings: GeneratorSettings, random: () => number, event: number): GeneratedEvent {
+/**
+ * What the generator knows and an event file does not: the towers of its hard jets alone (their
+ * deposits binned without pileup and noise), for benchmarks that measure how well pileup is
+ * removed. A side channel: the events are the very ones generateEvents gives.
+ */
+export interface HardTruth {
+  towerIndex: Int32Array;
+  towerEt: Float64Array;
+}
+
+/** generateEvents, each event with its hard jets' towers beside it */
+export function* generateEventsWithTruth(grid: Grid, settings: GeneratorSettings): Generator<{ event: GeneratedEvent; hard: HardTruth }> {
+  const tables = makeGridTables(grid);
+  const random = makeRandom(settings.seed);
+  for (let event = 0; event < settings.events; event++) {
+    const hard = { eta: [] as number[], phi: [] as number[], et: [] as number[] };
+    const generated = generateOne(tables, settings, random, event, hard);
+    const binned = binDeposits(tables, hard.eta, hard.phi, hard.et);
+    yield { event: generated, hard: { towerIndex: Int32Array.from(binned.towerIndex), towerEt: Float64Array.from(binned.towerEt) } };
+  }
+}
+
+function generateOne(
+  tables: GridTables, settings: GeneratorSettings, random: () => number, event: number,
+  hard?: { eta: number[]; phi: number[]; et: number[] },
+): GeneratedEvent {
   const { etaMin, etaMax } = tables.grid;
   const eta: number[] = [];
   const phi: number[] = [];
@@ -107,6 +132,12 @@ function generateOne(tables: GridTables, settings: GeneratorSettings, random: ()
       phi.push(axisPhi + angle * Math.sin(direction));
       et.push(share * (0.2 + 1.6 * random()) * Math.exp(-angle / 0.2));
     }
+  }
+
+  if (hard) {
+    hard.eta.push(...eta);
+    hard.phi.push(...phi);
+    hard.et.push(...et);
   }
 
   // pileup: soft interactions spread over the grid

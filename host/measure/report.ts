@@ -84,6 +84,7 @@ function latencyLines(summary: RunSummary): string[] {
     const stats = chain[stage];
     if (stats) rows.push(latencyRow(`  ${PILEUP_STAGE_LABELS[stage]}`, stats));
   }
+  if (l.grooming) rows.push(latencyRow('  grooming', l.grooming));
   if (openLoop) {
     rows.push(latencyRow('wait', l.wait), latencyRow('return', l.return), latencyRow('end-to-end', l.endToEnd));
     rows.push(latencyRow('harness: dispatch late', summary.harness.dispatchLateness));
@@ -92,6 +93,7 @@ function latencyLines(summary: RunSummary): string[] {
   lines.push(...rows.map((row) => row.text));
   lines.push(`  ${''.padEnd(LABEL_WIDTH)}service: the engine's own time per event, measured inside the worker around clustering`);
   if (l.pileupStages) lines.push(`  ${''.padEnd(LABEL_WIDTH)}indented: the pileup chain's stages inside service, per event (spec part two)`);
+  if (l.grooming) lines.push(`  ${''.padEnd(LABEL_WIDTH)}grooming: trimming and soft drop of the event's jets, inside service (spec section 12)`);
   if (openLoop) {
     lines.push(`  ${''.padEnd(LABEL_WIDTH)}end-to-end = wait + service + return, per event, from its scheduled arrival to its result on the main thread;`);
     lines.push(`  ${''.padEnd(LABEL_WIDTH)}dispatch late: the harness handing events over after their scheduled time (part of wait)`);

@@ -98,6 +98,8 @@ export class RunTally {
     'rho-kt': new LatencyRecorder(),
     subtraction: new LatencyRecorder(),
   };
+  /** trimming and soft drop of each event's jets (spec section 12), part of 'cluster'; empty when off */
+  readonly grooming = new LatencyRecorder();
   readonly multiplicity = new MultiplicityBins();
   /**
    * events over the budget (exact count, not from buckets): open loop, their end-to-end latency
@@ -190,6 +192,7 @@ export class RunTally {
     this.towersPerEvent.merge(other.towersPerEvent);
     for (const stage of STAGES) this.stages[stage].merge(other.stages[stage]);
     for (const stage of PILEUP_STAGES) this.pileupStages[stage].merge(other.pileupStages[stage]);
+    this.grooming.merge(other.grooming);
     this.multiplicity.merge(other.multiplicity);
     this.overBudget += other.overBudget;
     // shards run side by side: their rates add, and one saturated shard saturates the whole

@@ -38,6 +38,7 @@ export function tallyFromSummary(summary: RunSummary, where = 'summary'): RunTal
     if (!(PILEUP_STAGES as readonly string[]).includes(stage)) continue; // a stage of a later version
     tally.pileupStages[stage as PileupStage].merge(LatencyRecorder.decode(encoded!, `${where}: histograms.pileupStages.${stage}`));
   }
+  if (summary.histograms.grooming) tally.grooming.merge(LatencyRecorder.decode(summary.histograms.grooming, `${where}: histograms.grooming`));
   for (const entry of summary.histograms.multiplicity) {
     const recorder = LatencyRecorder.decode(entry.histogram, `${where}: histograms.multiplicity[${entry.bin}]`);
     tally.multiplicity.recorders[entry.bin] = recorder;

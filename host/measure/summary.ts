@@ -9,7 +9,7 @@ import { fitScaling, scalingSamples, type Scaling } from './scaling-fit.js';
 import { PILEUP_STAGES, STAGES, type PileupStage, type CheckedDifference, type FailedBatch, type InvalidEvent, type RunTally, type Saturation, type Stage } from './run-tally.js';
 import type { MachineLoad } from './machine-load.js';
 import { plainHistograms, type PlainHistogram } from './plain-histogram.js';
-import type { PileupSettings, TowerCounts } from '../types.js';
+import type { GroomingSettings, PileupSettings, TowerCounts } from '../types.js';
 
 export interface MachineInfo {
   cpuModel: string;
@@ -38,6 +38,8 @@ export interface RunConfiguration {
   settings: { p: number; radius: number; ptMin: number; threshold: number; recombination: string };
   /** the pileup steps around the clustering (spec part two); absent when none ran */
   pileup?: PileupSettings;
+  /** trimming and soft drop of each reported jet (spec section 12); absent when none ran */
+  grooming?: GroomingSettings;
   workers: number;
   batch: number;
   arrival: { mode: 'closed' | 'fixed' | 'poisson'; rateHz: number | null; seed: number | null };
@@ -91,6 +93,8 @@ export interface RunSummary {
     stages: Record<Stage, LatencyStats>;
     /** the pileup chain's stages that ran (parts of service; spec part two); absent without pileup steps */
     pileupStages?: Partial<Record<PileupStage, LatencyStats>>;
+    /** trimming and soft drop per event (part of service; spec section 12); absent without grooming */
+    grooming?: LatencyStats;
   };
   /** the harness's own figures, apart from the events' */
   harness: {
@@ -122,6 +126,7 @@ export interface RunSummary {
     towersPerEvent: EncodedLatency;
     stages: Record<Stage, EncodedLatency>;
     pileupStages?: Partial<Record<PileupStage, EncodedLatency>>;
+    grooming?: EncodedLatency;
     multiplicity: { bin: number; sumTowers: number; histogram: EncodedLatency }[];
   };
   /** the latency histograms above as percentile tables and log-bin counts in µs, readable without an HDR library (plain-histogram.ts) */
@@ -212,6 +217,7 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
       endToEnd: openLoopStats(tally.endToEnd, openLoop),
       stages: stagesStats,
       ...(chainRan ? { pileupStages: chainStats } : {}),
+      ...(tally.grooming.count > 0 ? { grooming: tally.grooming.stats() } : {}),
     },
     harness: { dispatchLateness: openLoopStats(tally.dispatchLateness, openLoop) },
     saturation: openLoop ? tally.saturation : null,
@@ -239,6 +245,7 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
       towersPerEvent: towers.encode(),
       stages: stagesEncoded,
       ...(chainRan ? { pileupStages: chainEncoded } : {}),
+      ...(tally.grooming.count > 0 ? { grooming: tally.grooming.encode() } : {}),
       multiplicity: tally.multiplicity.recorders.flatMap((recorder, bin) =>
         recorder ? [{ bin, sumTowers: tally.multiplicity.sumTowers[bin], histogram: recorder.encode() }] : []),
     },

@@ -9,13 +9,15 @@ import { MIN_ET } from '../clustering/grid.js';
 import { batchEventJets, type BatchJets } from '../clustering/engine.js';
 import { EnginePileupClusterer } from '../clustering/pileup/engine-chain.js';
 import { firstPileupDifference } from '../validate/pileup-bit-exact.js';
+import { firstGroomingDifference } from '../validate/grooming-bit-exact.js';
+import { GroomingClusterer } from '../clustering/grooming/groomer.js';
 import type { EventTowerReader } from '../input/event-towers.js';
 import { firstJetDifference } from '../validate/bit-exact.js';
 import { hashToUnit } from '../random.js';
 import type { Clusterer, JetSet } from '../types.js';
 import {
   batchViews, resultBytes, resultViews, STAGE_BIN, STAGE_CHECK, STAGE_CLUSTER, STAGE_COUNT, STAGE_DECODE, STAGE_ENCODE,
-  PILEUP_STAGE_COUNT, STAGE_PILEUP_FIRST,
+  PILEUP_STAGE_COUNT, STAGE_PILEUP_FIRST, STAGE_GROOM,
   STATUS_INVALID, STATUS_OK, type BatchResult, type BatchTask, type WorkerConfig,
 } from './worker-contract.js';
 
@@ -196,10 +198,13 @@ function clusterValidEvents(state: WorkerState, clusterer: Clusterer, work: Batc
       hooks.duringService?.(out.eventNumber[validEvent[v]]);
       const jets = clusterer.cluster(state.batchIndex.subarray(batchStart[v], batchStart[v + 1]), state.batchEt.subarray(batchStart[v], batchStart[v + 1]));
       out.stageNs[validEvent[v] * STAGE_COUNT + STAGE_CLUSTER] = nowNs() - t2;
-      if (clusterer instanceof EnginePileupClusterer) {
+      // grooming wraps the (pileup) clusterer: its time is a stage of its own inside cluster
+      const chain = clusterer instanceof GroomingClusterer ? clusterer.base : clusterer;
+      if (chain instanceof EnginePileupClusterer) {
         const at = validEvent[v] * STAGE_COUNT + STAGE_PILEUP_FIRST;
-        for (let stage = 0; stage < PILEUP_STAGE_COUNT; stage++) out.stageNs[at + stage] = clusterer.stageNs[stage];
+        for (let stage = 0; stage < PILEUP_STAGE_COUNT; stage++) out.stageNs[at + stage] = chain.stageNs[stage];
       }
+      if (clusterer instanceof GroomingClusterer) out.stageNs[validEvent[v] * STAGE_COUNT + STAGE_GROOM] = clusterer.groomNs;
       result.jets += jets.count;
       sets.push(jets);
     }
@@ -239,7 +244,7 @@ function checkAndEncode(state: WorkerState, work: BatchWork, jetsOf: (v: number)
       result.sampled.push({ index: k, event, bytes: data.slice(recordStart[k], recordStart[k + 1]) });
     } else if (reference && inCheckSample(event, config.checkFraction, config.checkSeed)) {
       const expected = reference.cluster(state.batchIndex.subarray(from, to), state.batchEt.subarray(from, to));
-      const difference = firstJetDifference(jetsOf(slot), expected) ?? pileupDifference(jetsOf(slot), expected);
+      const difference = firstJetDifference(jetsOf(slot), expected) ?? pileupDifference(jetsOf(slot), expected) ?? firstGroomingDifference(jetsOf(slot), expected);
       result.checked++;
       if (difference === null) result.agreeing++;
       else {

@@ -7,7 +7,7 @@ import { describeDifference } from '../validate/bit-exact.js';
 import type { OutputFile } from '../output/record-writer.js';
 import type { ReproWriter } from '../output/repro-writer.js';
 import type { BatchOutcome } from './pool.js';
-import { resultViews, STAGE_CHECK, STAGE_CLUSTER, STAGE_COUNT, STAGE_ENCODE, STAGE_INDEX, STAGE_PILEUP_FIRST, STATUS_OK, type BatchResult } from './worker-contract.js';
+import { resultViews, STAGE_CHECK, STAGE_CLUSTER, STAGE_COUNT, STAGE_ENCODE, STAGE_INDEX, STAGE_PILEUP_FIRST, STAGE_GROOM, STATUS_OK, type BatchResult } from './worker-contract.js';
 
 export interface DeliveryContext {
   /** the input as named in problem lines */
@@ -128,6 +128,9 @@ export class RunDelivery {
         const value = views.stageNs[at + STAGE_PILEUP_FIRST + stage];
         if (value > 0) tally.pileupStages[PILEUP_STAGES[stage]].recordNs(value);
       }
+      // grooming (spec section 12), when it ran: 0 in a run without --trim and --softdrop
+      const groomNs = views.stageNs[at + STAGE_GROOM];
+      if (groomNs > 0) tally.grooming.recordNs(groomNs);
       if (openLoop) {
         // one event per outcome, timed from its scheduled arrival (open-loop-feed.ts)
         const dueNs = outcome.startNs[k];

@@ -21,6 +21,7 @@ import { InputError, UsageError } from '../errors.js';
 import { loadEngineModule, WasmClusterer } from '../clustering/engine.js';
 import { makeClusterer, type EngineName } from '../clustering/clusterers.js';
 import { pileupStepsOn } from '../clustering/pileup/settings.js';
+import { groomingIsOn } from '../clustering/grooming/settings.js';
 import { ArrivalSchedule, nowNs, type ArrivalMode } from './arrivals.js';
 import { BatchPool } from './pool.js';
 import { RecordFeed } from './run-feed.js';
@@ -32,7 +33,7 @@ import { MachineLoadProbe } from '../measure/machine-load.js';
 import type { WorkerConfig } from './worker-contract.js';
 import { describeMachine, renderSummary, type RunConfiguration, type RunSummary } from '../measure/summary.js';
 import { ProgressBar } from '../measure/progress.js';
-import { DEFAULT_SETTINGS, type ClusterSettings, type Grid, type PileupSettings } from '../types.js';
+import { DEFAULT_SETTINGS, type ClusterSettings, type Grid, type GroomingSettings, type PileupSettings } from '../types.js';
 import { encodeJetsFileHeader } from '../formats/jets-codec.js';
 import { ReproWriter } from '../output/repro-writer.js';
 import { OutputFile } from '../output/record-writer.js';
@@ -68,6 +69,8 @@ export interface RunOptions {
   settings?: ClusterSettings;
   /** the pileup steps around the clustering (spec part two); none when absent */
   pileup?: PileupSettings | null;
+  /** trimming and soft drop of each reported jet (spec section 12); none when absent */
+  grooming?: GroomingSettings | null;
   engine?: WorkerConfig['engine'];
   shard?: { index: number; count: number };
   /** jets file to write (temporary name, renamed when complete) */
@@ -112,6 +115,8 @@ interface RunPlan {
   settings: ClusterSettings;
   /** null when no pileup step runs */
   pileup: PileupSettings | null;
+  /** null when no groomer runs */
+  grooming: GroomingSettings | null;
   engine: EngineName;
   shard: { index: number; count: number };
   budgetUs: number | null;
@@ -135,6 +140,7 @@ function planRun(options: RunOptions): RunPlan {
     check: options.check ?? DEFAULT_CHECK,
     settings: options.settings ?? { ...DEFAULT_SETTINGS },
     pileup: pileupStepsOn(options.pileup) ? { ...options.pileup } : null,
+    grooming: groomingIsOn(options.grooming) ? { ...options.grooming! } : null,
     engine: options.engine ?? 'wasm',
     shard,
     budgetUs,
@@ -185,7 +191,7 @@ function checkFractionOf(check: CheckOption): number {
 
 function workerConfigOf(plan: RunPlan, grid: Grid, encodeJets: boolean): WorkerConfig {
   // the timed pass sends its check sample back; the reference runs after it (check-pass.ts)
-  return { grid, settings: plan.settings, pileup: plan.pileup, engine: plan.engine, checkFraction: checkFractionOf(plan.check), checkSeed: plan.check.seed, encodeJets, checkApart: true };
+  return { grid, settings: plan.settings, pileup: plan.pileup, grooming: plan.grooming, engine: plan.engine, checkFraction: checkFractionOf(plan.check), checkSeed: plan.check.seed, encodeJets, checkApart: true };
 }
 
 /**
@@ -196,7 +202,7 @@ function workerConfigOf(plan: RunPlan, grid: Grid, encodeJets: boolean): WorkerC
 async function openOutputs(options: RunOptions, plan: RunPlan, grid: Grid, inputLabel: string) {
   const jetsFile = options.out ? await OutputFile.open(options.out, { force: options.force }) : null;
   const jetsHeaderPending = jetsFile
-    ? jetsFile.write(encodeJetsFileHeader(grid, { ...plan.settings, engine: plan.engine, ...(plan.pileup ? { pileup: plan.pileup } : {}) }, { producer: producerName('run'), label: inputLabel }))
+    ? jetsFile.write(encodeJetsFileHeader(grid, { ...plan.settings, engine: plan.engine, ...(plan.pileup ? { pileup: plan.pileup } : {}), ...(plan.grooming ? { grooming: plan.grooming } : {}) }, { producer: producerName('run'), label: inputLabel }))
     : undefined;
   const repro = options.repro ? await ReproWriter.open(options.repro, { grid, source: plan.label, engine: plan.engine, force: options.force }) : null;
   return { jetsFile, jetsHeaderPending, repro };
@@ -209,7 +215,7 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const grid: Grid = source.header.grid;
   if (plan.engine === 'wasm') refuseUnusableEngine(grid, plan.settings);
   // the pileup settings' limits need the grid; a chain the workers would refuse is refused here
-  if (plan.pileup) makeClusterer(plan.engine, grid, plan.settings, null, plan.pileup, 'run');
+  if (plan.pileup || plan.grooming) makeClusterer(plan.engine, grid, plan.settings, null, plan.pileup, 'run', plan.grooming);
   const bytesTotal = progressBytesTotal(options);
   const config = workerConfigOf(plan, grid, Boolean(options.out));
   const { jetsFile, jetsHeaderPending, repro } = await openOutputs(options, plan, grid, source.header.label);
@@ -276,6 +282,7 @@ function summarize(options: RunOptions, plan: RunPlan, delivery: RunDelivery, fe
     grid: { ...run.grid },
     settings: { ...plan.settings },
     ...(plan.pileup ? { pileup: plan.pileup } : {}),
+    ...(plan.grooming ? { grooming: plan.grooming } : {}),
     workers: plan.workers,
     batch: plan.batch,
     arrival: {

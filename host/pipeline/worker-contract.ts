@@ -13,7 +13,8 @@
 // Result buffer (worker -> host, one transferred ArrayBuffer, BatchResult.buffer):
 //   Float64 eventNumber[count]                 -1 for a record that broke before its number
 //   Float64 stageNs[count * STAGE_COUNT]       event-major: event k's stage s at k * STAGE_COUNT + s
-//                                              (the five of STAGE_INDEX, then the pileup chain's)
+//                                              (the five of STAGE_INDEX, then the pileup chain's,
+//                                              then grooming's)
 //   Int32   towersClustered[count]             towers above the threshold (valid events)
 //   Uint8   status[count]                      STATUS_OK or STATUS_INVALID
 // Everything else (invalid events' reasons, check differences, jets bytes) travels as small
@@ -21,7 +22,7 @@
 
 import type { EngineName } from '../clustering/clusterers.js';
 import type { JetDifference } from '../validate/bit-exact.js';
-import type { ClusterSettings, Grid, PileupSettings } from '../types.js';
+import type { ClusterSettings, Grid, GroomingSettings, PileupSettings } from '../types.js';
 import type { MessagePort } from 'node:worker_threads';
 import type { RingBuffers } from './event-ring.js';
 
@@ -41,7 +42,9 @@ export const STAGE_ENCODE = 4;
  */
 export const STAGE_PILEUP_FIRST = 5;
 export const PILEUP_STAGE_COUNT = 5;
-export const STAGE_COUNT = STAGE_PILEUP_FIRST + PILEUP_STAGE_COUNT;
+/** trimming and soft drop of the event's jets (spec section 12), part of STAGE_CLUSTER; 0 when off */
+export const STAGE_GROOM = STAGE_PILEUP_FIRST + PILEUP_STAGE_COUNT;
+export const STAGE_COUNT = STAGE_GROOM + 1;
 
 /** The stage table's column of each stage, by the stage's reported name. */
 export const STAGE_INDEX = {
@@ -61,6 +64,8 @@ export interface WorkerConfig {
   settings: ClusterSettings;
   /** the pileup steps around the clustering (spec part two); null or absent: none */
   pileup?: PileupSettings | null;
+  /** trimming and soft drop of each reported jet (spec section 12); null or absent: none */
+  grooming?: GroomingSettings | null;
   /** the engine or the reference; never swapped silently for the other */
   engine: EngineName;
   /** fraction of events compared with the reference: 1 all, 0 none */

@@ -23,9 +23,9 @@ function makeState(config: WorkerConfig, hooks: WorkerHooks): WorkerState {
   return {
     config,
     reader: new EventTowerReader(config.grid),
-    clusterer: hooks.clusterer ? hooks.clusterer() : makeClusterer(config.engine, config.grid, config.settings, null, config.pileup, 'run'),
+    clusterer: hooks.clusterer ? hooks.clusterer() : makeClusterer(config.engine, config.grid, config.settings, null, config.pileup, 'run', config.grooming),
     // a timed pass leaves the reference to the check pass (check-pass.ts)
-    reference: config.checkFraction > 0 && !config.checkApart ? makeReferenceClusterer(config.grid, config.settings, config.pileup) : null,
+    reference: config.checkFraction > 0 && !config.checkApart ? makeReferenceClusterer(config.grid, config.settings, config.pileup, 'run', config.grooming) : null,
     batchIndex: new Int32Array(1 << 16),
     batchEt: new Float64Array(1 << 16),
     batchStart: new Int32Array(1),
@@ -41,7 +41,7 @@ function makeState(config: WorkerConfig, hooks: WorkerHooks): WorkerState {
 export function makeBatchRunner(hooks: WorkerHooks = {}): (task: BatchTask) => Promise<unknown> {
   let state: WorkerState | null = null;
   const ensureClusterer = (s: WorkerState) => {
-    if (!s.clusterer) s.clusterer = hooks.clusterer ? hooks.clusterer() : makeClusterer(s.config.engine, s.config.grid, s.config.settings, null, s.config.pileup, 'run');
+    if (!s.clusterer) s.clusterer = hooks.clusterer ? hooks.clusterer() : makeClusterer(s.config.engine, s.config.grid, s.config.settings, null, s.config.pileup, 'run', s.config.grooming);
   };
   return async function runBatch(task: BatchTask | ServeTask): Promise<unknown> {
     if (!state) state = makeState(piscinaWorkerData as WorkerConfig, hooks);

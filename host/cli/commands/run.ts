@@ -17,6 +17,7 @@ import type { ArrivalMode } from '../../pipeline/arrivals.js';
 import type { EngineName } from '../../clustering/clusterers.js';
 import { parseWindowEmulation, windowFinderName } from '../../clustering/window-finder.js';
 import { PILEUP_OPTIONS, pileupSettingsFrom } from '../pileup-options.js';
+import { GROOMING_OPTIONS, groomingSettingsFrom } from '../grooming-options.js';
 
 /** problem lines (invalid events, failed batches, check differences) written to stderr */
 const PROBLEM_LINES_MAX = 20;
@@ -55,6 +56,7 @@ export const spec: CommandSpec = {
     FORCE_OPTION,
     ...CLUSTER_OPTIONS,
     ...PILEUP_OPTIONS,
+    ...GROOMING_OPTIONS,
     ...GRID_OPTIONS.map((o) => ({ ...o, description: `CSV input: ${o.description}` })),
     MAX_EVENT_GAP_OPTION,
   ],
@@ -139,6 +141,7 @@ export function runOptionsFrom(args: ParsedArgs): RunOptions & { maxMissFraction
     check: parseCheck(window !== null ? 'none' : check, seed),
     settings: clusterSettingsFrom(args, 'run'),
     pileup: pileupSettingsFrom(args, 'run'),
+    grooming: groomingSettingsFrom(args, 'run'),
     grid: gridFrom(args, 'run'),
     maxEventGap: maxEventGapFrom(args, 'run'),
     force: args.values.force === true,
