@@ -18,6 +18,7 @@ import { PileupReferenceClusterer } from '../host/clustering/pileup/chain.js';
 import { firstJetDifference } from '../host/validate/bit-exact.js';
 import { firstPileupDifference } from '../host/validate/pileup-bit-exact.js';
 import { DEFAULT_SETTINGS, type PileupSettings } from '../host/types.js';
+import { WindowFinder } from '../host/clustering/window-finder.js';
 import { fakeIo } from './support/command-io.js';
 import { tempDirForSuite } from './support/temp-dir.js';
 
@@ -94,6 +95,30 @@ describe('cluster with pileup options', () => {
     const { header, decoded } = await readJets(await clusterWith('wasm', ['--ghost-et', '1e-90']));
     expect(header.settings?.pileup).toBeUndefined();
     expect(decoded.every((d) => d.jets.pileup === undefined)).toBe(true);
+  });
+});
+
+describe('the window finder after SoftKiller (spec section 11)', () => {
+  it('clusters the towers at or above the event\'s etCut, and reports etCut and killed', async () => {
+    const { header, decoded } = await readJets(await clusterWith('wasm', ['--emulate', 'window:9:5', '--softkiller', '5:5']));
+    expect(header.settings?.engine).toBe('window-9-5');
+    const source = await openRecordFile(eventsPath);
+    const reader = new EventTowerReader(source.header.grid);
+    const window = new WindowFinder(source.header.grid, DEFAULT_SETTINGS, { windowTowers: 9, seedEt: 5 });
+    let e = 0;
+    for await (const record of source.records) {
+      const towers = reader.read(record.bytes);
+      if (!towers.ok) throw new Error(towers.problem);
+      const { etCut, killed } = decoded[e].jets.pileup!;
+      expect(etCut).toBeGreaterThan(0);
+      // the towers kept by hand: positive et (the threshold, 0) and not below the cut (section 10)
+      const keep = Array.from(towers.towerEt, (et) => et > 0 && et >= etCut);
+      const index = towers.towerIndex.filter((_, k) => keep[k]);
+      const et = towers.towerEt.filter((_, k) => keep[k]);
+      expect(killed).toBe(towers.towerEt.filter((x) => x > 0).length - et.length);
+      expect(firstJetDifference(decoded[e].jets, window.cluster(index, et))).toBeNull();
+      e++;
+    }
   });
 });
 

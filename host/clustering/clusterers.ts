@@ -8,7 +8,8 @@ import { ReferenceClusterer } from './reference.js';
 import { WindowFinder, windowSettingsOfName, type WindowEngineName } from './window-finder.js';
 import { PileupReferenceClusterer } from './pileup/chain.js';
 import { EnginePileupClusterer } from './pileup/engine-chain.js';
-import { pileupStepsOn } from './pileup/settings.js';
+import { checkPileupSettings, pileupStepsOn } from './pileup/settings.js';
+import { SoftKillerFirst } from './pileup/softkiller-first.js';
 import { GroomingClusterer } from './grooming/groomer.js';
 import { EngineGroomer } from './grooming/engine-groomer.js';
 import { ReferenceGroomer } from './grooming/reference-groomer.js';
@@ -28,8 +29,8 @@ export function parseEngineName(text: string, command: string): EngineName {
 
 /**
  * The clusterer a command runs. With a pileup step on (`pileup`, spec part two), the engine or
- * the reference runs the whole chain; the emulations and the window finder take none of them
- * (a usage error naming `command`).
+ * the reference runs the whole chain; the window finder takes SoftKiller only (spec section 11),
+ * the emulations none of them (a usage error naming `command`).
  */
 export function makeClusterer(
   engine: EngineName, grid: Grid, settings: ClusterSettings, emulation?: EmulationMode | null,
@@ -42,6 +43,11 @@ export function makeClusterer(
     return new GroomingClusterer(base, groomer);
   }
   if (pileupStepsOn(pileup)) {
+    const window = windowOf(engine, emulation ?? null);
+    if (window !== null && pileup.softKiller !== null && !pileup.areas && pileup.rho === null && !pileup.subtract) {
+      checkPileupSettings(grid, settings, pileup, command);
+      return new SoftKillerFirst(grid, pileup.softKiller, new WindowFinder(grid, settings, window));
+    }
     refusePileupSteps(engine, emulation ?? null, command);
     return engine === 'reference'
       ? new PileupReferenceClusterer(grid, settings, pileup, command)
@@ -52,6 +58,10 @@ export function makeClusterer(
   const window = windowSettingsOfName(engine);
   if (window !== null) return new WindowFinder(grid, settings, window);
   return new WasmClusterer(grid, settings);
+}
+
+function windowOf(engine: EngineName, emulation: EmulationMode | null) {
+  return emulation !== null && typeof emulation === 'object' && 'window' in emulation ? emulation.window : windowSettingsOfName(engine);
 }
 
 /** The reference a clusterer's jets are checked against: with pileup steps on, the reference's chain. */
@@ -72,9 +82,8 @@ function refuseGrooming(engine: EngineName, emulation: EmulationMode | null, com
  * section 11); the precision emulations model the plain clustering only.
  */
 function refusePileupSteps(engine: EngineName, emulation: EmulationMode | null, command: string): void {
-  const window = emulation !== null && typeof emulation === 'object' && 'window' in emulation ? emulation.window : windowSettingsOfName(engine);
-  if (window !== null) {
-    throw new UsageError(`${command}: the window finder takes no --areas, --rho, --subtract or --softkiller (areas, ρ and subtraction do not apply to it, spec section 11)`);
+  if (windowOf(engine, emulation) !== null) {
+    throw new UsageError(`${command}: the window finder takes no --areas, --rho or --subtract (they do not apply to it, spec section 11); --softkiller alone it takes`);
   }
   if (emulation !== null) {
     throw new UsageError(`${command}: --emulate ${emulation === 'f32' ? 'f32' : 'fixed'} emulates the plain clustering only; leave out --areas, --rho, --subtract and --softkiller`);
