@@ -1,6 +1,7 @@
 // The tally of a run: every batch result folds into one RunTally (counts, listed problems, latency
 // histograms by stage and by multiplicity); tallies of shards add exactly (merge).
 
+import { addToleranceFigures, emptyToleranceFigures, type FailedEvent, type ToleranceFigures } from './program-figures.js';
 import { LatencyRecorder } from './latency.js';
 import { MultiplicityBins } from './multiplicity-fit.js';
 import { combineMachineLoads, type MachineLoad, type MachineLoadProbe } from './machine-load.js';
@@ -101,6 +102,16 @@ export class RunTally {
   /** trimming and soft drop of each event's jets (spec section 12), part of 'cluster'; empty when off */
   readonly grooming = new LatencyRecorder();
   readonly multiplicity = new MultiplicityBins();
+  /** an engine program (`--engine exec:`), per answered event: write of the event to read of its answer; service is the program's own time */
+  readonly roundTrip = new LatencyRecorder();
+  /** the same events: round trip minus the program's own time, the pipe's and the codecs' cost */
+  readonly pipe = new LatencyRecorder();
+  /** events an engine program failed on (part of `failed`), listed up to LISTED_MAX */
+  readonly failedEvents: FailedEvent[] = [];
+  /** an engine program's restarts, all workers */
+  engineRestarts = 0;
+  /** tolerance mode's sums (spec section 7); null when the check is bit for bit */
+  tolerance: ToleranceFigures | null = null;
   /**
    * events over the budget (exact count, not from buckets): open loop, their end-to-end latency
    * from the scheduled arrival; closed loop (no arrivals), their own time in the worker
@@ -159,6 +170,11 @@ export class RunTally {
     if (this.failedBatches.length < LISTED_MAX) this.failedBatches.push(entry);
   }
 
+  addFailedEvent(entry: FailedEvent): void {
+    this.failed++;
+    if (this.failedEvents.length < LISTED_MAX) this.failedEvents.push(entry);
+  }
+
   addDifference(entry: CheckedDifference): void {
     if (this.check.differences.length < DIFFERENCES_MAX) this.check.differences.push(entry);
   }
@@ -194,6 +210,14 @@ export class RunTally {
     for (const stage of PILEUP_STAGES) this.pileupStages[stage].merge(other.pileupStages[stage]);
     this.grooming.merge(other.grooming);
     this.multiplicity.merge(other.multiplicity);
+    this.roundTrip.merge(other.roundTrip);
+    this.pipe.merge(other.pipe);
+    for (const entry of other.failedEvents) if (this.failedEvents.length < LISTED_MAX) this.failedEvents.push(entry);
+    this.engineRestarts += other.engineRestarts;
+    if (other.tolerance) {
+      if (!this.tolerance) this.tolerance = emptyToleranceFigures();
+      addToleranceFigures(this.tolerance, other.tolerance);
+    }
     this.overBudget += other.overBudget;
     // shards run side by side: their rates add, and one saturated shard saturates the whole
     if (other.saturation) {

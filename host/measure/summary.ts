@@ -8,6 +8,7 @@ import { LatencyRecorder, type EncodedLatency, type LatencyStats } from './laten
 import { fitScaling, scalingSamples, type Scaling } from './scaling-fit.js';
 import { PILEUP_STAGES, STAGES, type PileupStage, type CheckedDifference, type FailedBatch, type InvalidEvent, type RunTally, type Saturation, type Stage } from './run-tally.js';
 import type { MachineLoad } from './machine-load.js';
+import { summarizeTolerance, type FailedEvent, type ToleranceSummary } from './program-figures.js';
 import { plainHistograms, type PlainHistogram } from './plain-histogram.js';
 import type { GroomingSettings, PileupSettings, TowerCounts } from '../types.js';
 
@@ -80,7 +81,16 @@ export interface RunSummary {
   failedBatches: FailedBatch[];
   towers: TowerCounts;
   jets: number;
-  check: { checked: number; agreeing: number; disagreeing: number; differences: CheckedDifference[] };
+  check: {
+    checked: number; agreeing: number; disagreeing: number; differences: CheckedDifference[];
+    /** bit for bit against the reference, or tolerance mode (spec section 7; an engine program only) */
+    mode: 'bit-exact' | 'tolerance';
+    /** tolerance mode: compare's figures (agreement, efficiency, fake rate, response) */
+    tolerance?: ToleranceSummary;
+  };
+  /** an engine program (`--engine exec:`): the events it failed on (listed up to 1000) and its restarts */
+  failedEvents?: FailedEvent[];
+  engineRestarts?: number;
   latency: {
     /** the engine's own time per event, measured inside the worker around clustering */
     service: LatencyStats;
@@ -95,6 +105,14 @@ export interface RunSummary {
     pileupStages?: Partial<Record<PileupStage, LatencyStats>>;
     /** trimming and soft drop per event (part of service; spec section 12); absent without grooming */
     grooming?: LatencyStats;
+    /**
+     * an engine program only: write of the event to its pipe to the read of its answer, per
+     * answered event; service is then the program's own cluster_time_ns, and the difference is
+     * the pipe's and the codecs' cost
+     */
+    roundTrip?: LatencyStats;
+    /** an engine program only: per answered event, round trip minus its own time (the pipe's and the codecs' cost) */
+    pipe?: LatencyStats;
   };
   /** the harness's own figures, apart from the events' */
   harness: {
@@ -194,6 +212,7 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
   const openLoop = context.configuration.arrival.mode !== 'closed';
   const budgetUs = context.configuration.budgetUs;
   const timed = tally.service.count;
+  const program = context.configuration.engine.startsWith('exec:');
   const wallSeconds = context.wallSeconds;
   const summary: RunSummary = {
     format: 'jetlag-run-summary',
@@ -209,7 +228,8 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
     failedBatches: tally.failedBatches,
     towers: { ...tally.towers },
     jets: tally.jets,
-    check: { ...tally.check },
+    check: { ...tally.check, mode: tally.tolerance ? 'tolerance' : 'bit-exact', ...(tally.tolerance ? { tolerance: summarizeTolerance(tally.tolerance) } : {}) },
+    ...(program ? { failedEvents: tally.failedEvents, engineRestarts: tally.engineRestarts } : {}),
     latency: {
       service: tally.service.stats(),
       wait: openLoopStats(tally.wait, openLoop),
@@ -218,6 +238,7 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
       stages: stagesStats,
       ...(chainRan ? { pileupStages: chainStats } : {}),
       ...(tally.grooming.count > 0 ? { grooming: tally.grooming.stats() } : {}),
+      ...(program ? { roundTrip: tally.roundTrip.stats(), pipe: tally.pipe.stats() } : {}),
     },
     harness: { dispatchLateness: openLoopStats(tally.dispatchLateness, openLoop) },
     saturation: openLoop ? tally.saturation : null,

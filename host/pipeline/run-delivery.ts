@@ -7,6 +7,7 @@ import { describeDifference } from '../validate/bit-exact.js';
 import type { OutputFile } from '../output/record-writer.js';
 import type { ReproWriter } from '../output/repro-writer.js';
 import type { BatchOutcome } from './pool.js';
+import { failedByIndex, tallyProgramBatch } from './exec-delivery.js';
 import { resultViews, STAGE_CHECK, STAGE_CLUSTER, STAGE_COUNT, STAGE_ENCODE, STAGE_INDEX, STAGE_PILEUP_FIRST, STAGE_GROOM, STATUS_OK, type BatchResult } from './worker-contract.js';
 
 export interface DeliveryContext {
@@ -21,6 +22,8 @@ export interface DeliveryContext {
   onProblem?: (line: string) => void;
   /** every clustered event, in input order (per-event CSV, the report's thinned sample) */
   onEvent?: EventObserver;
+  /** an engine program used up its restarts (exec-batch.ts): the run stops */
+  onEngineStopped?: (message: string) => void;
 }
 
 /**
@@ -45,6 +48,8 @@ export class RunDelivery {
   offsetDone = 0;
   /** the timed pass's check sample, in input order */
   readonly checkSample: SampledRecord[] = [];
+  /** why an engine program stopped the run; null while it runs */
+  engineStopped: string | null = null;
   /** the clusterer the workers report (the configured one until a result comes back) */
   engineName: string;
   /** the jets file's latest write that has not finished; the reader waits on it before a batch */
@@ -79,6 +84,13 @@ export class RunDelivery {
     for (const { index, bytes } of result.sampled) {
       this.checkSample.push({ bytes, offset: outcome.recordOffsets[index], record: outcome.firstRecord + index });
     }
+    if (result.exec) {
+      tallyProgramBatch(this.tally, result.exec, (line) => this.problem(line));
+      if (result.exec.engineError !== null && this.engineStopped === null) {
+        this.engineStopped = result.exec.engineError;
+        this.context.onEngineStopped?.(result.exec.engineError);
+      }
+    }
     this.tallyEvents(outcome, result);
     this.tallyBatch(result);
     this.writeDisagreeing(result);
@@ -102,8 +114,16 @@ export class RunDelivery {
     const views = resultViews(result.buffer, outcome.count);
     const invalidReasons = new Map<number, string>();
     for (const entry of result.invalid) invalidReasons.set(entry.index, entry.reason);
+    const programFailed = failedByIndex(result.exec);
     for (let k = 0; k < outcome.count; k++) {
       const at = k * STAGE_COUNT;
+      const failure = programFailed?.get(k);
+      if (failure) {
+        // the engine program failed on it: not invalid input, a failed event
+        tally.addFailedEvent({ event: failure.event, reason: failure.reason, message: failure.message });
+        this.problem(failure.message);
+        continue;
+      }
       if (views.status[k] !== STATUS_OK) {
         const event = views.eventNumber[k] >= 0 ? views.eventNumber[k] : null;
         const reason = invalidReasons.get(k) ?? 'invalid';
@@ -114,6 +134,10 @@ export class RunDelivery {
       tally.ok++;
       const clusterNs = views.stageNs[at + STAGE_CLUSTER];
       tally.recordService(views.towersClustered[k], clusterNs);
+      if (result.exec) {
+        tally.roundTrip.recordNs(result.exec.roundTripNs[k]);
+        tally.pipe.recordNs(Math.max(0, result.exec.roundTripNs[k] - clusterNs));
+      }
       const onEvent = this.context.onEvent;
       if (onEvent) onEvent(views.eventNumber[k], views.towersClustered[k], clusterNs, outcome.startNs[k], outcome.workerStartNs ?? outcome.startNs[k], outcome.finishedNs);
       for (const stage of STAGES) {

@@ -31,6 +31,8 @@ import { runCheckPass } from './check-pass.js';
 import { DEFAULT_MAX_RECORD_BYTES } from '../input/record-reader.js';
 import { MachineLoadProbe } from '../measure/machine-load.js';
 import type { WorkerConfig } from './worker-contract.js';
+import type { ExecWorkerConfig } from './exec-run-contract.js';
+import { ExecEngineError } from './exec-engine.js';
 import { describeMachine, renderSummary, type RunConfiguration, type RunSummary } from '../measure/summary.js';
 import { ProgressBar } from '../measure/progress.js';
 import { DEFAULT_SETTINGS, type ClusterSettings, type Grid, type GroomingSettings, type PileupSettings } from '../types.js';
@@ -97,6 +99,11 @@ export interface RunOptions {
   maxInFlight?: number;
   /** the pool's worker script (default: the product worker); tests run one with planted faults */
   workerFile?: string;
+  /**
+   * `--engine exec:…`: each worker runs this program as its engine (exec-batch.ts); the check
+   * runs in the workers after each answer, bit for bit or in tolerance mode. Closed loop only.
+   */
+  program?: ExecWorkerConfig | null;
 }
 
 export const DEFAULT_CHECK: CheckOption = { mode: 'fraction', fraction: 0.01, seed: 1 };
@@ -189,9 +196,11 @@ function checkFractionOf(check: CheckOption): number {
   return check.mode === 'all' ? 1 : check.mode === 'none' ? 0 : check.fraction;
 }
 
-function workerConfigOf(plan: RunPlan, grid: Grid, encodeJets: boolean): WorkerConfig {
+function workerConfigOf(plan: RunPlan, grid: Grid, encodeJets: boolean, program: ExecWorkerConfig | null): WorkerConfig {
   // the timed pass sends its check sample back; the reference runs after it (check-pass.ts)
-  return { grid, settings: plan.settings, pileup: plan.pileup, grooming: plan.grooming, engine: plan.engine, checkFraction: checkFractionOf(plan.check), checkSeed: plan.check.seed, encodeJets, checkApart: true };
+  const config: WorkerConfig = { grid, settings: plan.settings, pileup: plan.pileup, grooming: plan.grooming, engine: plan.engine, checkFraction: checkFractionOf(plan.check), checkSeed: plan.check.seed, encodeJets, checkApart: true };
+  // a program's jets exist only in its worker: the check runs there, after each answer
+  return program ? { ...config, exec: program, checkApart: false } : config;
 }
 
 /**
@@ -202,9 +211,9 @@ function workerConfigOf(plan: RunPlan, grid: Grid, encodeJets: boolean): WorkerC
 async function openOutputs(options: RunOptions, plan: RunPlan, grid: Grid, inputLabel: string) {
   const jetsFile = options.out ? await OutputFile.open(options.out, { force: options.force }) : null;
   const jetsHeaderPending = jetsFile
-    ? jetsFile.write(encodeJetsFileHeader(grid, { ...plan.settings, engine: plan.engine, ...(plan.pileup ? { pileup: plan.pileup } : {}), ...(plan.grooming ? { grooming: plan.grooming } : {}) }, { producer: producerName('run'), label: inputLabel }))
+    ? jetsFile.write(encodeJetsFileHeader(grid, { ...plan.settings, engine: options.program?.label ?? plan.engine, ...(plan.pileup ? { pileup: plan.pileup } : {}), ...(plan.grooming ? { grooming: plan.grooming } : {}) }, { producer: producerName('run'), label: inputLabel }))
     : undefined;
-  const repro = options.repro ? await ReproWriter.open(options.repro, { grid, source: plan.label, engine: plan.engine, force: options.force }) : null;
+  const repro = options.repro ? await ReproWriter.open(options.repro, { grid, source: plan.label, engine: options.program?.label ?? plan.engine, force: options.force }) : null;
   return { jetsFile, jetsHeaderPending, repro };
 }
 
@@ -213,15 +222,20 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const schedule = new ArrivalSchedule(plan.arrival);
   const source = await openEventSource(options.input, { fileLabel: plan.label, grid: options.grid, maxEventGap: options.maxEventGap });
   const grid: Grid = source.header.grid;
-  if (plan.engine === 'wasm') refuseUnusableEngine(grid, plan.settings);
+  const program = options.program ?? null;
+  if (program !== null && (plan.pileup || plan.grooming)) throw new UsageError('run: --engine exec: clusters only; the pileup steps, --trim and --softdrop run on the wasm engine or the reference');
+  if (program !== null && schedule.openLoop) throw new UsageError('run: --engine exec: runs in a closed loop only for now; leave out --rate');
+  if (plan.engine === 'wasm' && program === null) refuseUnusableEngine(grid, plan.settings);
   // the pileup settings' limits need the grid; a chain the workers would refuse is refused here
   if (plan.pileup || plan.grooming) makeClusterer(plan.engine, grid, plan.settings, null, plan.pileup, 'run', plan.grooming);
   const bytesTotal = progressBytesTotal(options);
-  const config = workerConfigOf(plan, grid, Boolean(options.out));
+  const config = workerConfigOf(plan, grid, Boolean(options.out), program);
+  // an engine program that used up its restarts stops the reading (exec-delivery.ts)
+  const engineStop = new AbortController();
   const { jetsFile, jetsHeaderPending, repro } = await openOutputs(options, plan, grid, source.header.label);
   const delivery = new RunDelivery(
-    { label: plan.label, openLoop: schedule.openLoop, budgetNs: plan.budgetNs, reproPath: options.repro ?? null, onProblem: options.onProblem, onEvent: options.onEvent },
-    plan.engine, jetsFile, jetsHeaderPending, repro,
+    { label: plan.label, openLoop: schedule.openLoop, budgetNs: plan.budgetNs, reproPath: options.repro ?? null, onProblem: options.onProblem, onEvent: options.onEvent, onEngineStopped: () => engineStop.abort() },
+    program?.label ?? plan.engine, jetsFile, jetsHeaderPending, repro,
   );
 
   const pool = new BatchPool({
@@ -233,7 +247,7 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   });
   // threads and engines are made before the clock starts: start-up is not throughput
   await pool.warmUp(plan.workers);
-  const feedPlan = { batch: plan.batch, shard: plan.shard, maxEvents: options.maxEvents, signal: options.signal };
+  const feedPlan = { batch: plan.batch, shard: plan.shard, maxEvents: options.maxEvents, signal: options.signal ? AbortSignal.any([options.signal, engineStop.signal]) : engineStop.signal };
   const feed = schedule.openLoop
     ? new OpenLoopFeed({ ...feedPlan, workers: plan.workers, maxRecordBytes: DEFAULT_MAX_RECORD_BYTES }, schedule, pool, delivery)
     : new RecordFeed(feedPlan, pool, delivery);
@@ -266,6 +280,10 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   } catch (error) {
     await delivery.abortOutputs();
     throw error;
+  }
+  if (delivery.engineStopped !== null) {
+    await delivery.abortOutputs();
+    throw new ExecEngineError(delivery.engineStopped);
   }
   await delivery.closeRepro();
   delivery.tally.bytesRead = feed.lastOffset;

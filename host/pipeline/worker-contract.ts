@@ -25,6 +25,7 @@ import type { JetDifference } from '../validate/bit-exact.js';
 import type { ClusterSettings, Grid, GroomingSettings, PileupSettings } from '../types.js';
 import type { MessagePort } from 'node:worker_threads';
 import type { RingBuffers } from './event-ring.js';
+import type { ExecBatchFigures, ExecWorkerConfig } from './exec-run-contract.js';
 
 // ---- the stage table: one column per stage of an event's way through the worker ----------
 // Named as measure/ reports them (STAGE_INDEX below maps those names to these columns).
@@ -78,6 +79,8 @@ export interface WorkerConfig {
    * in BatchResult.sampled, and are checked after the timing (check-pass.ts)
    */
   checkApart?: boolean;
+  /** `run --engine exec:…`: each worker's engine is this program (exec-batch.ts); the check runs in the worker */
+  exec?: ExecWorkerConfig | null;
 }
 
 /** Host -> worker, one per batch. */
@@ -116,6 +119,8 @@ export interface BatchResult {
   sampled: { index: number; event: number; bytes: Uint8Array }[];
   /** delimited jets records of this batch's events in order, when encodeJets is on */
   jetsBytes: Uint8Array | null;
+  /** an engine program's figures (exec-run-contract.ts); absent for the in-process engines */
+  exec?: ExecBatchFigures;
 }
 
 /**

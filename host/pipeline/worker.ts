@@ -17,6 +17,7 @@ import { EventTowerReader } from '../input/event-towers.js';
 import { encodeDelimitedJetsRecord } from '../formats/jets-codec.js';
 import { clusterBatch, type WorkerHooks, type WorkerState } from './cluster-batch.js';
 import { serveRing } from './open-loop-serve.js';
+import { runExecBatch } from './exec-batch.js';
 import type { BatchTask, ServeTask, WorkerConfig } from './worker-contract.js';
 
 function makeState(config: WorkerConfig, hooks: WorkerHooks): WorkerState {
@@ -44,6 +45,8 @@ export function makeBatchRunner(hooks: WorkerHooks = {}): (task: BatchTask) => P
     if (!s.clusterer) s.clusterer = hooks.clusterer ? hooks.clusterer() : makeClusterer(s.config.engine, s.config.grid, s.config.settings, null, s.config.pileup, 'run', s.config.grooming);
   };
   return async function runBatch(task: BatchTask | ServeTask): Promise<unknown> {
+    const config = piscinaWorkerData as WorkerConfig;
+    if (config.exec && !('serve' in task)) return runExecBatch(config, config.exec, task);
     if (!state) state = makeState(piscinaWorkerData as WorkerConfig, hooks);
     if ('serve' in task) return serveRing(state, task.serve, hooks, ensureClusterer);
     ensureClusterer(state);

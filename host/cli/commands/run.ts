@@ -10,6 +10,7 @@ import { findRate, scanWorkers } from '../../pipeline/studies.js';
 import { describeMachine, type RunSummary } from '../../measure/summary.js';
 import { LISTED_MAX } from '../../measure/run-tally.js';
 import { formatReport } from '../../measure/report.js';
+import { formatProgramReport } from '../../measure/program-report.js';
 import { runFailures } from '../../measure/run-verdict.js';
 import { writeTextFile } from '../../output/record-writer.js';
 import { DISPLAY_OPTION, PER_EVENT_OPTION, REPORT_OPTION, RunReportOutputs } from '../report-outputs.js';
@@ -18,6 +19,8 @@ import type { EngineName } from '../../clustering/clusterers.js';
 import { parseWindowEmulation, windowFinderName } from '../../clustering/window-finder.js';
 import { PILEUP_OPTIONS, pileupSettingsFrom } from '../pileup-options.js';
 import { GROOMING_OPTIONS, groomingSettingsFrom } from '../grooming-options.js';
+import { RUN_PROGRAM_OPTIONS, runProgramFrom } from '../run-program-options.js';
+import { ExecEngineError } from '../../pipeline/exec-engine.js';
 
 /** problem lines (invalid events, failed batches, check differences) written to stderr */
 const PROBLEM_LINES_MAX = 20;
@@ -39,7 +42,8 @@ const RUN_OPTIONS: OptionSpec[] = [
   { name: 'out', kind: 'string', argument: '<file>', description: 'write the jets of every event to a jets file (default: none)' },
   { name: 'shard', kind: 'string', argument: '<k/n>', description: 'process only every n-th batch of events starting with batch k, for job arrays (default: 0/1)' },
   { name: 'events', kind: 'integer', argument: '<n>', description: 'stop after the first n events of the file (default: all)' },
-  { name: 'engine', kind: 'string', argument: '<wasm|reference|window[:W:SEEDET]>', description: 'clusterer in the workers: the engine, the plain reference, or the level-1 style window finder (W x W towers around maxima of et >= SEEDET GeV, default 9:5; no --check) (default: wasm)' },
+  { name: 'engine', kind: 'string', argument: '<wasm|reference|window[:W:SEEDET]|exec:CMD>', description: 'clusterer in the workers: the engine, the plain reference, the level-1 style window finder (W x W towers around maxima of et >= SEEDET GeV, default 9:5; no --check), or a program of your own, one per worker, fed the event stream on its stdin and answering with a jets stream (default: wasm)' },
+  ...RUN_PROGRAM_OPTIONS,
   { name: 'quiet', kind: 'flag', short: 'q', description: 'no progress bar' },
 ];
 
@@ -122,8 +126,10 @@ export function runOptionsFrom(args: ParsedArgs): RunOptions & { maxMissFraction
   if (wantFindRate && budgetUs === null) throw new UsageError('run: --find-rate needs --budget-us');
   const engineText = args.values.engine as string | undefined;
   const window = engineText === undefined ? null : parseWindowEmulation(engineText, 'run: --engine');
-  if (engineText !== undefined && window === null && engineText !== 'wasm' && engineText !== 'reference') {
-    throw new UsageError(`run: --engine must be wasm, reference or window[:W:SEEDET], got ${JSON.stringify(engineText)}`);
+  const settings = clusterSettingsFrom(args, 'run');
+  const program = runProgramFrom(args, engineText, budgetUs, settings.ptMin);
+  if (engineText !== undefined && window === null && program === null && engineText !== 'wasm' && engineText !== 'reference') {
+    throw new UsageError(`run: --engine must be wasm, reference, window[:W:SEEDET] or exec:'COMMAND ARGS…', got ${JSON.stringify(engineText)}`);
   }
   // the window finder is not generalised kt (spec section 11): there is nothing to hold its
   // jets to bit for bit, so the check is off; its accuracy is `jetlag compare`'s business
@@ -139,7 +145,8 @@ export function runOptionsFrom(args: ParsedArgs): RunOptions & { maxMissFraction
     arrival,
     budgetUs,
     check: parseCheck(window !== null ? 'none' : check, seed),
-    settings: clusterSettingsFrom(args, 'run'),
+    settings,
+    program,
     pileup: pileupSettingsFrom(args, 'run'),
     grooming: groomingSettingsFrom(args, 'run'),
     grid: gridFrom(args, 'run'),
@@ -193,6 +200,11 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
     }
   } catch (error) {
     await reportOutputs.abort();
+    if (error instanceof ExecEngineError) {
+      // the program's fault, not jetlag's: one line, exit 2
+      io.stderr.write(`jetlag run: ${error.message}; the run stopped there\n`);
+      return 2;
+    }
     throw error;
   } finally {
     process.off('SIGINT', onSigint);
@@ -200,7 +212,7 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   if (options.json) await writeTextFile(options.json, JSON.stringify(summary, null, 2) + '\n', { stdout: io.stdout, force: options.force });
   await reportOutputs.finish(summary, io);
   // with the jets or the summary on stdout, the text report goes to stderr
-  (options.out === '-' || options.json === '-' ? io.stderr : io.stdout).write(formatReport(summary));
+  (options.out === '-' || options.json === '-' ? io.stderr : io.stdout).write(formatReport(summary) + formatProgramReport(summary));
   if (problems > PROBLEM_LINES_MAX) {
     io.stderr.write(`jetlag run: ${problems - PROBLEM_LINES_MAX} more problems not shown (invalid events ${summary.events.invalid}, failed ${summary.events.failed}, disagreeing ${summary.check.disagreeing}); the --json summary lists up to ${LISTED_MAX} invalid events and failed batches\n`);
   }

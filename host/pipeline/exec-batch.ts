@@ -1,0 +1,202 @@
+// One batch's work in a pool worker whose engine is a program (`run --engine exec:…`): the
+// records are read as for the wasm engine (cluster-batch.ts readBatch: decode, validate, bin),
+// then each valid event goes to the worker's program and waits for its answer (exec-engine.ts),
+// then is checked (sampled; bit for bit or in tolerance mode) and encoded. The service time is
+// the program's own cluster_time_ns; jetlag's write -> read round trip goes beside it, so the
+// difference is the pipe's and the codecs' cost.
+//
+// The check runs here, after the answer, not in a check pass: the program's jets exist only
+// here, and the reference's time is outside both clocks (the program's, and the round trip).
+//
+// An event the program fails on is failed (BatchResult.exec.failed), and the batch goes on;
+// ExecEngineError (restarts used up, program gone) fails the rest of the batch and is reported
+// in exec.engineError, on which the main thread stops the run.
+
+import { makeReferenceClusterer } from '../clustering/clusterers.js';
+import { EventTowerReader } from '../input/event-towers.js';
+import { encodeDelimitedJetsRecord } from '../formats/jets-codec.js';
+import { firstJetDifference } from '../validate/bit-exact.js';
+import { ToleranceMatcher } from '../validate/tolerance-compare.js';
+import { ExecEngine, ExecEngineError } from './exec-engine.js';
+import { inCheckSample, readBatch, type WorkerState } from './cluster-batch.js';
+import type { ExecBatchFigures, ExecWorkerConfig } from './exec-run-contract.js';
+import { emptyToleranceFigures, type ToleranceFigures } from '../measure/program-figures.js';
+import { STAGE_CHECK, STAGE_CLUSTER, STAGE_COUNT, STAGE_ENCODE, STATUS_INVALID, STATUS_OK, type BatchResult, type BatchTask, type WorkerConfig } from './worker-contract.js';
+import { producerName } from '../version.js';
+import type { Clusterer, JetSet } from '../types.js';
+
+interface ExecWorker {
+  state: WorkerState;
+  exec: ExecWorkerConfig;
+  engine: ExecEngine;
+  matcher: ToleranceMatcher | null;
+  restartsReported: number;
+  faultLines: string[];
+}
+
+let worker: ExecWorker | null = null;
+
+function nowNs(): number {
+  return performance.now() * 1e6;
+}
+
+/** readBatch names the batch's engine from the state's clusterer; the program has no clusterer here */
+function programNamed(name: string, config: WorkerConfig): Clusterer {
+  return { name, settings: config.settings, cluster: () => { throw new Error('an engine program clusters through ExecEngine'); } };
+}
+
+async function startWorker(config: WorkerConfig, exec: ExecWorkerConfig): Promise<ExecWorker> {
+  const faultLines: string[] = [];
+  const engine = await ExecEngine.start({
+    argv: exec.argv, label: exec.label, grid: config.grid, settings: config.settings,
+    producer: producerName('run'), streamLabel: 'events of a run',
+    timeoutMs: exec.timeoutMs, maxRestarts: exec.maxRestarts,
+    onFault: (line) => faultLines.push(line),
+  });
+  const state: WorkerState = {
+    config,
+    reader: new EventTowerReader(config.grid),
+    clusterer: programNamed(exec.label, config),
+    reference: config.checkFraction > 0 ? makeReferenceClusterer(config.grid, config.settings, null) : null,
+    batchIndex: new Int32Array(1 << 16),
+    batchEt: new Float64Array(1 << 16),
+    batchStart: new Int32Array(1),
+    validEvent: new Int32Array(0),
+    encodeJets: config.encodeJets ? encodeDelimitedJetsRecord : null,
+  };
+  return { state, exec, engine, matcher: exec.tolerance ? new ToleranceMatcher(exec.tolerance) : null, restartsReported: 0, faultLines };
+}
+
+/** The piscina entry's exec branch (worker.ts): a warm-up task starts the program, a batch runs through it. */
+export async function runExecBatch(config: WorkerConfig, exec: ExecWorkerConfig, task: BatchTask): Promise<BatchResult | null> {
+  if (!worker) worker = await startWorker(config, exec);
+  const { state } = worker;
+  if (state.validEvent.length < task.count) {
+    state.validEvent = new Int32Array(task.count);
+    state.batchStart = new Int32Array(task.count + 1);
+  }
+  if (task.count === 0) return null;
+  const work = readBatch(state, task);
+  const figures: ExecBatchFigures = {
+    roundTripNs: new Float64Array(task.count), failed: [], restarts: 0, faultLines: [],
+    tolerance: worker.matcher ? emptyToleranceFigures() : null, engineError: null,
+  };
+  await programPass(worker, work.result, work, figures);
+  figures.restarts = worker.engine.counts.restarts - worker.restartsReported;
+  worker.restartsReported = worker.engine.counts.restarts;
+  figures.faultLines = worker.faultLines.splice(0);
+  work.result.exec = figures;
+  return work.result;
+}
+
+/** Each valid event of the batch, in input order: program, check (sampled), encode. */
+async function programPass(w: ExecWorker, result: BatchResult, work: ReturnType<typeof readBatch>, figures: ExecBatchFigures): Promise<void> {
+  const { state } = w;
+  const { out } = work;
+  const { config, reference, encodeJets, batchStart } = state;
+  const jetChunks: Uint8Array[] = [];
+  let nextInvalid = 0;
+  let v = 0;
+  for (let k = 0; k < work.task.count; k++) {
+    const at = k * STAGE_COUNT;
+    const event = out.eventNumber[k];
+    if (out.status[k] !== STATUS_OK) {
+      const reason = result.invalid[nextInvalid++].reason;
+      if (encodeJets && event >= 0) jetChunks.push(encodeJets(event, null, 0, reason));
+      continue;
+    }
+    const from = batchStart[v];
+    const to = batchStart[v + 1];
+    v++;
+    const towerIndex = state.batchIndex.subarray(from, to);
+    const towerEt = state.batchEt.subarray(from, to);
+    let failure: { reason: string; message: string } | null = null;
+    let jets: JetSet | null = null;
+    if (figures.engineError !== null) {
+      failure = { reason: 'engine-stopped', message: `${w.exec.label}, event ${event}: not sent, the program had stopped (${figures.engineError})` };
+    } else {
+      try {
+        const outcome = await w.engine.submit(event, towerIndex, towerEt);
+        if (outcome.ok) {
+          jets = outcome.jets;
+          out.stageNs[at + STAGE_CLUSTER] = outcome.serviceNs;
+          figures.roundTripNs[k] = outcome.roundTripNs;
+        } else {
+          failure = { reason: outcome.reason, message: outcome.message };
+        }
+      } catch (error) {
+        if (!(error instanceof ExecEngineError)) throw error;
+        figures.engineError = error.message;
+        failure = { reason: 'engine-stopped', message: error.message };
+      }
+    }
+    if (failure !== null || jets === null) {
+      // a failed event is not invalid input: it keeps its own count (events.failed)
+      out.status[k] = STATUS_INVALID;
+      figures.failed.push({ index: k, event, reason: failure!.reason, message: failure!.message });
+      if (encodeJets) jetChunks.push(encodeJets(event, null, 0, failure!.message));
+      continue;
+    }
+    result.jets += jets.count;
+    const t3 = nowNs();
+    let t4 = t3;
+    if (reference && inCheckSample(event, config.checkFraction, config.checkSeed)) {
+      const expected = reference.cluster(towerIndex, towerEt);
+      result.checked++;
+      if (w.matcher) {
+        if (matchInTolerance(w.matcher, expected, jets, figures.tolerance!)) result.agreeing++;
+      } else {
+        const difference = firstJetDifference(jets, expected);
+        if (difference === null) result.agreeing++;
+        else {
+          result.differences.push({ event, ...difference });
+          result.disagreeing.push({ event, bytes: work.data.slice(work.recordStart[k], work.recordStart[k + 1]) });
+        }
+      }
+      t4 = nowNs();
+    }
+    let t5 = t4;
+    if (encodeJets) {
+      jetChunks.push(encodeJets(event, jets, Math.round(out.stageNs[at + STAGE_CLUSTER]), ''));
+      t5 = nowNs();
+    }
+    out.stageNs[at + STAGE_CHECK] = t4 - t3;
+    out.stageNs[at + STAGE_ENCODE] = t5 - t4;
+  }
+  if (encodeJets) result.jetsBytes = joined(jetChunks);
+}
+
+/** One event in tolerance mode: the matcher's verdict, its counts added to the figures. */
+function matchInTolerance(matcher: ToleranceMatcher, reference: JetSet, candidate: JetSet, figures: ToleranceFigures): boolean {
+  const agrees = matcher.match(reference, candidate);
+  figures.checked++;
+  if (agrees) figures.agreeing++;
+  figures.referenceAbove += matcher.refAbove;
+  figures.matched += matcher.refAboveMatched;
+  figures.candidateAbove += matcher.candAbove;
+  figures.unmatched += matcher.candAboveUnmatched;
+  const ptMin = matcher.settings.ptMin;
+  for (let r = 0; r < reference.count; r++) {
+    if (reference.pt[r] >= ptMin && matcher.refMatch[r] >= 0) {
+      figures.responseSum += matcher.refPtRatio[r];
+      figures.responseCount++;
+    }
+  }
+  return agrees;
+}
+
+function joined(chunks: Uint8Array[]): Uint8Array {
+  let total = 0;
+  for (const chunk of chunks) total += chunk.length;
+  const bytes = new Uint8Array(total);
+  let at = 0;
+  for (const chunk of chunks) { bytes.set(chunk, at); at += chunk.length; }
+  return bytes;
+}
+
+/** Ends the worker's program (the pool's close; a worker thread's exit kills it otherwise). */
+export async function closeExecWorker(): Promise<void> {
+  const running = worker;
+  worker = null;
+  if (running) await running.engine.close();
+}
