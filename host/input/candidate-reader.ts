@@ -5,10 +5,13 @@
 //   jets file   our own (proto/jetlag.proto): the header carries grid, settings and engine.
 //               Every event has a record; an event with no record is missing. Only pt, y,
 //               phi (of equal lengths) and optionally mass are read; px, py, pz, e and the
-//               constituents may be left out.
+//               constituents may be left out. Groomed rows (trim, soft_drop) are read when
+//               the record holds them.
 //   JSON lines  the first non-blank byte is '{': one object per line, as `jetlag cluster`
 //               writes them (jets-jsonl.ts): {"event":n,"jets":[{"pt":…,"y":…,"phi":…,"m":…}]}
-//               or {"event":n,"error":"…"}; other keys are ignored. Every event has a line
+//               or {"event":n,"error":"…"}; a jet's "trim" and "softdrop" objects (their
+//               "pt" and "m") are read when every jet of the line has them; other keys are
+//               ignored. Every event has a line
 //               (a line can hold "jets":[]), so an event with no line is missing.
 //   CSV         header `event,pt,y,phi` or `event,pt,y,phi,m` (or `jetlag export`'s with the
 //               pileup columns after m, read but not compared), then one row per jet, rows of
@@ -52,8 +55,15 @@ export interface CandidateEvent {
   /** zeros when the candidate gives no mass */
   mass: Float64Array;
   hasMass: boolean;
+  /** groomed pt and mass per jet (spec section 12), for each groomer the candidate reports */
+  groomed?: CandidateGroomed;
   /** '' for readable jets; else why the event has none */
   error: string;
+}
+
+export interface CandidateGroomed {
+  trim?: { pt: Float64Array; mass: Float64Array };
+  softdrop?: { pt: Float64Array; mass: Float64Array };
 }
 
 export interface CandidateSource {
@@ -137,6 +147,12 @@ async function* jetsFileEvents(records: AsyncGenerator<{ bytes: Uint8Array; offs
     yield {
       event: decoded.event, offset: record.offset, count, pt: jets.pt, rapidity: jets.rapidity, phi: jets.phi,
       mass: hasMass ? jets.mass : new Float64Array(count), hasMass, error: '',
+      ...(jets.trim || jets.softDrop ? {
+        groomed: {
+          ...(jets.trim ? { trim: { pt: jets.trim.pt, mass: jets.trim.mass } } : {}),
+          ...(jets.softDrop ? { softdrop: { pt: jets.softDrop.pt, mass: jets.softDrop.mass } } : {}),
+        },
+      } : {}),
     };
   }
 }
@@ -334,6 +350,7 @@ async function* jsonLineEvents(input: AsyncGenerator<Line>, label: string): Asyn
     let problem = '';
     let hasMass = line.jets.length > 0;
     columns.count = 0;
+    const groomed = new LineGroomed();
     for (let k = 0; k < line.jets.length; k++) {
       const jet = line.jets[k] as { pt?: unknown; y?: unknown; phi?: unknown; m?: unknown } | null;
       if (typeof jet !== 'object' || jet === null) { problem = `jet ${k} is not an object`; break; }
@@ -341,12 +358,44 @@ async function* jsonLineEvents(input: AsyncGenerator<Line>, label: string): Asyn
       if (missing) { problem = `jet ${k} has no number "${missing}"`; break; }
       if (!('m' in jet)) hasMass = false;
       columns.push(jsonValue(jet.pt), jsonValue(jet.y), jsonValue(jet.phi), 'm' in jet ? jsonValue(jet.m) : 0);
+      groomed.add(jet as Record<string, unknown>);
     }
     if (problem !== '') {
       columns.count = 0;
       yield emptyEvent(event, offset, `${at}: ${problem}`);
       continue;
     }
-    yield columns.take(event, offset, hasMass);
+    const taken = columns.take(event, offset, hasMass);
+    const groomedColumns = groomed.columns(taken.count);
+    yield groomedColumns ? { ...taken, groomed: groomedColumns } : taken;
+  }
+}
+
+/** The "trim" and "softdrop" objects' pt and m of one line's jets; a groomer counts when every jet has it. */
+class LineGroomed {
+  private readonly values: Record<'trim' | 'softdrop', number[]> = { trim: [], softdrop: [] };
+
+  add(jet: Record<string, unknown>): void {
+    for (const name of ['trim', 'softdrop'] as const) {
+      const groomed = jet[name] as { pt?: unknown; m?: unknown } | undefined;
+      if (typeof groomed !== 'object' || groomed === null) continue;
+      if ((typeof groomed.pt === 'number' || groomed.pt === null) && (typeof groomed.m === 'number' || groomed.m === null)) {
+        this.values[name].push(jsonValue(groomed.pt), jsonValue(groomed.m));
+      }
+    }
+  }
+
+  columns(count: number): CandidateGroomed | null {
+    if (count === 0) return null;
+    const out: CandidateGroomed = {};
+    for (const name of ['trim', 'softdrop'] as const) {
+      const flat = this.values[name];
+      if (flat.length !== 2 * count) continue;
+      const pt = new Float64Array(count);
+      const mass = new Float64Array(count);
+      for (let k = 0; k < count; k++) { pt[k] = flat[2 * k]; mass[k] = flat[2 * k + 1]; }
+      out[name] = { pt, mass };
+    }
+    return out.trim || out.softdrop ? out : null;
   }
 }

@@ -21,7 +21,9 @@ import { makeClusterer, type EngineName } from '../clustering/clusterers.js';
 import { describeSettings } from '../clustering/describe-settings.js';
 import { ToleranceMatcher, type ToleranceSettings } from './tolerance-compare.js';
 import { describePileup, pileupStepsOn } from '../clustering/pileup/settings.js';
-import { DEFAULT_PILEUP_SETTINGS, DEFAULT_SETTINGS, type ClusterSettings, type Grid, type PileupSettings } from '../types.js';
+import { DEFAULT_PILEUP_SETTINGS, DEFAULT_SETTINGS, NO_GROOMING, type ClusterSettings, type Grid, type GroomingSettings, type PileupSettings } from '../types.js';
+import { describeGrooming, groomingIsOn } from '../clustering/grooming/settings.js';
+import { GroomedAgreement, type GroomedAgreementReport } from './groomed-agreement.js';
 import { ValidationAccumulator } from './validation-accumulator.js';
 import { TurnOnAccumulator, type TurnOnCurve, type TurnOnRequest } from './turn-on.js';
 import type { ValidationReport } from './validation-report.js';
@@ -43,6 +45,11 @@ export interface CompareOptions {
    * else none) with the options over it; the header's when absent
    */
   pileupOver?: (base: PileupSettings) => PileupSettings;
+  /**
+   * the grooming of the reference side (spec section 12): `base` (the candidate header's, else
+   * none) with the options over it; the header's when absent
+   */
+  groomingOver?: (base: GroomingSettings) => GroomingSettings;
   tolerance: Omit<ToleranceSettings, 'ptMin'>;
   worst: number;
   /** what computes the reference jets (default: the reference) */
@@ -60,6 +67,10 @@ export interface CompareResult {
   settings: ClusterSettings;
   /** the pileup steps the reference side ran; null when none */
   pileup: PileupSettings | null;
+  /** the grooming the reference side ran; null when none */
+  grooming: GroomingSettings | null;
+  /** groomed pt and mass of matched pairs, per groomer both sides carry (spec sections 7 and 12) */
+  groomed: GroomedAgreementReport[];
   grid: Grid;
   candidate: { format: CandidateSource['format']; engine: string | null; producer: string | null };
   /** an input that became unreadable part way (the report covers what came before) */
@@ -133,9 +144,16 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
   if (header?.settings && describePileup(pileup) !== describePileup(header.settings.pileup)) {
     options.note(`compare: the reference runs ${describePileup(pileup) || 'no pileup steps'}; the candidate header names ${describePileup(header.settings.pileup) || 'none'}`);
   }
+  const headerGrooming = header?.settings?.grooming ?? NO_GROOMING;
+  const groomingAsked = options.groomingOver ? options.groomingOver(headerGrooming) : headerGrooming;
+  const grooming = groomingIsOn(groomingAsked) ? groomingAsked : null;
+  if (header?.settings && describeGrooming(grooming ?? NO_GROOMING) !== describeGrooming(headerGrooming)) {
+    options.note(`compare: the reference grooms ${describeGrooming(grooming ?? NO_GROOMING) || 'nothing'}; the candidate header names ${describeGrooming(headerGrooming) || 'no grooming'}`);
+  }
+  const groomed = new GroomedAgreement(settings.ptMin, tolerance.ptTol);
   let reference: ReturnType<typeof makeClusterer>;
   try {
-    reference = makeClusterer(options.engine ?? 'reference', grid, { ...settings, ptMin: 0 }, null, pileup, 'compare');
+    reference = makeClusterer(options.engine ?? 'reference', grid, { ...settings, ptMin: 0 }, null, pileup, 'compare', grooming);
   } catch (error) {
     await candidate.events.return(undefined as never);
     await events.records.return(undefined as never);
@@ -240,6 +258,8 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
       const jets = reference.cluster(towers.towerIndex, towers.towerEt);
       matcher.match(jets, mine);
       accumulator.addCompared(event, matcher, jets, mine, mine.hasMass ? mine.mass : null);
+      if (jets.trim && mine.groomed?.trim) groomed.add('trim', matcher, jets.pt, jets.trim, mine.groomed.trim);
+      if (jets.softDrop && mine.groomed?.softdrop) groomed.add('softdrop', matcher, jets.pt, jets.softDrop, mine.groomed.softdrop);
       // every event valid on both sides counts once in each curve (spec section 13)
       for (const curve of turnOnCurves) curve.add(jets.pt, jets.count, mine.pt, mine.count);
     }
@@ -259,6 +279,8 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
     report: accumulator.report(),
     settings,
     pileup,
+    grooming,
+    groomed: groomed.report(),
     grid,
     candidate: { format: candidate.format, engine: header?.settings?.engine ?? null, producer: header?.producer ?? null },
     inputError: inputError ?? candidateState.error,

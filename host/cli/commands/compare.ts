@@ -17,6 +17,9 @@ import { formatValidationReport } from '../../validate/validation-text.js';
 import { formatTurnOnCurves } from '../../validate/turn-on.js';
 import { TURN_ON_OPTIONS, turnOnRequestsFrom } from '../turn-on-options.js';
 import { PILEUP_OPTIONS, pileupSettingsFrom } from '../pileup-options.js';
+import { GROOMING_OPTIONS, groomingSettingsFrom } from '../grooming-options.js';
+import { formatGroomedAgreement } from '../../validate/groomed-agreement.js';
+import { describeGrooming } from '../../clustering/grooming/settings.js';
 import { describePileup } from '../../clustering/pileup/settings.js';
 import { RecordProgress } from '../../measure/input-progress.js';
 
@@ -43,6 +46,7 @@ export const spec: CommandSpec = {
       ? { ...o, description: 'jets with pt >= this must agree; softer ones take part in matching only (default: the candidate header\'s, else 0)' }
       : { ...o, description: `${o.description.replace(/ \(default: .*\)$/, '')} (default: the candidate header's, else ${o.description.match(/\(default: (.*)\)$/)?.[1] ?? 'none'})` })),
     ...PILEUP_OPTIONS.map((o) => ({ ...o, description: `reference side: ${o.description.replace(/ \(default: .*\)$/, '')} (default: the candidate header's, else ${o.description.match(/\(default: (.*)\)$/)?.[1] ?? 'off'})` })),
+    ...GROOMING_OPTIONS.map((o) => ({ ...o, description: `reference side: ${o.description.replace(/ \(default: .*\)$/, '')}; groomed pt and mass are compared for candidates that carry them (default: the candidate header's, else off)` })),
     ...GRID_OPTIONS.map((o) => ({ ...o, description: `CSV events: ${o.description}` })),
     MAX_EVENT_GAP_OPTION,
     ...TURN_ON_OPTIONS,
@@ -86,6 +90,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     maxEventGap: maxEventGapFrom(args, 'compare'),
     settingsOver: (base) => clusterSettingsFrom(args, 'compare', base),
     pileupOver: (base) => pileupSettingsFrom(args, 'compare', base),
+    groomingOver: (base) => groomingSettingsFrom(args, 'compare', base),
     tolerance,
     worst,
     engine,
@@ -100,9 +105,10 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   const candidateEngine = result.candidate.engine !== null ? `, engine ${result.candidate.engine}` : '';
   if (!quiet) {
     text.write(`compare: ${candidatePath} (${result.candidate.format}${candidateEngine}) against the reference on ${eventsPath}\n`);
-    const pileupText = result.pileup ? `, ${describePileup(result.pileup)}` : '';
+    const pileupText = `${result.pileup ? `, ${describePileup(result.pileup)}` : ''}${result.grooming ? `, ${describeGrooming(result.grooming)}` : ''}`;
     text.write(`settings: ${describeSettings(result.settings)}${pileupText}; grid ${describeGrid(result.grid)}${engine === 'reference' ? '' : `; reference jets by ${engine}`}\n`);
     text.write(formatValidationReport(report));
+    text.write(formatGroomedAgreement(result.groomed, report.tolerance.ptTol));
     if (result.turnOn.length > 0) text.write(formatTurnOnCurves(result.turnOn));
   }
   const verdict = fraction === null
@@ -117,12 +123,14 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
       candidate: result.candidate,
       settings: result.settings,
       pileup: result.pileup,
+      grooming: result.grooming,
       referenceJetsBy: engine,
       grid: result.grid,
       require,
       passed,
       inputError: result.inputError?.message ?? null,
       ...report,
+      groomed: result.groomed,
       turnOn: result.turnOn,
     };
     const body = JSON.stringify(document, null, 2) + '\n';
