@@ -27,6 +27,7 @@ const COMMANDS: Record<string, CommandEntry> = {
   import: { summary: 'turn a CSV tower file into an event file' },
   export: { summary: 'write an event or jets file as CSV or JSON lines' },
   merge: { summary: 'add up the summaries of sharded runs exactly' },
+  index: { summary: 'write the record index of an event file, so shards read only their part' },
   report: { summary: 'write a self-contained HTML report from run and compare summaries' },
 };
 

@@ -42,6 +42,8 @@ export interface RawRecord {
   bytes: Uint8Array;
   /** byte offset of the record's length varint in the uncompressed stream */
   offset: number;
+  /** the record's place in the file (from 0), when a reader skips records (a shard read through an index) */
+  recordNumber?: number;
 }
 
 export interface ReadRecordsOptions {

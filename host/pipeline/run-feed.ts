@@ -42,8 +42,10 @@ export class RecordFeed {
     try {
       for await (const record of records) {
         if (signal?.aborted) { this.partialReason = 'interrupted: reading stopped, batches in flight drained'; break; }
-        if (maxEvents != null && this.records >= maxEvents) break;
-        const record0 = this.records++;
+        if (maxEvents != null && (record.recordNumber ?? this.records) >= maxEvents) break;
+        // a shard read through a record index gets only its own records, each with its place in the file
+        const record0 = record.recordNumber ?? this.records;
+        this.records = record0 + 1;
         this.lastOffset = record.offset;
         // shards take every n-th group of `batch` records, whatever the run's timing
         if (Math.floor(record0 / batch) % shard.count !== shard.index) continue;

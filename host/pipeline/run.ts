@@ -30,6 +30,7 @@ import { OpenLoopFeed } from './open-loop-feed.js';
 import { runCheckPass } from './check-pass.js';
 import { DEFAULT_MAX_RECORD_BYTES } from '../input/record-reader.js';
 import { MachineLoadProbe } from '../measure/machine-load.js';
+import { shardInput } from './shard-input.js';
 import type { WorkerConfig } from './worker-contract.js';
 import type { ExecWorkerConfig } from './exec-run-contract.js';
 import { ExecEngineError } from './exec-engine.js';
@@ -221,6 +222,8 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const plan = planRun(options);
   const schedule = new ArrivalSchedule(plan.arrival);
   const source = await openEventSource(options.input, { fileLabel: plan.label, grid: options.grid, maxEventGap: options.maxEventGap });
+  // a shard of a plain event file with a record index reads only its own batches
+  const input = await shardInput(options, plan, source, schedule.openLoop);
   const grid: Grid = source.header.grid;
   const program = options.program ?? null;
   if (program !== null && (plan.pileup || plan.grooming)) throw new UsageError('run: --engine exec: clusters only; the pileup steps, --trim and --softdrop run on the wasm engine or the reference');
@@ -257,12 +260,14 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const machineLoad = new MachineLoadProbe();
   try {
     if (feed instanceof OpenLoopFeed) {
-      await feed.feed(source.records);
+      await feed.feed(input.records);
       wallSeconds = Math.max(0, feed.endNs - feed.startNs) / 1e9;
     } else {
       const startNs = nowNs();
-      await feed.feed(source.records);
+      await feed.feed(input.records);
       await pool.drain();
+      // the index counts the records of the whole file; this shard saw only its own
+      if (input.recordsInFile !== null && feed.partialReason === null) feed.records = input.recordsInFile;
       wallSeconds = (nowNs() - startNs) / 1e9;
     }
     delivery.tally.recordMachineLoad(machineLoad);

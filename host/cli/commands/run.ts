@@ -6,6 +6,7 @@ import { UsageError } from '../../errors.js';
 import { CLUSTER_OPTIONS, FORCE_OPTION, GRID_OPTIONS, MAX_EVENT_GAP_OPTION, clusterSettingsFrom, gridFrom, maxEventGapFrom } from '../common-options.js';
 import { checkOutputAllowed } from '../../output/output-target.js';
 import { DEFAULT_BATCH, DEFAULT_CHECK, inputErrorOf, runEvents, type CheckOption, type RunOptions } from '../../pipeline/run.js';
+import { shardReadingNote } from '../../pipeline/shard-input.js';
 import { findRate, scanWorkers } from '../../pipeline/studies.js';
 import { describeMachine, type RunSummary } from '../../measure/summary.js';
 import { LISTED_MAX } from '../../measure/run-tally.js';
@@ -183,6 +184,8 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   const onProblem = (line: string) => {
     if (problems++ < PROBLEM_LINES_MAX) io.stderr.write(`jetlag run: ${line}\n`);
   };
+  const shardNote = shardReadingNote(options.input, options.shard);
+  if (shardNote !== null) io.stderr.write(`jetlag run: ${shardNote}\n`);
   let summary: RunSummary;
   try {
     summary = await runEvents({
