@@ -84,7 +84,8 @@ export async function runExecBatch(config: WorkerConfig, exec: ExecWorkerConfig,
   await programPass(worker, work.result, work, figures);
   figures.restarts = worker.engine.counts.restarts - worker.restartsReported;
   worker.restartsReported = worker.engine.counts.restarts;
-  figures.faultLines = worker.faultLines.splice(0);
+  // the program's faults first, as they happened; then the check's misses
+  figures.faultLines = worker.faultLines.splice(0).concat(figures.faultLines);
   work.result.exec = figures;
   return work.result;
 }
@@ -145,6 +146,10 @@ async function programPass(w: ExecWorker, result: BatchResult, work: ReturnType<
       result.checked++;
       if (w.matcher) {
         if (matchInTolerance(w.matcher, expected, jets, figures.tolerance!)) result.agreeing++;
+        else {
+          figures.faultLines.push(`check in tolerance mode: event ${event}: ${describeToleranceMiss(w.matcher, expected, jets)}`);
+          result.disagreeing.push({ event, bytes: work.data.slice(work.recordStart[k], work.recordStart[k + 1]) });
+        }
       } else {
         const difference = firstJetDifference(jets, expected);
         if (difference === null) result.agreeing++;
@@ -183,6 +188,21 @@ function matchInTolerance(matcher: ToleranceMatcher, reference: JetSet, candidat
     }
   }
   return agrees;
+}
+
+/** What made an event miss in tolerance mode, in one line: the first reference jet that does not agree, or the first extra jet. */
+function describeToleranceMiss(matcher: ToleranceMatcher, reference: JetSet, candidate: JetSet): string {
+  const ptMin = matcher.settings.ptMin;
+  for (let r = 0; r < reference.count; r++) {
+    if (reference.pt[r] < ptMin || matcher.refAgrees[r]) continue;
+    const c = matcher.refMatch[r];
+    const where = `reference jet ${r} (pt ${reference.pt[r].toFixed(3)} GeV, y ${reference.rapidity[r].toFixed(3)}, phi ${reference.phi[r].toFixed(3)})`;
+    return c < 0 ? `${where} has no program jet within --match-r` : `${where} matched program jet ${c} at pt ratio ${matcher.refPtRatio[r].toFixed(6)}, ΔR ${matcher.refDeltaR[r].toExponential(2)}`;
+  }
+  for (let c = 0; c < candidate.count; c++) {
+    if (matcher.candExtra[c]) return `program jet ${c} (pt ${candidate.pt[c].toFixed(3)} GeV, y ${candidate.rapidity[c].toFixed(3)}, phi ${candidate.phi[c].toFixed(3)}) is extra`;
+  }
+  return 'the events differ';
 }
 
 function joined(chunks: Uint8Array[]): Uint8Array {
