@@ -17,6 +17,7 @@ import { binDeposits, makeGridTables, type GridTables } from '../clustering/grid
 import type { DecodedEvent } from '../formats/event-codec.js';
 import type { Grid } from '../types.js';
 import { makeRandom } from '../random.js';
+import { addBoostedObjects } from './boosted.js';
 
 export interface GeneratorSettings {
   events: number;
@@ -33,6 +34,11 @@ export interface GeneratorSettings {
   maxHardJets?: number;
   /** write raw deposits (eta, phi, et) instead of binned towers */
   raw?: boolean;
+  /**
+   * invented heavy particles per event decaying to two or three prongs (boosted.ts); 0 or
+   * absent: none, and no random draw is made, so a seed gives the file it gave before
+   */
+  boosted?: number;
 }
 
 /** binned towers (raw = false) or raw deposits (raw = true), the other arrays empty */
@@ -133,6 +139,8 @@ function generateOne(
       et.push(share * (0.2 + 1.6 * random()) * Math.exp(-angle / 0.2));
     }
   }
+
+  if (settings.boosted) addBoostedObjects(random, settings.boosted, eta, phi, et);
 
   if (hard) {
     hard.eta.push(...eta);

@@ -10,6 +10,8 @@ import { ProgressBar } from '../../measure/progress.js';
 /** largest --pileup and --hard-jets accepted (see main) */
 export const MAX_PILEUP = 100_000;
 export const MAX_HARD_JETS = 10_000;
+/** largest --boosted accepted: more heavy objects than fit side by side on a grid make no sense */
+export const MAX_BOOSTED = 100;
 
 export const spec: CommandSpec = {
   name: 'generate',
@@ -21,6 +23,7 @@ export const spec: CommandSpec = {
     { name: 'pileup', kind: 'string', argument: '<MU|LOW:HIGH>', description: 'mean number of soft pileup interactions per event; LOW:HIGH draws each event\'s mean uniformly from that range, for spread in tower multiplicity (default: 200)' },
     { name: 'seed', kind: 'integer', argument: '<S>', description: 'random seed; the same seed gives the same file (default: 1)' },
     { name: 'hard-jets', kind: 'integer', argument: '<M>', description: 'hard jets per event drawn from 1..M (default: 4)' },
+    { name: 'boosted', kind: 'integer', argument: '<N>', description: 'N boosted heavy objects per event: invented particles of mass 90 GeV (two prongs) or 170 GeV (three prongs) at pt 400-800 GeV, prongs a few towers apart, for grooming demos (toy, not physics) (default: 0)' },
     { name: 'out', kind: 'string', argument: '<file>', description: 'output event file, - for stdout (required)' },
     { name: 'raw', kind: 'flag', description: 'write raw deposits (eta, phi, et) instead of binned towers' },
     { name: 'gzip', kind: 'flag', description: 'gzip-compress the output' },
@@ -61,6 +64,8 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   const { pileup, pileupMax } = parsePileup(args.values.pileup as string | undefined);
   const seed = (args.values.seed as number | undefined) ?? 1;
   const maxHardJets = (args.values['hard-jets'] as number | undefined) ?? 4;
+  const boosted = (args.values.boosted as number | undefined) ?? 0;
+  if (boosted < 0 || boosted > MAX_BOOSTED) throw new UsageError(`generate: --boosted must be in 0..${MAX_BOOSTED}, got ${boosted}`);
   if (events < 0) throw new UsageError(`generate: --events must be >= 0, got ${events}`);
   // an event is held whole while it is made, and a raw event of mean pileup MU is about
   // 120 * MU bytes: above these limits a record outgrows the readers' default cap (64 MiB)
@@ -70,13 +75,13 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   const grid = gridFrom(args, 'generate');
   const raw = Boolean(args.values.raw);
   const label = (args.values.label as string | undefined) ??
-    `invented demo events (Halden ring toy): pileup ${pileupMax === undefined ? pileup : `${pileup}..${pileupMax} (uniform per event)`}, seed ${seed}, ${events} events${raw ? ', raw deposits' : ''}`;
+    `invented demo events (Halden ring toy): pileup ${pileupMax === undefined ? pileup : `${pileup}..${pileupMax} (uniform per event)`}, seed ${seed}, ${events} events${boosted > 0 ? `, ${boosted} invented boosted two- or three-prong objects per event` : ''}${raw ? ', raw deposits' : ''}`;
   let written = 0;
   const progress = new ProgressBar(io.stderr, { eventsDone: () => written }, { events }, io.isTty && args.values.quiet !== true);
   progress.start();
   try {
     await writeGeneratedEvents(
-      out, grid, { events, pileup, pileupMax, seed, maxHardJets, raw }, { producer: producerName('generate'), label },
+      out, grid, { events, pileup, pileupMax, seed, maxHardJets, raw, boosted }, { producer: producerName('generate'), label },
       { gzip: Boolean(args.values.gzip), force: args.values.force === true }, (count) => { written = count; },
     );
   } finally {
