@@ -1,0 +1,86 @@
+// `run --engine exec:…`: an engine program in the pool's workers. The C++ example
+// (examples/engines/cpp, built into a temporary folder as its own test does) on invented
+// toy-generator events, checked in tolerance mode (clustering spec section 7); and the fault
+// fixture (tests/fixtures/engines/faulty-engine.mjs) crashing on one event: that event fails,
+// the run goes on, the counts add up.
+
+import { execFileSync } from 'node:child_process';
+import { join } from 'node:path';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { runEvents } from '../host/pipeline/run.js';
+import { ExecEngineError } from '../host/pipeline/exec-engine.js';
+import { DEFAULT_TOLERANCE } from '../host/validate/tolerance-compare.js';
+import type { ExecWorkerConfig } from '../host/pipeline/exec-run-contract.js';
+import type { RunSummary } from '../host/measure/summary.js';
+import type { ClusterSettings } from '../host/types.js';
+import { tempDirForSuite } from './support/temp-dir.js';
+import { toyEvents, writeEventFile } from './support/run-files.js';
+
+const EXAMPLE_DIR = join(import.meta.dirname, '..', 'examples', 'engines', 'cpp');
+const FIXTURE = join(import.meta.dirname, 'fixtures', 'engines', 'faulty-engine.mjs');
+const SETTINGS: ClusterSettings = { p: -1, radius: 0.4, ptMin: 0, threshold: 0.2, recombination: 'e' };
+const ALL = { mode: 'all', fraction: 1, seed: 1 } as const;
+const NONE = { mode: 'none', fraction: 0, seed: 1 } as const;
+
+function faulty(mode: string, event: number, maxRestarts = 3): ExecWorkerConfig {
+  return { argv: [process.execPath, FIXTURE, mode, String(event)], label: `exec:faulty-engine ${mode}`, timeoutMs: 10_000, maxRestarts, tolerance: null };
+}
+
+describe('run with the C++ example as its engine', () => {
+  const dir = tempDirForSuite('exec-run');
+  const program = join(dir, 'pairwise-clusterer');
+  const events = 300;
+  let summary: RunSummary;
+
+  beforeAll(async () => {
+    execFileSync('make', ['-s', '-C', EXAMPLE_DIR, `BUILD=${dir}`], { stdio: ['ignore', 'ignore', 'inherit'] });
+    const input = writeEventFile(join(dir, 'events.jetlag'), toyEvents(events, 12, 40)).path;
+    summary = await runEvents({
+      input, workers: 2, batch: 16, check: ALL, settings: SETTINGS, progress: null,
+      program: { argv: [program], label: 'exec:pairwise-clusterer', timeoutMs: 10_000, maxRestarts: 0, tolerance: { ...DEFAULT_TOLERANCE, ptMin: SETTINGS.ptMin } },
+    });
+  }, 600_000);
+
+  it('checks every event in tolerance mode, and every event agrees', () => {
+    expect(summary.events).toEqual({ read: events, ok: events, invalid: 0, failed: 0 });
+    expect(summary.check.mode).toBe('tolerance');
+    expect(summary.check.checked).toBe(events);
+    expect(summary.check.agreeing).toBe(events);
+    expect(summary.check.tolerance?.agreement).toBe(1);
+    // a check over events without jets would pass for any program
+    expect(summary.jets).toBeGreaterThan(events);
+  });
+
+  it('reports the program\'s own time as service, below the round trip jetlag measures', () => {
+    const service = summary.latency.service;
+    const roundTrip = summary.latency.roundTrip!;
+    expect(service.count).toBe(events);
+    expect(roundTrip.count).toBe(events);
+    expect(service.p50_us!).toBeGreaterThan(0);
+    expect(service.p50_us!).toBeLessThan(roundTrip.p50_us!);
+    expect(service.mean_us!).toBeLessThan(roundTrip.mean_us!);
+    expect(summary.configuration.engine).toBe('exec:pairwise-clusterer');
+  });
+});
+
+describe('run with a program that crashes on one event', () => {
+  const dir = tempDirForSuite('exec-run-faults');
+  const input = writeEventFile(join(dir, 'events.jetlag'), toyEvents(40, 5, 2)).path;
+
+  it('fails that event with the exit, restarts the program and clusters the rest', async () => {
+    const problems: string[] = [];
+    const summary = await runEvents({ input, workers: 1, batch: 8, check: NONE, settings: SETTINGS, progress: null, program: faulty('crash', 17), onProblem: (line) => problems.push(line) });
+    expect(summary.events).toEqual({ read: 40, ok: 39, invalid: 0, failed: 1 });
+    expect(summary.failedEvents).toHaveLength(1);
+    expect(summary.failedEvents![0]).toMatchObject({ event: 17, reason: 'exited' });
+    expect(summary.failedEvents![0].message).toContain('exited with status 3');
+    expect(summary.engineRestarts).toBe(1);
+    expect(summary.latency.roundTrip!.count).toBe(39);
+    expect(problems.some((line) => line.includes('event 17'))).toBe(true);
+  }, 120_000);
+
+  it('stops the run with ExecEngineError when the program fails more often than --engine-restarts', async () => {
+    await expect(runEvents({ input, workers: 1, batch: 8, check: NONE, settings: SETTINGS, progress: null, program: faulty('crash-all', 0, 1) }))
+      .rejects.toThrow(ExecEngineError);
+  }, 120_000);
+});
