@@ -1,5 +1,5 @@
 // The README's job array on a real batch system: a one-node Slurm cluster on this machine runs
-// `jetlag run --shard k/n` as an array, `jetlag merge` adds the shard summaries, and the merged
+// `jetlag run --shard k/n` as an array over an indexed file, `jetlag merge` adds the shard summaries, and the merged
 // counts and tower percentiles equal those of one run over the whole file. Where the daemons
 // cannot start, the test is skipped with their own error, never passed.
 
@@ -44,13 +44,13 @@ describe('the README job array on a one-node Slurm cluster', () => {
       context.skip(message);
     }
 
-    const events = join(dir, 'farm.jetlag.gz');
-    const generated = shell(`jetlag generate --events 300 --pileup 30 --seed 17 --gzip --out ${events} -q`);
+    const events = join(dir, 'farm.jetlag');
+    const generated = shell(`jetlag generate --events 300 --pileup 30 --seed 17 --out ${events} -q && jetlag index ${events} -q`);
     expect(generated.stderr).toBe('');
     expect(generated.status).toBe(0);
 
     const recipe = readmeJobArray(readFileSync(join(checkout, 'README.md'), 'utf8'));
-    const substitutions: [string, string][] = [['/data/run-42.jetlag.gz', events], ['--array=0-15', `--array=0-${SHARDS - 1}`], ['}/16 ', `}/${SHARDS} `]];
+    const substitutions: [string, string][] = [['/data/run-42.jetlag', events], ['--array=0-15', `--array=0-${SHARDS - 1}`], ['}/16 ', `}/${SHARDS} `]];
     let script = recipe.script;
     for (const [from, to] of substitutions) {
       expect(script, `README job array holds ${from}`).toContain(from);
@@ -63,6 +63,8 @@ describe('the README job array on a one-node Slurm cluster', () => {
     const shardFiles = readdirSync(work).filter((name) => /^shard-\d+\.json$/.test(name)).sort();
     expect(shardFiles, `shard summaries (task output: ${logs})`).toEqual(Array.from({ length: SHARDS }, (_, k) => `shard-${k}.json`));
 
+    // a plain, indexed file: no shard has a problem or a note to report
+    expect(logs, 'task output').not.toContain('jetlag run:');
     const merged = shell(recipe.merge);
     expect(merged.status, merged.stderr).toBe(0);
     const single = shell(`jetlag run ${events} --json single.json --quiet`);
