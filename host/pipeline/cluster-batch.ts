@@ -167,6 +167,8 @@ function readEvents(state: WorkerState, work: BatchWork): void {
 /** A clusterer that takes a whole batch per call (the wasm engine, clustering/engine.ts). */
 interface BatchClusterer extends Clusterer {
   clusterBatch(eventCount: number, towerStart: Int32Array, towerIndex: Int32Array, towerEt: Float64Array, withTowers: boolean): BatchJets;
+  /** the same into arrays the clusterer keeps, valid until its next call (one event only) */
+  clusterBatchReusing?(eventCount: number, towerStart: Int32Array, towerIndex: Int32Array, towerEt: Float64Array, withTowers: boolean): BatchJets;
 }
 
 function hasBatchApi(clusterer: Clusterer): clusterer is BatchClusterer {
@@ -184,7 +186,11 @@ function clusterValidEvents(state: WorkerState, clusterer: Clusterer, work: Batc
   const withTowers = state.reference !== null || state.encodeJets !== null;
   let jetsOf: (v: number) => JetSet;
   if (hasBatchApi(clusterer)) {
-    const batch = clusterer.clusterBatch(valid, batchStart, state.batchIndex, state.batchEt, withTowers);
+    // one event (every open-loop event): the engine's own result arrays, which live until its
+    // next call, long enough for this batch's check and encode; no ~60 KB of fresh arrays per event
+    const batch = valid === 1 && clusterer.clusterBatchReusing
+      ? clusterer.clusterBatchReusing(valid, batchStart, state.batchIndex, state.batchEt, withTowers)
+      : clusterer.clusterBatch(valid, batchStart, state.batchIndex, state.batchEt, withTowers);
     for (let v = 0; v < valid; v++) {
       if (batch.status[v] !== 0) throw new Error(`engine refused event ${out.eventNumber[validEvent[v]]} that passed validation (status ${batch.status[v]})`);
       out.stageNs[validEvent[v] * STAGE_COUNT + STAGE_CLUSTER] = batch.clusterNs[v];
