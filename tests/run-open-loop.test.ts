@@ -103,7 +103,7 @@ describe('the rate search with a stub of known cost', () => {
     restore.push(withEnv('JETLAG_TEST_STUB_US', '2000'));
     // told the pool takes 10 times what the stub allows: the top trial (5000 Hz) and the
     // middle one (~700 Hz) are above the 500 events/s capacity; the bottom one (100 Hz) is not
-    const claimed = { throughput: { eventsPerSecond: 5000 } } as RunSummary;
+    const claimed = { throughput: { eventsPerSecond: 5000 }, configuration: { workers: 1 } } as RunSummary;
     const found = await findRate({ ...base, maxEvents: 60 }, claimed, 1e9, false, 3);
     expect(found.trials.map((t) => t.saturated)).toEqual([false, true, true]);
     expect(found.trials.map((t) => t.withinBudget)).toEqual([true, false, false]);

@@ -19,7 +19,8 @@ export async function findRate(options: RunOptions, closedLoop: RunSummary, budg
   const ceiling = Math.max(1, closedLoop.throughput.eventsPerSecond);
   const runAt = async (rateHz: number) => {
     const arrival: ArrivalMode = poisson ? { kind: 'poisson', rateHz, seed: 1 } : { kind: 'fixed', rateHz };
-    const summary = await runEvents({ ...options, arrival, check: NO_CHECK, out: null, repro: null, progress: null, onProblem: undefined });
+    // the workers of the closed-loop run whose events/s set the search's range
+    const summary = await runEvents({ ...options, workers: closedLoop.configuration.workers, arrival, check: NO_CHECK, out: null, repro: null, progress: null, onProblem: undefined });
     const p99 = summary.latency.endToEnd.p99_us;
     const saturated = summary.saturation?.saturated ?? false;
     return { rateHz, p99_us: p99, saturated, withinBudget: p99 !== null && p99 <= budgetUs && !saturated, events: summary.events.read };
