@@ -19,7 +19,7 @@ import { firstJetDifference } from '../validate/bit-exact.js';
 import { ToleranceMatcher } from '../validate/tolerance-compare.js';
 import { ExecEngine, ExecEngineError } from './exec-engine.js';
 import { inCheckSample, readBatch, type WorkerState } from './cluster-batch.js';
-import type { ExecBatchFigures, ExecWorkerConfig } from './exec-run-contract.js';
+import { ENGINE_STOPPED, type ExecBatchFigures, type ExecWorkerConfig } from './exec-run-contract.js';
 import { emptyToleranceFigures, type ToleranceFigures } from '../measure/program-figures.js';
 import { STAGE_CHECK, STAGE_CLUSTER, STAGE_COUNT, STAGE_ENCODE, STATUS_INVALID, STATUS_OK, type BatchResult, type BatchTask, type WorkerConfig } from './worker-contract.js';
 import { producerName } from '../version.js';
@@ -84,8 +84,10 @@ export async function runExecBatch(config: WorkerConfig, exec: ExecWorkerConfig,
   await programPass(worker, work.result, work, figures);
   figures.restarts = worker.engine.counts.restarts - worker.restartsReported;
   worker.restartsReported = worker.engine.counts.restarts;
-  // the program's faults first, as they happened; then the check's misses
-  figures.faultLines = worker.faultLines.splice(0).concat(figures.faultLines);
+  // the program's faults first, as they happened, less those a failed event's line repeats
+  // (the event's own fault); then the check's misses
+  const failedLines = new Set(figures.failed.map((entry) => entry.message));
+  figures.faultLines = worker.faultLines.splice(0).filter((line) => !failedLines.has(line)).concat(figures.faultLines);
   work.result.exec = figures;
   return work.result;
 }
@@ -114,7 +116,7 @@ async function programPass(w: ExecWorker, result: BatchResult, work: ReturnType<
     let failure: { reason: string; message: string } | null = null;
     let jets: JetSet | null = null;
     if (figures.engineError !== null) {
-      failure = { reason: 'engine-stopped', message: `${w.exec.label}, event ${event}: not sent, the program had stopped (${figures.engineError})` };
+      failure = { reason: ENGINE_STOPPED, message: `${w.exec.label}, event ${event}: not clustered, the program had stopped` };
     } else {
       try {
         const outcome = await w.engine.submit(event, towerIndex, towerEt);
@@ -128,7 +130,7 @@ async function programPass(w: ExecWorker, result: BatchResult, work: ReturnType<
       } catch (error) {
         if (!(error instanceof ExecEngineError)) throw error;
         figures.engineError = error.message;
-        failure = { reason: 'engine-stopped', message: error.message };
+        failure = { reason: ENGINE_STOPPED, message: `${w.exec.label}, event ${event}: not clustered, the program had stopped` };
       }
     }
     if (failure !== null || jets === null) {

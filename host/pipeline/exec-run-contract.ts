@@ -17,6 +17,9 @@ export interface ExecWorkerConfig {
   tolerance: ToleranceSettings | null;
 }
 
+/** the failure reason of the events after the program used up its restarts (or could not be started) */
+export const ENGINE_STOPPED = 'engine-stopped';
+
 /** An event the program failed on (it exited, hung, broke the contract or refused it). */
 export interface ExecFailedEvent {
   /** the event's place in its batch */

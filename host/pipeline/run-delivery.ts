@@ -8,6 +8,7 @@ import type { OutputFile } from '../output/record-writer.js';
 import type { ReproWriter } from '../output/repro-writer.js';
 import type { BatchOutcome } from './pool.js';
 import { failedByIndex, tallyProgramBatch } from './exec-delivery.js';
+import { ENGINE_STOPPED } from './exec-run-contract.js';
 import { resultViews, STAGE_CHECK, STAGE_CLUSTER, STAGE_COUNT, STAGE_ENCODE, STAGE_INDEX, STAGE_PILEUP_FIRST, STAGE_GROOM, STATUS_OK, type BatchResult } from './worker-contract.js';
 
 export interface DeliveryContext {
@@ -121,7 +122,8 @@ export class RunDelivery {
       if (failure) {
         // the engine program failed on it: not invalid input, a failed event
         tally.addFailedEvent({ event: failure.event, reason: failure.reason, message: failure.message });
-        this.problem(failure.message);
+        // after the program stopped, the one line of the stop says it for all the events left
+        if (failure.reason !== ENGINE_STOPPED) this.problem(failure.message);
         continue;
       }
       if (views.status[k] !== STATUS_OK) {
