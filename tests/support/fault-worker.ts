@@ -11,10 +11,14 @@
 //                                 so two runs over the same events record identical values
 //   JETLAG_TEST_STUB_US=US        a stub clusterer of known cost in place of the engine: it spins
 //                                 US µs per event and finds no jets (service time = US)
+//   JETLAG_TEST_KILL=PERMILLE:SEED the thread exits part way through the batches that
+//                                 kill-points.ts picks (about PERMILLE in 1000): random points
+//                                 of a run, but the same ones every time
 //   JETLAG_TEST_STUB_STALL=E:MS   event number E sleeps MS ms inside its timed clustering, once
 //                                 per worker thread (a stalled worker)
 
 import { makeBatchRunner } from '../../host/pipeline/worker.js';
+import { killsBatch, killSlot } from './kill-points.js';
 import type { WorkerHooks } from '../../host/pipeline/cluster-batch.js';
 import { STAGE_BIN, STAGE_CHECK, STAGE_CLUSTER, STAGE_DECODE, STAGE_ENCODE, type BatchTask } from '../../host/pipeline/worker-contract.js';
 import { emptyJetSet } from '../../host/formats/jets-codec.js';
@@ -69,6 +73,14 @@ function hooksFromEnvironment(): WorkerHooks {
       Atomics.wait(sleeper, 0, 0, ms);
     };
   }
+  if (kill !== null) {
+    // stage times are settled once per event served: the kill comes after the picked one
+    const before = hooks.stageTimes;
+    hooks.stageTimes = (stageNs, at, towersClustered) => {
+      before?.(stageNs, at, towersClustered);
+      if (eventsServed++ === kill.slot) process.exit(9);
+    };
+  }
   return hooks;
 }
 
@@ -86,9 +98,16 @@ function spinningClusterer(us: number): Clusterer {
 }
 
 const fault = plantedFault();
+/** JETLAG_TEST_KILL: the planted kill of the batch running now (slot -1: none) */
+const kill = process.env.JETLAG_TEST_KILL ? { perMille: Number(process.env.JETLAG_TEST_KILL.split(':')[0]), seed: Number(process.env.JETLAG_TEST_KILL.split(':')[1]), slot: -1 } : null;
+let eventsServed = 0;
 const runBatch = makeBatchRunner(hooksFromEnvironment());
 
 export default async function runBatchWithFaults(task: BatchTask): Promise<unknown> {
+  if (kill !== null) {
+    kill.slot = killsBatch(task.batchIndex, kill.perMille, kill.seed) ? killSlot(task.batchIndex, kill.seed, task.count) : -1;
+    eventsServed = 0;
+  }
   if (fault && fault.batch === task.batchIndex) {
     if (fault.kind === 'throw') throw new Error(`planted fault in batch ${task.batchIndex}`);
     if (fault.kind === 'exit') process.exit(3);
