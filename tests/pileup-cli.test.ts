@@ -137,6 +137,19 @@ describe('run with pileup options', () => {
     expect(decoded.every((d) => d.jets.pileup!.rho > 0)).toBe(true);
   }, 120_000);
 
+  it('counts an event whose rho differs by one ulp as disagreeing, named by the field', async () => {
+    const faultWorker = join(__dirname, '..', 'dist', 'tests', 'support', 'fault-worker.js');
+    const pileup: PileupSettings = { areas: false, ghostEt: 1e-100, rho: { kind: 'patches', patch: { etaRows: 5, phiColumns: 5 } }, subtract: false, softKiller: null };
+    process.env.JETLAG_TEST_PERTURB_RHO = '2';
+    try {
+      const summary = await runEvents({ input: eventsPath, workers: 1, batch: 2, check: { mode: 'all', fraction: 1, seed: 1 }, pileup, workerFile: faultWorker });
+      expect([summary.check.checked, summary.check.disagreeing]).toEqual([4, 1]);
+      expect(summary.check.differences.map((d) => [d.event, d.field])).toEqual([[2, 'event.rho']]);
+    } finally {
+      delete process.env.JETLAG_TEST_PERTURB_RHO;
+    }
+  }, 60_000);
+
   it('reports no chain stages without pileup steps', async () => {
     const summary = await runEvents({ input: eventsPath, workers: 1, batch: 2, check: { mode: 'none', fraction: 0, seed: 1 } });
     expect(summary.latency.pileupStages).toBeUndefined();

@@ -7,6 +7,8 @@
 //   JETLAG_TEST_FAULT=stall:B:MS  batch B sleeps MS milliseconds before it starts
 //   JETLAG_TEST_PERTURB_EVENT=E   the engine's first jet of event E gets its pt one ulp higher,
 //                                 so the check has a disagreement to find
+//   JETLAG_TEST_PERTURB_RHO=E     event E's rho one ulp higher (its jets as they were), so the
+//                                 check of the pileup values has a disagreement to find
 //   JETLAG_TEST_SYNTHETIC_TIMES=1 stage times are a fixed function of the event, not measured,
 //                                 so two runs over the same events record identical values
 //   JETLAG_TEST_STUB_US=US        a stub clusterer of known cost in place of the engine: it spins
@@ -58,6 +60,18 @@ function hooksFromEnvironment(): WorkerHooks {
       stageNs[at + STAGE_CLUSTER] = 1000 + 50 * towersClustered;
       stageNs[at + STAGE_CHECK] = stageNs[at + STAGE_CHECK] > 0 ? 500 : 0;
       stageNs[at + STAGE_ENCODE] = stageNs[at + STAGE_ENCODE] > 0 ? 300 : 0;
+    };
+  }
+  const perturbRho = process.env.JETLAG_TEST_PERTURB_RHO;
+  if (perturbRho !== undefined) {
+    const event = Number(perturbRho);
+    const before = hooks.engineJets;
+    hooks.engineJets = (eventNumber, jets) => {
+      const out = before ? before(eventNumber, jets) : jets;
+      if (eventNumber !== event || !out.pileup) return out;
+      const rho = new Float64Array([out.pileup.rho]);
+      new BigInt64Array(rho.buffer)[0] += 1n;
+      return { ...out, pileup: { ...out.pileup, rho: rho[0] } };
     };
   }
   const stubUs = process.env.JETLAG_TEST_STUB_US;
