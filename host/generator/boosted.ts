@@ -61,11 +61,13 @@ function restFrameProngs(random: () => number, threeProngs: boolean, mass: numbe
  * Adds `count` boosted objects' prong deposits (eta, phi, et) to the event's lists. The order
  * of random draws is fixed, so a seed gives the same file anywhere.
  */
-export function addBoostedObjects(random: () => number, count: number, eta: number[], phi: number[], et: number[]): void {
+export function addBoostedObjects(random: () => number, count: number, eta: number[], phi: number[], et: number[], prongs?: 2 | 3): void {
   const axis = new Float64Array(3);
   const normal = new Float64Array(3);
   for (let object = 0; object < count; object++) {
-    const threeProngs = random() < 0.5;
+    // the draw is made either way, so fixing the prongs leaves every other draw as it was
+    const drawnThree = random() < 0.5;
+    const threeProngs = prongs === undefined ? drawnThree : prongs === 3;
     const mass = threeProngs ? BOOSTED_THREE_PRONG_MASS_GEV : BOOSTED_TWO_PRONG_MASS_GEV;
     const pt = BOOSTED_PT_MIN_GEV + (BOOSTED_PT_MAX_GEV - BOOSTED_PT_MIN_GEV) * random();
     const rapidity = BOOSTED_RAPIDITY_MAX * (2 * random() - 1);
@@ -79,12 +81,12 @@ export function addBoostedObjects(random: () => number, count: number, eta: numb
     // prong momenta in the rest frame (massless, summing to zero), drawn until none lies
     // within BOOSTED_COS_MAX of the boost axis
     const momentum = Math.hypot(px, py, pz);
-    let prongs: number[][] = [];
+    let momenta: number[][] = [];
     let widestCos = Infinity;
     while (widestCos > BOOSTED_COS_MAX) {
-      prongs = restFrameProngs(random, threeProngs, mass, axis, normal);
+      momenta = restFrameProngs(random, threeProngs, mass, axis, normal);
       widestCos = 0;
-      for (const [qx, qy, qz] of prongs) {
+      for (const [qx, qy, qz] of momenta) {
         widestCos = Math.max(widestCos, Math.abs(qx * px + qy * py + qz * pz) / (Math.hypot(qx, qy, qz) * momentum));
       }
     }
@@ -94,7 +96,7 @@ export function addBoostedObjects(random: () => number, count: number, eta: numb
     const bz = pz / energy;
     const beta2 = bx * bx + by * by + bz * bz;
     const gamma = energy / mass;
-    for (const [qx, qy, qz] of prongs) {
+    for (const [qx, qy, qz] of momenta) {
       const q = Math.hypot(qx, qy, qz);
       const bq = bx * qx + by * qy + bz * qz;
       const along = ((gamma - 1) * bq) / beta2 + gamma * q;

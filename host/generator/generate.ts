@@ -39,6 +39,8 @@ export interface GeneratorSettings {
    * absent: none, and no random draw is made, so a seed gives the file it gave before
    */
   boosted?: number;
+  /** every boosted object of this many prongs instead of a random choice (benchmarks of one kind) */
+  boostedProngs?: 2 | 3;
 }
 
 /** binned towers (raw = false) or raw deposits (raw = true), the other arrays empty */
@@ -140,7 +142,7 @@ function generateOne(
     }
   }
 
-  if (settings.boosted) addBoostedObjects(random, settings.boosted, eta, phi, et);
+  if (settings.boosted) addBoostedObjects(random, settings.boosted, eta, phi, et, settings.boostedProngs);
 
   if (hard) {
     hard.eta.push(...eta);
