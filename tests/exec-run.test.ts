@@ -8,6 +8,7 @@ import { execFileSync } from 'node:child_process';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { runEvents } from '../host/pipeline/run.js';
+import { mergeSummaries } from '../host/measure/summary-merge.js';
 import { ExecEngineError } from '../host/pipeline/exec-engine.js';
 import { DEFAULT_TOLERANCE } from '../host/validate/tolerance-compare.js';
 import type { ExecWorkerConfig } from '../host/pipeline/exec-run-contract.js';
@@ -77,6 +78,16 @@ describe('run with a program that crashes on one event', () => {
     expect(summary.engineRestarts).toBe(1);
     expect(summary.latency.roundTrip!.count).toBe(39);
     expect(problems.some((line) => line.includes('event 17'))).toBe(true);
+  }, 120_000);
+
+  it('keeps failed events, restarts and round trips through a shard merge', async () => {
+    const shard = (index: number) => runEvents({ input, workers: 1, batch: 8, check: NONE, settings: SETTINGS, progress: null, program: faulty('crash', 17), shard: { index, count: 2 } });
+    const shards = [await shard(0), await shard(1)];
+    const merged = mergeSummaries(shards.map((summary, k) => ({ name: `shard ${k}`, summary: JSON.parse(JSON.stringify(summary)) as RunSummary })));
+    expect(merged.events).toEqual({ read: 40, ok: 39, invalid: 0, failed: 1 });
+    expect(merged.failedEvents!.map((entry) => entry.event)).toEqual([17]);
+    expect(merged.engineRestarts).toBe(shards[0].engineRestarts! + shards[1].engineRestarts!);
+    expect(merged.latency.roundTrip!.count).toBe(39);
   }, 120_000);
 
   it('stops the run with ExecEngineError when the program fails more often than --engine-restarts', async () => {

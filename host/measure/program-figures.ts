@@ -40,10 +40,8 @@ export function addToleranceFigures(into: ToleranceFigures, other: ToleranceFigu
   into.responseCount += other.responseCount;
 }
 
-/** The summary's tolerance block: compare's figures from the sums. */
-export interface ToleranceSummary {
-  checked: number;
-  agreeing: number;
+/** The summary's tolerance block: compare's figures, and the sums they come from (a shard merge adds those). */
+export interface ToleranceSummary extends ToleranceFigures {
   /** agreeing / checked */
   agreement: number | null;
   /** matched / reference jets above ptMin */
@@ -54,11 +52,16 @@ export interface ToleranceSummary {
   response: number | null;
 }
 
+/** The sums of a summary's tolerance block, for a shard merge. */
+export function toleranceFiguresOf(summary: ToleranceSummary): ToleranceFigures {
+  const { checked, agreeing, referenceAbove, matched, candidateAbove, unmatched, responseSum, responseCount } = summary;
+  return { checked, agreeing, referenceAbove, matched, candidateAbove, unmatched, responseSum, responseCount };
+}
+
 export function summarizeTolerance(figures: ToleranceFigures): ToleranceSummary {
   const ratio = (a: number, b: number) => (b > 0 ? a / b : null);
   return {
-    checked: figures.checked,
-    agreeing: figures.agreeing,
+    ...figures,
     agreement: ratio(figures.agreeing, figures.checked),
     efficiency: ratio(figures.matched, figures.referenceAbove),
     fakeRate: ratio(figures.unmatched, figures.candidateAbove),

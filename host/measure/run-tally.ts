@@ -213,6 +213,7 @@ export class RunTally {
     this.roundTrip.merge(other.roundTrip);
     this.pipe.merge(other.pipe);
     for (const entry of other.failedEvents) if (this.failedEvents.length < LISTED_MAX) this.failedEvents.push(entry);
+    this.failedEvents.sort((a, b) => a.event - b.event);
     this.engineRestarts += other.engineRestarts;
     if (other.tolerance) {
       if (!this.tolerance) this.tolerance = emptyToleranceFigures();

@@ -5,6 +5,7 @@
 import { readFileSync } from 'node:fs';
 import { InputError } from '../errors.js';
 import { LatencyRecorder } from './latency.js';
+import { toleranceFiguresOf } from './program-figures.js';
 import { PILEUP_STAGES, RunTally, STAGES, type PileupStage } from './run-tally.js';
 import { renderSummary, SUMMARY_VERSION, type MachineInfo, type RunConfiguration, type RunSummary } from './summary.js';
 
@@ -38,6 +39,12 @@ export function tallyFromSummary(summary: RunSummary, where = 'summary'): RunTal
     if (!(PILEUP_STAGES as readonly string[]).includes(stage)) continue; // a stage of a later version
     tally.pileupStages[stage as PileupStage].merge(LatencyRecorder.decode(encoded!, `${where}: histograms.pileupStages.${stage}`));
   }
+  // an engine program's run (`--engine exec:`)
+  if (summary.histograms.roundTrip) tally.roundTrip.merge(LatencyRecorder.decode(summary.histograms.roundTrip, `${where}: histograms.roundTrip`));
+  if (summary.histograms.pipe) tally.pipe.merge(LatencyRecorder.decode(summary.histograms.pipe, `${where}: histograms.pipe`));
+  tally.failedEvents.push(...(summary.failedEvents ?? []));
+  tally.engineRestarts = summary.engineRestarts ?? 0;
+  if (summary.check.tolerance) tally.tolerance = toleranceFiguresOf(summary.check.tolerance);
   if (summary.histograms.grooming) tally.grooming.merge(LatencyRecorder.decode(summary.histograms.grooming, `${where}: histograms.grooming`));
   for (const entry of summary.histograms.multiplicity) {
     const recorder = LatencyRecorder.decode(entry.histogram, `${where}: histograms.multiplicity[${entry.bin}]`);

@@ -145,6 +145,9 @@ export interface RunSummary {
     stages: Record<Stage, EncodedLatency>;
     pileupStages?: Partial<Record<PileupStage, EncodedLatency>>;
     grooming?: EncodedLatency;
+    /** an engine program only */
+    roundTrip?: EncodedLatency;
+    pipe?: EncodedLatency;
     multiplicity: { bin: number; sumTowers: number; histogram: EncodedLatency }[];
   };
   /** the latency histograms above as percentile tables and log-bin counts in µs, readable without an HDR library (plain-histogram.ts) */
@@ -267,6 +270,7 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
       stages: stagesEncoded,
       ...(chainRan ? { pileupStages: chainEncoded } : {}),
       ...(tally.grooming.count > 0 ? { grooming: tally.grooming.encode() } : {}),
+      ...(program ? { roundTrip: tally.roundTrip.encode(), pipe: tally.pipe.encode() } : {}),
       multiplicity: tally.multiplicity.recorders.flatMap((recorder, bin) =>
         recorder ? [{ bin, sumTowers: tally.multiplicity.sumTowers[bin], histogram: recorder.encode() }] : []),
     },
