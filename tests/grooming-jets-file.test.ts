@@ -6,6 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { main as cluster } from '../host/cli/commands/cluster.js';
 import { main as generate } from '../host/cli/commands/generate.js';
 import { main as exportMain } from '../host/cli/commands/export.js';
+import { main as compareMain } from '../host/cli/commands/compare.js';
 import { openRecordFile } from '../host/input/event-source.js';
 import { decodeJetsRecord } from '../host/formats/jets-codec.js';
 import { fakeIo } from './support/command-io.js';
@@ -68,5 +69,22 @@ describe('jetlag export of a groomed jets file', () => {
     }
     expect(rows.length).toBeGreaterThan(0);
     expect(rows).toEqual(expected);
+  });
+});
+
+describe('jetlag compare of an exported groomed CSV', () => {
+  it('reads the plain columns and agrees, the groomed columns read but not compared', async () => {
+    const events = join(dir, 'csv-events.pb');
+    const jetsPath = join(dir, 'csv-jets.pb');
+    const csvPath = join(dir, 'jets.csv');
+    expect(await generate(['--events', '2', '--pileup', '20', '--seed', '23', '--out', events, '-q'], fakeIo().io)).toBe(0);
+    expect(await cluster([events, '--radius', '1.0', '--ptmin', '20', '--softdrop', '0.1:0', '-q', '--out', jetsPath], fakeIo().io)).toBe(0);
+    expect(await exportMain([jetsPath, '--format', 'csv', '--out', csvPath, '-q'], fakeIo().io)).toBe(0);
+    const io = fakeIo();
+    expect(await compareMain([events, csvPath, '--radius', '1.0', '--ptmin', '20', '--json', '-'], io.io)).toBe(0);
+    const report = JSON.parse(io.stdout());
+    expect(report.jets.matched).toBeGreaterThan(0);
+    expect(report.events.agreeing).toBe(report.events.compared);
+    expect(report.groomed).toEqual([]);
   });
 });

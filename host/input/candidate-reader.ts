@@ -14,7 +14,8 @@
 //               ignored. Every event has a line
 //               (a line can hold "jets":[]), so an event with no line is missing.
 //   CSV         header `event,pt,y,phi` or `event,pt,y,phi,m` (or `jetlag export`'s with the
-//               pileup columns after m, read but not compared), then one row per jet, rows of
+//               pileup columns after m, and the groomed columns after those, read but not
+//               compared: groomed values are compared from jets files and JSON lines), then one row per jet, rows of
 //               an event together. CSV cannot list an event without jets, so an event with
 //               no rows has no jets.
 //
@@ -40,6 +41,7 @@ import type { FileHeader } from '../formats/file-header.js';
 import { decodeJetsRecord } from '../formats/jets-codec.js';
 import { inputLabel } from './record-reader.js';
 import { oneLineText } from '../formats/line-text.js';
+import { GROOMED_CSV_SUFFIXES } from '../formats/groomed-csv-columns.js';
 
 export type CandidateFormat = 'jets-file' | 'jsonl' | 'csv';
 
@@ -246,6 +248,7 @@ class JetColumns {
 async function* csvEvents(input: AsyncGenerator<Line>, label: string): AsyncGenerator<CandidateEvent> {
   const columns = new JetColumns();
   let fields = 0;
+  let columnNames: string[] = [];
   let headerSeen = false;
   let current: number | null = null;
   let currentOffset = 0;
@@ -253,7 +256,7 @@ async function* csvEvents(input: AsyncGenerator<Line>, label: string): AsyncGene
   let blankOffset = -1;
   let blankLine = 0;
   const finish = (): CandidateEvent => {
-    const out = currentError !== '' ? emptyEvent(current, currentOffset, currentError) : columns.take(current!, currentOffset, fields >= 5);
+    const out = currentError !== '' ? emptyEvent(current, currentOffset, currentError) : columns.take(current!, currentOffset, columnNames[4] === 'm');
     columns.count = 0;
     currentError = '';
     return out;
@@ -262,11 +265,14 @@ async function* csvEvents(input: AsyncGenerator<Line>, label: string): AsyncGene
     let text = raw;
     if (!headerSeen) {
       if (text.startsWith('\ufeff')) text = text.slice(1);
-      const header = CANDIDATE_CSV_HEADERS.indexOf(text as (typeof CANDIDATE_CSV_HEADERS)[number]);
+      // `jetlag export` of groomed jets ends the header with the groomed columns (groomed-csv-columns.ts)
+      const suffix = GROOMED_CSV_SUFFIXES.find((ending) => text.endsWith(ending)) ?? '';
+      const header = CANDIDATE_CSV_HEADERS.indexOf(text.slice(0, text.length - suffix.length) as (typeof CANDIDATE_CSV_HEADERS)[number]);
       if (header < 0) {
         throw new InputError(label, `missing header: expected "${CANDIDATE_CSV_HEADERS[0]}" or "${CANDIDATE_CSV_HEADERS[1]}", got ${quote(text)}`, undefined, offset, number);
       }
-      fields = CANDIDATE_CSV_HEADERS[header].split(',').length;
+      columnNames = text.split(',');
+      fields = columnNames.length;
       headerSeen = true;
       continue;
     }
@@ -299,11 +305,10 @@ async function* csvEvents(input: AsyncGenerator<Line>, label: string): AsyncGene
       if (!DECIMAL.test(parts[k]) || !Number.isFinite(Number(parts[k]))) { bad = k; break; }
     }
     if (bad > 0) {
-      const names = CANDIDATE_CSV_HEADERS[2].split(',');
-      currentError = `row at line ${number}, byte ${offset}: bad ${names[bad]} ${quote(parts[bad])}`;
+      currentError = `row at line ${number}, byte ${offset}: bad ${columnNames[bad]} ${quote(parts[bad])}`;
       continue;
     }
-    columns.push(Number(parts[1]), Number(parts[2]), Number(parts[3]), fields >= 5 ? Number(parts[4]) : 0);
+    columns.push(Number(parts[1]), Number(parts[2]), Number(parts[3]), columnNames[4] === 'm' ? Number(parts[4]) : 0);
   }
   if (!headerSeen) throw new InputError(label, `missing header: expected "${CANDIDATE_CSV_HEADERS[0]}"`, undefined, 0, 1);
   if (current !== null) yield finish();

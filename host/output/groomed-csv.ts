@@ -5,9 +5,7 @@
 
 import { jsonNumber } from '../formats/jets-jsonl.js';
 import type { GroomedFourVectors, GroomingSettings, JetSet } from '../types.js';
-
-export const TRIM_CSV_COLUMNS = 'trimPt,trimY,trimPhi,trimM,trimN,trimSubjets';
-export const SOFT_DROP_CSV_COLUMNS = 'softdropPt,softdropY,softdropPhi,softdropM,softdropN,softdropZg,softdropRg';
+import { SOFT_DROP_CSV_COLUMNS, TRIM_CSV_COLUMNS } from '../formats/groomed-csv-columns.js';
 
 /** ',' and the groomed column names for the header line, '' without grooming */
 export function groomedCsvHeader(grooming: GroomingSettings | undefined): string {
