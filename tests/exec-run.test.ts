@@ -80,6 +80,14 @@ describe('run with a program that crashes on one event', () => {
     expect(problems.some((line) => line.includes('event 17'))).toBe(true);
   }, 120_000);
 
+  it('fails that event in an open loop too, and the counts add up', async () => {
+    const summary = await runEvents({ input, workers: 2, arrival: { kind: 'fixed', rateHz: 2000 }, check: NONE, settings: SETTINGS, progress: null, program: faulty('crash', 17) });
+    expect(summary.events).toEqual({ read: 40, ok: 39, invalid: 0, failed: 1 });
+    expect(summary.failedEvents!.map((entry) => [entry.event, entry.reason])).toEqual([[17, 'exited']]);
+    expect(summary.latency.endToEnd.count).toBe(39);
+    expect(summary.latency.roundTrip!.count).toBe(39);
+  }, 120_000);
+
   it('keeps failed events, restarts and round trips through a shard merge', async () => {
     const shard = (index: number) => runEvents({ input, workers: 1, batch: 8, check: NONE, settings: SETTINGS, progress: null, program: faulty('crash', 17), shard: { index, count: 2 } });
     const shards = [await shard(0), await shard(1)];

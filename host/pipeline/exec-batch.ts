@@ -25,7 +25,7 @@ import { STAGE_CHECK, STAGE_CLUSTER, STAGE_COUNT, STAGE_ENCODE, STATUS_INVALID, 
 import { producerName } from '../version.js';
 import type { Clusterer, JetSet } from '../types.js';
 
-interface ExecWorker {
+export interface ExecWorker {
   state: WorkerState;
   exec: ExecWorkerConfig;
   engine: ExecEngine;
@@ -67,27 +67,38 @@ async function startWorker(config: WorkerConfig, exec: ExecWorkerConfig): Promis
   return { state, exec, engine, matcher: exec.tolerance ? new ToleranceMatcher(exec.tolerance) : null, restartsReported: 0, faultLines };
 }
 
+/** This worker thread's program and reading state, started on its first task. */
+export async function execWorkerOf(config: WorkerConfig, exec: ExecWorkerConfig): Promise<ExecWorker> {
+  if (!worker) worker = await startWorker(config, exec);
+  return worker;
+}
+
 /** The piscina entry's exec branch (worker.ts): a warm-up task starts the program, a batch runs through it. */
 export async function runExecBatch(config: WorkerConfig, exec: ExecWorkerConfig, task: BatchTask): Promise<BatchResult | null> {
-  if (!worker) worker = await startWorker(config, exec);
-  const { state } = worker;
+  const running = await execWorkerOf(config, exec);
+  const { state } = running;
   if (state.validEvent.length < task.count) {
     state.validEvent = new Int32Array(task.count);
     state.batchStart = new Int32Array(task.count + 1);
   }
   if (task.count === 0) return null;
-  const work = readBatch(state, task);
+  return finishExecBatch(running, readBatch(state, task));
+}
+
+/** A batch read by readBatch, through the program: its result with the program's figures. */
+export async function finishExecBatch(running: ExecWorker, work: ReturnType<typeof readBatch>): Promise<BatchResult> {
+  const { task } = work;
   const figures: ExecBatchFigures = {
     roundTripNs: new Float64Array(task.count), failed: [], restarts: 0, faultLines: [],
-    tolerance: worker.matcher ? emptyToleranceFigures() : null, engineError: null,
+    tolerance: running.matcher ? emptyToleranceFigures() : null, engineError: null,
   };
-  await programPass(worker, work.result, work, figures);
-  figures.restarts = worker.engine.counts.restarts - worker.restartsReported;
-  worker.restartsReported = worker.engine.counts.restarts;
+  await programPass(running, work.result, work, figures);
+  figures.restarts = running.engine.counts.restarts - running.restartsReported;
+  running.restartsReported = running.engine.counts.restarts;
   // the program's faults first, as they happened, less those a failed event's line repeats
   // (the event's own fault); then the check's misses
   const failedLines = new Set(figures.failed.map((entry) => entry.message));
-  figures.faultLines = worker.faultLines.splice(0).filter((line) => !failedLines.has(line)).concat(figures.faultLines);
+  figures.faultLines = running.faultLines.splice(0).filter((line) => !failedLines.has(line)).concat(figures.faultLines);
   work.result.exec = figures;
   return work.result;
 }

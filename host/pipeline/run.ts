@@ -102,7 +102,7 @@ export interface RunOptions {
   workerFile?: string;
   /**
    * `--engine exec:…`: each worker runs this program as its engine (exec-batch.ts); the check
-   * runs in the workers after each answer, bit for bit or in tolerance mode. Closed loop only.
+   * runs in the workers after each answer, bit for bit or in tolerance mode.
    */
   program?: ExecWorkerConfig | null;
 }
@@ -237,7 +237,6 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const grid: Grid = source.header.grid;
   const program = options.program ?? null;
   if (program !== null && (plan.pileup || plan.grooming)) throw new UsageError('run: --engine exec: clusters only; the pileup steps, --trim and --softdrop run on the wasm engine or the reference');
-  if (program !== null && schedule.openLoop) throw new UsageError('run: --engine exec: runs in a closed loop only for now; leave out --rate');
   if (plan.engine === 'wasm' && program === null) refuseUnusableEngine(grid, plan.settings);
   // the pileup settings' limits need the grid; a chain the workers would refuse is refused here
   if (plan.pileup || plan.grooming) makeClusterer(plan.engine, grid, plan.settings, null, plan.pileup, 'run', plan.grooming);

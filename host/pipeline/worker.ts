@@ -18,6 +18,7 @@ import { encodeDelimitedJetsRecord } from '../formats/jets-codec.js';
 import { clusterBatch, type WorkerHooks, type WorkerState } from './cluster-batch.js';
 import { serveRing } from './open-loop-serve.js';
 import { runExecBatch } from './exec-batch.js';
+import { serveRingWithProgram } from './exec-serve.js';
 import type { BatchTask, ServeTask, WorkerConfig } from './worker-contract.js';
 
 function makeState(config: WorkerConfig, hooks: WorkerHooks): WorkerState {
@@ -46,7 +47,7 @@ export function makeBatchRunner(hooks: WorkerHooks = {}): (task: BatchTask) => P
   };
   return async function runBatch(task: BatchTask | ServeTask): Promise<unknown> {
     const config = piscinaWorkerData as WorkerConfig;
-    if (config.exec && !('serve' in task)) return runExecBatch(config, config.exec, task);
+    if (config.exec) return 'serve' in task ? serveRingWithProgram(config, config.exec, task.serve) : runExecBatch(config, config.exec, task);
     if (!state) state = makeState(piscinaWorkerData as WorkerConfig, hooks);
     if ('serve' in task) return serveRing(state, task.serve, hooks, ensureClusterer);
     ensureClusterer(state);
