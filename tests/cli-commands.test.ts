@@ -2,12 +2,13 @@
 import { spawnSync } from 'node:child_process';
 import { mkdirSync, readdirSync, readFileSync, writeFileSync, existsSync } from 'node:fs';
 import { join } from 'node:path';
-import { describe, expect, it } from 'vitest';
+import { beforeAll, describe, expect, it } from 'vitest';
 import { makeGridTables, selectTowers } from '../host/clustering/grid.js';
 import { generateEvents } from '../host/generator/generate.js';
 import { clusterReference } from '../host/clustering/reference.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../host/types.js';
 import { tempDirForSuite } from './support/temp-dir.js';
+import { CHECK_APART_FROM_TIMING, CHECK_SAMPLE_RULE } from '../host/measure/summary.js';
 
 const cli = join(import.meta.dirname, '..', 'dist', 'host', 'cli', 'cli.js');
 const directory = tempDirForSuite('cli');
@@ -126,8 +127,11 @@ describe('generate then cluster', () => {
 });
 
 describe('run outputs', () => {
+  beforeAll(() => {
+    expect(jetlag('generate', '--events', '6', '--pileup', '30', '--seed', '12', '--out', 'r.jetlag', '--force').code).toBe(0);
+  });
+
   it('--out - writes the jets file to stdout and the report to stderr', () => {
-    expect(jetlag('generate', '--events', '6', '--pileup', '30', '--seed', '12', '--out', 'r.jetlag').code).toBe(0);
     const result = spawnSync(process.execPath, [cli, 'run', 'r.jetlag', '--out', '-', '--quiet', '--workers', '1'], { cwd: directory });
     expect(result.status).toBe(0);
     const stdout = result.stdout as Buffer;
@@ -154,19 +158,32 @@ describe('run outputs', () => {
     expect(result.stdout).toMatch(/· engine wasm ·/);
     expect(result.stdout).not.toMatch(/engine reference/);
   });
+
+  it('says in the summary that the check ran after the timed pass and by which sample rule', () => {
+    const result = jetlag('run', 'r.jetlag', '--quiet', '--workers', '1', '--check', 'all', '--json', 'r-check.json');
+    expect(result.code).toBe(0);
+    const summary = JSON.parse(readFileSync(join(directory, 'r-check.json'), 'utf8'));
+    expect(summary.check.checked).toBe(summary.events.ok);
+    expect(summary.check.timing).toBe(CHECK_APART_FROM_TIMING);
+    expect(summary.check.sample).toBe(CHECK_SAMPLE_RULE);
+    expect(result.stdout).toContain(`checked ${CHECK_APART_FROM_TIMING}`);
+  });
 });
 
 describe('merge of shard summaries', () => {
   function shard(file: string, k: number, n: number) {
-    const result = jetlag('run', file, '--shard', `${k}/${n}`, '--batch', '4', '--check', 'none', '--quiet', '--workers', '1', '--json', `${file}-${k}.json`);
+    const result = jetlag('run', file, '--shard', `${k}/${n}`, '--batch', '4', '--check', 'none', '--quiet', '--workers', '1', '--json', `${file}-${k}.json`, '--force');
     expect(result.code).toBe(0);
     return `${file}-${k}.json`;
   }
 
+  beforeAll(() => {
+    expect(jetlag('generate', '--events', '25', '--pileup', '20', '--seed', '21', '--out', 'm.jetlag', '--force').code).toBe(0);
+  });
+
   it('adds every shard into a complete summary whose counts are those of the whole file', () => {
-    expect(jetlag('generate', '--events', '25', '--pileup', '20', '--seed', '21', '--out', 'm.jetlag').code).toBe(0);
     const parts = [shard('m.jetlag', 0, 2), shard('m.jetlag', 1, 2)];
-    const result = jetlag('merge', ...parts, '--json', 'm-all.json', '--quiet');
+    const result = jetlag('merge', ...parts, '--json', 'm-all.json', '--quiet', '--force');
     expect(result.code).toBe(0);
     const merged = JSON.parse(readFileSync(join(directory, 'm-all.json'), 'utf8'));
     expect(merged.partial).toBe(false);
@@ -174,7 +191,7 @@ describe('merge of shard summaries', () => {
   });
 
   it('marks the summary partial and exits 1 when a shard is missing', () => {
-    const result = jetlag('merge', 'm.jetlag-0.json', '--json', 'm-half.json', '--quiet');
+    const result = jetlag('merge', shard('m.jetlag', 0, 2), '--json', 'm-half.json', '--quiet', '--force');
     expect(result.code).toBe(1);
     const merged = JSON.parse(readFileSync(join(directory, 'm-half.json'), 'utf8'));
     expect(merged.partial).toBe(true);
@@ -182,8 +199,8 @@ describe('merge of shard summaries', () => {
   });
 
   it('refuses shards of two different inputs', () => {
-    expect(jetlag('generate', '--events', '9', '--pileup', '20', '--seed', '22', '--out', 'other.jetlag').code).toBe(0);
-    const result = jetlag('merge', 'm.jetlag-0.json', shard('other.jetlag', 1, 2), '--quiet');
+    expect(jetlag('generate', '--events', '9', '--pileup', '20', '--seed', '22', '--out', 'other.jetlag', '--force').code).toBe(0);
+    const result = jetlag('merge', shard('m.jetlag', 0, 2), shard('other.jetlag', 1, 2), '--quiet');
     expect(result.code).toBe(2);
     expect(result.stderr).toContain('configuration differs');
   });

@@ -164,6 +164,7 @@ export function formatReport(summary: RunSummary): string {
   if (c.check.mode !== 'none') {
     const k = summary.check;
     lines.push(`  check       ${grouped(k.checked)} checked against the reference · ${grouped(k.agreeing)} agree · ${grouped(k.disagreeing)} disagree`);
+    if (k.timing) lines.push(`              checked ${k.timing}`);
   }
   lines.push(...scalingLines(summary));
   const findRate = findRateLine(summary);

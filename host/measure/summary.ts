@@ -83,6 +83,10 @@ export interface RunSummary {
   jets: number;
   check: {
     checked: number; agreeing: number; disagreeing: number; differences: CheckedDifference[];
+    /** where the check ran against the timing: CHECK_APART_FROM_TIMING or CHECK_INSIDE_TIMING */
+    timing: string;
+    /** which events were checked: CHECK_SAMPLE_RULE with the configuration's check fraction and seed */
+    sample: string;
     /** bit for bit against the reference, or tolerance mode (spec section 7; an engine program only) */
     mode: 'bit-exact' | 'tolerance';
     /** tolerance mode: compare's figures (agreement, efficiency, fake rate, response) */
@@ -190,6 +194,12 @@ function towersPerEventOf(recorder: LatencyRecorder): TowersPerEvent {
   return { mean: Math.round(recorder.meanNs() * 10) / 10, p50: recorder.percentileNs(50), max: recorder.maxNs };
 }
 
+/** The engine's check: the reference runs after the timed pass, in workers of its own. */
+export const CHECK_APART_FROM_TIMING = 'after the timed pass, in workers of its own: no timing figure includes it';
+/** An engine program's check runs in its worker after each answer, so it holds that worker. */
+export const CHECK_INSIDE_TIMING = 'in the worker after each answer: it holds the worker, so time with --check none';
+export const CHECK_SAMPLE_RULE = 'the events whose hash of event number and check seed falls below the check fraction (every event with --check all)';
+
 export function renderSummary(tally: RunTally, context: RenderContext): RunSummary {
   const events = { read: tally.read, ok: tally.ok, invalid: tally.invalid, failed: tally.failed };
   if (events.ok + events.invalid + events.failed !== events.read) {
@@ -231,7 +241,13 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
     failedBatches: tally.failedBatches,
     towers: { ...tally.towers },
     jets: tally.jets,
-    check: { ...tally.check, mode: tally.tolerance ? 'tolerance' : 'bit-exact', ...(tally.tolerance ? { tolerance: summarizeTolerance(tally.tolerance) } : {}) },
+    check: {
+      ...tally.check,
+      mode: tally.tolerance ? 'tolerance' : 'bit-exact',
+      timing: program ? CHECK_INSIDE_TIMING : CHECK_APART_FROM_TIMING,
+      sample: CHECK_SAMPLE_RULE,
+      ...(tally.tolerance ? { tolerance: summarizeTolerance(tally.tolerance) } : {}),
+    },
     ...(program ? { failedEvents: tally.failedEvents, engineRestarts: tally.engineRestarts } : {}),
     latency: {
       service: tally.service.stats(),
