@@ -3,7 +3,8 @@ import { join } from 'node:path';
 import { Readable } from 'node:stream';
 import { gzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
-import { parseCsvTowersText, readCsvTowers, type CsvEvent } from '../host/input/csv-towers.js';
+import type { CsvEvent } from '../host/input/csv-event-builder.js';
+import { parseCsvTowersText, readCsvTowers } from '../host/input/csv-towers.js';
 import type { Grid } from '../host/types.js';
 import { tempDirForTest } from './support/temp-dir.js';
 

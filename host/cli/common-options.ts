@@ -3,7 +3,7 @@
 import { type OptionSpec, type ParsedArgs } from './args.js';
 import { UsageError } from '../errors.js';
 import { checkGrid } from '../clustering/grid.js';
-import { DEFAULT_MAX_EVENT_GAP } from '../input/csv-towers.js';
+import { DEFAULT_MAX_EVENT_GAP } from '../input/csv-event-builder.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS, type ClusterSettings, type Grid } from '../types.js';
 
 export const ALGORITHM_EXPONENTS: Record<string, number> = {

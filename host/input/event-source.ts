@@ -29,7 +29,8 @@
 // read as records, so the header check names what is wrong.
 
 import { InputError } from '../errors.js';
-import { csvEventsFromChunks, type CsvReadLimits } from './csv-towers.js';
+import type { CsvReadLimits } from './csv-event-builder.js';
+import { csvEventsFromChunks } from './csv-towers.js';
 import { chooseCsvGrid, peekCsvGrid } from './csv-grid.js';
 import { encodeEventRecord } from '../formats/event-codec.js';
 import { decodeFileHeader, FORMAT_VERSION, type FileHeader } from '../formats/file-header.js';
