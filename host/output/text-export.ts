@@ -11,7 +11,7 @@
 
 import { InputError } from '../errors.js';
 import { openRecordFile, type RecordSource } from '../input/event-source.js';
-import { CANDIDATE_CSV_HEADERS } from '../input/candidate-reader.js';
+import { CANDIDATE_CSV_HEADERS } from '../input/candidate-csv.js';
 import { EventTowerReader } from '../input/event-towers.js';
 import { decodeJetsRecord } from '../formats/jets-codec.js';
 import { formatErrorLine, formatJetsLine, jsonNumber } from '../formats/jets-jsonl.js';

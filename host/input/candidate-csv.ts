@@ -1,0 +1,82 @@
+// Candidate CSV of jets (candidate-reader.ts): a header, then one row per jet, rows of an
+// event together.
+
+import { InputError } from '../errors.js';
+import { GROOMED_CSV_SUFFIXES } from '../formats/groomed-csv-columns.js';
+import type { CandidateEvent } from './candidate-reader.js';
+import { emptyEvent, JetColumns, quote, type Line } from './candidate-lines.js';
+
+/** the third: `jetlag export` of jets with pileup values (spec part two); the columns after m are not compared */
+export const CANDIDATE_CSV_HEADERS = ['event,pt,y,phi', 'event,pt,y,phi,m', 'event,pt,y,phi,m,ghosts,area,ptRaw,rho,etCut,killed,subtractedAway'] as const;
+
+const EVENT_NUMBER = /^[0-9]+$/;
+const DECIMAL = /^[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?$/;
+
+export async function* csvEvents(input: AsyncGenerator<Line>, label: string): AsyncGenerator<CandidateEvent> {
+  const columns = new JetColumns();
+  let fields = 0;
+  let columnNames: string[] = [];
+  let headerSeen = false;
+  let current: number | null = null;
+  let currentOffset = 0;
+  let currentError = '';
+  let blankOffset = -1;
+  let blankLine = 0;
+  const finish = (): CandidateEvent => {
+    const out = currentError !== '' ? emptyEvent(current, currentOffset, currentError) : columns.take(current!, currentOffset, columnNames[4] === 'm');
+    columns.count = 0;
+    currentError = '';
+    return out;
+  };
+  for await (const { text: raw, offset, number } of input) {
+    let text = raw;
+    if (!headerSeen) {
+      if (text.startsWith('\ufeff')) text = text.slice(1);
+      // `jetlag export` of groomed jets ends the header with the groomed columns (groomed-csv-columns.ts)
+      const suffix = GROOMED_CSV_SUFFIXES.find((ending) => text.endsWith(ending)) ?? '';
+      const header = CANDIDATE_CSV_HEADERS.indexOf(text.slice(0, text.length - suffix.length) as (typeof CANDIDATE_CSV_HEADERS)[number]);
+      if (header < 0) {
+        throw new InputError(label, `missing header: expected "${CANDIDATE_CSV_HEADERS[0]}" or "${CANDIDATE_CSV_HEADERS[1]}", got ${quote(text)}`, undefined, offset, number);
+      }
+      columnNames = text.split(',');
+      fields = columnNames.length;
+      headerSeen = true;
+      continue;
+    }
+    if (text.length === 0) {
+      if (blankOffset < 0) { blankOffset = offset; blankLine = number; }
+      continue;
+    }
+    if (blankOffset >= 0) {
+      if (current !== null) yield finish();
+      throw new InputError(label, 'bad event number "" (an empty line before more rows; the rest of the file is unreadable)', undefined, blankOffset, blankLine);
+    }
+    const parts = text.split(',');
+    if (!EVENT_NUMBER.test(parts[0]) || !Number.isSafeInteger(Number(parts[0]))) {
+      if (current !== null) yield finish();
+      throw new InputError(label, `bad event number ${quote(parts[0])} (the rest of the file is unreadable)`, undefined, offset, number);
+    }
+    const event = Number(parts[0]);
+    if (event !== current) {
+      if (current !== null) yield finish();
+      current = event;
+      currentOffset = offset;
+    }
+    if (currentError !== '') continue;
+    if (parts.length !== fields) {
+      currentError = `row at line ${number}, byte ${offset} has ${parts.length} fields, expected ${fields}`;
+      continue;
+    }
+    let bad = -1;
+    for (let k = 1; k < fields; k++) {
+      if (!DECIMAL.test(parts[k]) || !Number.isFinite(Number(parts[k]))) { bad = k; break; }
+    }
+    if (bad > 0) {
+      currentError = `row at line ${number}, byte ${offset}: bad ${columnNames[bad]} ${quote(parts[bad])}`;
+      continue;
+    }
+    columns.push(Number(parts[1]), Number(parts[2]), Number(parts[3]), columnNames[4] === 'm' ? Number(parts[4]) : 0);
+  }
+  if (!headerSeen) throw new InputError(label, `missing header: expected "${CANDIDATE_CSV_HEADERS[0]}"`, undefined, 0, 1);
+  if (current !== null) yield finish();
+}
