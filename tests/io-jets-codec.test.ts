@@ -10,7 +10,7 @@ import { decodeJetsRecord, encodeDelimitedJetsRecord, encodeJetsFileHeader, enco
 import { JetsFileWriter } from '../host/output/jets-writer.js';
 import { formatErrorLine, formatJetsLine } from '../host/formats/jets-jsonl.js';
 import { loadJetlagSchema } from './support/proto-schema.js';
-import { RecordFramer } from '../host/input/record-reader.js';
+import { RecordFramer } from '../host/input/record-framer.js';
 import type { JetSet } from '../host/types.js';
 import { seededRandom as makeRandom } from './support/small-events.js';
 import { tempDirForTest } from './support/temp-dir.js';

@@ -7,7 +7,8 @@ import { Readable } from 'node:stream';
 import { gzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../host/errors.js';
-import { readRecords, RecordFramer } from '../host/input/record-reader.js';
+import { RecordFramer } from '../host/input/record-framer.js';
+import { readRecords } from '../host/input/record-reader.js';
 import { delimit } from '../host/formats/wire.js';
 import { tempDirForSuite } from './support/temp-dir.js';
 

@@ -3,7 +3,7 @@ import { join } from 'node:path';
 import { Writable } from 'node:stream';
 import { gunzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
-import { RecordFramer } from '../host/input/record-reader.js';
+import { RecordFramer } from '../host/input/record-framer.js';
 import { RecordFileWriter, TextFileWriter } from '../host/output/record-writer.js';
 import { tempDirForSuite } from './support/temp-dir.js';
 

@@ -38,7 +38,7 @@
 import { InputError } from '../errors.js';
 import { peekInput, readFileHeader } from './event-source.js';
 import type { FileHeader } from '../formats/file-header.js';
-import { inputLabel } from './record-reader.js';
+import { inputLabel } from './input-chunks.js';
 import { csvEvents } from './candidate-csv.js';
 import { jetsFileEvents } from './candidate-jets-file.js';
 import { jsonLineEvents } from './candidate-jsonl.js';

@@ -47,7 +47,7 @@ import { InputError } from '../errors.js';
 import { chooseCsvGrid, peekCsvGrid, type CsvGridOrigin } from './csv-grid.js';
 import { CsvEventBuilder, expand, type CsvEvent, type CsvReadLimits, type Pending } from './csv-event-builder.js';
 import { CsvLineSplitter } from './csv-lines.js';
-import { inputLabel, readChunks } from './record-reader.js';
+import { inputLabel, readChunks } from './input-chunks.js';
 import type { Grid } from '../types.js';
 
 export interface ReadCsvOptions extends CsvReadLimits {

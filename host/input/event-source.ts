@@ -34,7 +34,8 @@ import { csvEventsFromChunks } from './csv-towers.js';
 import { chooseCsvGrid, peekCsvGrid } from './csv-grid.js';
 import { encodeEventRecord } from '../formats/event-codec.js';
 import { decodeFileHeader, FORMAT_VERSION, type FileHeader } from '../formats/file-header.js';
-import { framedRecords, inputLabel, readChunks, type RawRecord } from './record-reader.js';
+import { framedRecords, type RawRecord } from './record-reader.js';
+import { inputLabel, readChunks } from './input-chunks.js';
 import { DEFAULT_GRID, type Grid } from '../types.js';
 import { ProtoWriter } from '../formats/wire.js';
 

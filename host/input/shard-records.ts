@@ -5,7 +5,8 @@
 
 import { open } from 'node:fs/promises';
 import { InputError } from '../errors.js';
-import { DEFAULT_MAX_RECORD_BYTES, RecordFramer, type RawRecord } from './record-reader.js';
+import { DEFAULT_MAX_RECORD_BYTES, RecordFramer } from './record-framer.js';
+import type { RawRecord } from './record-reader.js';
 import type { RecordIndex } from './record-index.js';
 
 /** largest single read; a batch larger than this is read in pieces */

@@ -25,7 +25,7 @@
 
 import { encodeStreamEvent, encodeStreamHeader } from './exec-stream.js';
 import { ProgramProcess, type FaultKind, type ProcessFault } from './exec-process.js';
-import { DEFAULT_MAX_RECORD_BYTES } from '../input/record-reader.js';
+import { DEFAULT_MAX_RECORD_BYTES } from '../input/record-framer.js';
 import type { DecodedJets } from '../formats/jets-codec.js';
 import type { ClusterSettings, Grid, JetSet } from '../types.js';
 

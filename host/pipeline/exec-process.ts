@@ -19,7 +19,7 @@
 // and answered or failed once. Times are process.hrtime.bigint() (monotonic) as numbers of ns.
 
 import { spawn, type ChildProcessWithoutNullStreams } from 'node:child_process';
-import { RecordFramer } from '../input/record-reader.js';
+import { RecordFramer } from '../input/record-framer.js';
 import { checkProgramHeader, readProgramAnswer } from './exec-stream.js';
 import type { DecodedJets } from '../formats/jets-codec.js';
 import type { ClusterSettings, Grid } from '../types.js';

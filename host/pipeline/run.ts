@@ -28,7 +28,7 @@ import { RecordFeed } from './run-feed.js';
 import { RunDelivery, type EventObserver } from './run-delivery.js';
 import { OpenLoopFeed } from './open-loop-feed.js';
 import { runCheckPass } from './check-pass.js';
-import { DEFAULT_MAX_RECORD_BYTES } from '../input/record-reader.js';
+import { DEFAULT_MAX_RECORD_BYTES } from '../input/record-framer.js';
 import { MachineLoadProbe } from '../measure/machine-load.js';
 import { shardInput } from './shard-input.js';
 import type { WorkerConfig } from './worker-contract.js';

@@ -14,7 +14,7 @@ import { parseEngineName } from '../../clustering/clusterers.js';
 import { CLUSTER_OPTIONS, FORCE_OPTION, GRID_OPTIONS, MAX_EVENT_GAP_OPTION, clusterSettingsFrom, gridFrom, hasGridOptions, maxEventGapFrom } from '../common-options.js';
 import { describeSettings } from '../../clustering/describe-settings.js';
 import { parseEmulation } from '../../clustering/emulation-mode.js';
-import { DEFAULT_MAX_RECORD_BYTES } from '../../input/record-reader.js';
+import { DEFAULT_MAX_RECORD_BYTES } from '../../input/record-framer.js';
 import { clusterFile } from '../../pipeline/cluster-file.js';
 import { PILEUP_OPTIONS, pileupSettingsFrom } from '../pileup-options.js';
 import { GROOMING_OPTIONS, groomingSettingsFrom } from '../grooming-options.js';

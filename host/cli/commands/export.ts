@@ -24,7 +24,7 @@
 import { parseArgs, type CommandIo, type CommandMain, type CommandSpec } from '../args.js';
 import { UsageError } from '../../errors.js';
 import { FORCE_OPTION, GRID_OPTIONS, MAX_EVENT_GAP_OPTION, gridFrom, hasGridOptions, maxEventGapFrom } from '../common-options.js';
-import { DEFAULT_MAX_RECORD_BYTES } from '../../input/record-reader.js';
+import { DEFAULT_MAX_RECORD_BYTES } from '../../input/record-framer.js';
 import { exportAsText } from '../../output/text-export.js';
 import { RecordProgress } from '../../measure/input-progress.js';
 
