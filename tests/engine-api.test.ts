@@ -1,7 +1,9 @@
 // The engine's host API: batches, per-event status and timing, limits, memory, builds.
 
 import { describe, expect, it } from 'vitest';
-import { WasmClusterer, batchEventJets, loadEngineModule, ENGINE_OK, ENGINE_INDEX_OUTSIDE, ENGINE_INDEX_REPEATED } from '../host/clustering/engine.js';
+import { WasmClusterer } from '../host/clustering/engine.js';
+import { batchEventJets } from '../host/clustering/engine-batch.js';
+import { loadEngineModule, ENGINE_OK, ENGINE_INDEX_OUTSIDE, ENGINE_INDEX_REPEATED } from '../host/clustering/engine-module.js';
 import { ReferenceClusterer } from '../host/clustering/reference.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS, type ClusterSettings } from '../host/types.js';
 import { firstJetDifference } from './support/jet-equality.js';

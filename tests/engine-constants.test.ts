@@ -2,7 +2,7 @@
 // against the engine's own, read from an instance of each build (assembly/shared-constants.ts
 // exports them as globals).
 import { describe, expect, it } from 'vitest';
-import { ENGINE_OK, ENGINE_INDEX_OUTSIDE, ENGINE_INDEX_REPEATED, REGION, engineImports, loadEngineModule } from '../host/clustering/engine.js';
+import { ENGINE_OK, ENGINE_INDEX_OUTSIDE, ENGINE_INDEX_REPEATED, REGION, engineImports, loadEngineModule } from '../host/clustering/engine-module.js';
 import { MIN_ET } from '../host/clustering/grid.js';
 
 function engineGlobals(debug: boolean): Record<string, number> {

@@ -2,7 +2,8 @@
 // overwrites on its next call (the pileup chain copies them out before then).
 
 import { describe, expect, it } from 'vitest';
-import { WasmClusterer, batchEventJets } from '../host/clustering/engine.js';
+import { WasmClusterer } from '../host/clustering/engine.js';
+import { batchEventJets } from '../host/clustering/engine-batch.js';
 import { firstJetDifference } from '../host/validate/bit-exact.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../host/types.js';
 import { fullGridEvent, makeRandom, pileupEvents } from './support/random-events.js';

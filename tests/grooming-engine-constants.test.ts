@@ -1,7 +1,7 @@
 // The host's copies of grooming's numbers (host/clustering/grooming/engine-groomer.ts) against
 // the engine's own, read from an instance of each build (assembly/shared-constants.ts).
 import { describe, expect, it } from 'vitest';
-import { engineImports, loadEngineModule } from '../host/clustering/engine.js';
+import { engineImports, loadEngineModule } from '../host/clustering/engine-module.js';
 import { GROOM_REGION, GROOM_SOFT_DROP, GROOM_TRIM } from '../host/clustering/grooming/engine-groomer.js';
 
 function engineGlobals(debug: boolean): Record<string, number> {

@@ -6,7 +6,7 @@
 // Each event's time per stage goes into the result's stage table (worker-contract.ts).
 
 import { MIN_ET } from '../clustering/grid.js';
-import { batchEventJets, type BatchJets } from '../clustering/engine.js';
+import { batchEventJets, type BatchJets } from '../clustering/engine-batch.js';
 import { EnginePileupClusterer } from '../clustering/pileup/engine-chain.js';
 import { firstPileupDifference } from '../validate/pileup-bit-exact.js';
 import { firstGroomingDifference } from '../validate/grooming-bit-exact.js';

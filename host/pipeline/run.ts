@@ -18,7 +18,8 @@
 import { closeSync, openSync, readSync, statSync } from 'node:fs';
 import { openEventSource } from '../input/event-source.js';
 import { InputError, UsageError } from '../errors.js';
-import { loadEngineModule, WasmClusterer } from '../clustering/engine.js';
+import { loadEngineModule } from '../clustering/engine-module.js';
+import { WasmClusterer } from '../clustering/engine.js';
 import { makeClusterer, type EngineName } from '../clustering/clusterers.js';
 import { pileupStepsOn } from '../clustering/pileup/settings.js';
 import { groomingIsOn } from '../clustering/grooming/settings.js';

@@ -11,7 +11,7 @@
 // input tower by cell; only cells of this event's towers are ever read).
 
 import { checkGrid, makeGridTables, type GridTables } from '../grid.js';
-import { ENGINE_OK, REGION, describeStatus, engineImports, loadEngineModule, writeGridTables } from '../engine.js';
+import { ENGINE_OK, REGION, describeStatus, engineImports, loadEngineModule, writeGridTables } from '../engine-module.js';
 import type { Grid, GroomedFourVectors, GroomingSettings, JetSet } from '../../types.js';
 import type { JetGroomer } from './groomer.js';
 import { allocateSoftDropJets, allocateTrimmedJets } from './rows.js';

@@ -17,7 +17,8 @@
 //   median f64[C]       sort scratch for a median (P <= C values, or kt jets <= C)
 
 import { MIN_ET } from '../grid.js';
-import { ENGINE_INDEX_OUTSIDE, ENGINE_INDEX_REPEATED, ENGINE_OK, WasmClusterer } from '../engine.js';
+import { ENGINE_INDEX_OUTSIDE, ENGINE_INDEX_REPEATED, ENGINE_OK } from '../engine-module.js';
+import { WasmClusterer } from '../engine.js';
 import type { ClusterSettings, Clusterer, Grid, JetSet, PileupSettings, RhoEstimator } from '../../types.js';
 import { rhoEstimatorOf } from './chain.js';
 import { ReportedJets } from './engine-jets.js';

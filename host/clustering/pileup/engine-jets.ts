@@ -6,7 +6,7 @@
 //     the jets kept so far, in the engine's output order; row = the engine's output rank
 //   order i32[J]   their reported order
 
-import type { BatchJets } from '../engine.js';
+import type { BatchJets } from '../engine-batch.js';
 import { allocateJetSet } from '../jet-set.js';
 import type { JetSet, PileupValues } from '../../types.js';
 
