@@ -6,7 +6,8 @@
 import { afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
-import { runEvents, type RunOptions } from '../host/pipeline/run.js';
+import { runEvents } from '../host/pipeline/run.js';
+import type { RunOptions } from '../host/pipeline/run-plan.js';
 import { findRate } from '../host/pipeline/studies.js';
 import type { RunSummary } from '../host/measure/summary.js';
 import { toyEvents, writeEventFile } from './support/run-files.js';

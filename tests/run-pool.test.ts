@@ -2,7 +2,8 @@
 import { afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { existsSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { inputErrorOf, runEvents } from '../host/pipeline/run.js';
+import { inputErrorOf } from '../host/pipeline/run-summary.js';
+import { runEvents } from '../host/pipeline/run.js';
 import { BatchBuilder, BatchPool, type BatchOutcome } from '../host/pipeline/pool.js';
 import { mergeSummaries } from '../host/measure/summary-merge.js';
 import { EventTowerReader } from '../host/input/event-towers.js';

@@ -1,7 +1,8 @@
 // --find-rate and --scan-workers: repeated runs over the same input (workers from dist/).
 import { describe, expect, it } from 'vitest';
 import { join } from 'node:path';
-import { runEvents, type RunOptions } from '../host/pipeline/run.js';
+import { runEvents } from '../host/pipeline/run.js';
+import type { RunOptions } from '../host/pipeline/run-plan.js';
 import { findRate, scanWorkers } from '../host/pipeline/studies.js';
 import { toyEvents, writeEventFile } from './support/run-files.js';
 import { tempDirForSuite } from './support/temp-dir.js';

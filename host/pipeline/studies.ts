@@ -3,7 +3,8 @@
 // worker count.
 
 import type { ArrivalMode } from './arrivals.js';
-import { runEvents, type CheckOption, type RunOptions } from './run.js';
+import { runEvents } from './run.js';
+import type { CheckOption, RunOptions } from './run-plan.js';
 
 const NO_CHECK: CheckOption = { mode: 'none', fraction: 0, seed: 1 };
 import type { RunSummary } from '../measure/summary.js';

@@ -15,7 +15,7 @@ import { FORCE_OPTION } from '../common-options.js';
 import { parseCheck, positiveInteger, positiveNumber, runOption } from './run.js';
 import { formatReport } from '../../measure/report.js';
 import { runEvents } from '../../pipeline/run.js';
-import type { CheckOption } from '../../pipeline/run.js';
+import type { CheckOption } from '../../pipeline/run-plan.js';
 import { producerName } from '../../version.js';
 
 /** the demo's own defaults of the options it shares with run: a budget to count against, a larger sample checked */

@@ -5,7 +5,9 @@ import { parseArgs, type CommandIo, type CommandMain, type CommandSpec, type Opt
 import { UsageError } from '../../errors.js';
 import { CLUSTER_OPTIONS, FORCE_OPTION, GRID_OPTIONS, MAX_EVENT_GAP_OPTION, clusterSettingsFrom, gridFrom, maxEventGapFrom } from '../common-options.js';
 import { checkOutputAllowed } from '../../output/output-target.js';
-import { DEFAULT_BATCH, DEFAULT_CHECK, inputErrorOf, runEvents, type CheckOption, type RunOptions } from '../../pipeline/run.js';
+import { DEFAULT_BATCH, DEFAULT_CHECK, type CheckOption, type RunOptions } from '../../pipeline/run-plan.js';
+import { inputErrorOf } from '../../pipeline/run-summary.js';
+import { runEvents } from '../../pipeline/run.js';
 import { shardReadingNote } from '../../pipeline/shard-input.js';
 import { findRate, scanWorkers } from '../../pipeline/studies.js';
 import { describeMachine, type RunSummary } from '../../measure/summary.js';
