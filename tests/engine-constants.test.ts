@@ -1,4 +1,4 @@
-// The host's copies of the engine's numbers (host/clustering/engine.ts, host/clustering/grid.ts)
+// The host's copies of the engine's numbers (host/clustering/engine-module.ts, host/clustering/grid.ts)
 // against the engine's own, read from an instance of each build (assembly/shared-constants.ts
 // exports them as globals).
 import { describe, expect, it } from 'vitest';

@@ -7,7 +7,7 @@ import { mkdirSync, readdirSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { OutputFile } from '../host/output/record-writer.js';
+import { OutputFile } from '../host/output/output-file.js';
 import { tempDirForTest } from './support/temp-dir.js';
 
 describe('an output that cannot be written', () => {

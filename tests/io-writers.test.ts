@@ -4,7 +4,8 @@ import { Writable } from 'node:stream';
 import { gunzipSync } from 'node:zlib';
 import { describe, expect, it } from 'vitest';
 import { RecordFramer } from '../host/input/record-framer.js';
-import { RecordFileWriter, TextFileWriter } from '../host/output/record-writer.js';
+import { RecordFileWriter } from '../host/output/record-writer.js';
+import { TextFileWriter } from '../host/output/text-file-writer.js';
 import { tempDirForSuite } from './support/temp-dir.js';
 
 const dir = tempDirForSuite('writers');

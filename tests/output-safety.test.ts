@@ -5,7 +5,7 @@ import { execFileSync } from 'node:child_process';
 import { createReadStream, lstatSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { OutputFile, writeTextFile } from '../host/output/record-writer.js';
+import { OutputFile, writeTextFile } from '../host/output/output-file.js';
 import { heldTemporaries } from '../host/output/temporaries.js';
 import { tempDirForTest } from './support/temp-dir.js';
 

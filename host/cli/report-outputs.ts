@@ -6,7 +6,7 @@ import type { CommandIo, OptionSpec, ParsedArgs } from './args.js';
 import { UsageError } from '../errors.js';
 import { EventSample } from '../measure/event-sample.js';
 import { PerEventWriter } from '../output/per-event-writer.js';
-import { writeTextFile } from '../output/record-writer.js';
+import { writeTextFile } from '../output/output-file.js';
 import { checkOutputAllowed } from '../output/output-target.js';
 import { buildReport, findDisplay } from '../report/build-report.js';
 import { compareView, runView, type ReportInput } from '../report/report-data.js';

@@ -3,7 +3,8 @@
 // no file behind.
 
 import { generateEvents, type GeneratorSettings } from './generate.js';
-import { EventFileWriter, type WriterOptions } from '../output/record-writer.js';
+import { EventFileWriter } from '../output/record-writer.js';
+import type { WriterOptions } from '../output/output-file.js';
 import type { Grid } from '../types.js';
 
 export interface GeneratedFileHeader {

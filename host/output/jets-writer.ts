@@ -3,7 +3,8 @@
 import { encodeFileHeader, type FileHeader, type JetsFileSettings } from '../formats/file-header.js';
 import { encodeJetsRecord, jetsFileHeader, type JetsHeaderText, type JetsRecordFields } from '../formats/jets-codec.js';
 import type { Grid } from '../types.js';
-import { RecordFileWriter, type WriterOptions } from './record-writer.js';
+import { RecordFileWriter } from './record-writer.js';
+import type { WriterOptions } from './output-file.js';
 
 /** A jets file: the header record, then one jets record per writeJets(). */
 export class JetsFileWriter {

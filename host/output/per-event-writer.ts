@@ -11,8 +11,8 @@
 // (TextFileWriter), so memory stays bounded whatever the run's length; the file is written
 // under a temporary name and put in place when the run ends (output-target.ts).
 
-import { TextFileWriter } from './record-writer.js';
-import type { WriterOptions } from './record-writer.js';
+import { TextFileWriter } from './text-file-writer.js';
+import type { WriterOptions } from './output-file.js';
 
 export const PER_EVENT_HEADER_CLOSED = 'event,towers,service_ns';
 export const PER_EVENT_HEADER_OPEN = 'event,towers,service_ns,scheduled_ns,start_ns,done_ns';

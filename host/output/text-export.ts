@@ -15,7 +15,7 @@ import { CANDIDATE_CSV_HEADERS } from '../input/candidate-csv.js';
 import { EventTowerReader } from '../input/event-towers.js';
 import { decodeJetsRecord } from '../formats/jets-codec.js';
 import { formatErrorLine, formatJetsLine, jsonNumber } from '../formats/jets-jsonl.js';
-import { TextFileWriter } from './record-writer.js';
+import { TextFileWriter } from './text-file-writer.js';
 import { csvGridLine } from '../input/csv-grid.js';
 import { sameGrid } from '../clustering/grid.js';
 import { DEFAULT_GRID } from '../types.js';

@@ -17,7 +17,7 @@ import { sameGrid } from '../clustering/grid.js';
 import { emptyJetSet } from '../formats/jets-codec.js';
 import { JetsFileWriter } from '../output/jets-writer.js';
 import { formatErrorLine, formatJetsLine } from '../formats/jets-jsonl.js';
-import { TextFileWriter } from '../output/record-writer.js';
+import { TextFileWriter } from '../output/text-file-writer.js';
 import { describePileup, pileupStepsOn } from '../clustering/pileup/settings.js';
 import { describeGrooming, groomingIsOn } from '../clustering/grooming/settings.js';
 import type { ClusterSettings, Grid, GroomingSettings, JetSet, PileupSettings } from '../types.js';

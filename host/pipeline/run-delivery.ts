@@ -4,7 +4,7 @@
 
 import { PILEUP_STAGES, RunTally, STAGES } from '../measure/run-tally.js';
 import { describeDifference } from '../validate/bit-exact.js';
-import type { OutputFile } from '../output/record-writer.js';
+import type { OutputFile } from '../output/output-file.js';
 import type { ReproWriter } from '../output/repro-writer.js';
 import type { BatchOutcome } from './pool.js';
 import { failedByIndex, tallyProgramBatch } from './exec-delivery.js';

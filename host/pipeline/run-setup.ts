@@ -11,7 +11,7 @@ import type { ExecWorkerConfig } from './exec-run-contract.js';
 import type { ClusterSettings, Grid } from '../types.js';
 import { encodeJetsFileHeader } from '../formats/jets-codec.js';
 import { ReproWriter } from '../output/repro-writer.js';
-import { OutputFile } from '../output/record-writer.js';
+import { OutputFile } from '../output/output-file.js';
 import { producerName } from '../version.js';
 
 /**

@@ -9,7 +9,7 @@ import { CLUSTER_OPTIONS, FORCE_OPTION, GRID_OPTIONS, MAX_EVENT_GAP_OPTION, clus
 import { describeGrid } from '../../clustering/grid.js';
 import { parseEngineName } from '../../clustering/clusterers.js';
 import { describeSettings } from '../../clustering/describe-settings.js';
-import { writeTextFile } from '../../output/record-writer.js';
+import { writeTextFile } from '../../output/output-file.js';
 import { DISPLAY_OPTION, REPORT_OPTION, writeCompareReport } from '../report-outputs.js';
 import { DEFAULT_TOLERANCE, checkToleranceSettings, type ToleranceSettings } from '../../validate/tolerance-compare.js';
 import { compareFiles } from '../../validate/compare-files.js';

@@ -4,7 +4,7 @@
 import { parseArgs, type CommandIo, type CommandMain, type CommandSpec } from '../args.js';
 import { UsageError } from '../../errors.js';
 import { buildRecordIndex, indexPathOf } from '../../input/record-index.js';
-import { OutputFile } from '../../output/record-writer.js';
+import { OutputFile } from '../../output/output-file.js';
 import { FORCE_OPTION } from '../common-options.js';
 
 export const spec: CommandSpec = {

@@ -7,7 +7,7 @@ import { UsageError } from '../../errors.js';
 import type { RunSummary } from '../../measure/summary.js';
 import { mergeSummaries, readSummary } from '../../measure/summary-merge.js';
 import { formatReport } from '../../measure/report.js';
-import { writeTextFile } from '../../output/record-writer.js';
+import { writeTextFile } from '../../output/output-file.js';
 import { FORCE_OPTION } from '../common-options.js';
 
 export const spec: CommandSpec = {

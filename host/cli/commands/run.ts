@@ -15,7 +15,7 @@ import { LISTED_MAX } from '../../measure/run-tally.js';
 import { formatReport } from '../../measure/report.js';
 import { formatProgramReport } from '../../measure/program-report.js';
 import { runFailures } from '../../measure/run-verdict.js';
-import { writeTextFile } from '../../output/record-writer.js';
+import { writeTextFile } from '../../output/output-file.js';
 import { DISPLAY_OPTION, PER_EVENT_OPTION, REPORT_OPTION, RunReportOutputs } from '../report-outputs.js';
 import type { ArrivalMode } from '../../pipeline/arrivals.js';
 import type { EngineName } from '../../clustering/clusterers.js';
