@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: one written-down layout, the comment below and the region offsets it describes, kept together.
 // Memory layout of one engine instance: the one written description of it (assembly/README.md
 // and host/clustering/engine.ts point here). Every region is reserved once by setup(), sized for
 // the largest event the grid allows (all C = etaBins * phiBins towers occupied) and for the

@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: one algorithm, clusterReference, kept whole so it reads top to bottom against the spec.
 // The reference clusterer: plain TypeScript written to be read and trusted, following
 // clustering-spec.md to the letter. It is the yardstick every fast engine is compared against,
 // so clarity beats speed here; it is still the nearest-neighbour form, O(N^2) overall.

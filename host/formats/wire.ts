@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: one format, its reader and its writer side by side so each encoding can be checked against its decoding.
 // Protobuf wire format, the small part jetlag needs (https://protobuf.dev/programming-guides/encoding/):
 // varints, 64-bit doubles, length-delimited fields (strings, sub-messages, packed arrays).
 //

@@ -1,3 +1,4 @@
+// Over 300 lines on purpose: one chain, whose steps share the flat arrays reserved once per chain, kept in one class.
 // The engine's pileup chain (clustering-spec.md part two, sections 8-10), bit for bit the
 // reference's (chain.ts) but on flat arrays reserved once per chain:
 //   threshold -> SoftKiller -> ghosts -> WebAssembly clustering -> areas, ρ, subtraction -> ptMin
