@@ -1,7 +1,8 @@
 // What a run sets up before its timed pass: the engine refused early, the progress bar's size,
 // the workers' configuration, and the output files (run.ts has the steps of a run).
 
-import { closeSync, openSync, readSync, statSync } from 'node:fs';
+import { statSync } from 'node:fs';
+import { isGzipPath } from '../input/record-index.js';
 import { UsageError } from '../errors.js';
 import { loadEngineModule } from '../clustering/engine-module.js';
 import { WasmClusterer } from '../clustering/engine.js';
@@ -27,16 +28,6 @@ export function refuseUnusableEngine(grid: Grid, settings: ClusterSettings): voi
   }
 }
 
-export function isGzipFile(path: string): boolean {
-  const fd = openSync(path, 'r');
-  try {
-    const magic = Buffer.alloc(2);
-    return readSync(fd, magic, 0, 2, 0) === 2 && magic[0] === 0x1f && magic[1] === 0x8b;
-  } finally {
-    closeSync(fd);
-  }
-}
-
 /**
  * The input's size for the progress bar's ETA, which compares record offsets with it: only an
  * uncompressed file read to its end has one (gzip offsets count inflated bytes); 0 for gzip,
@@ -45,7 +36,7 @@ export function isGzipFile(path: string): boolean {
 export function progressBytesTotal(options: RunOptions): number {
   if (options.input === '-') return 0;
   try {
-    return !isGzipFile(options.input) && options.maxEvents == null ? statSync(options.input).size : 0;
+    return !isGzipPath(options.input) && options.maxEvents == null ? statSync(options.input).size : 0;
   } catch {
     return 0;
   }
