@@ -2,23 +2,11 @@
 // against the engine's own, read from an instance of each build (assembly/shared-constants.ts
 // exports them as globals).
 import { describe, expect, it } from 'vitest';
-import { ENGINE_OK, ENGINE_INDEX_OUTSIDE, ENGINE_INDEX_REPEATED, REGION, engineImports, loadEngineModule } from '../host/clustering/engine-module.js';
+import { ENGINE_OK, ENGINE_INDEX_OUTSIDE, ENGINE_INDEX_REPEATED, REGION } from '../host/clustering/engine-module.js';
+import { engineGlobals, regionExportName } from './support/engine-globals.js';
 import { MIN_ET } from '../host/clustering/grid.js';
 
-function engineGlobals(debug: boolean): Record<string, number> {
-  const module = loadEngineModule(debug);
-  const instance = new WebAssembly.Instance(module, engineImports(module));
-  const values: Record<string, number> = {};
-  for (const [name, value] of Object.entries(instance.exports)) {
-    if (value instanceof WebAssembly.Global) values[name] = value.value as number;
-  }
-  return values;
-}
-
-/** etaCentre -> REGION_ETA_CENTRE, outE -> REGION_OUT_E */
-function exportName(region: string): string {
-  return 'REGION_' + region.replace(/[A-Z]/g, (letter) => '_' + letter).toUpperCase();
-}
+const exportName = (region: string): string => regionExportName('REGION_', region);
 
 describe.each([false, true])('the engine build (debug %s) and the host agree on', (debug) => {
   it('the per-event status codes', () => {
