@@ -1,11 +1,10 @@
 // Making JetSet values (types.ts): one place that knows every field.
 
-import type { JetSet } from '../types.js';
+import type { GroomedFourVectors, JetSet } from '../types.js';
 
-/** A JetSet with room for `count` jets, every value zero, and no constituent indices yet. */
-export function allocateJetSet(count: number): JetSet {
+/** Per-jet four-vectors, kinematics and tower counts with room for `count` jets, every value zero. */
+export function allocateFourVectors(count: number): GroomedFourVectors {
   return {
-    count,
     px: new Float64Array(count),
     py: new Float64Array(count),
     pz: new Float64Array(count),
@@ -15,7 +14,10 @@ export function allocateJetSet(count: number): JetSet {
     phi: new Float64Array(count),
     mass: new Float64Array(count),
     towerCount: new Int32Array(count),
-    towerStart: new Int32Array(count),
-    towers: new Int32Array(0),
   };
+}
+
+/** A JetSet with room for `count` jets, every value zero, and no constituent indices yet. */
+export function allocateJetSet(count: number): JetSet {
+  return { count, ...allocateFourVectors(count), towerStart: new Int32Array(count), towers: new Int32Array(0) };
 }

@@ -2,21 +2,9 @@
 // Row k belongs to the JetSet's jet k; every value starts at zero, which is also what an empty
 // trimmed jet reports (spec section 12).
 
-import type { GroomedFourVectors, SoftDropJets, TrimmedJets } from '../../types.js';
+import type { SoftDropJets, TrimmedJets } from '../../types.js';
+import { allocateFourVectors } from '../jet-set.js';
 
-function allocateFourVectors(count: number): GroomedFourVectors {
-  return {
-    px: new Float64Array(count),
-    py: new Float64Array(count),
-    pz: new Float64Array(count),
-    energy: new Float64Array(count),
-    pt: new Float64Array(count),
-    rapidity: new Float64Array(count),
-    phi: new Float64Array(count),
-    mass: new Float64Array(count),
-    towerCount: new Int32Array(count),
-  };
-}
 
 export function allocateTrimmedJets(count: number): TrimmedJets {
   return { ...allocateFourVectors(count), subjets: new Int32Array(count) };
