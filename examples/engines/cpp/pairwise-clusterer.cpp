@@ -42,7 +42,7 @@ struct Settings {
 };
 
 // one jet of the clustering: a tower at first, later a merge
-struct PseudoJet {
+struct ClusterCandidate {
   double px, py, pz, e;
   double y, phi, kt2;
   double weight;               // w = kt2^p
@@ -56,17 +56,17 @@ double weightOf(double kt2, double p) {
   return std::pow(kt2, p);
 }
 
-double deltaR2(const PseudoJet& a, const PseudoJet& b) {
+double deltaR2(const ClusterCandidate& a, const ClusterCandidate& b) {
   double dphi = std::fabs(a.phi - b.phi);
   if (dphi > M_PI) dphi = kTwoPi - dphi;
   const double dy = a.y - b.y;
   return dy * dy + dphi * dphi;
 }
 
-PseudoJet combine(const PseudoJet& a, const PseudoJet& b, const Settings& settings) {
-  PseudoJet out;
+ClusterCandidate combine(const ClusterCandidate& a, const ClusterCandidate& b, const Settings& settings) {
+  ClusterCandidate out;
   if (settings.winnerTakeAll) {
-    const PseudoJet& harder = a.kt2 >= b.kt2 ? a : b;
+    const ClusterCandidate& harder = a.kt2 >= b.kt2 ? a : b;
     const double pt = std::sqrt(a.kt2) + std::sqrt(b.kt2);
     out.y = harder.y;
     out.phi = harder.phi;
@@ -93,7 +93,7 @@ PseudoJet combine(const PseudoJet& a, const PseudoJet& b, const Settings& settin
 }
 
 // Clusters one event's towers into final jets, in decreasing pt, jets below ptMin left out.
-std::vector<PseudoJet> clusterEvent(const jetlag::EventRecord& event, const jetlag::Grid& grid, const Settings& settings) {
+std::vector<ClusterCandidate> clusterEvent(const jetlag::EventRecord& event, const jetlag::Grid& grid, const Settings& settings) {
   const int towers = event.tower_index_size();
   const double etaStep = (grid.eta_max() - grid.eta_min()) / grid.eta_bins();
   const double phiStep = kTwoPi / grid.phi_bins();
@@ -102,7 +102,7 @@ std::vector<PseudoJet> clusterEvent(const jetlag::EventRecord& event, const jetl
   std::vector<int> order(towers);
   for (int k = 0; k < towers; k++) order[k] = k;
   std::sort(order.begin(), order.end(), [&](int a, int b) { return event.tower_index(a) < event.tower_index(b); });
-  std::vector<PseudoJet> jets;
+  std::vector<ClusterCandidate> jets;
   jets.reserve(2 * towers);
   for (int k : order) {
     const int32_t index = event.tower_index(k);
@@ -111,7 +111,7 @@ std::vector<PseudoJet> clusterEvent(const jetlag::EventRecord& event, const jetl
     if (!(et > settings.threshold && et >= 1e-150)) continue;
     const double eta = grid.eta_min() + (index / grid.phi_bins() + 0.5) * etaStep;
     const double phi = (index % grid.phi_bins() + 0.5) * phiStep;
-    PseudoJet tower{et * std::cos(phi), et * std::sin(phi), et * std::sinh(eta), et * std::cosh(eta), eta, phi, et * et, 0, {index}};
+    ClusterCandidate tower{et * std::cos(phi), et * std::sin(phi), et * std::sinh(eta), et * std::cosh(eta), eta, phi, et * et, 0, {index}};
     tower.weight = weightOf(tower.kt2, settings.p);
     jets.push_back(std::move(tower));
   }
@@ -149,7 +149,7 @@ std::vector<PseudoJet> clusterEvent(const jetlag::EventRecord& event, const jetl
     if (a.low != b.low) return a.low < b.low;
     return a.high < b.high;
   };
-  std::vector<PseudoJet> finals;
+  std::vector<ClusterCandidate> finals;
   while (!live.empty()) {
     size_t best = 0;
     Candidate bestCandidate = candidateOf(live[0]);
@@ -184,16 +184,16 @@ std::vector<PseudoJet> clusterEvent(const jetlag::EventRecord& event, const jetl
     }
   }
 
-  std::vector<PseudoJet> out;
+  std::vector<ClusterCandidate> out;
   for (auto& jet : finals) {
     if (std::sqrt(jet.kt2) >= settings.ptMin) out.push_back(std::move(jet));
   }
-  std::stable_sort(out.begin(), out.end(), [](const PseudoJet& a, const PseudoJet& b) { return a.kt2 > b.kt2; });
+  std::stable_sort(out.begin(), out.end(), [](const ClusterCandidate& a, const ClusterCandidate& b) { return a.kt2 > b.kt2; });
   return out;
 }
 
-void fillRecord(jetlag::JetsRecord& record, const std::vector<PseudoJet>& jets) {
-  for (const PseudoJet& jet : jets) {
+void fillRecord(jetlag::JetsRecord& record, const std::vector<ClusterCandidate>& jets) {
+  for (const ClusterCandidate& jet : jets) {
     const double pt = std::sqrt(jet.kt2);
     record.add_px(jet.px);
     record.add_py(jet.py);
@@ -263,7 +263,7 @@ int main() {
       record.set_error("expected towers only, as many tower_et as tower_index");
     } else {
       const auto started = std::chrono::steady_clock::now();
-      const std::vector<PseudoJet> jets = clusterEvent(event, header.grid(), settings);
+      const std::vector<ClusterCandidate> jets = clusterEvent(event, header.grid(), settings);
       const auto clusterTimeNs = std::chrono::duration_cast<std::chrono::nanoseconds>(std::chrono::steady_clock::now() - started).count();
       fillRecord(record, jets);
       record.set_cluster_time_ns(static_cast<uint64_t>(clusterTimeNs));
