@@ -1,0 +1,48 @@
+// Running an example engine program (examples/engines/) over invented events under the exec
+// driver, and holding its answers against the reference in tolerance mode (spec section 7).
+
+import { execFileSync } from 'node:child_process';
+import { basename } from 'node:path';
+import { ExecEngine, type ExecOutcome } from '../../host/pipeline/exec-engine.js';
+import { ReferenceClusterer } from '../../host/clustering/reference.js';
+import { DEFAULT_TOLERANCE, ToleranceMatcher } from '../../host/validate/tolerance-compare.js';
+import { DEFAULT_GRID, type ClusterSettings } from '../../host/types.js';
+import type { EventRecordFields } from '../../host/formats/event-codec.js';
+
+export interface ExampleRun {
+  outcomes: ExecOutcome[];
+  faults: string[];
+}
+
+/** Builds the example with its Makefile into `build`, then sends it every event, one at a time. */
+export async function runExampleEngine(exampleDir: string, build: string, argv: string[], settings: ClusterSettings,
+  events: readonly EventRecordFields[], timeoutMs: number, env?: Record<string, string>): Promise<ExampleRun> {
+  execFileSync('make', ['-s', '-C', exampleDir, `BUILD=${build}`], { stdio: ['ignore', 'ignore', 'inherit'] });
+  const faults: string[] = [];
+  const engine = await ExecEngine.start({
+    argv, env, label: `exec:${basename(argv[argv.length - 1])}`, grid: DEFAULT_GRID, settings, producer: 'jetlag tests',
+    timeoutMs, maxRestarts: 0, onFault: (line) => faults.push(line),
+  });
+  const outcomes: ExecOutcome[] = [];
+  for (const event of events) {
+    outcomes.push(await engine.submit(event.event, Int32Array.from(event.towerIndex!), Float64Array.from(event.towerEt!)));
+  }
+  await engine.close();
+  return { outcomes, faults };
+}
+
+/** The events whose answer does not agree with the reference in tolerance mode, and the reference's jet count. */
+export function disagreeingEvents(outcomes: readonly ExecOutcome[], events: readonly EventRecordFields[], settings: ClusterSettings): { disagreeing: number[]; referenceJets: number } {
+  const reference = new ReferenceClusterer(DEFAULT_GRID, settings);
+  const matcher = new ToleranceMatcher({ ...DEFAULT_TOLERANCE, ptMin: settings.ptMin });
+  const disagreeing: number[] = [];
+  let referenceJets = 0;
+  for (let k = 0; k < events.length; k++) {
+    const outcome = outcomes[k];
+    if (!outcome.ok) continue;
+    const jets = reference.cluster(Int32Array.from(events[k].towerIndex!), Float64Array.from(events[k].towerEt!));
+    referenceJets += jets.count;
+    if (!matcher.match(jets, outcome.jets)) disagreeing.push(outcome.event);
+  }
+  return { disagreeing, referenceJets };
+}
