@@ -5,7 +5,8 @@
 import { describe, expect, it } from 'vitest';
 import { decodeFileHeader, encodeFileHeader } from '../host/formats/file-header.js';
 import { decodeJetsRecord, encodeJetsRecord } from '../host/formats/jets-codec.js';
-import { allocateSoftDropJets, allocateTrimmedJets, GROOMED_DOUBLE_FIELDS } from '../host/clustering/grooming/rows.js';
+import { allocateSoftDropJets, allocateTrimmedJets } from '../host/clustering/grooming/rows.js';
+import { JET_DOUBLE_FIELDS } from '../host/clustering/jet-set.js';
 import { loadJetlagSchema } from './support/proto-schema.js';
 import { seededRandom as makeRandom } from './support/small-events.js';
 import type { JetSet } from '../host/types.js';
@@ -25,7 +26,7 @@ function randomGroomedJets(rand: () => number): JetSet {
   const trim = allocateTrimmedJets(count);
   const softDrop = allocateSoftDropJets(count);
   for (const rows of [trim, softDrop]) {
-    for (const name of GROOMED_DOUBLE_FIELDS) rows[name].set(arr());
+    for (const name of JET_DOUBLE_FIELDS) rows[name].set(arr());
     rows.towerCount.set(ints());
   }
   trim.subjets.set(ints());

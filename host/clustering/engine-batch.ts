@@ -39,8 +39,6 @@ export interface EngineViews {
   outJetIndex: Int32Array;
 }
 
-export const DOUBLE_FIELDS = ['px', 'py', 'pz', 'energy', 'pt', 'rapidity', 'phi', 'mass'] as const;
-
 /** Views of a batch of `towers` towers and `events` events over the module's regions. */
 export function makeEngineViews(exports: EngineExports, towers: number, events: number): EngineViews {
   const { memory, region } = exports;

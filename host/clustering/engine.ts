@@ -7,7 +7,8 @@
 //   outJetStart/outNs/outClustered/outStatus + jet fields + outTowers --copy--> BatchJets
 
 import { checkGrid, makeGridTables, type GridTables } from './grid.js';
-import { allocateBatchJets, batchEventJets, DOUBLE_FIELDS, makeEngineViews, type BatchJets, type EngineViews } from './engine-batch.js';
+import { allocateBatchJets, batchEventJets, makeEngineViews, type BatchJets, type EngineViews } from './engine-batch.js';
+import { JET_DOUBLE_FIELDS } from './jet-set.js';
 import { checkEngineSettings, describeStatus, engineImports, ENGINE_OK, loadEngineModule, writeGridTables, type EngineExports } from './engine-module.js';
 import type { ClusterSettings, Clusterer, Grid, JetSet } from '../types.js';
 
@@ -132,8 +133,8 @@ export class WasmClusterer implements Clusterer {
         result.clustered[first + e] = out.outClustered[e];
         result.status[first + e] = out.outStatus[e];
       }
-      for (let f = 0; f < DOUBLE_FIELDS.length; f++) {
-        result[DOUBLE_FIELDS[f]].set(out.doubles[f].subarray(0, jets), jetsDone);
+      for (let f = 0; f < JET_DOUBLE_FIELDS.length; f++) {
+        result[JET_DOUBLE_FIELDS[f]].set(out.doubles[f].subarray(0, jets), jetsDone);
       }
       result.towerCount.set(out.outTowerCount.subarray(0, jets), jetsDone);
       result.jetIndex.set(out.outJetIndex.subarray(0, jets), jetsDone);
@@ -151,7 +152,7 @@ export class WasmClusterer implements Clusterer {
     result.clusterNs = result.clusterNs.subarray(0, eventCount);
     result.clustered = result.clustered.subarray(0, eventCount);
     result.status = result.status.subarray(0, eventCount);
-    for (const field of DOUBLE_FIELDS) result[field] = result[field].subarray(0, jetsDone);
+    for (const field of JET_DOUBLE_FIELDS) result[field] = result[field].subarray(0, jetsDone);
     result.towerCount = result.towerCount.subarray(0, jetsDone);
     result.towerStart = result.towerStart.subarray(0, jetsDone);
     result.jetIndex = result.jetIndex.subarray(0, jetsDone);

@@ -2,6 +2,9 @@
 
 import type { GroomedFourVectors, JetSet } from '../types.js';
 
+/** the per-jet double fields of a JetSet and of groomed rows, in a fixed order for codecs, copies and comparisons */
+export const JET_DOUBLE_FIELDS = ['px', 'py', 'pz', 'energy', 'pt', 'rapidity', 'phi', 'mass'] as const;
+
 /** Per-jet four-vectors, kinematics and tower counts with room for `count` jets, every value zero. */
 export function allocateFourVectors(count: number): GroomedFourVectors {
   return {

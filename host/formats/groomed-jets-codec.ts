@@ -4,10 +4,11 @@
 // jets (then empty), so that a reader tells "ran, no jets" from "did not run".
 
 import type { GroomedFourVectors, SoftDropJets, TrimmedJets } from '../types.js';
-import { allocateSoftDropJets, allocateTrimmedJets, GROOMED_DOUBLE_FIELDS } from '../clustering/grooming/rows.js';
+import { allocateSoftDropJets, allocateTrimmedJets } from '../clustering/grooming/rows.js';
+import { JET_DOUBLE_FIELDS } from '../clustering/jet-set.js';
 import { ProtoWriter, WireCursor, WIRE_FIXED64, WIRE_LENGTH_DELIMITED, WIRE_VARINT, wireTypeName } from './wire.js';
 
-/** proto names of GroomedJets fields 1..8, in GROOMED_DOUBLE_FIELDS' order */
+/** proto names of GroomedJets fields 1..8, in JET_DOUBLE_FIELDS' order */
 const PROTO_DOUBLE_NAMES = ['px', 'py', 'pz', 'e', 'pt', 'y', 'phi', 'mass'] as const;
 const FIELD_TOWER_COUNT = 9;
 const FIELD_SUBJETS = 10;
@@ -17,7 +18,7 @@ const FIELD_RG = 12;
 const groomedWriter = new ProtoWriter(1024);
 
 function writeFourVectors(rows: GroomedFourVectors, count: number): void {
-  for (let f = 0; f < GROOMED_DOUBLE_FIELDS.length; f++) groomedWriter.packedDoubles(1 + f, rows[GROOMED_DOUBLE_FIELDS[f]], count);
+  for (let f = 0; f < JET_DOUBLE_FIELDS.length; f++) groomedWriter.packedDoubles(1 + f, rows[JET_DOUBLE_FIELDS[f]], count);
   groomedWriter.packedVarints(FIELD_TOWER_COUNT, rows.towerCount, count);
 }
 
@@ -101,7 +102,7 @@ function lengthProblem(raw: RawGroomedJets, jetCount: number, message: string, e
 }
 
 function fillFourVectors(rows: GroomedFourVectors, raw: RawGroomedJets): void {
-  for (let f = 0; f < GROOMED_DOUBLE_FIELDS.length; f++) rows[GROOMED_DOUBLE_FIELDS[f]].set(raw.doubles[f]);
+  for (let f = 0; f < JET_DOUBLE_FIELDS.length; f++) rows[JET_DOUBLE_FIELDS[f]].set(raw.doubles[f]);
   rows.towerCount.set(raw.towerCount);
 }
 

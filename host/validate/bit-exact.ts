@@ -2,6 +2,7 @@
 // bit-exact mode): same number of jets, same constituents, every reported double identical.
 // Doubles are compared with Object.is, so -0 differs from 0 and NaN equals only NaN.
 
+import { JET_DOUBLE_FIELDS } from '../clustering/jet-set.js';
 import type { JetSet } from '../types.js';
 
 export interface JetDifference {
@@ -12,15 +13,13 @@ export interface JetDifference {
   referenceValue: number;
 }
 
-const DOUBLE_FIELDS = ['px', 'py', 'pz', 'energy', 'pt', 'rapidity', 'phi', 'mass'] as const;
-
 /** The first difference between the engine's jets and the reference's, or null when identical. */
 export function firstJetDifference(engine: JetSet, reference: JetSet): JetDifference | null {
   if (engine.count !== reference.count) {
     return { jet: -1, field: 'count', engineValue: engine.count, referenceValue: reference.count };
   }
   for (let jet = 0; jet < reference.count; jet++) {
-    for (const field of DOUBLE_FIELDS) {
+    for (const field of JET_DOUBLE_FIELDS) {
       const engineValue = engine[field][jet];
       const referenceValue = reference[field][jet];
       if (!Object.is(engineValue, referenceValue)) return { jet, field, engineValue, referenceValue };
@@ -58,7 +57,7 @@ export function describeDifference(event: number, difference: JetDifference): st
   // alike; -0 needs its sign spelled out, and the distance in ulps says how close they are
   const show = (x: number) => (Object.is(x, -0) ? '-0' : String(x));
   let apart = '';
-  if ((DOUBLE_FIELDS as readonly string[]).includes(difference.field)) {
+  if ((JET_DOUBLE_FIELDS as readonly string[]).includes(difference.field)) {
     const ulps = ulpDistance(engineValue, referenceValue);
     if (ulps !== null) apart = ` (${ulps} ulp${ulps === 1 ? '' : 's'} apart)`;
   }

@@ -12,6 +12,7 @@
 
 import { checkGrid, makeGridTables, type GridTables } from '../grid.js';
 import { ENGINE_OK, REGION, describeStatus, engineImports, loadEngineModule, writeGridTables } from '../engine-module.js';
+import { JET_DOUBLE_FIELDS } from '../jet-set.js';
 import type { Grid, GroomedFourVectors, GroomingSettings, JetSet } from '../../types.js';
 import type { JetGroomer } from './groomer.js';
 import { allocateSoftDropJets, allocateTrimmedJets } from './rows.js';
@@ -36,8 +37,6 @@ interface GroomExports {
   groomBatch(count: number): void;
   groomRegion(id: number): number;
 }
-
-const DOUBLE_ROWS = ['px', 'py', 'pz', 'energy', 'pt', 'rapidity', 'phi', 'mass'] as const;
 
 /** One instance of the engine set up for one groomer, with views over its regions made once. */
 class GroomingInstance {
@@ -75,7 +74,7 @@ class GroomingInstance {
     this.inStart = i32(e.region(REGION.inStart), JETS_PER_CALL + 1);
     this.outStatus = i32(e.region(REGION.outStatus), JETS_PER_CALL);
     this.jetPt = f64(e.groomRegion(GROOM_REGION.jetPt), JETS_PER_CALL);
-    this.doubles = DOUBLE_ROWS.map((field) => f64(e.groomRegion(GROOM_REGION[field]), JETS_PER_CALL));
+    this.doubles = JET_DOUBLE_FIELDS.map((field) => f64(e.groomRegion(GROOM_REGION[field]), JETS_PER_CALL));
     this.towers = i32(e.groomRegion(GROOM_REGION.towers), JETS_PER_CALL);
     this.subjets = i32(e.groomRegion(GROOM_REGION.subjets), JETS_PER_CALL);
     this.zg = f64(e.groomRegion(GROOM_REGION.zg), JETS_PER_CALL);
@@ -105,7 +104,7 @@ class GroomingInstance {
       for (let n = 0; n < count; n++) {
         if (this.outStatus[n] !== ENGINE_OK) throw new Error(`engine: grooming jet ${first + n}: ${describeStatus(this.outStatus[n])}`);
       }
-      for (let f = 0; f < DOUBLE_ROWS.length; f++) out[DOUBLE_ROWS[f]].set(this.doubles[f].subarray(0, count), first);
+      for (let f = 0; f < JET_DOUBLE_FIELDS.length; f++) out[JET_DOUBLE_FIELDS[f]].set(this.doubles[f].subarray(0, count), first);
       out.towerCount.set(this.towers.subarray(0, count), first);
       subjets?.set(this.subjets.subarray(0, count), first);
       zg?.set(this.zg.subarray(0, count), first);

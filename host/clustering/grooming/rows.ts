@@ -5,7 +5,6 @@
 import type { SoftDropJets, TrimmedJets } from '../../types.js';
 import { allocateFourVectors } from '../jet-set.js';
 
-
 export function allocateTrimmedJets(count: number): TrimmedJets {
   return { ...allocateFourVectors(count), subjets: new Int32Array(count) };
 }
@@ -13,6 +12,3 @@ export function allocateTrimmedJets(count: number): TrimmedJets {
 export function allocateSoftDropJets(count: number): SoftDropJets {
   return { ...allocateFourVectors(count), zg: new Float64Array(count), deltaRg: new Float64Array(count) };
 }
-
-/** the groomed fields in a fixed order, for codecs and comparisons */
-export const GROOMED_DOUBLE_FIELDS = ['px', 'py', 'pz', 'energy', 'pt', 'rapidity', 'phi', 'mass'] as const;
