@@ -279,7 +279,8 @@ function pileupDifference(engine: JetSet, reference: JetSet): ReturnType<typeof 
   return { ...difference, jet: difference.jet ?? 0, field: difference.jet === null ? `event.${difference.field}` : difference.field };
 }
 
-function joined(chunks: Uint8Array[]): Uint8Array {
+/** the chunks end to end in one array (a batch's jets records) */
+export function joined(chunks: Uint8Array[]): Uint8Array {
   let total = 0;
   for (const chunk of chunks) total += chunk.length;
   const bytes = new Uint8Array(total);

@@ -18,7 +18,7 @@ import { encodeDelimitedJetsRecord } from '../formats/jets-codec.js';
 import { firstJetDifference } from '../validate/bit-exact.js';
 import { ToleranceMatcher } from '../validate/tolerance-compare.js';
 import { ExecEngine, ExecEngineError } from './exec-engine.js';
-import { inCheckSample, readBatch, type WorkerState } from './cluster-batch.js';
+import { inCheckSample, joined, readBatch, type WorkerState } from './cluster-batch.js';
 import { ENGINE_STOPPED, type ExecBatchFigures, type ExecWorkerConfig } from './exec-run-contract.js';
 import { emptyToleranceFigures, type ToleranceFigures } from '../measure/program-figures.js';
 import { STAGE_CHECK, STAGE_CLUSTER, STAGE_COUNT, STAGE_ENCODE, STATUS_INVALID, STATUS_OK, type BatchResult, type BatchTask, type WorkerConfig } from './worker-contract.js';
@@ -216,15 +216,6 @@ function describeToleranceMiss(matcher: ToleranceMatcher, reference: JetSet, can
     if (matcher.candExtra[c]) return `program jet ${c} (pt ${candidate.pt[c].toFixed(3)} GeV, y ${candidate.rapidity[c].toFixed(3)}, phi ${candidate.phi[c].toFixed(3)}) is extra`;
   }
   return 'the events differ';
-}
-
-function joined(chunks: Uint8Array[]): Uint8Array {
-  let total = 0;
-  for (const chunk of chunks) total += chunk.length;
-  const bytes = new Uint8Array(total);
-  let at = 0;
-  for (const chunk of chunks) { bytes.set(chunk, at); at += chunk.length; }
-  return bytes;
 }
 
 /** Ends the worker's program (the pool's close; a worker thread's exit kills it otherwise). */
