@@ -113,8 +113,12 @@ export class RunDelivery {
     const { tally } = this;
     const { label, openLoop, budgetNs } = this.context;
     const views = resultViews(result.buffer, outcome.count);
-    const invalidReasons = new Map<number, string>();
-    for (const entry of result.invalid) invalidReasons.set(entry.index, entry.reason);
+    // most batches (every open-loop event) have no invalid events: no map for them
+    let invalidReasons: Map<number, string> | null = null;
+    if (result.invalid.length > 0) {
+      invalidReasons = new Map();
+      for (const entry of result.invalid) invalidReasons.set(entry.index, entry.reason);
+    }
     const programFailed = failedByIndex(result.exec);
     for (let k = 0; k < outcome.count; k++) {
       const at = k * STAGE_COUNT;
@@ -128,7 +132,7 @@ export class RunDelivery {
       }
       if (views.status[k] !== STATUS_OK) {
         const event = views.eventNumber[k] >= 0 ? views.eventNumber[k] : null;
-        const reason = invalidReasons.get(k) ?? 'invalid';
+        const reason = invalidReasons?.get(k) ?? 'invalid';
         tally.addInvalid({ event, record: outcome.firstRecord + k, offset: outcome.recordOffsets[k], reason });
         this.problem(`${label}, ${event === null ? `record ${outcome.firstRecord + k}` : `event ${event}`}, byte ${outcome.recordOffsets[k]}: ${reason}`);
         continue;
