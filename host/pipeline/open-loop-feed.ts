@@ -87,6 +87,9 @@ export class OpenLoopFeed {
   private readonly dueOf = new Float64Array(SLOT_COUNT);
   private readonly recordOf = new Float64Array(SLOT_COUNT);
   private readonly offsetOf = new Float64Array(SLOT_COUNT);
+  /** the delivered event's offset and arrival, reused: delivery reads them before it returns */
+  private readonly outcomeOffset = new Float64Array(1);
+  private readonly outcomeDue = new Float64Array(1);
   private readonly pending = new Map<number, Received>();
   private delivered = 0;
   private received = 0;
@@ -225,12 +228,14 @@ export class OpenLoopFeed {
     fit.n++; fit.x += x; fit.xx += x * x; fit.y += y; fit.xy += x * y;
     const dueNs = this.dueOf[slot];
     if (message.claimedEarly && message.result) this.delivery.tally.recordDispatchLatenessNs(message.startNs - dueNs);
+    this.outcomeOffset[0] = this.offsetOf[slot];
+    this.outcomeDue[0] = dueNs;
     const outcome: BatchOutcome = {
       batchIndex: message.ordinal,
       count: 1,
-      recordOffsets: Float64Array.of(this.offsetOf[slot]),
+      recordOffsets: this.outcomeOffset,
       firstRecord: this.recordOf[slot],
-      startNs: Float64Array.of(dueNs),
+      startNs: this.outcomeDue,
       finishedNs: receivedNs,
       workerStartNs: message.startNs,
       result: message.result,
