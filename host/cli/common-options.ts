@@ -48,11 +48,6 @@ export function maxEventGapFrom(args: ParsedArgs, command: string): number | und
   return value;
 }
 
-/** true when any algorithm option was given (a file header's settings are then overridden) */
-export function hasClusterOptions(args: ParsedArgs): boolean {
-  return CLUSTER_OPTIONS.some((o) => args.values[o.name] !== undefined);
-}
-
 /** Algorithm settings from the options, starting from `base` (defaults or a file header). */
 export function clusterSettingsFrom(args: ParsedArgs, command: string, base: ClusterSettings = DEFAULT_SETTINGS): ClusterSettings {
   const settings: ClusterSettings = { ...base };

@@ -12,11 +12,6 @@ export const GROOMING_OPTIONS: OptionSpec[] = [
   { name: 'softdrop', kind: 'string', argument: '<ZCUT:BETA>', description: 'soft drop on each reported jet: Cambridge/Aachen tree, drop the softer branch while z <= ZCUT (dR/R)^BETA (spec section 12; common: 0.1:0) (default: off)' },
 ];
 
-/** true when a grooming option was given (a jets file header's grooming is then overridden) */
-export function hasGroomingOptions(args: ParsedArgs): boolean {
-  return GROOMING_OPTIONS.some((o) => args.values[o.name] !== undefined);
-}
-
 /** The grooming settings from the options, over `base` (none, or a candidate header's). */
 export function groomingSettingsFrom(args: ParsedArgs, command: string, base: GroomingSettings = NO_GROOMING): GroomingSettings {
   const grooming: GroomingSettings = { ...base };

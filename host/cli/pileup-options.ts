@@ -20,11 +20,6 @@ export const PILEUP_OPTIONS: OptionSpec[] = [
   { name: 'softkiller', kind: 'string', argument: '<PE:PP>', description: 'SoftKiller before clustering: remove every tower below the median over PE x PP patches of their hardest tower (spec section 10) (default: off)' },
 ];
 
-/** true when any pileup option was given (a jets file header's pileup settings are then overridden) */
-export function hasPileupOptions(args: ParsedArgs): boolean {
-  return PILEUP_OPTIONS.some((o) => args.values[o.name] !== undefined);
-}
-
 /**
  * The pileup settings from the options, over `base` (the defaults, or a candidate header's);
  * not yet checked against the grid.
