@@ -217,10 +217,3 @@ function describeToleranceMiss(matcher: ToleranceMatcher, reference: JetSet, can
   }
   return 'the events differ';
 }
-
-/** Ends the worker's program (the pool's close; a worker thread's exit kills it otherwise). */
-export async function closeExecWorker(): Promise<void> {
-  const running = worker;
-  worker = null;
-  if (running) await running.engine.close();
-}
