@@ -21,6 +21,9 @@
 //   chooseCsvGrid(stated, given, label): { grid, origin }
 //                                            the stated grid wins over the default; a grid
 //                                            given (not the default) that differs is an error
+//   openCsvGrid(chunks, given, label): Promise<{ grid, origin, chunks }>
+//                                            the two above in turn; the chunks are closed
+//                                            when the choice throws
 
 import { InputError } from '../errors.js';
 import { checkGrid, describeGrid, sameGrid } from '../clustering/grid.js';
@@ -121,4 +124,15 @@ export function chooseCsvGrid(stated: StatedGrid | null, given: Grid | undefined
     throw new InputError(label, `the file states the grid ${describeGrid(stated.grid)}, but the grid given is ${describeGrid(given!)}: leave out the grid options or make them agree`, undefined, stated.offset, stated.line);
   }
   return { grid: stated.grid, origin: 'stated in the file' };
+}
+
+/** peekCsvGrid then chooseCsvGrid, closing the chunks when the choice throws. */
+export async function openCsvGrid(chunks: AsyncGenerator<Uint8Array>, given: Grid | undefined, label: string): Promise<{ grid: Grid; origin: CsvGridOrigin; chunks: AsyncGenerator<Uint8Array> }> {
+  const peeked = await peekCsvGrid(chunks, label);
+  try {
+    return { ...chooseCsvGrid(peeked.stated, given, label), chunks: peeked.chunks };
+  } catch (error) {
+    await peeked.chunks.return(undefined);
+    throw error;
+  }
 }

@@ -18,7 +18,7 @@
 //     thrown, naming the line number too. A line longer than 1 MiB drops the event being read,
 //     whose rows may go on. Every event carries the line number of its offset's row.
 //   openCsvTowers(input, { grid?, fileLabel?, maxEventGap? }): Promise<{ grid, origin, events }>
-//     the same, on the grid the file states if it states one (csv-grid.ts chooseCsvGrid).
+//     the same, on the grid the file states if it states one (csv-grid.ts openCsvGrid).
 //   parseCsvTowersText(text, grid): for tests and small inputs, the same on a whole string.
 //
 // Readings of the spec, decided here:
@@ -44,7 +44,7 @@
 //   - flat tower index = ieta * phiBins + iphi (spec section 1).
 
 import { InputError } from '../errors.js';
-import { chooseCsvGrid, peekCsvGrid, type CsvGridOrigin } from './csv-grid.js';
+import { openCsvGrid, type CsvGridOrigin } from './csv-grid.js';
 import { CsvEventBuilder, expand, type CsvEvent, type CsvReadLimits, type Pending } from './csv-event-builder.js';
 import { CsvLineSplitter } from './csv-lines.js';
 import { inputLabel, readChunks } from './input-chunks.js';
@@ -71,16 +71,9 @@ export async function openCsvTowers(
   options: { grid?: Grid; fileLabel?: string; maxEventGap?: number },
 ): Promise<{ grid: Grid; origin: CsvGridOrigin; events: AsyncGenerator<CsvEvent> }> {
   const label = inputLabel(input, options.fileLabel);
-  const { stated, chunks } = await peekCsvGrid(readChunks(input, label), label);
-  let chosen;
-  try {
-    chosen = chooseCsvGrid(stated, options.grid, label);
-  } catch (error) {
-    await chunks.return(undefined);
-    throw error;
-  }
-  const events = csvEventsFromChunks(chunks, chosen.grid, label, { maxEventGap: options.maxEventGap, gridOrigin: chosen.origin });
-  return { ...chosen, events };
+  const { grid, origin, chunks } = await openCsvGrid(readChunks(input, label), options.grid, label);
+  const events = csvEventsFromChunks(chunks, grid, label, { maxEventGap: options.maxEventGap, gridOrigin: origin });
+  return { grid, origin, events };
 }
 
 export async function* csvEventsFromChunks(chunks: AsyncIterable<Uint8Array>, grid: Grid, label: string, limits: CsvReadLimits = {}): AsyncGenerator<CsvEvent> {

@@ -31,7 +31,7 @@
 import { InputError } from '../errors.js';
 import type { CsvReadLimits } from './csv-event-builder.js';
 import { csvEventsFromChunks } from './csv-towers.js';
-import { chooseCsvGrid, peekCsvGrid } from './csv-grid.js';
+import { openCsvGrid } from './csv-grid.js';
 import { encodeEventRecord } from '../formats/event-codec.js';
 import { decodeFileHeader, FORMAT_VERSION, type FileHeader } from '../formats/file-header.js';
 import { framedRecords, type RawRecord } from './record-reader.js';
@@ -161,17 +161,10 @@ export async function openRecordFile(input: string | NodeJS.ReadableStream, opti
     throw new InputError(label, 'empty file: neither an event file (no header record) nor a CSV tower file (no header line)', undefined, 0);
   }
   if (format === 'csv') {
-    const { stated, chunks } = await peekCsvGrid(all, label);
-    let chosen;
-    try {
-      chosen = chooseCsvGrid(stated, options.grid, label);
-    } catch (error) {
-      await chunks.return(undefined);
-      throw error;
-    }
+    const chosen = await openCsvGrid(all, options.grid, label);
     const grid = { ...chosen.grid };
     const header: FileHeader = { kind: 'events', grid, producer: CSV_PRODUCER, label: '', formatVersion: FORMAT_VERSION };
-    return { label, format: 'csv', header, records: csvRecords(chunks, grid, label, { maxEventGap: options.maxEventGap, gridOrigin: chosen.origin }) };
+    return { label, format: 'csv', header, records: csvRecords(chosen.chunks, grid, label, { maxEventGap: options.maxEventGap, gridOrigin: chosen.origin }) };
   }
   const { header, records } = await readFileHeader(all, label, options.maxRecordBytes);
   return { label, format: header.kind === 'events' ? 'events-file' : 'jets-file', header, records };
