@@ -195,7 +195,3 @@ export function selectTowers(
   }
   return { towerIndex: outIndex, towerEt: outEt };
 }
-
-export function emptyTowerCounts(): TowerCounts {
-  return { offered: 0, belowThreshold: 0, outsideAcceptance: 0, clustered: 0 };
-}

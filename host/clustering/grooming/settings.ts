@@ -4,10 +4,6 @@
 import { UsageError } from '../../errors.js';
 import type { GroomingSettings, SoftDropSettings, TrimSettings } from '../../types.js';
 
-/** the common settings (arXiv:0912.1342 uses RSUB = 0.2, FCUT = 0.05 among others; common practice) */
-export const DEFAULT_TRIM: Readonly<TrimSettings> = Object.freeze({ subjetRadius: 0.2, ptFraction: 0.05 });
-/** the common settings (arXiv:1402.2657: ZCUT = 0.1, BETA = 0, the modified-mass-drop form) */
-export const DEFAULT_SOFT_DROP: Readonly<SoftDropSettings> = Object.freeze({ zCut: 0.1, beta: 0 });
 /** subjet radii above this make no sense on any calorimeter grid and keep the engine's search rows small */
 export const TRIM_MAX_RADIUS = 2;
 
