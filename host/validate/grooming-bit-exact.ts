@@ -3,6 +3,7 @@
 // and soft-dropped values. The jets themselves are compared by bit-exact.ts first; this looks
 // only at what grooming adds.
 
+import { JET_DOUBLE_FIELDS } from '../clustering/jet-set.js';
 import type { GroomedFourVectors, JetSet } from '../types.js';
 
 export interface GroomingDifference {
@@ -13,14 +14,16 @@ export interface GroomingDifference {
   referenceValue: number;
 }
 
-const FOUR_VECTOR_FIELDS = ['px', 'py', 'pz', 'energy', 'pt', 'rapidity', 'phi', 'mass', 'towerCount'] as const;
+/** each group's fields in the order they are compared: the four-vector rows, then the group's own */
+const TRIM_FIELDS: readonly string[] = [...JET_DOUBLE_FIELDS, 'towerCount', 'subjets'];
+const SOFT_DROP_FIELDS: readonly string[] = [...JET_DOUBLE_FIELDS, 'towerCount', 'zg', 'deltaRg'];
 
 function firstRowDifference(
   group: 'trim' | 'softDrop', a: GroomedFourVectors & Record<string, unknown>, b: GroomedFourVectors & Record<string, unknown>,
-  extra: readonly string[], count: number,
+  fields: readonly string[], count: number,
 ): GroomingDifference | null {
   for (let jet = 0; jet < count; jet++) {
-    for (const field of [...FOUR_VECTOR_FIELDS, ...extra]) {
+    for (const field of fields) {
       const x = (a[field] as ArrayLike<number>)[jet];
       const y = (b[field] as ArrayLike<number>)[jet];
       if (!Object.is(x, y)) return { jet, field: `${group}.${field}`, engineValue: x, referenceValue: y };
@@ -42,8 +45,7 @@ export function firstGroomingDifference(engine: JetSet, reference: JetSet): Groo
       if (a !== b) return { jet: 0, field: group, engineValue: a ? 1 : 0, referenceValue: b ? 1 : 0 };
       continue;
     }
-    const extra = group === 'trim' ? ['subjets'] : ['zg', 'deltaRg'];
-    const difference = firstRowDifference(group, a as unknown as GroomedFourVectors & Record<string, unknown>, b as unknown as GroomedFourVectors & Record<string, unknown>, extra, count);
+    const difference = firstRowDifference(group, a as unknown as GroomedFourVectors & Record<string, unknown>, b as unknown as GroomedFourVectors & Record<string, unknown>, group === 'trim' ? TRIM_FIELDS : SOFT_DROP_FIELDS, count);
     if (difference) return difference;
   }
   return null;
