@@ -60,7 +60,7 @@ export async function* readCsvTowers(
   input: string | NodeJS.ReadableStream | AsyncIterable<Uint8Array>,
   options: ReadCsvOptions,
 ): AsyncGenerator<CsvEvent> {
-  const label = options.fileLabel ?? (typeof input === 'string' ? (input === '-' ? '<stdin>' : input) : '<stream>');
+  const label = inputLabel(input, options.fileLabel);
   const chunks = typeof input === 'string' || 'pipe' in input ? readChunks(input as string | NodeJS.ReadableStream, label) : input;
   yield* csvEventsFromChunks(chunks as AsyncIterable<Uint8Array>, options.grid, label, options);
 }

@@ -10,7 +10,7 @@ import { InputError } from '../errors.js';
 const FILE_CHUNK_BYTES = 1 << 20;
 
 /** The label used in error texts for an input. */
-export function inputLabel(input: string | NodeJS.ReadableStream, fileLabel?: string): string {
+export function inputLabel(input: string | NodeJS.ReadableStream | AsyncIterable<Uint8Array>, fileLabel?: string): string {
   if (fileLabel !== undefined) return fileLabel;
   if (typeof input === 'string') return input === '-' ? '<stdin>' : input;
   return '<stream>';
