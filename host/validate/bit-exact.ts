@@ -53,15 +53,21 @@ export function describeDifference(event: number, difference: JetDifference): st
     return `event ${event}: engine gives ${difference.engineValue} jets, reference ${difference.referenceValue}`;
   }
   const { engineValue, referenceValue } = difference;
-  // doubles print in their shortest round-trip form, so two different values never print
-  // alike; -0 needs its sign spelled out, and the distance in ulps says how close they are
-  const show = (x: number) => (Object.is(x, -0) ? '-0' : String(x));
+  // the distance in ulps says how close two doubles are
   let apart = '';
   if ((JET_DOUBLE_FIELDS as readonly string[]).includes(difference.field)) {
     const ulps = ulpDistance(engineValue, referenceValue);
     if (ulps !== null) apart = ` (${ulps} ulp${ulps === 1 ? '' : 's'} apart)`;
   }
-  return `event ${event}, jet ${difference.jet}, ${difference.field}: engine ${show(engineValue)}, reference ${show(referenceValue)}${apart}`;
+  return `event ${event}, jet ${difference.jet}, ${difference.field}: engine ${showDouble(engineValue)}, reference ${showDouble(referenceValue)}${apart}`;
+}
+
+/**
+ * A double in its shortest round-trip form, so two different values never print alike; -0
+ * needs its sign spelled out.
+ */
+export function showDouble(x: number): string {
+  return Object.is(x, -0) ? '-0' : String(x);
 }
 
 const ulpView = new DataView(new ArrayBuffer(8));

@@ -4,6 +4,7 @@
 // are compared by bit-exact.ts first; this looks only at what the pileup steps add.
 
 import type { JetSet } from '../types.js';
+import { showDouble } from './bit-exact.js';
 
 export interface PileupDifference {
   /** jet number in output order; null for a per-event value */
@@ -40,7 +41,6 @@ export function firstPileupDifference(engine: JetSet, reference: JetSet): Pileup
 
 /** One line for stderr or a summary. */
 export function describePileupDifference(event: number, difference: PileupDifference): string {
-  const show = (x: number) => (Object.is(x, -0) ? '-0' : String(x));
   const where = difference.jet === null ? `event ${event}` : `event ${event}, jet ${difference.jet}`;
-  return `${where}, ${difference.field}: engine ${show(difference.engineValue)}, reference ${show(difference.referenceValue)}`;
+  return `${where}, ${difference.field}: engine ${showDouble(difference.engineValue)}, reference ${showDouble(difference.referenceValue)}`;
 }
