@@ -4,6 +4,7 @@ import { type OptionSpec, type ParsedArgs } from './args.js';
 import { UsageError } from '../errors.js';
 import { checkGrid } from '../clustering/grid.js';
 import { DEFAULT_MAX_EVENT_GAP } from '../input/csv-event-builder.js';
+import { DEFAULT_MAX_INFLATE_RATIO, DEFAULT_MAX_INFLATED_BYTES, type InflateLimits } from '../input/input-chunks.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS, type ClusterSettings, type Grid } from '../types.js';
 
 export const ALGORITHM_EXPONENTS: Record<string, number> = {
@@ -46,6 +47,25 @@ export function maxEventGapFrom(args: ParsedArgs, command: string): number | und
     throw new UsageError(`${command}: --max-event-gap must be an integer >= 1, got ${value}`);
   }
   return value;
+}
+
+/** commands that read gzip input take them: caps on inflating (input-chunks.ts) */
+export const INFLATE_OPTIONS: OptionSpec[] = [
+  { name: 'max-inflated-bytes', kind: 'integer', argument: '<n>', description: `gzip input: most bytes it may inflate to (default: ${DEFAULT_MAX_INFLATED_BYTES}, 64 GiB)` },
+  { name: 'max-inflate-ratio', kind: 'integer', argument: '<n>', description: `gzip input: most inflated bytes per compressed byte, judged past 64 MiB (default: ${DEFAULT_MAX_INFLATE_RATIO})` },
+];
+
+/** --max-inflated-bytes and --max-inflate-ratio, checked: undefined when neither is given */
+export function inflateLimitsFrom(args: ParsedArgs, command: string): InflateLimits | undefined {
+  const maxInflatedBytes = args.values['max-inflated-bytes'] as number | undefined;
+  const maxInflateRatio = args.values['max-inflate-ratio'] as number | undefined;
+  for (const [name, value] of [['max-inflated-bytes', maxInflatedBytes], ['max-inflate-ratio', maxInflateRatio]] as const) {
+    if (value !== undefined && !(Number.isSafeInteger(value) && value >= 1)) {
+      throw new UsageError(`${command}: --${name} must be an integer >= 1, got ${value}`);
+    }
+  }
+  if (maxInflatedBytes === undefined && maxInflateRatio === undefined) return undefined;
+  return { maxInflatedBytes, maxInflateRatio };
 }
 
 /** Algorithm settings from the options, starting from `base` (defaults or a file header). */

@@ -38,7 +38,7 @@
 import { InputError } from '../errors.js';
 import { peekInput, readFileHeader } from './event-source.js';
 import type { FileHeader } from '../formats/file-header.js';
-import { inputLabel } from './input-chunks.js';
+import { inputLabel, type InflateLimits } from './input-chunks.js';
 import { csvEvents } from './candidate-csv.js';
 import { jetsFileEvents } from './candidate-jets-file.js';
 import { jsonLineEvents } from './candidate-jsonl.js';
@@ -82,11 +82,13 @@ export interface CandidateSource {
 export interface CandidateOptions {
   fileLabel?: string;
   maxRecordBytes?: number;
+  /** caps on inflating a gzip input (input-chunks.ts) */
+  inflate?: InflateLimits;
 }
 
 export async function openCandidate(input: string | NodeJS.ReadableStream, options: CandidateOptions = {}): Promise<CandidateSource> {
   const label = inputLabel(input, options.fileLabel);
-  const { prefix, kind, chunks: all } = await peekInput(input, label);
+  const { prefix, kind, chunks: all } = await peekInput(input, label, options.inflate);
   if (kind === 'empty') {
     throw new InputError(label, 'empty file: not a jets file, JSON lines or CSV of jets', undefined, 0);
   }

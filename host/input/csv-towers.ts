@@ -47,7 +47,7 @@ import { InputError } from '../errors.js';
 import { openCsvGrid, type CsvGridOrigin } from './csv-grid.js';
 import { CsvEventBuilder, expand, type CsvEvent, type CsvReadLimits, type Pending } from './csv-event-builder.js';
 import { CsvLineSplitter } from './csv-lines.js';
-import { inputLabel, readChunks } from './input-chunks.js';
+import { inputLabel, readChunks, type InflateLimits } from './input-chunks.js';
 import type { Grid } from '../types.js';
 
 export interface ReadCsvOptions extends CsvReadLimits {
@@ -68,10 +68,10 @@ export async function* readCsvTowers(
 /** A CSV tower file on the grid it states (if it states one), else on `grid` or the default. */
 export async function openCsvTowers(
   input: string | NodeJS.ReadableStream,
-  options: { grid?: Grid; fileLabel?: string; maxEventGap?: number },
+  options: { grid?: Grid; fileLabel?: string; maxEventGap?: number; inflate?: InflateLimits },
 ): Promise<{ grid: Grid; origin: CsvGridOrigin; events: AsyncGenerator<CsvEvent> }> {
   const label = inputLabel(input, options.fileLabel);
-  const { grid, origin, chunks } = await openCsvGrid(readChunks(input, label), options.grid, label);
+  const { grid, origin, chunks } = await openCsvGrid(readChunks(input, label, options.inflate), options.grid, label);
   const events = csvEventsFromChunks(chunks, grid, label, { maxEventGap: options.maxEventGap, gridOrigin: origin });
   return { grid, origin, events };
 }

@@ -15,6 +15,7 @@
 //     given that is not the default and differs from it is an error; an events file carries
 //     its own grid in its header and `grid` is ignored for it.
 //     maxEventGap: CSV only, the largest jump of event numbers (csv-towers.ts).
+//     inflate: caps on inflating a gzip input (input-chunks.ts InflateLimits).
 //     The error text of an invalid CSV event names the line of the offending row.
 //     Unreadable input (bad header, framing error, unreadable CSV line) throws InputError
 //     naming file and byte offset: when opening, or from `records` after every record before
@@ -35,7 +36,7 @@ import { openCsvGrid } from './csv-grid.js';
 import { encodeEventRecord } from '../formats/event-codec.js';
 import { decodeFileHeader, FORMAT_VERSION, type FileHeader } from '../formats/file-header.js';
 import { framedRecords, type RawRecord } from './record-reader.js';
-import { inputLabel, readChunks } from './input-chunks.js';
+import { inputLabel, readChunks, type InflateLimits } from './input-chunks.js';
 import { DEFAULT_GRID, type Grid } from '../types.js';
 import { ProtoWriter } from '../formats/wire.js';
 
@@ -57,6 +58,8 @@ export interface OpenOptions {
   maxEventGap?: number;
   maxRecordBytes?: number;
   fileLabel?: string;
+  /** caps on inflating a gzip input (input-chunks.ts) */
+  inflate?: InflateLimits;
 }
 
 /** producer text of the header made up for a CSV input */
@@ -109,8 +112,8 @@ export interface PeekedInput {
  * Opens an input and reads just enough to tell what it holds (detectFormat), without losing
  * the bytes read: the chunks come back whole. An empty input is closed here.
  */
-export async function peekInput(input: string | NodeJS.ReadableStream, label: string): Promise<PeekedInput> {
-  const source = readChunks(input, label);
+export async function peekInput(input: string | NodeJS.ReadableStream, label: string, inflate?: InflateLimits): Promise<PeekedInput> {
+  const source = readChunks(input, label, inflate);
   const peeked: Uint8Array[] = [];
   let peekedBytes = 0;
   try {
@@ -156,7 +159,7 @@ async function* csvRecords(chunks: AsyncGenerator<Uint8Array>, grid: Grid, label
 
 export async function openRecordFile(input: string | NodeJS.ReadableStream, options: OpenOptions = {}): Promise<RecordSource> {
   const label = inputLabel(input, options.fileLabel);
-  const { kind: format, chunks: all } = await peekInput(input, label);
+  const { kind: format, chunks: all } = await peekInput(input, label, options.inflate);
   if (format === 'empty') {
     throw new InputError(label, 'empty file: neither an event file (no header record) nor a CSV tower file (no header line)', undefined, 0);
   }

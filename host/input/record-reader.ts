@@ -15,7 +15,8 @@
 //     event of the record before it ("... (the record after event N)"); event and jets
 //     records both keep their event number in field 1, the header record has none.
 //   framedRecords(chunks, label, maxRecordBytes?): the same over chunks from readChunks().
-//   readChunks(input, label?) (input-chunks.ts): the uncompressed chunks of an input (gzip by content).
+//   readChunks(input, label?, inflate?) (input-chunks.ts): the uncompressed chunks of an input (gzip by
+//     content), with caps on the inflated total and ratio.
 //   RecordFramer (record-framer.ts): the synchronous core (feed chunks, get records through a callback), for
 //     callers that want no promise per record.
 //
@@ -29,7 +30,7 @@
 // another thread or keeping many records for long.
 
 import { InputError } from '../errors.js';
-import { inputLabel, readChunks } from './input-chunks.js';
+import { inputLabel, readChunks, type InflateLimits } from './input-chunks.js';
 import { DEFAULT_MAX_RECORD_BYTES, RecordFramer, type RecordSink } from './record-framer.js';
 
 export interface RawRecord {
@@ -45,12 +46,14 @@ export interface ReadRecordsOptions {
   maxRecordBytes?: number;
   /** name used in error texts (default: the path, '<stdin>' for '-', '<stream>' for a stream) */
   fileLabel?: string;
+  /** caps on inflating a gzip input (input-chunks.ts) */
+  inflate?: InflateLimits;
 }
 
 /** Records of a delimited file, in order; see the API note at the top of this file. */
 export async function* readRecords(input: string | NodeJS.ReadableStream, options: ReadRecordsOptions = {}): AsyncGenerator<RawRecord> {
   const label = inputLabel(input, options.fileLabel);
-  yield* framedRecords(readChunks(input, label), label, options.maxRecordBytes);
+  yield* framedRecords(readChunks(input, label, options.inflate), label, options.maxRecordBytes);
 }
 
 /** Records framed from uncompressed chunks (readChunks output); errors name `label`. */

@@ -8,6 +8,7 @@
 
 import { describePlace, InputError } from '../errors.js';
 import { openCsvTowers } from '../input/csv-towers.js';
+import type { InflateLimits } from '../input/input-chunks.js';
 import { EventFileWriter } from './record-writer.js';
 import type { Grid } from '../types.js';
 import { producerName } from '../version.js';
@@ -21,6 +22,8 @@ export interface CsvImportOptions {
   grid: Grid;
   /** the largest jump of event numbers (csv-towers.ts) */
   maxEventGap?: number;
+  /** caps on inflating gzip input (input-chunks.ts) */
+  inflate?: InflateLimits;
   /** replace an existing output file */
   force?: boolean;
   /** event file path, - for stdout */
@@ -46,7 +49,7 @@ export async function importCsvTowers(options: CsvImportOptions): Promise<CsvImp
   const { csvLabel } = options;
   let opened;
   try {
-    opened = await openCsvTowers(options.csv, { grid: options.grid, fileLabel: csvLabel, maxEventGap: options.maxEventGap });
+    opened = await openCsvTowers(options.csv, { grid: options.grid, fileLabel: csvLabel, maxEventGap: options.maxEventGap, inflate: options.inflate });
   } catch (error) {
     // no such file, or a grid statement that cannot be used: nothing is written
     if (error instanceof InputError) return { events: 0, towers: 0, invalid: 0, unreadable: error };

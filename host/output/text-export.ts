@@ -11,6 +11,7 @@
 
 import { InputError } from '../errors.js';
 import { openRecordFile, type RecordSource } from '../input/event-source.js';
+import type { InflateLimits } from '../input/input-chunks.js';
 import { CANDIDATE_CSV_HEADERS } from '../input/candidate-csv.js';
 import { EventTowerReader } from '../input/event-towers.js';
 import { decodeJetsRecord } from '../formats/jets-codec.js';
@@ -56,6 +57,8 @@ export interface TextExportOptions {
   maxRecordBytes?: number;
   /** CSV input: the largest jump of event numbers (csv-towers.ts) */
   maxEventGap?: number;
+  /** caps on inflating gzip input (input-chunks.ts) */
+  inflate?: InflateLimits;
   /** replace an existing output file */
   force?: boolean;
   format: TextFormat;
@@ -80,7 +83,7 @@ export interface TextExportResult {
 /** Reads the file and writes it as text; the output is closed (or removed on an unexpected error). */
 export async function exportAsText(options: TextExportOptions): Promise<TextExportResult> {
   const { format, onProblem, onRecord } = options;
-  const source = await openRecordFile(options.input, { grid: options.grid, maxRecordBytes: options.maxRecordBytes, maxEventGap: options.maxEventGap, fileLabel: options.fileLabel });
+  const source = await openRecordFile(options.input, { grid: options.grid, maxRecordBytes: options.maxRecordBytes, maxEventGap: options.maxEventGap, fileLabel: options.fileLabel, inflate: options.inflate });
   const out = await TextFileWriter.open(options.out, { stdout: options.stdout, force: options.force });
   const tally: ExportTally = { events: 0, rows: 0, invalid: 0, broken: 0, outOfOrder: 0, lastCsvEvent: -1, outsideAcceptance: 0 };
   let unreadable: InputError | null = null;

@@ -12,6 +12,7 @@ import { makeClusterer, type EngineName } from '../clustering/clusterers.js';
 import { emulationName, type EmulationMode } from '../clustering/emulation-mode.js';
 import { describeWindow } from '../clustering/window-finder.js';
 import { openEventSource } from '../input/event-source.js';
+import type { InflateLimits } from '../input/input-chunks.js';
 import { EventTowerReader } from '../input/event-towers.js';
 import { sameGrid } from '../clustering/grid.js';
 import { emptyJetSet } from '../formats/jets-codec.js';
@@ -32,6 +33,8 @@ export interface ClusterFileOptions {
   maxRecordBytes?: number;
   /** CSV towers: the largest jump of event numbers (csv-towers.ts) */
   maxEventGap?: number;
+  /** caps on inflating gzip input (input-chunks.ts) */
+  inflate?: InflateLimits;
   /** replace an existing output file */
   force?: boolean;
   engine: EngineName;
@@ -78,7 +81,7 @@ export interface ClusterFileResult {
 
 export async function clusterFile(options: ClusterFileOptions): Promise<ClusterFileResult> {
   const { settings, withTowers, out } = options;
-  const source = await openEventSource(options.input, { grid: options.grid, maxRecordBytes: options.maxRecordBytes, maxEventGap: options.maxEventGap });
+  const source = await openEventSource(options.input, { grid: options.grid, maxRecordBytes: options.maxRecordBytes, maxEventGap: options.maxEventGap, inflate: options.inflate });
   if (source.format === 'events-file' && options.grid !== undefined && !sameGrid(options.grid, source.header.grid)) {
     throw new UsageError(`cluster: ${source.label} carries its own grid; the grid options apply to CSV tower files only`);
   }

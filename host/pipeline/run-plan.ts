@@ -3,6 +3,7 @@
 import { pileupStepsOn } from '../clustering/pileup/settings.js';
 import { groomingIsOn } from '../clustering/grooming/settings.js';
 import type { EngineName } from '../clustering/clusterers.js';
+import type { InflateLimits } from '../input/input-chunks.js';
 import type { ArrivalMode } from './arrivals.js';
 import type { EventObserver } from './run-delivery.js';
 import type { WorkerConfig } from './worker-contract.js';
@@ -50,6 +51,8 @@ export interface RunOptions {
   grid?: Grid;
   /** CSV towers: the largest jump of event numbers (csv-towers.ts) */
   maxEventGap?: number;
+  /** caps on inflating gzip input (input-chunks.ts) */
+  inflate?: InflateLimits;
   /** replace output files that exist (--out, --repro) */
   force?: boolean;
   /** event file of the events on which the engine and the reference disagree (repro-writer.ts) */

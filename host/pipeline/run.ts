@@ -39,7 +39,7 @@ import { summarize } from './run-summary.js';
 export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const plan = planRun(options);
   const schedule = new ArrivalSchedule(plan.arrival);
-  const source = await openEventSource(options.input, { fileLabel: plan.label, grid: options.grid, maxEventGap: options.maxEventGap });
+  const source = await openEventSource(options.input, { fileLabel: plan.label, grid: options.grid, maxEventGap: options.maxEventGap, inflate: options.inflate });
   // a shard of a plain event file with a record index reads only its own batches
   const input = await shardInput(options, plan, source, schedule.openLoop);
   const grid: Grid = source.header.grid;

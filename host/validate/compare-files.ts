@@ -15,6 +15,7 @@
 import { InputError, UsageError } from '../errors.js';
 import { openCandidate, type CandidateEvent, type CandidateSource } from '../input/candidate-reader.js';
 import { openEventSource } from '../input/event-source.js';
+import type { InflateLimits } from '../input/input-chunks.js';
 import { EventTowerReader } from '../input/event-towers.js';
 import { describeGrid, sameGrid } from '../clustering/grid.js';
 import { makeClusterer, type EngineName } from '../clustering/clusterers.js';
@@ -38,6 +39,8 @@ export interface CompareOptions {
   gridGiven: boolean;
   /** CSV events: the largest jump of event numbers (csv-towers.ts) */
   maxEventGap?: number;
+  /** caps on inflating gzip input (input-chunks.ts) */
+  inflate?: InflateLimits;
   /** the algorithm settings: `base` (the candidate header's, else the defaults) with the options over it */
   settingsOver: (base: ClusterSettings) => ClusterSettings;
   /**
@@ -89,10 +92,10 @@ const SETTING_NAMES: [keyof ClusterSettings, string][] = [
 
 /** Reads both files side by side and gathers the report. */
 export async function compareFiles(eventsPath: string, candidatePath: string, options: CompareOptions): Promise<CompareResult> {
-  const candidate = await openCandidate(candidatePath);
+  const candidate = await openCandidate(candidatePath, { inflate: options.inflate });
   let events: Awaited<ReturnType<typeof openEventSource>>;
   try {
-    events = await openEventSource(eventsPath, { grid: options.csvGrid(), maxEventGap: options.maxEventGap });
+    events = await openEventSource(eventsPath, { grid: options.csvGrid(), maxEventGap: options.maxEventGap, inflate: options.inflate });
   } catch (error) {
     await candidate.events.return(undefined as never);
     throw error;

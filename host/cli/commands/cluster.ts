@@ -11,7 +11,7 @@
 import { parseArgs, type CommandIo, type CommandSpec } from '../args.js';
 import { UsageError } from '../../errors.js';
 import { parseEngineName } from '../../clustering/clusterers.js';
-import { CLUSTER_OPTIONS, FORCE_OPTION, GRID_OPTIONS, MAX_EVENT_GAP_OPTION, clusterSettingsFrom, gridFrom, hasGridOptions, maxEventGapFrom } from '../common-options.js';
+import { CLUSTER_OPTIONS, FORCE_OPTION, GRID_OPTIONS, INFLATE_OPTIONS, MAX_EVENT_GAP_OPTION, clusterSettingsFrom, gridFrom, hasGridOptions, inflateLimitsFrom, maxEventGapFrom } from '../common-options.js';
 import { describeSettings } from '../../clustering/describe-settings.js';
 import { parseEmulation } from '../../clustering/emulation-mode.js';
 import { DEFAULT_MAX_RECORD_BYTES } from '../../input/record-framer.js';
@@ -48,6 +48,7 @@ export const spec: CommandSpec = {
     ...GROOMING_OPTIONS,
     ...GRID_OPTIONS,
     MAX_EVENT_GAP_OPTION,
+    ...INFLATE_OPTIONS,
   ],
 };
 
@@ -91,6 +92,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     grid: hasGridOptions(args) ? gridFrom(args, 'cluster') : undefined,
     maxRecordBytes: args.values['max-record-bytes'] as number | undefined,
     maxEventGap: maxEventGapFrom(args, 'cluster'),
+    inflate: inflateLimitsFrom(args, 'cluster'),
     force: args.values.force === true,
     engine,
     emulation,

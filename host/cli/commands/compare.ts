@@ -5,7 +5,7 @@
 
 import { parseArgs, type CommandIo, type CommandSpec, type ParsedArgs } from '../args.js';
 import { UsageError } from '../../errors.js';
-import { CLUSTER_OPTIONS, FORCE_OPTION, GRID_OPTIONS, MAX_EVENT_GAP_OPTION, clusterSettingsFrom, gridFrom, hasGridOptions, maxEventGapFrom } from '../common-options.js';
+import { CLUSTER_OPTIONS, FORCE_OPTION, GRID_OPTIONS, INFLATE_OPTIONS, MAX_EVENT_GAP_OPTION, clusterSettingsFrom, gridFrom, hasGridOptions, inflateLimitsFrom, maxEventGapFrom } from '../common-options.js';
 import { describeGrid } from '../../clustering/grid.js';
 import { parseEngineName } from '../../clustering/clusterers.js';
 import { describeSettings } from '../../clustering/describe-settings.js';
@@ -49,6 +49,7 @@ export const spec: CommandSpec = {
     ...GROOMING_OPTIONS.map((o) => ({ ...o, description: `reference side: ${o.description.replace(/ \(default: .*\)$/, '')}; groomed pt and mass are compared for candidates that carry them (default: the candidate header's, else off)` })),
     ...GRID_OPTIONS.map((o) => ({ ...o, description: `CSV events: ${o.description}` })),
     MAX_EVENT_GAP_OPTION,
+    ...INFLATE_OPTIONS,
     ...TURN_ON_OPTIONS,
   ],
 };
@@ -88,6 +89,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     csvGrid: () => gridFrom(args, 'compare'),
     gridGiven: hasGridOptions(args),
     maxEventGap: maxEventGapFrom(args, 'compare'),
+    inflate: inflateLimitsFrom(args, 'compare'),
     settingsOver: (base) => clusterSettingsFrom(args, 'compare', base),
     pileupOver: (base) => pileupSettingsFrom(args, 'compare', base),
     groomingOver: (base) => groomingSettingsFrom(args, 'compare', base),

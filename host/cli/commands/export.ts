@@ -23,7 +23,7 @@
 
 import { parseArgs, type CommandIo, type CommandMain, type CommandSpec } from '../args.js';
 import { UsageError } from '../../errors.js';
-import { FORCE_OPTION, GRID_OPTIONS, MAX_EVENT_GAP_OPTION, gridFrom, hasGridOptions, maxEventGapFrom } from '../common-options.js';
+import { FORCE_OPTION, GRID_OPTIONS, INFLATE_OPTIONS, MAX_EVENT_GAP_OPTION, gridFrom, hasGridOptions, inflateLimitsFrom, maxEventGapFrom } from '../common-options.js';
 import { DEFAULT_MAX_RECORD_BYTES } from '../../input/record-framer.js';
 import { exportAsText } from '../../output/text-export.js';
 import { RecordProgress } from '../../measure/input-progress.js';
@@ -38,6 +38,7 @@ export const spec: CommandSpec = {
     { name: 'out', kind: 'string', argument: '<file>', description: 'where to write; - for stdout (default: -)' },
     ...GRID_OPTIONS.map((o) => ({ ...o, description: o.description.replace(' (default:', ', for CSV input (default:') })),
     MAX_EVENT_GAP_OPTION,
+    ...INFLATE_OPTIONS,
     { name: 'max-record-bytes', kind: 'integer', argument: '<n>', description: `largest record accepted (default: ${DEFAULT_MAX_RECORD_BYTES})` },
     FORCE_OPTION,
     { name: 'quiet', kind: 'flag', short: 'q', description: 'do not print the progress bar, the per-event problems and the summary line' },
@@ -79,6 +80,7 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
     grid,
     maxRecordBytes,
     maxEventGap: maxEventGapFrom(args, 'export'),
+    inflate: inflateLimitsFrom(args, 'export'),
     force: args.values.force === true,
     format,
     out: outPath,

@@ -7,7 +7,7 @@
 
 import { parseArgs, type CommandIo, type CommandMain, type CommandSpec } from '../args.js';
 import { UsageError } from '../../errors.js';
-import { FORCE_OPTION, GRID_OPTIONS, MAX_EVENT_GAP_OPTION, gridFrom, maxEventGapFrom } from '../common-options.js';
+import { FORCE_OPTION, GRID_OPTIONS, INFLATE_OPTIONS, MAX_EVENT_GAP_OPTION, gridFrom, inflateLimitsFrom, maxEventGapFrom } from '../common-options.js';
 import { importCsvTowers } from '../../output/csv-import.js';
 
 export const spec: CommandSpec = {
@@ -20,6 +20,7 @@ export const spec: CommandSpec = {
     { name: 'out', kind: 'string', argument: '<events>', description: 'event file to write; - for stdout (required)' },
     ...GRID_OPTIONS,
     MAX_EVENT_GAP_OPTION,
+    ...INFLATE_OPTIONS,
     FORCE_OPTION,
     { name: 'label', kind: 'string', argument: '<text>', description: 'free text stored in the file header (default: none)' },
     { name: 'gzip', kind: 'flag', description: 'compress the event file with gzip (default: off)' },
@@ -46,6 +47,7 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
     csvLabel: csv === '-' ? '<stdin>' : csv,
     grid,
     maxEventGap: maxEventGapFrom(args, 'import'),
+    inflate: inflateLimitsFrom(args, 'import'),
     force: args.values.force === true,
     out,
     label: (args.values.label as string | undefined) ?? '',

@@ -3,7 +3,7 @@
 
 import { parseArgs, type CommandIo, type CommandMain, type CommandSpec, type OptionSpec, type ParsedArgs } from '../args.js';
 import { UsageError } from '../../errors.js';
-import { CLUSTER_OPTIONS, FORCE_OPTION, GRID_OPTIONS, MAX_EVENT_GAP_OPTION, clusterSettingsFrom, gridFrom, maxEventGapFrom } from '../common-options.js';
+import { CLUSTER_OPTIONS, FORCE_OPTION, GRID_OPTIONS, INFLATE_OPTIONS, MAX_EVENT_GAP_OPTION, clusterSettingsFrom, gridFrom, inflateLimitsFrom, maxEventGapFrom } from '../common-options.js';
 import { checkOutputAllowed } from '../../output/output-target.js';
 import { DEFAULT_BATCH, DEFAULT_CHECK, type CheckOption, type RunOptions } from '../../pipeline/run-plan.js';
 import { inputErrorOf } from '../../pipeline/run-summary.js';
@@ -66,6 +66,7 @@ export const spec: CommandSpec = {
     ...GROOMING_OPTIONS,
     ...GRID_OPTIONS.map((o) => ({ ...o, description: `CSV input: ${o.description}` })),
     MAX_EVENT_GAP_OPTION,
+    ...INFLATE_OPTIONS,
   ],
 };
 
@@ -154,6 +155,7 @@ export function runOptionsFrom(args: ParsedArgs): RunOptions & { maxMissFraction
     grooming: groomingSettingsFrom(args, 'run'),
     grid: gridFrom(args, 'run'),
     maxEventGap: maxEventGapFrom(args, 'run'),
+    inflate: inflateLimitsFrom(args, 'run'),
     force: args.values.force === true,
     engine,
     shard: parseShard(args.values.shard as string | undefined),
