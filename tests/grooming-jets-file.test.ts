@@ -55,16 +55,16 @@ describe('jetlag export of a groomed jets file', () => {
     const io = fakeIo();
     expect(await exportMain([jetsPath, '--format', 'csv', '-q'], io.io)).toBe(0);
     const [header, ...rows] = io.stdout().split('\n').filter((line) => line !== '');
-    expect(header).toBe('event,pt,y,phi,m,trimPt,trimY,trimPhi,trimM,trimN,trimSubjets,softdropPt,softdropY,softdropPhi,softdropM,softdropN,softdropZg,softdropRg');
+    expect(header).toBe('event,pt,y,phi,m,trimPt,trimY,trimPhi,trimM,trimN,trimSubjets,softdropPt,softdropY,softdropPhi,softdropM,softdropN,softdropZg,softdropRg,cluster_time_ns,towers');
     const source = await openRecordFile(jetsPath);
     const expected: string[] = [];
     for await (const record of source.records) {
-      const { event, jets } = decodeJetsRecord(record.bytes);
+      const { event, jets, clusterTimeNs, eventTowers } = decodeJetsRecord(record.bytes);
       for (let k = 0; k < jets.count; k++) {
         const t = jets.trim!;
         const s = jets.softDrop!;
         expected.push([event, jets.pt[k], jets.rapidity[k], jets.phi[k], jets.mass[k], t.pt[k], t.rapidity[k], t.phi[k], t.mass[k], t.towerCount[k], t.subjets[k],
-          s.pt[k], s.rapidity[k], s.phi[k], s.mass[k], s.towerCount[k], s.zg[k], s.deltaRg[k]].map(String).join(','));
+          s.pt[k], s.rapidity[k], s.phi[k], s.mass[k], s.towerCount[k], s.zg[k], s.deltaRg[k], clusterTimeNs, eventTowers].map(String).join(','));
       }
     }
     expect(rows.length).toBeGreaterThan(0);

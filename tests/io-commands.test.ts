@@ -237,7 +237,8 @@ describe('jetlag export of jets', () => {
   it('writes the cluster command\'s JSON lines', async () => {
     const r = await run(exportMain, [await jetsFile(), '--format', 'jsonl', '-q']);
     expect(r.code).toBe(0);
-    expect(r.stdout).toBe(formatJetsLine(0, jets) + '\n' + formatErrorLine(1, 'tower 0 has, "odd" et') + '\n');
+    // the file records the cluster time but no tower count: "towers" is null, not 0
+    expect(r.stdout).toBe(formatJetsLine(0, jets).replace('{"event":0,', '{"event":0,"cluster_time_ns":5,"towers":null,') + '\n' + formatErrorLine(1, 'tower 0 has, "odd" et') + '\n');
   });
 
   it('writes one CSV row per jet, in the columns compare reads, and reports invalid events on stderr', async () => {
@@ -245,9 +246,9 @@ describe('jetlag export of jets', () => {
     const r = await run(exportMain, [path]);
     expect(r.code).toBe(0);
     expect(r.stdout).toBe([
-      'event,pt,y,phi,m',
-      '0,10,0.1,0,0',
-      '0,2.23606797749979,0.2,2.0344439357957027,0.1',
+      'event,pt,y,phi,m,cluster_time_ns,towers',
+      '0,10,0.1,0,0,5,',
+      '0,2.23606797749979,0.2,2.0344439357957027,0.1,5,',
     ].join('\n') + '\n');
     expect(r.stderr.split('\n')[0]).toMatch(new RegExp(`^jetlag export: ${path.replace(/[.]/g, '\\.')}, event 1, byte \\d+: tower 0 has, "odd" et \\(invalid event, no CSV rows written\\)$`));
     expect(r.stderr.split('\n')[1]).toBe('jetlag export: read 2 events (1 invalid), wrote 2 jets to <stdout>');

@@ -128,9 +128,10 @@ describe('pileup values as text', () => {
     await exportAsText({ input: path, fileLabel: path, format: 'csv', out: csv, stdout: process.stdout, onProblem: (line) => problems.push(line) });
     expect(problems).toEqual([]);
     const rows = readFileSync(csv, 'utf8').trim().split('\n');
-    expect(rows[0]).toBe(PILEUP_JETS_CSV_HEADER);
+    expect(rows[0]).toBe(`${PILEUP_JETS_CSV_HEADER},cluster_time_ns,towers`);
     const p = jets.pileup!;
-    expect(rows[1].split(',').map(Number)).toEqual([5, jets.pt[0], jets.rapidity[0], jets.phi[0], jets.mass[0], p.ghosts[0], p.area[0], p.ptRaw[0], p.rho, p.etCut, p.killed, p.subtractedAway]);
+    // the record states no tower count: its cell is empty, after cluster_time_ns 0
+    expect(rows[1]).toBe([5, jets.pt[0], jets.rapidity[0], jets.phi[0], jets.mass[0], p.ghosts[0], p.area[0], p.ptRaw[0], p.rho, p.etCut, p.killed, p.subtractedAway, 0, ''].join(','));
     const candidate = await openCandidate(csv);
     const events = [];
     for await (const event of candidate.events) events.push(event);

@@ -2,8 +2,8 @@
 // from and to JetSet (types.ts).
 //
 // API
-//   encodeJetsRecord({ event, jets, clusterTimeNs?, error? }): Uint8Array   message bytes
-//   encodeDelimitedJetsRecord(event, jets | null, clusterTimeNs, error): Uint8Array
+//   encodeJetsRecord({ event, jets, clusterTimeNs?, error?, eventTowers? }): Uint8Array   message bytes
+//   encodeDelimitedJetsRecord(event, jets | null, clusterTimeNs, error, eventTowers?): Uint8Array
 //       the same in the delimited form (length varint first), ready to append to a file
 //   encodeJetsFileHeader(grid, settings, { producer?, label? }): Uint8Array
 //       the header record of a jets file, delimited, ready to write first
@@ -25,6 +25,10 @@
 // Groomed rows (spec section 12, fields 21 trim and 22 soft_drop): written when jets.trim
 // (jets.softDrop) is set; read back when the record holds them, or always with { trim: true }
 // ({ softDrop: true }); a groomer's array with a length other than the jet count is a problem.
+//
+// The event's tower count (field 23 event_towers, towers above the threshold): written, 0
+// included, when eventTowers is given; a record without it (an older file, an error record, an
+// engine program's answer) reads back as eventTowers null, never as an invented 0.
 
 import { encodeFileHeader, type FileHeader, type JetsFileSettings } from './file-header.js';
 import type { Grid, JetSet } from '../types.js';
@@ -39,6 +43,8 @@ export interface JetsRecordFields {
   jets?: JetSet | null;
   clusterTimeNs?: number;
   error?: string;
+  /** towers of the event that entered clustering; absent: not recorded */
+  eventTowers?: number | null;
 }
 
 export interface DecodedJets {
@@ -46,6 +52,8 @@ export interface DecodedJets {
   jets: JetSet;
   hasTowers: boolean;
   clusterTimeNs: number;
+  /** towers of the event that entered clustering, null when the record does not say */
+  eventTowers: number | null;
   /** '' for a valid event */
   error: string;
   /** '' when the record is consistent, else what is wrong with it */
@@ -70,6 +78,7 @@ const FIELD_AREA = 19;
 const FIELD_PT_RAW = 20;
 const FIELD_TRIM = 21;
 const FIELD_SOFT_DROP = 22;
+const FIELD_EVENT_TOWERS = 23;
 
 const sharedWriter = new ProtoWriter(4096);
 
@@ -115,11 +124,17 @@ export function encodeJetsRecord(fields: JetsRecordFields, writer = sharedWriter
   if (!(time >= 0) || !Number.isFinite(time)) throw new Error(`cluster time must be >= 0 ns, got ${time}`);
   writer.uintField(FIELD_TIME, Math.round(time));
   if (fields.error) writer.stringField(FIELD_ERROR, fields.error);
+  const eventTowers = fields.eventTowers;
+  if (eventTowers !== undefined && eventTowers !== null) {
+    if (!Number.isInteger(eventTowers) || eventTowers < 0 || eventTowers > 0xffffffff) throw new Error(`event tower count must be an integer in 0..2^32-1, got ${eventTowers}`);
+    // written even when 0: the field has explicit presence (proto3 optional)
+    writer.tag(FIELD_EVENT_TOWERS, WIRE_VARINT).varint(eventTowers);
+  }
   return writer.finish();
 }
 
-export function encodeDelimitedJetsRecord(event: number, jets: JetSet | null, clusterTimeNs: number, error: string): Uint8Array {
-  return delimit(encodeJetsRecord({ event, jets, clusterTimeNs, error }));
+export function encodeDelimitedJetsRecord(event: number, jets: JetSet | null, clusterTimeNs: number, error: string, eventTowers: number | null = null): Uint8Array {
+  return delimit(encodeJetsRecord({ event, jets, clusterTimeNs, error, eventTowers }));
 }
 
 export interface JetsHeaderText {
@@ -148,6 +163,7 @@ export function decodeJetsRecord(bytes: Uint8Array, options: DecodeJetsOptions =
   const c = new WireCursor(bytes);
   let event = 0;
   let clusterTimeNs = 0;
+  let eventTowers: number | null = null;
   let error = '';
   const doubles: number[][] = DOUBLE_FIELDS.map(() => []);
   const counts: number[] = [];
@@ -206,6 +222,13 @@ export function decodeJetsRecord(bytes: Uint8Array, options: DecodeJetsOptions =
       }
       case FIELD_TOWERS: readVarints(towers, true, 'constituent_towers', tag); break;
       case FIELD_TIME: c.expect(tag, WIRE_VARINT, 'cluster_time_ns'); clusterTimeNs = c.readVarint(); break;
+      case FIELD_EVENT_TOWERS: {
+        c.expect(tag, WIRE_VARINT, 'event_towers');
+        const at = c.pos;
+        eventTowers = c.readVarint();
+        if (eventTowers > 0xffffffff) c.fail(at, `event tower count ${eventTowers} is above 2^32 - 1`);
+        break;
+      }
       case FIELD_ERROR: c.expect(tag, WIRE_LENGTH_DELIMITED, 'error'); error = oneLineText(c.readString()); break;
       case FIELD_RHO: c.expect(tag, WIRE_FIXED64, 'rho'); eventPileup.rho = c.readDouble(); eventPileup.seen = true; break;
       case FIELD_ET_CUT: c.expect(tag, WIRE_FIXED64, 'et_cut'); eventPileup.etCut = c.readDouble(); eventPileup.seen = true; break;
@@ -283,5 +306,5 @@ export function decodeJetsRecord(bytes: Uint8Array, options: DecodeJetsOptions =
     if (groomed.problem === '') jets.softDrop = groomed.rows;
     else problem = groomed.problem;
   }
-  return { event, jets, hasTowers: towers.length > 0 || total === 0, clusterTimeNs, error, problem };
+  return { event, jets, hasTowers: towers.length > 0 || total === 0, clusterTimeNs, eventTowers, error, problem };
 }

@@ -15,9 +15,14 @@
 // towers each keeps:
 //   "trim":{"pt":…,"y":…,"phi":…,"m":…,"px":…,"py":…,"pz":…,"E":…,"n":…,"subjets":…}
 //   "softdrop":{"pt":…,"y":…,"phi":…,"m":…,"px":…,"py":…,"pz":…,"E":…,"n":…,"zg":…,"Rg":…}
+// `jetlag export` of a jets file adds, per event, "cluster_time_ns" (0 when not measured) and
+// "towers" (towers of the event that entered clustering; null when the file does not record
+// it) right after "event"; `jetlag cluster --format jsonl` writes neither, so that its output
+// does not change from run to run:
+//   {"event":n,"cluster_time_ns":…,"towers":…,"jets":[…]}
 //
 // API
-//   formatJetsLine(event, jets, withTowers?): string      one line, without the newline
+//   formatJetsLine(event, jets, withTowers?, figures?): string      one line, without the newline
 //   formatErrorLine(event, error): string
 //   jsonNumber(x): string
 
@@ -38,7 +43,14 @@ function groomedFields(rows: GroomedFourVectors, k: number): string {
     `"px":${jsonNumber(rows.px[k])},"py":${jsonNumber(rows.py[k])},"pz":${jsonNumber(rows.pz[k])},"E":${jsonNumber(rows.energy[k])},"n":${rows.towerCount[k]}`;
 }
 
-export function formatJetsLine(event: number, jets: JetSet, withTowers = jets.towers.length > 0 || jets.count === 0): string {
+/** an event's figures from its jets record, written by `jetlag export` */
+export interface EventLineFigures {
+  clusterTimeNs: number;
+  /** null: the record does not say */
+  eventTowers: number | null;
+}
+
+export function formatJetsLine(event: number, jets: JetSet, withTowers = jets.towers.length > 0 || jets.count === 0, figures?: EventLineFigures): string {
   const parts: string[] = [];
   const pileup = jets.pileup;
   for (let k = 0; k < jets.count; k++) {
@@ -55,8 +67,9 @@ export function formatJetsLine(event: number, jets: JetSet, withTowers = jets.to
     }
     parts.push(line + '}');
   }
-  const perEvent = pileup
+  const timeAndTowers = figures ? `"cluster_time_ns":${figures.clusterTimeNs},"towers":${figures.eventTowers ?? 'null'},` : '';
+  const perEvent = timeAndTowers + (pileup
     ? `"rho":${jsonNumber(pileup.rho)},"etCut":${jsonNumber(pileup.etCut)},"killed":${pileup.killed},"subtractedAway":${pileup.subtractedAway},`
-    : '';
+    : '');
   return `{"event":${event},${perEvent}"jets":[${parts.join(',')}]}`;
 }

@@ -3,6 +3,7 @@
 
 import { InputError } from '../errors.js';
 import { GROOMED_CSV_SUFFIXES } from '../formats/groomed-csv-columns.js';
+import { EVENT_CSV_COLUMNS, EVENT_CSV_SUFFIX } from '../formats/event-csv-columns.js';
 import type { CandidateEvent } from './candidate-reader.js';
 import { emptyEvent, JetColumns, quote, type Line } from './candidate-lines.js';
 
@@ -15,6 +16,8 @@ const DECIMAL = /^[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?$/;
 export async function* csvEvents(input: AsyncGenerator<Line>, label: string): AsyncGenerator<CandidateEvent> {
   const columns = new JetColumns();
   let fields = 0;
+  /** the per-event columns at the end of an exported row: not compared, not checked */
+  let eventColumns = 0;
   let columnNames: string[] = [];
   let headerSeen = false;
   let current: number | null = null;
@@ -32,9 +35,12 @@ export async function* csvEvents(input: AsyncGenerator<Line>, label: string): As
     let text = raw;
     if (!headerSeen) {
       if (text.startsWith('\ufeff')) text = text.slice(1);
-      // `jetlag export` of groomed jets ends the header with the groomed columns (groomed-csv-columns.ts)
-      const suffix = GROOMED_CSV_SUFFIXES.find((ending) => text.endsWith(ending)) ?? '';
-      const header = CANDIDATE_CSV_HEADERS.indexOf(text.slice(0, text.length - suffix.length) as (typeof CANDIDATE_CSV_HEADERS)[number]);
+      // `jetlag export` ends the header with the event's columns (event-csv-columns.ts), after
+      // the groomed columns of groomed jets (groomed-csv-columns.ts)
+      eventColumns = text.endsWith(EVENT_CSV_SUFFIX) ? EVENT_CSV_COLUMNS.length : 0;
+      const jetHeader = eventColumns > 0 ? text.slice(0, text.length - EVENT_CSV_SUFFIX.length) : text;
+      const suffix = GROOMED_CSV_SUFFIXES.find((ending) => jetHeader.endsWith(ending)) ?? '';
+      const header = CANDIDATE_CSV_HEADERS.indexOf(jetHeader.slice(0, jetHeader.length - suffix.length) as (typeof CANDIDATE_CSV_HEADERS)[number]);
       if (header < 0) {
         throw new InputError(label, `missing header: expected "${CANDIDATE_CSV_HEADERS[0]}" or "${CANDIDATE_CSV_HEADERS[1]}", got ${quote(text)}`, undefined, offset, number);
       }
@@ -68,7 +74,7 @@ export async function* csvEvents(input: AsyncGenerator<Line>, label: string): As
       continue;
     }
     let bad = -1;
-    for (let k = 1; k < fields; k++) {
+    for (let k = 1; k < fields - eventColumns; k++) {
       if (!DECIMAL.test(parts[k]) || !Number.isFinite(Number(parts[k]))) { bad = k; break; }
     }
     if (bad > 0) {

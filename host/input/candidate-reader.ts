@@ -15,7 +15,8 @@
 //               (a line can hold "jets":[]), so an event with no line is missing.
 //   CSV         header `event,pt,y,phi` or `event,pt,y,phi,m` (or `jetlag export`'s with the
 //               pileup columns after m, and the groomed columns after those, read but not
-//               compared: groomed values are compared from jets files and JSON lines), then one row per jet, rows of
+//               compared: groomed values are compared from jets files and JSON lines; then
+//               cluster_time_ns and towers, skipped), then one row per jet, rows of
 //               an event together. CSV cannot list an event without jets, so an event with
 //               no rows has no jets.
 //

@@ -15,13 +15,14 @@ import type { InflateLimits } from '../input/input-chunks.js';
 import { CANDIDATE_CSV_HEADERS } from '../input/candidate-csv.js';
 import { EventTowerReader } from '../input/event-towers.js';
 import { decodeJetsRecord } from '../formats/jets-codec.js';
-import { formatErrorLine, formatJetsLine, jsonNumber } from '../formats/jets-jsonl.js';
+import { formatErrorLine, formatJetsLine, jsonNumber, type EventLineFigures } from '../formats/jets-jsonl.js';
 import { TextFileWriter } from './text-file-writer.js';
 import { csvGridLine } from '../input/csv-grid.js';
 import { sameGrid } from '../clustering/grid.js';
 import { DEFAULT_GRID } from '../types.js';
 import type { Grid, GroomingSettings, JetSet } from '../types.js';
 import { groomedCsvCells, groomedCsvHeader } from './groomed-csv.js';
+import { EVENT_CSV_SUFFIX } from '../formats/event-csv-columns.js';
 
 /** the jets CSV columns: the CSV form `jetlag compare` reads (candidate-reader.ts) */
 export const JETS_CSV_HEADER = 'event,pt,y,phi,m';
@@ -156,15 +157,17 @@ async function exportEvents(source: RecordSource, format: TextFormat, out: TextF
   }
 }
 
-function jetCsvRows(event: number, jets: JetSet, grooming: GroomingSettings | undefined): string {
+function jetCsvRows(event: number, jets: JetSet, grooming: GroomingSettings | undefined, figures: EventLineFigures): string {
   let text = '';
   const pileup = jets.pileup;
   const perEvent = pileup ? `,${jsonNumber(pileup.rho)},${jsonNumber(pileup.etCut)},${pileup.killed},${pileup.subtractedAway}` : '';
+  // an empty towers cell: the record does not say (an older file), never an invented 0
+  const timeAndTowers = `,${figures.clusterTimeNs},${figures.eventTowers ?? ''}`;
   for (let k = 0; k < jets.count; k++) {
     text += `${event},${jsonNumber(jets.pt[k])},${jsonNumber(jets.rapidity[k])},${jsonNumber(jets.phi[k])},${jsonNumber(jets.mass[k])}`;
     if (pileup) text += `,${pileup.ghosts[k]},${jsonNumber(pileup.area[k])},${jsonNumber(pileup.ptRaw[k])}${perEvent}`;
     if (grooming) text += groomedCsvCells(jets, k, grooming);
-    text += '\n';
+    text += timeAndTowers + '\n';
   }
   return text;
 }
@@ -173,7 +176,7 @@ async function exportJets(source: RecordSource, format: TextFormat, out: TextFil
   const withPileup = source.header.settings?.pileup !== undefined;
   // trimming and soft drop (spec section 12): their columns follow the others, when they ran
   const grooming = source.header.settings?.grooming;
-  if (format === 'csv') await out.write(`${withPileup ? PILEUP_JETS_CSV_HEADER : JETS_CSV_HEADER}${groomedCsvHeader(grooming)}\n`);
+  if (format === 'csv') await out.write(`${withPileup ? PILEUP_JETS_CSV_HEADER : JETS_CSV_HEADER}${groomedCsvHeader(grooming)}${EVENT_CSV_SUFFIX}\n`);
   let record = -1;
   for await (const raw of source.records) {
     record++;
@@ -204,7 +207,7 @@ async function exportJets(source: RecordSource, format: TextFormat, out: TextFil
     if (format === 'csv' && decoded.jets.count > 0 && !csvOrderAllows(decoded.event, tally, onProblem, `${source.label}, event ${decoded.event}, byte ${raw.offset}`)) continue;
     tally.rows += decoded.jets.count;
     await out.write(format === 'csv'
-      ? jetCsvRows(decoded.event, decoded.jets, grooming)
-      : formatJetsLine(decoded.event, decoded.jets, decoded.hasTowers) + '\n');
+      ? jetCsvRows(decoded.event, decoded.jets, grooming, decoded)
+      : formatJetsLine(decoded.event, decoded.jets, decoded.hasTowers, decoded) + '\n');
   }
 }

@@ -49,7 +49,7 @@ export interface WorkerState {
   batchEt: Float64Array;
   batchStart: Int32Array;
   validEvent: Int32Array;
-  encodeJets: ((event: number, jets: JetSet | null, clusterNs: number, error: string) => Uint8Array) | null;
+  encodeJets: ((event: number, jets: JetSet | null, clusterNs: number, error: string, eventTowers?: number | null) => Uint8Array) | null;
 }
 
 /** Whether event number `event` is in the check sample: a hash of (event, seed), so shards agree. */
@@ -261,7 +261,7 @@ function checkAndEncode(state: WorkerState, work: BatchWork, jetsOf: (v: number)
     }
     let t5 = t4;
     if (encodeJets) {
-      jetChunks.push(encodeJets(event, jetsOf(slot), Math.round(out.stageNs[at + STAGE_CLUSTER]), ''));
+      jetChunks.push(encodeJets(event, jetsOf(slot), Math.round(out.stageNs[at + STAGE_CLUSTER]), '', out.towersClustered[k]));
       t5 = nowNs();
     }
     out.stageNs[at + STAGE_CHECK] = t4 - t3;

@@ -14,7 +14,7 @@ import { describeWindow } from '../clustering/window-finder.js';
 import { openEventSource } from '../input/event-source.js';
 import type { InflateLimits } from '../input/input-chunks.js';
 import { EventTowerReader } from '../input/event-towers.js';
-import { sameGrid } from '../clustering/grid.js';
+import { MIN_ET, sameGrid } from '../clustering/grid.js';
 import { emptyJetSet } from '../formats/jets-codec.js';
 import { JetsFileWriter } from '../output/jets-writer.js';
 import { formatErrorLine, formatJetsLine } from '../formats/jets-jsonl.js';
@@ -77,6 +77,16 @@ export interface ClusterFileResult {
   program: { counts: ExecCounts; figures: ProgramFigures } | null;
   /** the engine program used up its restarts here; the events before were written */
   stopped: ExecEngineError | null;
+}
+
+/** Towers with et above the threshold: the count `run` records per event (cluster-batch.ts readEvents). */
+function towersEnteringClustering(towerEt: Float64Array, threshold: number): number {
+  let count = 0;
+  for (let t = 0; t < towerEt.length; t++) {
+    const et = towerEt[t];
+    if (et > threshold && et >= MIN_ET) count++;
+  }
+  return count;
 }
 
 export async function clusterFile(options: ClusterFileOptions): Promise<ClusterFileResult> {
@@ -153,7 +163,7 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
           clusterTimeNs = Number(process.hrtime.bigint() - started);
         }
         const pending = jetsFile
-          ? jetsFile.writeJets({ event: towers.event, jets, clusterTimeNs })
+          ? jetsFile.writeJets({ event: towers.event, jets, clusterTimeNs, eventTowers: towersEnteringClustering(towers.towerEt, settings.threshold) })
           : lines!.write(formatJetsLine(towers.event, jets, withTowers) + '\n');
         if (pending) await pending;
       }

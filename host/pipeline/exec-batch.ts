@@ -175,7 +175,7 @@ async function programPass(w: ExecWorker, result: BatchResult, work: ReturnType<
     }
     let t5 = t4;
     if (encodeJets) {
-      jetChunks.push(encodeJets(event, jets, Math.round(out.stageNs[at + STAGE_CLUSTER]), ''));
+      jetChunks.push(encodeJets(event, jets, Math.round(out.stageNs[at + STAGE_CLUSTER]), '', out.towersClustered[k]));
       t5 = nowNs();
     }
     out.stageNs[at + STAGE_CHECK] = t4 - t3;

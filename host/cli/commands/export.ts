@@ -15,8 +15,12 @@
 //               candidate; CSV has no place for an invalid event (reported on stderr, left
 //               out); an event out of order is left out as for events. Four-vectors and
 //               constituents: use jsonl. Jets made with trimming or soft drop add their
-//               groomed columns after these (output/groomed-csv.ts).
-// jets, jsonl   the line form of `jetlag cluster --format jsonl` (jets-jsonl.ts)
+//               groomed columns after these (output/groomed-csv.ts). Every row ends with
+//               its event's cluster_time_ns and towers (towers that entered clustering; an
+//               empty cell when the file does not record it); an event without jets has
+//               no row, so for every event's time use jsonl.
+// jets, jsonl   the line form of `jetlag cluster --format jsonl` (jets-jsonl.ts), with
+//               "cluster_time_ns" and "towers" (null when not recorded) after "event"
 // Numbers are written with String(x), so every double reads back identical.
 // Exit 2 when the file is unreadable (after writing everything before the problem) or a
 // jets record cannot be decoded (it is reported and skipped). How: output/text-export.ts.
