@@ -39,6 +39,8 @@ function hostileRun(): any {
   summary.configuration.engine = HOSTILE;
   summary.configuration.input.label = HOSTILE;
   summary.configuration.settings.recombination = HOSTILE;
+  summary.configuration.pileup = { areas: true, ghostEt: HOSTILE, rho: { kind: 'kt', radius: HOSTILE }, subtract: true, softKiller: null };
+  summary.configuration.grooming = { trim: { subjetRadius: HOSTILE, ptFraction: 0.05 } };
   summary.machine.cpuModel = HOSTILE;
   summary.machine.node = HOSTILE;
   summary.partial = true;

@@ -7,8 +7,8 @@ import type { LatencyStats } from './latency.js';
 import type { RunSummary } from './summary.js';
 import { PILEUP_STAGES, type PileupStage } from './run-tally.js';
 
-/** the pileup chain's stages as the latency table names them */
-const PILEUP_STAGE_LABELS: Record<PileupStage, string> = {
+/** the pileup chain's stages as the latency table names them (the HTML report's too) */
+export const PILEUP_STAGE_LABELS: Record<PileupStage, string> = {
   softkiller: 'SoftKiller',
   clustering: 'ghosts, clustering',
   'rho-patches': 'ρ from patches',

@@ -52,6 +52,10 @@ export interface RunView {
   endToEnd: LatencySeries | null;
   dispatchLateness: LatencySeries | null;
   stages: Record<string, LatencyStats>;
+  /** the pileup chain's stages that ran, inside the cluster stage (spec part two); {} when none */
+  pileupStages: Record<string, LatencyStats>;
+  /** trimming and soft drop per event, inside the cluster stage (spec section 12); null when off */
+  grooming: LatencyStats | null;
   scaling: ScalingView | null;
   /** thinned per-event points, when the run was seen event by event (jetlag run --report, --per-event) */
   points: EventPoint[] | null;
@@ -156,6 +160,8 @@ export function runView(summary: Json, source: string, extra: { points?: EventPo
     endToEnd: openLoop ? seriesOf(summary, [['latency', 'endToEnd']], ['endToEnd']) : null,
     dispatchLateness: openLoop ? seriesOf(summary, [['harness', 'dispatchLateness'], ['latency', 'dispatchLag']], ['dispatchLateness', 'dispatchLag']) : null,
     stages: summary.latency?.stages ?? {},
+    pileupStages: summary.latency?.pileupStages ?? {},
+    grooming: isStats(summary.latency?.grooming) ? summary.latency.grooming : null,
     scaling: scalingOf(summary),
     points: extra.points ?? null,
     slowestEvent: extra.slowestEvent ?? (typeof summary.slowestEvent?.event === 'number' ? summary.slowestEvent.event : null),

@@ -4,6 +4,11 @@
 
 import { escapeHtml, formatNumber } from './escape.js';
 import type { LatencySeries, RunView } from './report-data.js';
+import type { LatencyStats } from '../measure/latency.js';
+import { PILEUP_STAGE_LABELS } from '../measure/report.js';
+import { PILEUP_STAGES } from '../measure/run-tally.js';
+import { describePileup } from '../clustering/pileup/settings.js';
+import { describeGrooming } from '../clustering/grooming/settings.js';
 
 type Cell = string | number | null | undefined;
 
@@ -20,6 +25,15 @@ function algorithmName(p: number | undefined): string {
   if (p === 0) return 'Cambridge/Aachen (p = 0)';
   if (p === 1) return 'kt (p = 1)';
   return `generalised kt (p = ${p})`;
+}
+
+/** a setting's description, 'none' when empty, and '–' when the summary's value cannot be read */
+function settingText(describe: () => string): Cell {
+  try {
+    return describe() || 'none';
+  } catch {
+    return null;
+  }
 }
 
 export function settingsTable(runs: RunView[]): string {
@@ -44,6 +58,8 @@ export function settingsTable(runs: RunView[]): string {
     row('ptMin [GeV]', (run) => c(run).settings?.ptMin),
     row('tower threshold [GeV]', (run) => c(run).settings?.threshold),
     row('recombination', (run) => c(run).settings?.recombination),
+    row('pileup steps', (run) => settingText(() => describePileup(c(run).pileup))),
+    row('grooming', (run) => settingText(() => c(run).grooming ? describeGrooming(c(run).grooming) : '')),
     row('grid', grid),
     row('workers', (run) => c(run).workers),
     row('events per batch', (run) => c(run).batch),
@@ -104,13 +120,20 @@ export function latencyTable(runs: RunView[]): string {
       rows.push([...lead, s.count, s.mean_us, s.p50_us, s.p90_us, markSmall(series, 'p99_us', 1000), markSmall(series, 'p999_us', 10000), s.max_us]);
     }
   }
-  for (const stage of ['decode', 'bin', 'cluster', 'check', 'encode']) {
+  const stageRows = (label: string, of: (run: RunView) => LatencyStats | null | undefined) => {
     for (const run of runs) {
-      const s = run.stages[stage];
+      const s = of(run);
       if (!s || s.count === 0) continue;
-      const lead: [string, ...Cell[]] = several ? [`stage ${stage}`, run.name] : [`stage ${stage}`];
+      const lead: [string, ...Cell[]] = several ? [label, run.name] : [label];
       rows.push([...lead, s.count, s.mean_us, s.p50_us, s.p90_us, s.p99_us, s.p999_us, s.max_us]);
     }
+  };
+  for (const stage of ['decode', 'bin', 'cluster', 'check', 'encode']) {
+    stageRows(`stage ${stage}`, (run) => run.stages[stage]);
+    if (stage !== 'cluster') continue;
+    // the pileup chain's stages and grooming are parts of the cluster stage, when they ran
+    for (const step of PILEUP_STAGES) stageRows(`stage cluster › ${PILEUP_STAGE_LABELS[step]}`, (run) => run.pileupStages[step]);
+    stageRows('stage cluster › grooming (trimming, soft drop)', (run) => run.grooming);
   }
   const head = ['figure [µs]', ...(several ? ['run'] : []), 'events', 'mean', 'p50', 'p90', 'p99', 'p99.9', 'max'];
   return table('latency', head, rows);
