@@ -1,17 +1,12 @@
 // Grooming of large-R jets (clustering-spec.md section 12), with the engine's own clustering: an
 // engine instance set up for grooming takes a batch whose "events" are the jets, each the list
-// of its real constituents (inIndex/inEt/inStart, layout.ts), re-clusters each one with the
-// sequence of sequence.ts, and writes one groomed row per jet (groomPx .. groomDeltaR).
+// of its real constituents (inIndex/inEt/inStart, layout.ts), re-clusters each one on tiles of
+// its own (groom-sequence.ts), and writes one groomed row per jet (groomPx .. groomDeltaR).
 //
 // - Trimming (arXiv:0912.1342): the instance is configured with p = 1, R = RSUB; the final
 //   subjets in section 6's order (as output.ts sorts them), those with pt >= FCUT * pt_jet summed.
-// - Soft drop (arXiv:1402.2657): p = 0, R = 1 and no beam candidates (settings.ts beamsOff).
-//   The search only reaches dR2 <= R*R (1 + 1e-9), so the sequence runs exactly as without
-//   beams while some pair lies within the reach: the smallest pair then is a jet's neighbour
-//   within the reach, and it comes before every beam at +Infinity. Once none does, every jet
-//   left takes its beam and no new jet appears, so those jets (few: a jet of radius R leaves
-//   them at most about 2R apart) are merged here pair by pair, all pairs compared, in the
-//   order of section 4. Then the merging tree is walked from its root.
+// - Soft drop (arXiv:1402.2657): p = 0, R = 1 and no beam candidates (settings.ts beamsOff),
+//   down to one jet; then the merging tree is walked from its root.
 //
 // nodeTowers, nodeParentA, nodeParentB (layout.ts) hold each jet's towers and parents, built
 // from jetInto after the sequence: a jet is always made from two earlier ones.
@@ -22,8 +17,8 @@ import { inStart, outStatus, jetKt2, jetY, jetPhi, jetPx, jetPy, jetPz, jetE, je
   nodeParentB, getF64, setF64, getI32, setI32 } from './layout';
 import { setBeamsOff, TWO_PI } from './settings';
 import { selectTowers } from './input';
-import { clusterTowers, finalCount, jetCount } from './sequence';
-import { deltaR2, mergeJets } from './kinematics';
+import { groomCluster, groomJetCount, groomFinalCount } from './groom-sequence';
+import { deltaR2 } from './kinematics';
 import { sortPermutation } from './sort';
 import { STATUS_OK, GROOM_TRIM, GROOM_SOFT_DROP, GROOM_REGION_JET_PT, GROOM_REGION_PX, GROOM_REGION_PY,
   GROOM_REGION_PZ, GROOM_REGION_ENERGY, GROOM_REGION_PT, GROOM_REGION_RAPIDITY, GROOM_REGION_PHI, GROOM_REGION_MASS,
@@ -79,7 +74,7 @@ export function groomBatch(count: i32): void {
     const n = selectTowers(getI32(inStart, e), getI32(inStart, e + 1));
     setI32(outStatus, e, n < 0 ? n : STATUS_OK);
     if (n <= 0) continue;
-    clusterTowers(n);
+    groomCluster(n);
     if (groomMode == GROOM_TRIM) trim(e, n);
     else if (groomMode == GROOM_SOFT_DROP) softDrop(e, n);
   }
@@ -118,8 +113,8 @@ function buildTree(n: i32, total: i32): void {
 
 /** Trimming: the final subjets in output order, those with pt >= FCUT * pt_jet summed. */
 function trim(e: i32, n: i32): void {
-  buildTree(n, jetCount);
-  const subjets = finalCount;
+  buildTree(n, groomJetCount);
+  const subjets = groomFinalCount;
   for (let s = 0; s < subjets; s++) {
     const jet = getI32(finalJet, s);
     setI32(finalScratch, s, jet);
@@ -170,53 +165,10 @@ function trim(e: i32, n: i32): void {
   setI32(groomSubjets, e, kept);
 }
 
-/**
- * The jets the sequence left (all farther apart than the reach) merged pair by pair, smallest
- * dR2 first, ties to the smaller index, then the larger (section 4): with p = 0 and R = 1 a
- * pair's measure (min(w_i, w_j) * dR2) * invR2 is (1 * dR2) * 1, that is dR2 exactly. Returns
- * the root, the last jet made.
- */
-function mergeLeft(): i32 {
-  let live = finalCount;
-  let next = jetCount;
-  while (live > 1) {
-    let bestMeasure: f64 = Infinity;
-    let bestA = -1;
-    let bestB = -1;
-    let slotA = 0;
-    let slotB = 0;
-    for (let u = 0; u < live; u++) {
-      const i = getI32(finalJet, u);
-      for (let v = u + 1; v < live; v++) {
-        const j = getI32(finalJet, v);
-        const d = deltaR2(getF64(jetY, i), getF64(jetPhi, i), getF64(jetY, j), getF64(jetPhi, j));
-        const a = min<i32>(i, j);
-        const b = max<i32>(i, j);
-        if (bestA < 0 || d < bestMeasure || (d == bestMeasure && (a < bestA || (a == bestA && b < bestB)))) {
-          bestMeasure = d;
-          bestA = a;
-          bestB = b;
-          slotA = u;
-          slotB = v;
-        }
-      }
-    }
-    mergeJets(bestA, bestB, next);
-    setI32(jetInto, bestA, next);
-    setI32(jetInto, bestB, next);
-    setI32(jetInto, next, -1);
-    // the new jet takes the first slot, the last jet the second
-    setI32(finalJet, slotA, next);
-    setI32(finalJet, slotB, getI32(finalJet, live - 1));
-    live--;
-    next++;
-  }
-  return getI32(finalJet, 0);
-}
-
 /** Soft drop: from the root down the harder branch until a merge passes z > ZCUT (dR / R)^BETA. */
 function softDrop(e: i32, n: i32): void {
-  const root = mergeLeft();
+  // the last jet made is the root of the one tree (no beams)
+  const root = groomJetCount - 1;
   buildTree(n, root + 1);
   let node = root;
   let zg: f64 = 0;

@@ -1,0 +1,290 @@
+// One grooming re-clustering (clustering-spec.md sections 2-5, as section 12 asks): the n towers
+// of one jet in evIndex/evEt, clustered with the instance's p and R on the jet's own small tiles
+// (groom-tiles.ts) instead of the event grid's cells, whose searches over R = 1 degenerate once
+// the Cambridge/Aachen jets have left their cells. Every live jet keeps its nearest neighbour by
+// section 4's key ((w_i * dR2) * invR2, then the smaller index) among the jets within the search
+// reach, and its candidate (pair or beam) in the tournament tree (tournament.ts, by slot).
+//
+// - Trimming (beams on): the reach is R's (settings.ts reach2), tiles at least that wide; a pair
+//   beyond it always loses to a beam, so each jet's candidate is the one of section 4.
+// - Soft drop (beams off, p = 0, R = 1: the key is dR2 itself): the reach starts at about a
+//   tower diagonal. While the smallest pair lies within it, that pair is some jet's neighbour
+//   (section 4's argument) and wins; once no jet has a neighbour within the reach, the reach
+//   grows (FIRST_REACH_TOWERS, REACH_GROWTH) and the tiles and neighbours are made again, until
+//   one tile holds every jet and the reach is unlimited.
+// - One tile, no reach (all jets searched): when the towers span pi or more in phi, or a weight
+//   leaves the range where the reach argument holds (kinematics.ts needsWideSearch; the whole
+//   re-clustering then starts again this way).
+//
+// After a merge only these change: the jets whose neighbour was one of the parents (searched
+// again, unless the new jet is strictly nearer than the lost neighbour: then it is theirs, since
+// every other jet came after the lost one), the jets for which the new jet comes first (the new
+// jet has the largest index, so only a strictly smaller key counts) and the new jet itself.
+//
+// Counts: groomJetCount jets made (towers first, jetInto as in sequence.ts), groomFinalCount
+// final jets in finalJet (beams on).
+
+import { evIndex, evEt, jetY, jetPhi, jetKt2, jetInto, jetW, jetNn, jetNnDR2, jetNnKey, jetSlot,
+  slotJet, jetTile, tileHead, tileNext, finalJet, redo, getF64, setF64, getI32, setI32 } from './layout';
+import { invR2, reach, reach2, beamsOff, etaPitch, phiPitch, BEAM } from './settings';
+import { loadTower, mergeJets, deltaR2, weightOf, needsWideSearch } from './kinematics';
+import { startTree, buildTree, updateTree, treeWinner, setCandidate, setEmptyCandidate, isBeamCandidate } from './tournament';
+import { measureBox, layTiles, insertJet, removeJet, setLocalPhi, openAround, tileColumns,
+  aroundRowFirst, aroundRowLast, aroundColumnFirst, aroundColumnLast } from './groom-tiles';
+
+/** soft drop's first reach, in tower pitches: about the diagonal of a tower and a half */
+// @ts-ignore: decorator
+@inline const FIRST_REACH_TOWERS: f64 = 1.5;
+// @ts-ignore: decorator
+@inline const REACH_GROWTH: f64 = 2;
+/** jetNn of a jet whose neighbour went away in this step, until it has a new one */
+// @ts-ignore: decorator
+@inline const LOST: i32 = -2;
+
+export let groomJetCount: i32 = 0;
+export let groomFinalCount: i32 = 0;
+
+/** pairs with dR2 above this are not looked at (+Inf: every pair) */
+let searchReach2: f64 = Infinity;
+let lostCount: i32 = 0;
+/** a merged jet's weight left the safe range while tiles were in use: start again on one tile */
+let wideMerge: bool = false;
+
+/** Jet i's neighbour from scratch among the jets in the 3 x 3 tiles around it. */
+function searchNeighbour(i: i32): void {
+  openAround(i);
+  const y = getF64(jetY, i);
+  const phi = getF64(jetPhi, i);
+  const w = getF64(jetW, i);
+  const limit = searchReach2;
+  const scale = invR2;
+  let bestJet = BEAM;
+  let bestKey: f64 = Infinity;
+  let bestDR2: f64 = Infinity;
+  for (let row = aroundRowFirst; row <= aroundRowLast; row++) {
+    const base = row * tileColumns;
+    for (let tile = base + aroundColumnFirst; tile <= base + aroundColumnLast; tile++) {
+      for (let j = getI32(tileHead, tile); j >= 0; j = getI32(tileNext, j)) {
+        const d = deltaR2(y, phi, getF64(jetY, j), getF64(jetPhi, j));
+        const key = (w * d) * scale;
+        if (j != i && d <= limit && (key < bestKey || (key == bestKey && j < bestJet))) {
+          bestJet = j;
+          bestKey = key;
+          bestDR2 = d;
+        }
+      }
+    }
+  }
+  setI32(jetNn, i, bestJet == BEAM ? -1 : bestJet);
+  setF64(jetNnDR2, i, bestDR2);
+  setF64(jetNnKey, i, bestKey);
+}
+
+/** Jet i's candidate: the smaller of its beam and its pair with its neighbour (spec section 4;
+ * the same rule as cells.ts refreshCandidate). The tree is the caller's. */
+function setJetCandidate(i: i32): void {
+  const s = getI32(jetSlot, i);
+  const w = getF64(jetW, i);
+  const beam = select<f64>(Infinity, w, beamsOff);
+  const q = getI32(jetNn, i);
+  if (q >= 0) {
+    const d = (min<f64>(w, getF64(jetW, q)) * getF64(jetNnDR2, i)) * invR2;
+    // on equal measures the pair comes first: its smaller index is <= i and its larger < BEAM
+    if (d <= beam) {
+      setCandidate(s, d, min<i32>(i, q), max<i32>(i, q));
+      return;
+    }
+  }
+  setCandidate(s, beam, i, BEAM);
+}
+
+function refreshCandidate(i: i32): void {
+  setJetCandidate(i);
+  updateTree(getI32(jetSlot, i));
+}
+
+/** Marks the jets around `gone` whose neighbour it was as lost, onto the redo list. */
+function collectLost(gone: i32): void {
+  openAround(gone);
+  for (let row = aroundRowFirst; row <= aroundRowLast; row++) {
+    const base = row * tileColumns;
+    for (let tile = base + aroundColumnFirst; tile <= base + aroundColumnLast; tile++) {
+      for (let j = getI32(tileHead, tile); j >= 0; j = getI32(tileNext, j)) {
+        if (getI32(jetNn, j) == gone) {
+          setI32(jetNn, j, LOST);
+          setI32(redo, lostCount++, j);
+        }
+      }
+    }
+  }
+}
+
+/** The lost jets still without a neighbour search from scratch. */
+function searchLost(): void {
+  for (let k = 0; k < lostCount; k++) {
+    const j = getI32(redo, k);
+    if (getI32(jetNn, j) != LOST) continue;
+    searchNeighbour(j);
+    refreshCandidate(j);
+  }
+  lostCount = 0;
+}
+
+/** The new jet k (in its tile) finds its neighbour and offers itself to the jets around it. */
+function offerNewJet(k: i32): void {
+  openAround(k);
+  const y = getF64(jetY, k);
+  const phi = getF64(jetPhi, k);
+  const w = getF64(jetW, k);
+  const limit = searchReach2;
+  const scale = invR2;
+  let bestJet = BEAM;
+  let bestKey: f64 = Infinity;
+  let bestDR2: f64 = Infinity;
+  for (let row = aroundRowFirst; row <= aroundRowLast; row++) {
+    const base = row * tileColumns;
+    for (let tile = base + aroundColumnFirst; tile <= base + aroundColumnLast; tile++) {
+      for (let j = getI32(tileHead, tile); j >= 0; j = getI32(tileNext, j)) {
+        if (j == k) continue;
+        const d = deltaR2(y, phi, getF64(jetY, j), getF64(jetPhi, j));
+        if (!(d <= limit)) continue;
+        const key = (w * d) * scale;
+        if (key < bestKey || (key == bestKey && j < bestJet)) {
+          bestJet = j;
+          bestKey = key;
+          bestDR2 = d;
+        }
+        // j's key to k; a lost jet compares with the key of the neighbour it lost
+        const keyOfJ = (getF64(jetW, j) * d) * scale;
+        if (keyOfJ < getF64(jetNnKey, j)) {
+          setI32(jetNn, j, k);
+          setF64(jetNnDR2, j, d);
+          setF64(jetNnKey, j, keyOfJ);
+          refreshCandidate(j);
+        }
+      }
+    }
+  }
+  setI32(jetNn, k, bestJet == BEAM ? -1 : bestJet);
+  setF64(jetNnDR2, k, bestDR2);
+  setF64(jetNnKey, k, bestKey);
+  refreshCandidate(k);
+}
+
+function merge(i: i32, j: i32): void {
+  const a = min<i32>(i, j);
+  const b = max<i32>(i, j);
+  const k = groomJetCount++;
+  mergeJets(a, b, k);
+  setI32(jetInto, a, k);
+  setI32(jetInto, b, k);
+  setI32(jetInto, k, -1);
+  const w = weightOf(getF64(jetKt2, k));
+  setF64(jetW, k, w);
+  if (searchReach2 < Infinity && needsWideSearch(w)) wideMerge = true;
+  lostCount = 0;
+  collectLost(a);
+  collectLost(b);
+  // a parent on the other's list is no longer searched for
+  setI32(jetNn, a, -1);
+  setI32(jetNn, b, -1);
+  removeJet(a);
+  removeJet(b);
+  // the new jet takes the smaller of its parents' slots; the other stays empty
+  const sa = getI32(jetSlot, a);
+  const sb = getI32(jetSlot, b);
+  const sk = min<i32>(sa, sb);
+  const empty = max<i32>(sa, sb);
+  setI32(slotJet, empty, -1);
+  setEmptyCandidate(empty);
+  updateTree(empty);
+  setI32(jetSlot, k, sk);
+  setI32(slotJet, sk, k);
+  setLocalPhi(k);
+  insertJet(k);
+  offerNewJet(k);
+  searchLost();
+}
+
+function finish(i: i32): void {
+  setI32(finalJet, groomFinalCount++, i);
+  lostCount = 0;
+  collectLost(i);
+  removeJet(i);
+  const s = getI32(jetSlot, i);
+  setI32(slotJet, s, -1);
+  setEmptyCandidate(s);
+  updateTree(s);
+  searchLost();
+}
+
+/** Tiles at least `side` wide (+Inf: one tile) over the n slots' live jets, their neighbours
+ * and candidates made again. */
+function retile(n: i32, side: f64, sideReach2: f64): void {
+  searchReach2 = layTiles(side) ? Infinity : sideReach2;
+  for (let s = 0; s < n; s++) {
+    const j = getI32(slotJet, s);
+    if (j >= 0) insertJet(j);
+  }
+  for (let s = 0; s < n; s++) {
+    const j = getI32(slotJet, s);
+    if (j >= 0) {
+      searchNeighbour(j);
+      setJetCandidate(j);
+    }
+  }
+  buildTree();
+}
+
+/** One attempt; false when a merged jet's weight needs the one-tile way (then redone). */
+function attempt(n: i32, oneTile: bool): bool {
+  startTree(n);
+  groomJetCount = n;
+  groomFinalCount = 0;
+  wideMerge = false;
+  let wideTower = false;
+  for (let t = 0; t < n; t++) {
+    loadTower(t, getI32(evIndex, t), getF64(evEt, t));
+    setI32(jetInto, t, -1);
+    const w = weightOf(getF64(jetKt2, t));
+    setF64(jetW, t, w);
+    wideTower = wideTower || needsWideSearch(w);
+    setI32(jetSlot, t, t);
+    setI32(slotJet, t, t);
+  }
+  measureBox(n);
+  let side: f64 = Infinity;
+  let sideReach2: f64 = Infinity;
+  if (!oneTile && !wideTower) {
+    side = beamsOff ? FIRST_REACH_TOWERS * max<f64>(etaPitch, phiPitch) : reach;
+    sideReach2 = beamsOff ? side * side : reach2;
+  }
+  retile(n, side, sideReach2);
+  let live = n;
+  while (live > (beamsOff ? 1 : 0)) {
+    const s = treeWinner();
+    const i = getI32(slotJet, s);
+    if (!isBeamCandidate(s)) {
+      merge(i, getI32(jetNn, i));
+    } else if (!beamsOff) {
+      finish(i);
+    } else {
+      // no pair within the reach: a wider one (none at all only for NaN coordinates, which
+      // validated input never has)
+      if (side == Infinity) break;
+      side = side * REACH_GROWTH;
+      retile(n, side, side * side);
+      continue;
+    }
+    live--;
+    if (wideMerge) return false;
+  }
+  if (beamsOff) setI32(finalJet, groomFinalCount++, groomJetCount - 1);
+  return true;
+}
+
+/** Clusters the n towers in evIndex/evEt (n >= 1); every slot's candidate is left empty. */
+export function groomCluster(n: i32): void {
+  if (!attempt(n, false)) attempt(n, true);
+  for (let s = 0; s < n; s++) setEmptyCandidate(s);
+}
