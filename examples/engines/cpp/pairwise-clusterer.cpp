@@ -16,6 +16,7 @@
 // writing, and goes into cluster_time_ns.
 
 #include <algorithm>
+#include <cerrno>
 #include <chrono>
 #include <cmath>
 #include <cstdint>
@@ -23,6 +24,8 @@
 #include <limits>
 #include <string>
 #include <vector>
+
+#include <unistd.h>
 
 #include <google/protobuf/io/zero_copy_stream_impl.h>
 #include <google/protobuf/util/delimited_message_util.h>
@@ -32,6 +35,7 @@
 namespace {
 
 constexpr double kTwoPi = 2 * M_PI;
+constexpr int kStreamBlockBytes = 1 << 16;
 
 struct Settings {
   double p = -1;
@@ -192,8 +196,18 @@ std::vector<ClusterCandidate> clusterEvent(const jetlag::EventRecord& event, con
   return out;
 }
 
-void fillRecord(jetlag::JetsRecord& record, const std::vector<ClusterCandidate>& jets) {
-  for (const ClusterCandidate& jet : jets) {
+// The answer's fields from the jets; each jet's constituents are sorted in place (the jets are
+// not used after) and copied in one go, outside the program's clock but inside the round trip.
+void fillRecord(jetlag::JetsRecord& record, std::vector<ClusterCandidate>& jets) {
+  const int count = static_cast<int>(jets.size());
+  for (auto* field : {record.mutable_px(), record.mutable_py(), record.mutable_pz(), record.mutable_e(), record.mutable_pt(), record.mutable_y(), record.mutable_phi(), record.mutable_mass()}) {
+    field->Reserve(count);
+  }
+  record.mutable_constituent_count()->Reserve(count);
+  int constituents = 0;
+  for (const ClusterCandidate& jet : jets) constituents += static_cast<int>(jet.towers.size());
+  record.mutable_constituent_towers()->Reserve(constituents);
+  for (ClusterCandidate& jet : jets) {
     const double pt = std::sqrt(jet.kt2);
     record.add_px(jet.px);
     record.add_py(jet.py);
@@ -204,20 +218,37 @@ void fillRecord(jetlag::JetsRecord& record, const std::vector<ClusterCandidate>&
     record.add_phi(jet.phi);
     record.add_mass(std::sqrt(std::max(0.0, jet.e * jet.e - jet.px * jet.px - jet.py * jet.py - jet.pz * jet.pz)));
     record.add_constituent_count(static_cast<uint32_t>(jet.towers.size()));
-    std::vector<int32_t> towers = jet.towers;
-    std::sort(towers.begin(), towers.end());
-    for (int32_t tower : towers) record.add_constituent_towers(tower);
+    std::sort(jet.towers.begin(), jet.towers.end());
+    record.mutable_constituent_towers()->Add(jet.towers.begin(), jet.towers.end());
   }
+}
+
+// Writes one delimited record to stdout in one write() where the pipe takes it whole: the
+// runtime's FileOutputStream hands a large record over in 8 KB pieces, each a wake-up of
+// jetlag's reader. `bytes` is reused from record to record.
+bool writeDelimited(const google::protobuf::MessageLite& message, std::string& bytes) {
+  bytes.clear();
+  {
+    google::protobuf::io::StringOutputStream sink(&bytes);
+    if (!google::protobuf::util::SerializeDelimitedToZeroCopyStream(message, &sink)) return false;
+  }
+  size_t written = 0;
+  while (written < bytes.size()) {
+    const ssize_t count = ::write(1, bytes.data() + written, bytes.size() - written);
+    if (count < 0 && errno == EINTR) continue;
+    if (count <= 0) return false;
+    written += static_cast<size_t>(count);
+  }
+  return true;
 }
 
 }  // namespace
 
 int main() {
   GOOGLE_PROTOBUF_VERIFY_VERSION;
-  google::protobuf::io::FileInputStream input(0);
-  google::protobuf::io::FileOutputStream output(1);
+  // a block as large as a pipe's buffer: one read() takes a whole event
+  google::protobuf::io::FileInputStream input(0, kStreamBlockBytes);
   using google::protobuf::util::ParseDelimitedFromZeroCopyStream;
-  using google::protobuf::util::SerializeDelimitedToZeroCopyStream;
 
   jetlag::FileHeader header;
   bool cleanEnd = false;
@@ -248,8 +279,8 @@ int main() {
   used->set_threshold(settings.threshold);
   used->set_recombination(settings.winnerTakeAll ? jetlag::RECOMBINATION_WINNER_TAKE_ALL : jetlag::RECOMBINATION_E_SCHEME);
   used->set_engine("pairwise-clusterer-cpp");
-  SerializeDelimitedToZeroCopyStream(reply, &output);
-  output.Flush();
+  std::string answer;
+  if (!writeDelimited(reply, answer)) return 1;
 
   jetlag::EventRecord event;
   jetlag::JetsRecord record;
@@ -263,14 +294,13 @@ int main() {
       record.set_error("expected towers only, as many tower_et as tower_index");
     } else {
       const auto started = std::chrono::steady_clock::now();
-      const std::vector<ClusterCandidate> jets = clusterEvent(event, header.grid(), settings);
+      std::vector<ClusterCandidate> jets = clusterEvent(event, header.grid(), settings);
       const auto clusterTimeNs = std::chrono::duration_cast<std::chrono::nanoseconds>(std::chrono::steady_clock::now() - started).count();
       fillRecord(record, jets);
       record.set_cluster_time_ns(static_cast<uint64_t>(clusterTimeNs));
     }
-    SerializeDelimitedToZeroCopyStream(record, &output);
     // one answer per event, now: jetlag waits for it
-    output.Flush();
+    if (!writeDelimited(record, answer)) return 1;
   }
   if (!cleanEnd) {
     std::cerr << "pairwise-clusterer: the event stream ends inside a record\n";
