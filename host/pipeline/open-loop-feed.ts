@@ -34,20 +34,39 @@ const BACKLOG_RISE_WORKERS = 4;
 /** ... this fraction of the events counts as growing (saturation) */
 const BACKLOG_RISE_FRACTION = 0.05;
 
+/**
+ * A least-squares line through values given one at a time at x = 0, 1, 2, ..., kept as sums:
+ * a run of millions of events keeps no value per event (npm run soak watches its memory).
+ */
+export class RisingLine {
+  private n = 0;
+  private sumX = 0;
+  private sumXX = 0;
+  private sumY = 0;
+  private sumXY = 0;
+
+  add(y: number): void {
+    const x = this.n++;
+    this.sumX += x;
+    this.sumXX += x * x;
+    this.sumY += y;
+    this.sumXY += x * y;
+  }
+
+  /** How much the line rises from the first value to the last; 0 with fewer than two. */
+  rise(): number {
+    const n = this.n;
+    if (n < 2) return 0;
+    const slope = (n * this.sumXY - this.sumX * this.sumY) / (n * this.sumXX - this.sumX * this.sumX);
+    return slope * (n - 1);
+  }
+}
+
 /** How much a least-squares line through values[0..n) rises from the first to the last. */
 export function fittedRise(values: readonly number[]): number {
-  const n = values.length;
-  if (n < 2) return 0;
-  const meanX = (n - 1) / 2;
-  let meanY = 0;
-  for (const y of values) meanY += y / n;
-  let sxy = 0;
-  let sxx = 0;
-  for (let x = 0; x < n; x++) {
-    sxy += (x - meanX) * (values[x] - meanY);
-    sxx += (x - meanX) * (x - meanX);
-  }
-  return (sxy / sxx) * (n - 1);
+  const line = new RisingLine();
+  for (const y of values) line.add(y);
+  return line.rise();
 }
 
 /** Resolves after `ms`, or at once when the signal aborts. */
@@ -101,8 +120,8 @@ export class OpenLoopFeed {
   private lastReceivedNs = 0;
   /** least-squares sums of (ordinal, return time from the start): the sustained rate's fit */
   private readonly fit = { n: 0, x: 0, xx: 0, y: 0, xy: 0 };
-  /** backlog (events due, result not back) at each result, in the order results came: saturation data */
-  private backlogAt: number[] = [];
+  /** a line through the backlog (events due, result not back) at each result, in the order results came: saturation data */
+  private readonly backlogLine = new RisingLine();
   private readonly ports: MessagePort[] = [];
   private readonly serving: Promise<void>[] = [];
   private wake: (() => void) | null = null;
@@ -204,7 +223,7 @@ export class OpenLoopFeed {
     this.lastReceivedNs = receivedNs;
     if (this.dueSeen < this.delivered) this.dueSeen = this.delivered;
     while (this.dueSeen < this.ring.count && this.dueOf[this.dueSeen % SLOT_COUNT] <= receivedNs) this.dueSeen++;
-    this.backlogAt.push(this.dueSeen - this.received);
+    this.backlogLine.add(this.dueSeen - this.received);
     while (this.pending.has(this.delivered)) {
       const next = this.pending.get(this.delivered)!;
       this.pending.delete(this.delivered);
@@ -268,7 +287,7 @@ export class OpenLoopFeed {
     const offeredHz = lastDue > firstDue ? ((events - 1) * 1e9) / (lastDue - firstDue) : Infinity;
     const slopeNs = (fit.n * fit.xy - fit.x * fit.y) / (fit.n * fit.xx - fit.x * fit.x);
     const sustainedHz = slopeNs > 0 ? 1e9 / slopeNs : Infinity;
-    const backlogGrew = fittedRise(this.backlogAt) > Math.max(BACKLOG_RISE_WORKERS * this.plan.workers, BACKLOG_RISE_FRACTION * events);
+    const backlogGrew = this.backlogLine.rise() > Math.max(BACKLOG_RISE_WORKERS * this.plan.workers, BACKLOG_RISE_FRACTION * events);
     this.delivery.tally.recordRates(offeredHz, sustainedHz, backlogGrew);
   }
 }
