@@ -4,7 +4,9 @@
 // line with its byte offset. Seeded: a finding names its seed and case.
 
 import { describe, expect, it } from 'vitest';
-import { formatTally, runCampaign } from '../bench/fuzz/campaign.js';
+import { join } from 'node:path';
+import { formatTally, makeSeeds, runCampaign } from '../bench/fuzz/campaign.js';
+import { tempDirForTest } from './support/temp-dir.js';
 
 describe('the readers on mutated inputs', () => {
   it('reject or read 300 of them without a crash, each rejection one line with a byte offset', async () => {
@@ -15,4 +17,15 @@ describe('the readers on mutated inputs', () => {
     expect(tally.accepted).toBeGreaterThan(0);
     expect(tally.rejected.size).toBeGreaterThan(3);
   }, 60_000);
+
+  it('start from valid inputs: each of them, unmutated, is read whole with no problem', async () => {
+    const problems: string[] = [];
+    const scratch = join(tempDirForTest('fuzz-seeds'), 'summary.json');
+    for (const seed of makeSeeds()) {
+      const read = await seed.read(seed.bytes, { scratch, problem: (text) => problems.push(`${seed.name}: ${text}`) })
+        .catch((error: Error) => { problems.push(`${seed.name}: ${error.message}`); return 0; });
+      expect(read, seed.name).toBeGreaterThan(0);
+    }
+    expect(problems).toEqual([]);
+  });
 });

@@ -7,6 +7,8 @@
 //   runCampaign({ seed, count, boundMs?, onCase? }): Promise<CampaignTally>
 //     case k uses seed and k only, so any finding is reproduced by its seed and case number
 //   formatTally(tally): string                     the table `npm run fuzz` prints
+//   makeSeeds(), kindOf(detail)                     the valid inputs and the grouping of
+//                                                  rejections, for fuzz/processes.ts too
 //
 // Inputs (all invented, from the toy generator or written here): an event file, the same
 // gzip-compressed, an event file of raw deposits, a jets file, a CSV tower file (one with a
@@ -63,7 +65,7 @@ export interface CampaignTally {
   slowestMs: number;
 }
 
-interface Seed {
+export interface Seed {
   name: string;
   bytes: Uint8Array;
   read: (bytes: Uint8Array, context: ReadContext) => Promise<number>;
@@ -125,7 +127,7 @@ async function readRunSummary(bytes: Uint8Array, context: ReadContext): Promise<
   return 1;
 }
 
-function makeSeeds(): Seed[] {
+export function makeSeeds(): Seed[] {
   const events = [...generateEvents(DEFAULT_GRID, { events: 6, pileup: 8, seed: 5, maxHardJets: 2 })];
   const header = encodeFileHeader({ kind: 'events', formatVersion: 1, grid: { ...DEFAULT_GRID }, producer: 'fuzz', label: 'invented' });
   const eventFile = concat([delimit(header), ...events.map((e) => delimit(encodeEventRecord({ event: e.event, towerIndex: e.towerIndex, towerEt: e.towerEt })))]);
@@ -134,7 +136,7 @@ function makeSeeds(): Seed[] {
   const clusterer = new ReferenceClusterer(DEFAULT_GRID, DEFAULT_SETTINGS);
   const jetSets = events.map((e) => clusterer.cluster(e.towerIndex, e.towerEt));
   const jetsFile = concat([
-    delimit(encodeJetsFileHeader(DEFAULT_GRID, { ...DEFAULT_SETTINGS, engine: 'reference' }, { producer: 'fuzz', label: 'invented' })),
+    encodeJetsFileHeader(DEFAULT_GRID, { ...DEFAULT_SETTINGS, engine: 'reference' }, { producer: 'fuzz', label: 'invented' }), // delimited already
     ...jetSets.map((jets, k) => delimit(encodeJetsRecord({ event: k, jets }))),
   ]);
   const csvRows = (grid: Grid) => events.flatMap((e) => Array.from(e.towerIndex, (t, k) => {
@@ -168,7 +170,7 @@ function makeSeeds(): Seed[] {
 }
 
 /** what was wrong, without the numbers and quoted text that make every message different */
-function kindOf(detail: string): string {
+export function kindOf(detail: string): string {
   return detail.replace(/"(?:[^"\\]|\\.)*"/g, '"…"').replace(/\d+(\.\d+)?(e[+-]?\d+)?/g, '#').replace(/\s*\(.*$/, '').slice(0, 90);
 }
 
