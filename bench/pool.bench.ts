@@ -1,4 +1,4 @@
-// Benchmarks of the streamed run (node dist/bench/pool.bench.js [--quick | --no-streaming | --streaming-only]
+// Benchmarks of the streamed run (node dist/bench/pool.bench.js [--quick | --no-streaming | --streaming-only | --exec-pipe]
 // after npm run build):
 //   1. the pool's per-task round trip (tinybench), and events/s against the batch size K,
 //      which chose run.ts's DEFAULT_BATCH;
@@ -26,6 +26,12 @@ import type { RunOptions } from '../host/pipeline/run-plan.js';
 import { workerFile } from '../host/pipeline/pool.js';
 import { describeMachine, type RunSummary } from '../host/measure/summary.js';
 import { LatencyRecorder } from '../host/measure/latency.js';
+
+// `--exec-pipe`: an outside program as the engine instead (exec-pipe.bench.ts)
+if (process.argv.includes('--exec-pipe')) {
+  await import('./exec-pipe.bench.js');
+  process.exit(0);
+}
 
 const quick = process.argv.includes('--quick');
 /** sections 1-4 at full size, without the long streaming run */

@@ -1,0 +1,152 @@
+// Benchmark of an outside program as the engine (`run --engine exec:`): the C++ example
+// (examples/engines/cpp) on pileup-200 events. Run as `npm run bench:pool -- --exec-pipe` (or
+// node dist/bench/exec-pipe.bench.js [--quick] after npm run build):
+//   1. builds the example into a temporary folder (Debian's protobuf; skipped with a line when
+//      it cannot be built);
+//   2. closed loop, 1 worker, alternating rounds, then 2 workers: per event the pipe's cost,
+//      round trip (jetlag writes the event -> jetlag has read the whole answer) minus the
+//      program's own time (cluster_time_ns), p50 and p99 of the per-event differences;
+//   3. open loop, 1 worker (the default in an open loop on 2 cores) at a quarter of what one
+//      worker sustains: the same figures with the program idle between events;
+//   4. the program's own time against the WASM engine's service time on the same events,
+//      closed loop, 1 worker: p50, p99 and the median of the per-event ratios.
+// Events are invented (the toy generator). Figures go to stdout and to
+// bench/results/exec-pipe.json (not committed). The machine is shared: each figure carries the
+// load average its run started at.
+
+import { execFileSync } from 'node:child_process';
+import { closeSync, mkdirSync, mkdtempSync, openSync, rmSync, writeFileSync, writeSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { encodeEventRecord } from '../host/formats/event-codec.js';
+import { encodeFileHeader } from '../host/formats/file-header.js';
+import { delimit } from '../host/formats/wire.js';
+import { generateEvents } from '../host/generator/generate.js';
+import { DEFAULT_GRID } from '../host/types.js';
+import { runEvents } from '../host/pipeline/run.js';
+import type { RunOptions } from '../host/pipeline/run-plan.js';
+import { describeMachine, type RunSummary } from '../host/measure/summary.js';
+
+const quick = process.argv.includes('--quick');
+const events = quick ? 150 : 400;
+const rounds = quick ? 1 : 3;
+const exampleDir = new URL('../../examples/engines/cpp/', import.meta.url).pathname;
+const dir = mkdtempSync(join(tmpdir(), 'jetlag-exec-bench-'));
+const results: Record<string, unknown> = { machine: describeMachine() };
+
+function line(text: string): void {
+  process.stdout.write(text + '\n');
+}
+
+const median = (values: number[]) => [...values].sort((a, b) => a - b)[Math.floor(values.length / 2)];
+const us = (value: number | null | undefined) => (value === null || value === undefined || Number.isNaN(value) ? '—' : value.toFixed(value < 100 ? 1 : 0));
+
+/** `events` distinct pileup-200 toy events; returns the mean towers per event. */
+function writeEvents(path: string): number {
+  const fd = openSync(path, 'w');
+  writeSync(fd, delimit(encodeFileHeader({ kind: 'events', grid: DEFAULT_GRID, producer: 'jetlag bench', label: 'invented toy events (Halden ring scenario)' })));
+  let towers = 0;
+  for (const event of generateEvents(DEFAULT_GRID, { events, pileup: 200, seed: 2026 })) {
+    towers += event.towerIndex.length;
+    writeSync(fd, delimit(encodeEventRecord({ event: event.event, towerIndex: event.towerIndex, towerEt: event.towerEt })));
+  }
+  closeSync(fd);
+  return towers / events;
+}
+
+/** The example built into the temporary folder; null (and why) when it cannot be. */
+function buildExample(): string | null {
+  try {
+    execFileSync('make', ['-s', '-C', exampleDir, `BUILD=${dir}`], { stdio: ['ignore', 'ignore', 'pipe'] });
+    return join(dir, 'pairwise-clusterer');
+  } catch (error) {
+    line(`exec-pipe: the C++ example could not be built (${(error as Error).message.split('\n')[0]}); install g++, make, protobuf-compiler and libprotobuf-dev`);
+    return null;
+  }
+}
+
+interface ProgramRound {
+  pipeP50Us: number | null;
+  pipeP99Us: number | null;
+  serviceP50Us: number | null;
+  serviceP99Us: number | null;
+  roundTripP50Us: number | null;
+  eventsPerSecond: number;
+  load: number | null;
+}
+
+/** One run whose figures count only if every event was answered. */
+async function timedRun(options: RunOptions): Promise<RunSummary> {
+  const summary = await runEvents(options);
+  const { read, ok, failed, invalid } = summary.events;
+  if (ok !== read) throw new Error(`bench: ${failed} failed and ${invalid} invalid of ${read} events`);
+  return summary;
+}
+
+function programRound(summary: RunSummary): ProgramRound {
+  const { latency } = summary;
+  return {
+    pipeP50Us: latency.pipe?.p50_us ?? null, pipeP99Us: latency.pipe?.p99_us ?? null,
+    serviceP50Us: latency.service.p50_us, serviceP99Us: latency.service.p99_us,
+    roundTripP50Us: latency.roundTrip?.p50_us ?? null,
+    eventsPerSecond: summary.throughput.eventsPerSecond, load: summary.machineLoad?.loadAverageStart ?? null,
+  };
+}
+
+function describeRound(what: string, round: ProgramRound): string {
+  return `${what}: pipe's cost p50 ${us(round.pipeP50Us)} µs, p99 ${us(round.pipeP99Us)} µs; ` +
+    `own time p50 ${us(round.serviceP50Us)} µs, p99 ${us(round.serviceP99Us)} µs; round trip p50 ${us(round.roundTripP50Us)} µs; ` +
+    `${round.eventsPerSecond.toFixed(0)} events/s; load average ${round.load?.toFixed(1) ?? '—'}`;
+}
+
+const program = buildExample();
+if (program !== null) {
+  const file = join(dir, 'pileup200.events');
+  const meanTowers = writeEvents(file);
+  line(`exec-pipe: ${events} pileup-200 toy events, mean ${meanTowers.toFixed(0)} towers per event; C++ example built in ${dir}`);
+  const base: RunOptions = {
+    input: file, check: { mode: 'none', fraction: 0, seed: 1 }, engine: 'wasm',
+    program: { argv: [program], label: `exec:${program}`, timeoutMs: 60_000, maxRestarts: 0, tolerance: null },
+  };
+
+  // 2. closed loop
+  const closedOne: ProgramRound[] = [];
+  for (let r = 0; r < rounds; r++) {
+    closedOne.push(programRound(await timedRun({ ...base, workers: 1 })));
+    line(describeRound(`closed loop, 1 worker, round ${r + 1}`, closedOne[r]));
+  }
+  const closedTwo = programRound(await timedRun({ ...base, workers: 2 }));
+  line(describeRound('closed loop, 2 workers', closedTwo));
+  results.closedLoop = { events, meanTowers, oneWorkerRounds: closedOne, twoWorkers: closedTwo };
+
+  // 3. open loop at a quarter of one worker's closed-loop rate
+  const rateHz = median(closedOne.map((round) => round.eventsPerSecond)) / 4;
+  const open = programRound(await timedRun({ ...base, workers: 1, arrival: { kind: 'fixed', rateHz } }));
+  line(describeRound(`open loop, 1 worker at ${rateHz.toFixed(1)} Hz`, open));
+  results.openLoop = { rateHz, ...open };
+
+  // 4. the program's own time against the engine's, event by event
+  const programNs = new Map<number, number>();
+  const programSummary = await timedRun({ ...base, workers: 1, onEvent: (event, _towers, serviceNs) => programNs.set(event, serviceNs) });
+  const wasmNs = new Map<number, number>();
+  const wasmSummary = await timedRun({ ...base, program: null, workers: 1, onEvent: (event, _towers, serviceNs) => wasmNs.set(event, serviceNs) });
+  const ratios: number[] = [];
+  for (const [event, ns] of programNs) {
+    const engineNs = wasmNs.get(event);
+    if (engineNs !== undefined && engineNs > 0) ratios.push(ns / engineNs);
+  }
+  const side = {
+    programP50Us: programSummary.latency.service.p50_us, programP99Us: programSummary.latency.service.p99_us,
+    wasmP50Us: wasmSummary.latency.service.p50_us, wasmP99Us: wasmSummary.latency.service.p99_us,
+    medianRatio: median(ratios), pairedEvents: ratios.length,
+    load: [programSummary.machineLoad?.loadAverageStart ?? null, wasmSummary.machineLoad?.loadAverageStart ?? null],
+  };
+  results.serviceSideBySide = side;
+  line(`same events, closed loop, 1 worker: C++ example's own time p50 ${us(side.programP50Us)} µs, p99 ${us(side.programP99Us)} µs; ` +
+    `WASM engine's service p50 ${us(side.wasmP50Us)} µs, p99 ${us(side.wasmP99Us)} µs; C++ / WASM per event, median of ${side.pairedEvents}: ` +
+    `${side.medianRatio.toFixed(1)}×; load average ${side.load.map((x) => x?.toFixed(1) ?? '—').join(', ')}`);
+
+  mkdirSync(new URL('../../bench/results/', import.meta.url), { recursive: true });
+  writeFileSync(new URL('../../bench/results/exec-pipe.json', import.meta.url), JSON.stringify(results, null, 2) + '\n');
+}
+rmSync(dir, { recursive: true, force: true });
