@@ -83,21 +83,23 @@ export function clusterBatch(state: WorkerState, task: BatchTask, hooks: WorkerH
 
 /**
  * Pass 1 alone (decode, validate, bin); finishBatch does the rest. An open-loop worker reads
- * an event before it is due and clusters it when it is (open-loop-serve.ts).
+ * an event before it is due and clusters it when it is (open-loop-serve.ts), into its zeroed
+ * result slot (`into`, event-results.ts); a batch gets a fresh result buffer.
  */
-export function readBatch(state: WorkerState, task: BatchTask): BatchWork {
+export function readBatch(state: WorkerState, task: BatchTask, into?: { buffer: SharedArrayBuffer; byteOffset: number }): BatchWork {
   const { count } = task;
   const { recordStart, data } = batchViews(task.buffer, count, task.dataStart);
-  const buffer = new ArrayBuffer(resultBytes(count));
+  const buffer = into ? into.buffer : new ArrayBuffer(resultBytes(count));
+  const bufferOffset = into ? into.byteOffset : 0;
   const clusterer = state.clusterer!;
   const result: BatchResult = {
-    batchIndex: task.batchIndex, count, engine: clusterer.name, buffer,
+    batchIndex: task.batchIndex, count, engine: clusterer.name, buffer, bufferOffset,
     invalid: [], differences: [], disagreeing: [], sampled: [],
     checked: 0, agreeing: 0, jets: 0,
     towersOffered: 0, towersBelowThreshold: 0, towersOutsideAcceptance: 0,
     jetsBytes: null,
   };
-  const work: BatchWork = { task, recordStart, data, out: resultViews(buffer, count), result, validCount: 0 };
+  const work: BatchWork = { task, recordStart, data, out: resultViews(buffer, count, bufferOffset), result, validCount: 0 };
   readEvents(state, work);
   return work;
 }

@@ -1,11 +1,11 @@
 // The main thread's side of an open-loop run. It reads records, gives each its scheduled arrival
 // (arrivals.ts) and publishes it to the event ring (event-ring.ts) shortly before it is due; the
-// workers claim events from the ring and start each at its arrival (open-loop-serve.ts). One
-// result message per event comes back; results are delivered in input order (RunDelivery), with
-// the event's own times:
+// workers claim events from the ring and start each at its arrival (open-loop-serve.ts). Each
+// result comes back through a slot in shared memory (event-results.ts, open-loop-collect.ts);
+// results are delivered in input order (RunDelivery), with the event's own times:
 //
 //   due ────── wait ──────► start in a worker ── service ──► ... ── return ──► back on this thread
-//   (scheduled arrival)      (after its arrival)  (clustering)                  (message received)
+//   (scheduled arrival)      (after its arrival)  (clustering)          (the main thread has it)
 //   └──────────────────────────────── end-to-end ─────────────────────────────────────────────┘
 //
 // Dispatch lateness, a property of the harness, is taken apart from the events' waiting: for
@@ -20,6 +20,7 @@ import type { RawRecord } from '../input/record-reader.js';
 import type { ArrivalSchedule } from './arrivals.js';
 import { CLAIMED, makeRingBuffers, RingWriter, SLOT_COUNT, WORKER_HOLDS } from './event-ring.js';
 import { sharedClockNs } from './shared-clock.js';
+import { ResultCollector } from './open-loop-collect.js';
 import type { BatchOutcome, BatchPool } from './pool.js';
 import type { RunDelivery } from './run-delivery.js';
 import type { EventMessage, ServeTask } from './worker-contract.js';
@@ -89,11 +90,6 @@ export interface OpenLoopPlan {
   maxRecordBytes: number;
 }
 
-interface Received {
-  message: EventMessage;
-  receivedNs: number;
-}
-
 export class OpenLoopFeed {
   records = 0;
   lastOffset = 0;
@@ -109,7 +105,7 @@ export class OpenLoopFeed {
   /** the delivered event's offset and arrival, reused: delivery reads them before it returns */
   private readonly outcomeOffset = new Float64Array(1);
   private readonly outcomeDue = new Float64Array(1);
-  private readonly pending = new Map<number, Received>();
+  private readonly collector: ResultCollector;
   private delivered = 0;
   private received = 0;
   /** published events due by the latest result's arrival (for the backlog) */
@@ -134,10 +130,13 @@ export class OpenLoopFeed {
     private readonly delivery: RunDelivery,
   ) {
     this.ring = new RingWriter(makeRingBuffers(plan.maxRecordBytes));
+    const control = this.ring.views.control;
+    this.collector = new ResultCollector(delivery.engineName, () => Atomics.load(control, CLAIMED), (ordinal, receivedNs) => this.onResult(ordinal, receivedNs));
   }
 
   /** Starts the serving workers, reads and publishes every event, and waits for every result. */
   async feed(records: AsyncIterable<RawRecord>): Promise<void> {
+    const collecting = this.collector.run();
     for (let w = 0; w < this.plan.workers; w++) this.serve(w);
     this.startNs = sharedClockNs() + START_LEAD_NS;
     try {
@@ -146,7 +145,12 @@ export class OpenLoopFeed {
       this.readingDone = true;
       this.ring.close();
     }
-    while (this.delivered < this.ring.count) await this.nextResult();
+    try {
+      while (this.delivered < this.ring.count) await this.nextResult();
+    } finally {
+      this.collector.stop();
+      await collecting;
+    }
     await Promise.all(this.serving);
     for (const port of this.ports) port.close();
     this.endNs = this.lastReceivedNs || sharedClockNs();
@@ -198,37 +202,34 @@ export class OpenLoopFeed {
   /** Runs one serve task on the pool for worker slot w; if its thread dies, fails its event and serves again. */
   private serve(w: number): void {
     const { port1, port2 } = new MessageChannel();
-    port1.on('message', (message: EventMessage) => this.onMessage(message));
+    port1.on('message', (message: EventMessage) => this.collector.onMessage(message));
     this.ports.push(port1);
-    const task: ServeTask = { serve: { ring: this.ring.buffers, workerIndex: w, port: port2 } };
+    const task: ServeTask = { serve: { ring: this.ring.buffers, results: this.collector.slots.buffers, workerIndex: w, port: port2 } };
     this.serving.push(this.pool.runTask(task, [port2]).then(
       () => undefined,
       (error: unknown) => {
         const held = Atomics.load(this.ring.views.control, WORKER_HOLDS + w) - 1;
         Atomics.store(this.ring.views.control, WORKER_HOLDS + w, 0);
         const reason = error instanceof Error ? (error.message.split('\n')[0] || error.name) : String(error);
-        if (held >= this.delivered && !this.pending.has(held)) {
-          this.onMessage({ ordinal: held, startNs: sharedClockNs(), claimedEarly: false, result: null, failure: reason });
+        if (held >= this.delivered && !this.collector.isComplete(held)) {
+          this.collector.failHeld({ ordinal: held, startNs: sharedClockNs(), claimedEarly: false, result: null, failure: reason });
         }
         if (!this.readingDone || Atomics.load(this.ring.views.control, CLAIMED) < this.ring.count) this.serve(w);
       },
     ));
   }
 
-  private onMessage(message: EventMessage): void {
-    const receivedNs = sharedClockNs();
-    if (message.ordinal < this.delivered || this.pending.has(message.ordinal)) return;
-    this.pending.set(message.ordinal, { message, receivedNs });
+  /** One event's result complete on this thread (ResultCollector): delivered in input order. */
+  private onResult(ordinal: number, receivedNs: number): void {
+    if (ordinal < this.delivered) return;
     this.received++;
     this.lastReceivedNs = receivedNs;
     if (this.dueSeen < this.delivered) this.dueSeen = this.delivered;
     while (this.dueSeen < this.ring.count && this.dueOf[this.dueSeen % SLOT_COUNT] <= receivedNs) this.dueSeen++;
     this.backlogLine.add(this.dueSeen - this.received);
-    while (this.pending.has(this.delivered)) {
-      const next = this.pending.get(this.delivered)!;
-      this.pending.delete(this.delivered);
+    while (this.delivered < this.ring.count && this.collector.isComplete(this.delivered)) {
       try {
-        this.deliver(next);
+        this.deliver(this.delivered);
       } catch (error) {
         this.deliverError ??= error;
       }
@@ -239,8 +240,10 @@ export class OpenLoopFeed {
     wake?.();
   }
 
-  private deliver({ message, receivedNs }: Received): void {
-    const slot = message.ordinal % SLOT_COUNT;
+  private deliver(ordinal: number): void {
+    const message = this.collector.take(ordinal);
+    const slot = ordinal % SLOT_COUNT;
+    const receivedNs = this.collector.receivedAt[slot];
     const fit = this.fit;
     const x = message.ordinal;
     const y = receivedNs - this.startNs;

@@ -5,12 +5,15 @@
 //      when the worker is idle early, so the file's format costs the event nothing
 //   -> wait for its scheduled arrival: sleep (Atomics.wait) until SPIN_BEFORE_DUE_NS before
 //      it, then spin; timed sleeps wake tens of µs late, a spin within a µs
-//   -> start: cluster and encode (cluster-batch.ts), post the result to the main thread
-// The thread never returns to its event loop while serving: results go out by postMessage,
-// which needs none, and no timer of any event loop decides when an event starts.
+//   -> start: cluster and encode (cluster-batch.ts) into the event's result slot in shared
+//      memory (event-results.ts), mark it done and wake the main thread; a message follows
+//      only for what a slot cannot hold (an invalid event's reason, jets bytes, ...)
+// The thread never returns to its event loop while serving (postMessage needs none), and no
+// timer of any event loop decides when an event starts. One input buffer serves every event.
 
 import type { MessagePort } from 'node:worker_threads';
 import { claimNext, copyRecord, DATA_LENGTH, DUE_NS, RECORD_OFFSET, ringViews, SLOT_COUNT, SLOT_FIELDS, WORKER_HOLDS } from './event-ring.js';
+import { needsExtras, ResultSlots } from './event-results.js';
 import { finishBatch, readBatch, type WorkerHooks, type WorkerState } from './cluster-batch.js';
 import { sharedClockNs } from './shared-clock.js';
 import { batchDataStart, batchViews, type BatchResult, type BatchTask, type EventMessage, type ServeTask } from './worker-contract.js';
@@ -37,10 +40,17 @@ export function describeFailure(error: unknown): string {
 /** One worker's hold on the ring: its views, its hold word and its sleeper. */
 export interface RingSeat {
   views: ReturnType<typeof ringViews>;
+  results: ResultSlots;
   holds: number;
   sleeper: Int32Array;
   dataStart: number;
   port: MessagePort;
+  /** the input buffer every claimed event is copied into, grown to the largest record */
+  input: ArrayBuffer;
+  /** the claimed event, one object reused: valid until the next claim */
+  claimed: ClaimedEvent;
+  /** the engine name last sent to the main thread (a result with another one goes with a message) */
+  engineSent: string | null;
 }
 
 /** Takes a seat at the ring; the worker state is made ready for batches of one event. */
@@ -49,8 +59,18 @@ export function takeRingSeat(state: WorkerState, serve: ServeTask['serve']): Rin
     state.validEvent = new Int32Array(1);
     state.batchStart = new Int32Array(2);
   }
-  return { views: ringViews(serve.ring), holds: WORKER_HOLDS + serve.workerIndex, sleeper: new Int32Array(new SharedArrayBuffer(4)), dataStart: batchDataStart(1), port: serve.port };
+  const dataStart = batchDataStart(1);
+  const input = new ArrayBuffer(dataStart + INPUT_BYTES_INITIAL);
+  return {
+    views: ringViews(serve.ring), results: new ResultSlots(serve.results), holds: WORKER_HOLDS + serve.workerIndex,
+    sleeper: new Int32Array(new SharedArrayBuffer(4)), dataStart, port: serve.port, input,
+    claimed: { ordinal: 0, dueNs: 0, task: { batchIndex: 0, count: 1, dataStart, buffer: input }, claimedEarly: false },
+    engineSent: null,
+  };
 }
+
+/** the input buffer's first size for a record; it grows to the largest record */
+const INPUT_BYTES_INITIAL = 64 << 10;
 
 export interface ClaimedEvent {
   ordinal: number;
@@ -61,7 +81,10 @@ export interface ClaimedEvent {
   claimedEarly: boolean;
 }
 
-/** Claims the next event and copies its record out; null once the ring is closed and empty. */
+/**
+ * Claims the next event and copies its record into the seat's input buffer; null once the ring
+ * is closed and empty. The returned object and its buffer are the seat's, valid until the next claim.
+ */
 export function claimRingEvent(seat: RingSeat): ClaimedEvent | null {
   const { control, slots } = seat.views;
   const ordinal = claimNext(control);
@@ -70,21 +93,36 @@ export function claimRingEvent(seat: RingSeat): ClaimedEvent | null {
   const at = (ordinal % SLOT_COUNT) * SLOT_FIELDS;
   const dueNs = slots[at + DUE_NS];
   const length = slots[at + DATA_LENGTH];
-  const buffer = new ArrayBuffer(seat.dataStart + length);
-  const batch = batchViews(buffer, 1, seat.dataStart);
+  if (seat.dataStart + length > seat.input.byteLength) seat.input = new ArrayBuffer(2 * (seat.dataStart + length));
+  const batch = batchViews(seat.input, 1, seat.dataStart);
   batch.recordOffset[0] = slots[at + RECORD_OFFSET];
   batch.recordStart[0] = 0;
   batch.recordStart[1] = length;
   copyRecord(seat.views, ordinal, batch.data);
-  const claimedEarly = sharedClockNs() < dueNs;
-  return { ordinal, dueNs, task: { batchIndex: ordinal, count: 1, dataStart: seat.dataStart, buffer }, claimedEarly };
+  const claimed = seat.claimed;
+  claimed.ordinal = ordinal;
+  claimed.dueNs = dueNs;
+  claimed.task.batchIndex = ordinal;
+  claimed.task.buffer = seat.input;
+  claimed.claimedEarly = sharedClockNs() < dueNs;
+  return claimed;
 }
 
-/** Posts an event's outcome to the main thread (its buffers moved) and lets go of the event. */
+/**
+ * Puts an event's outcome in its result slot and lets go of the event; what the slot cannot
+ * hold goes first as a message (its jets bytes, and a result buffer of its own, moved).
+ */
 export function postRingOutcome(seat: RingSeat, message: EventMessage): void {
   const result = message.result;
-  const transfer = result ? (result.jetsBytes ? [result.buffer, result.jetsBytes.buffer as ArrayBuffer] : [result.buffer]) : [];
-  seat.port.postMessage(message, transfer);
+  const extras = needsExtras(result, seat.engineSent);
+  if (extras) {
+    const transfer: ArrayBuffer[] = [];
+    if (result && result.buffer instanceof ArrayBuffer) transfer.push(result.buffer);
+    if (result?.jetsBytes) transfer.push(result.jetsBytes.buffer as ArrayBuffer);
+    seat.port.postMessage(message, transfer);
+    if (result) seat.engineSent = result.engine;
+  }
+  seat.results.write(message.ordinal, message.startNs, message.claimedEarly, result, extras);
   Atomics.store(seat.views.control, seat.holds, 0);
 }
 
@@ -101,7 +139,7 @@ export function serveRing(state: WorkerState, serve: ServeTask['serve'], hooks: 
     let startNs = 0;
     try {
       ensureClusterer(state);
-      const work = readBatch(state, event.task);
+      const work = readBatch(state, event.task, seat.results.clear(ordinal));
       waitUntil(event.dueNs, seat.sleeper);
       startNs = sharedClockNs();
       const result: BatchResult = finishBatch(state, work, hooks);

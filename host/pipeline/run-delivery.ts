@@ -112,7 +112,7 @@ export class RunDelivery {
   private tallyEvents(outcome: BatchOutcome, result: BatchResult): void {
     const { tally } = this;
     const { label, openLoop, budgetNs } = this.context;
-    const views = resultViews(result.buffer, outcome.count);
+    const views = resultViews(result.buffer, outcome.count, result.bufferOffset ?? 0);
     // most batches (every open-loop event) have no invalid events: no map for them
     let invalidReasons: Map<number, string> | null = null;
     if (result.invalid.length > 0) {
@@ -213,7 +213,7 @@ export class RunDelivery {
       this.problem(`${this.context.label}, records ${outcome.firstRecord}.., byte ${outcome.recordOffsets[0]}: check failed: ${outcome.failure}`);
       return;
     }
-    const views = resultViews(result.buffer, outcome.count);
+    const views = resultViews(result.buffer, outcome.count, result.bufferOffset ?? 0);
     for (let k = 0; k < outcome.count; k++) {
       const checkNs = views.stageNs[k * STAGE_COUNT + STAGE_CHECK];
       if (views.status[k] === STATUS_OK && checkNs > 0) this.tally.stages.check.recordNs(checkNs);

@@ -25,6 +25,7 @@ import type { JetDifference } from '../validate/bit-exact.js';
 import type { ClusterSettings, Grid, GroomingSettings, PileupSettings } from '../types.js';
 import type { MessagePort } from 'node:worker_threads';
 import type { RingBuffers } from './event-ring.js';
+import type { ResultBuffers } from './event-results.js';
 import type { ExecBatchFigures, ExecWorkerConfig } from './exec-run-contract.js';
 
 // ---- the stage table: one column per stage of an event's way through the worker ----------
@@ -104,7 +105,10 @@ export interface BatchResult {
   batchIndex: number;
   count: number;
   engine: string;
-  buffer: ArrayBuffer;
+  /** a transferred buffer; in an open loop, the event's result slot (event-results.ts) */
+  buffer: ArrayBuffer | SharedArrayBuffer;
+  /** where the result buffer starts in `buffer` (0 when absent) */
+  bufferOffset?: number;
   invalid: InvalidEntry[];
   differences: (JetDifference & { event: number })[];
   /** the record bytes of each disagreeing event, for a repro file */
@@ -131,13 +135,18 @@ export interface BatchResult {
 export interface ServeTask {
   serve: {
     ring: RingBuffers;
+    /** where each event's result goes (event-results.ts) */
+    results: ResultBuffers;
     /** this worker's place in the ring's WORKER_HOLDS table */
     workerIndex: number;
     port: MessagePort;
   };
 }
 
-/** Worker -> host, one per open-loop event, on the serve task's port. */
+/**
+ * Worker -> host, per open-loop event: its result slot (event-results.ts), and this message on
+ * the serve task's port only for a result the slot cannot hold whole.
+ */
 export interface EventMessage {
   /** the event's place in the run's open-loop order */
   ordinal: number;
@@ -167,9 +176,9 @@ export function resultBytes(count: number): number {
   return 8 * count + 8 * count * STAGE_COUNT + 4 * count + count;
 }
 
-/** Views into a result buffer (the worker fills them, the host reads them). */
-export function resultViews(buffer: ArrayBuffer, count: number) {
-  let at = 0;
+/** Views into a result buffer starting at byteOffset (the worker fills them, the host reads them). */
+export function resultViews(buffer: ArrayBufferLike, count: number, byteOffset = 0) {
+  let at = byteOffset;
   const eventNumber = new Float64Array(buffer, at, count); at += 8 * count;
   const stageNs = new Float64Array(buffer, at, count * STAGE_COUNT); at += 8 * count * STAGE_COUNT;
   const towersClustered = new Int32Array(buffer, at, count); at += 4 * count;

@@ -1,0 +1,109 @@
+// The main thread's side of the open loop's way back (event-results.ts): it waits on the slots'
+// WRITTEN word with Atomics.waitAsync (no thread hop beyond the main thread's own wake-up),
+// looks at the slots of the events claimed and not yet complete, and takes each event's time
+// of return as the moment the whole result is on this thread: its slot seen done and, when a
+// message carries the rest, that message received.
+
+import { SLOT_COUNT } from './event-ring.js';
+import { makeResultBuffers, ResultSlots, WRITTEN } from './event-results.js';
+import { sharedClockNs } from './shared-clock.js';
+import type { EventMessage } from './worker-contract.js';
+
+/** Atomics.waitAsync (ES2024; the project's TypeScript lib predates it, Node has it). */
+type WaitAsync = (array: Int32Array, index: number, value: number, timeoutMs: number) =>
+  { async: false; value: string } | { async: true; value: Promise<string> };
+const waitAsync = (Atomics as unknown as { waitAsync: WaitAsync }).waitAsync;
+
+/** How long one wait lasts at most (ms), so a stopped collector is never stuck. */
+const WAIT_MS = 100;
+
+export class ResultCollector {
+  readonly slots = new ResultSlots(makeResultBuffers());
+  /** when each slot's event became complete here (shared clock ns) */
+  readonly receivedAt = new Float64Array(SLOT_COUNT);
+  /** ordinal + 1 of the event each slot holds complete here */
+  private readonly completeOrdinal = new Float64Array(SLOT_COUNT);
+  /** messages of results a slot does not hold whole, by ordinal, until delivered */
+  private readonly extras = new Map<number, EventMessage>();
+  private readonly reusable = this.slots.reusableMessage();
+  /** lowest ordinal that may still be incomplete */
+  private scanFrom = 0;
+  private stopped = false;
+
+  /**
+   * `claimed()`: events claimed by workers so far (results exist for those only);
+   * `onComplete`: called once per event, when its result is complete here.
+   */
+  constructor(
+    private engine: string,
+    private readonly claimed: () => number,
+    private readonly onComplete: (ordinal: number, receivedNs: number) => void,
+  ) {}
+
+  isComplete(ordinal: number): boolean {
+    return this.completeOrdinal[ordinal % SLOT_COUNT] === ordinal + 1;
+  }
+
+  /** Waits for results and completes them until stop(). */
+  async run(): Promise<void> {
+    const flags = this.slots.flags;
+    while (!this.stopped) {
+      const written = Atomics.load(flags, WRITTEN);
+      this.scan();
+      if (this.stopped) break;
+      const waiting = waitAsync(flags, WRITTEN, written, WAIT_MS);
+      if (waiting.async) await waiting.value;
+    }
+  }
+
+  stop(): void {
+    this.stopped = true;
+    Atomics.notify(this.slots.flags, WRITTEN);
+  }
+
+  /** A message from a worker: the part of a result its slot does not hold. */
+  onMessage(message: EventMessage): void {
+    if (this.isComplete(message.ordinal) || this.extras.has(message.ordinal)) return;
+    this.extras.set(message.ordinal, message);
+    if (message.result) this.engine = message.result.engine;
+    if (this.slots.isDone(message.ordinal)) this.complete(message.ordinal);
+  }
+
+  /** An event whose worker's thread died holding it: it completes with this failure. */
+  failHeld(message: EventMessage): void {
+    if (this.isComplete(message.ordinal)) return;
+    this.extras.set(message.ordinal, message);
+    this.complete(message.ordinal);
+  }
+
+  /**
+   * The complete event's outcome, once, at its delivery: its message, or one made from its
+   * slot (an object reused from event to event: delivery reads it before it returns).
+   */
+  take(ordinal: number): EventMessage {
+    const message = this.extras.get(ordinal);
+    if (message) {
+      this.extras.delete(ordinal);
+      return message;
+    }
+    return this.slots.read(ordinal, this.reusable, this.engine);
+  }
+
+  private scan(): void {
+    const claimed = this.claimed();
+    const { slots } = this;
+    for (let ordinal = this.scanFrom; ordinal < claimed; ordinal++) {
+      if (this.isComplete(ordinal) || !slots.isDone(ordinal)) continue;
+      if (!slots.hasExtras(ordinal) || this.extras.has(ordinal)) this.complete(ordinal);
+    }
+    while (this.scanFrom < claimed && this.isComplete(this.scanFrom)) this.scanFrom++;
+  }
+
+  private complete(ordinal: number): void {
+    const slot = ordinal % SLOT_COUNT;
+    const receivedNs = sharedClockNs();
+    this.completeOrdinal[slot] = ordinal + 1;
+    this.receivedAt[slot] = receivedNs;
+    this.onComplete(ordinal, receivedNs);
+  }
+}
