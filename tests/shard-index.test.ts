@@ -52,9 +52,9 @@ describe('jetlag index', () => {
 
   it('is taken by a run of a shard, and not by a run of the whole file', async () => {
     const source = () => openEventSource(file.path);
-    const shard = await shardInput({ input: file.path }, { batch: 4, shard: { index: 1, count: 3 } }, await source(), false);
+    const shard = await shardInput({ input: file.path }, { batch: 4, shard: { index: 1, count: 3 } }, await source());
     expect(shard.recordsInFile).toBe(50);
-    const whole = await shardInput({ input: file.path }, { batch: 4, shard: { index: 0, count: 1 } }, await source(), false);
+    const whole = await shardInput({ input: file.path }, { batch: 4, shard: { index: 0, count: 1 } }, await source());
     expect(whole.recordsInFile).toBeNull();
     for (const input of [shard, whole]) for await (const record of input.records) void record; // let go of the files
   });

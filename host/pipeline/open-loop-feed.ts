@@ -162,8 +162,10 @@ export class OpenLoopFeed {
     try {
       for await (const record of records) {
         if (signal?.aborted) { this.partialReason = 'interrupted: reading stopped, events in flight drained'; break; }
-        if (maxEvents != null && this.records >= maxEvents) break;
-        const record0 = this.records++;
+        // a shard read through a record index gets only its own records, each with its place in the file
+        const record0 = record.recordNumber ?? this.records;
+        if (maxEvents != null && record0 >= maxEvents) break;
+        this.records = record0 + 1;
         this.lastOffset = record.offset;
         if (Math.floor(record0 / batch) % shard.count !== shard.index) continue;
         await this.publish(record, record0);

@@ -41,7 +41,7 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const schedule = new ArrivalSchedule(plan.arrival);
   const source = await openEventSource(options.input, { fileLabel: plan.label, grid: options.grid, maxEventGap: options.maxEventGap, inflate: options.inflate });
   // a shard of a plain event file with a record index reads only its own batches
-  const input = await shardInput(options, plan, source, schedule.openLoop);
+  const input = await shardInput(options, plan, source);
   const grid: Grid = source.header.grid;
   const program = options.program ?? null;
   if (program !== null && (plan.pileup || plan.grooming)) throw new UsageError('run: --engine exec: clusters only; the pileup steps, --trim and --softdrop run on the wasm engine or the reference');
@@ -75,15 +75,16 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   let wallSeconds = 0;
   progress.start();
   const machineLoad = new MachineLoadProbe();
+  // either loop: an index counts the records of the whole file, of which a shard saw only its own
   try {
     if (feed instanceof OpenLoopFeed) {
       await feed.feed(input.records);
+      if (input.recordsInFile !== null && feed.partialReason === null) feed.records = input.recordsInFile;
       wallSeconds = Math.max(0, feed.endNs - feed.startNs) / 1e9;
     } else {
       const startNs = nowNs();
       await feed.feed(input.records);
       await pool.drain();
-      // the index counts the records of the whole file; this shard saw only its own
       if (input.recordsInFile !== null && feed.partialReason === null) feed.records = input.recordsInFile;
       wallSeconds = (nowNs() - startNs) / 1e9;
     }

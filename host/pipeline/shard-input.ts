@@ -1,5 +1,6 @@
 // Which records a run reads: all of the file, or, for a shard of a plain event file with a
-// record index beside it, only the shard's own batches (input/shard-records.ts). Without an
+// record index beside it, only the shard's own batches (input/shard-records.ts), in a closed
+// loop or an open one (whose events keep their place in the file for the schedule). Without an
 // index every shard frames the whole file (and of a gzip file inflates the whole stream) and
 // drops the batches of other shards; shardReadingNote says so once.
 
@@ -20,10 +21,9 @@ interface ShardInputOptions {
   maxRecordBytes?: number;
 }
 
-export async function shardInput(options: ShardInputOptions, plan: { batch: number; shard: { index: number; count: number } }, source: EventSource, openLoop: boolean): Promise<ShardInput> {
+export async function shardInput(options: ShardInputOptions, plan: { batch: number; shard: { index: number; count: number } }, source: EventSource): Promise<ShardInput> {
   const whole = { records: source.records, recordsInFile: null };
-  // an open loop dispatches events at their own arrivals and counts them as read; it reads in full
-  if (plan.shard.count === 1 || openLoop || options.input === '-' || source.format !== 'events-file' || isGzipPath(options.input)) return whole;
+  if (plan.shard.count === 1 || options.input === '-' || source.format !== 'events-file' || isGzipPath(options.input)) return whole;
   const index = readRecordIndex(options.input);
   if (index === null) return whole;
   await source.records.return(undefined);
