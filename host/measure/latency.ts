@@ -14,10 +14,34 @@ import type { Histogram } from 'hdr-histogram-js';
 const SIGNIFICANT_DIGITS = 3;
 const HIGHEST_TRACKABLE_NS = 3600e9;
 
-/** The part of hdr-histogram-js's plain JavaScript histogram that buckets() walks (not in its public type). */
-interface BucketWalk {
-  recordedValuesIterator: { reset(): void; hasNext(): boolean; next(): { valueIteratedTo: number; countAtValueIteratedTo: number } };
+/** The part of hdr-histogram-js's plain JavaScript histogram that recordedBuckets() reads (not in its public type). */
+interface CountsArray {
+  countsArrayLength: number;
+  totalCount: number;
+  getCountAtIndex(index: number): number;
+  valueFromIndex(index: number): number;
   highestEquivalentValue(value: number): number;
+}
+
+/**
+ * The buckets holding values, ascending: each bucket's highest equivalent value and its count,
+ * as the library's recorded-values iterator gives them, read straight off the counts array
+ * (the iterator costs ~100 times more per bucket; a summary walks some thirty histograms).
+ */
+export function recordedBuckets(histogram: Histogram): { valuesNs: number[]; counts: number[] } {
+  const counts = histogram as unknown as CountsArray;
+  const valuesNs: number[] = [];
+  const bucketCounts: number[] = [];
+  const total = counts.totalCount;
+  let seen = 0;
+  for (let index = 0; index < counts.countsArrayLength && seen < total; index++) {
+    const count = counts.getCountAtIndex(index);
+    if (count === 0) continue;
+    seen += count;
+    valuesNs.push(counts.highestEquivalentValue(counts.valueFromIndex(index)));
+    bucketCounts.push(count);
+  }
+  return { valuesNs, counts: bucketCounts };
 }
 
 export interface EncodedLatency {
@@ -85,16 +109,8 @@ export class LatencyRecorder {
    * it (its highest equivalent value, never above the maximum) and how many values it holds.
    */
   buckets(): { valuesNs: Float64Array; counts: Float64Array } {
-    const valuesNs: number[] = [];
-    const counts: number[] = [];
-    const histogram = this.histogram as unknown as BucketWalk;
-    const iterator = histogram.recordedValuesIterator;
-    iterator.reset();
-    while (iterator.hasNext()) {
-      const step = iterator.next();
-      valuesNs.push(Math.min(histogram.highestEquivalentValue(step.valueIteratedTo), this.maxNs));
-      counts.push(step.countAtValueIteratedTo);
-    }
+    const { valuesNs, counts } = recordedBuckets(this.histogram);
+    for (let k = 0; k < valuesNs.length; k++) valuesNs[k] = Math.min(valuesNs[k], this.maxNs);
     return { valuesNs: Float64Array.from(valuesNs), counts: Float64Array.from(counts) };
   }
 

@@ -13,7 +13,7 @@
 
 import hdr from 'hdr-histogram-js';
 import type { JsHistogram } from 'hdr-histogram-js';
-import type { EncodedLatency } from './latency.js';
+import { recordedBuckets, type EncodedLatency } from './latency.js';
 
 export const BINS_PER_DECADE = 20;
 export const PLAIN_PERCENTILES = [1, 5, 10, 25, 50, 75, 90, 95, 99, 99.5, 99.9, 99.99, 100] as const;
@@ -41,14 +41,12 @@ export function plainHistogram(encoded: EncodedLatency): PlainHistogram {
     plain.percentiles.push({ percentile, us: ns / 1000 });
   }
   const counts = new Map<number, number>();
-  const iterator = histogram.recordedValuesIterator;
-  iterator.reset();
-  while (iterator.hasNext()) {
-    const step = iterator.next();
-    const valueUs = Math.min(step.valueIteratedTo, encoded.maxNs) / 1000;
+  const buckets = recordedBuckets(histogram);
+  for (let k = 0; k < buckets.valuesNs.length; k++) {
+    const valueUs = Math.min(buckets.valuesNs[k], encoded.maxNs) / 1000;
     // values below 1 ns (0) go to the lowest bin of a nanosecond
     const bin = Math.floor(Math.log10(Math.max(valueUs, 1e-3)) * BINS_PER_DECADE + 1e-9);
-    counts.set(bin, (counts.get(bin) ?? 0) + step.countAtValueIteratedTo);
+    counts.set(bin, (counts.get(bin) ?? 0) + buckets.counts[k]);
   }
   for (const bin of [...counts.keys()].sort((a, b) => a - b)) {
     plain.bins.push({ lowUs: edgeUs(bin), highUs: edgeUs(bin + 1), count: counts.get(bin)! });
