@@ -8,8 +8,9 @@
 // but no byte, are listed apart.
 //
 // API
-//   runProcessCampaign({ seed, count, concurrency?, boundMs?, cli?, onCase? }): Promise<ProcessTally>
-//     case k uses seed and k only: a finding is reproduced by its seed and case number
+//   runProcessCampaign({ seed, count, first?, concurrency?, boundMs?, cli?, onCase? }): Promise<ProcessTally>
+//     case k uses seed and k only: a finding is reproduced by its seed and case number, and
+//     runs of cases [first, first + count) add up to one run over all of them
 //   formatProcessTally(tally): string        the table `npm run fuzz -- --processes N` prints
 
 import { spawn } from 'node:child_process';
@@ -79,6 +80,8 @@ export interface ProcessTally {
 export interface ProcessCampaignOptions {
   seed: number;
   count: number;
+  /** the first case number (default 0) */
+  first?: number;
   /** processes at a time (default 2) */
   concurrency?: number;
   /** a process running longer is killed and counted a crash (default 30000 ms) */
@@ -162,9 +165,10 @@ export async function runProcessCampaign(options: ProcessCampaignOptions): Promi
   writeFileSync(valid.events, seeds.get('event file')!.bytes);
   writeFileSync(valid.jets, seeds.get('jets file')!.bytes);
   writeFileSync(valid.summary, seeds.get('run summary')!.bytes);
-  let next = 0;
+  let next = options.first ?? 0;
+  const end = next + options.count;
   const worker = async (): Promise<void> => {
-    while (next < options.count) {
+    while (next < end) {
       const caseNumber = next++;
       const random = makeRandom(mix32(options.seed * 0x85ebca6b + caseNumber));
       const target = TARGETS[Math.floor(random() * TARGETS.length)];
