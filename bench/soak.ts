@@ -93,14 +93,15 @@ async function soak(options: SoakOptions): Promise<number> {
   const endToEnd = Array.from({ length: 10 }, () => new LatencyRecorder());
   let observed = 0;
   const problems: string[] = [];
-  const samples: { tSeconds: number; rssMiB: number; heapUsedMiB: number; eventsDone: number; bytesStreamed: number; load1: number }[] = [];
+  const samples: { tSeconds: number; rssMiB: number; heapUsedMiB: number; externalMiB: number; eventsDone: number; bytesStreamed: number; load1: number }[] = [];
   const baselineRssMiB = process.memoryUsage.rss() / MiB;
   const startMs = Date.now();
   const sample = () => {
     const memory = process.memoryUsage();
-    const s = { tSeconds: (Date.now() - startMs) / 1000, rssMiB: memory.rss / MiB, heapUsedMiB: memory.heapUsed / MiB, eventsDone: observed, bytesStreamed: stream.bytes, load1: loadavg()[0] };
+    // heap: this thread's JavaScript heap; external: memory held outside it, array buffers included
+    const s = { tSeconds: (Date.now() - startMs) / 1000, rssMiB: memory.rss / MiB, heapUsedMiB: memory.heapUsed / MiB, externalMiB: memory.external / MiB, eventsDone: observed, bytesStreamed: stream.bytes, load1: loadavg()[0] };
     samples.push(s);
-    line(`  t ${s.tSeconds.toFixed(0).padStart(5)} s  RSS ${s.rssMiB.toFixed(1).padStart(6)} MiB  heap ${s.heapUsedMiB.toFixed(1).padStart(5)} MiB  ` +
+    line(`  t ${s.tSeconds.toFixed(0).padStart(5)} s  RSS ${s.rssMiB.toFixed(1).padStart(6)} MiB  heap ${s.heapUsedMiB.toFixed(1).padStart(5)} MiB  external ${s.externalMiB.toFixed(1).padStart(5)} MiB  ` +
       `events ${String(s.eventsDone).padStart(8)}  streamed ${(s.bytesStreamed / 2 ** 30).toFixed(2)} GiB  load ${s.load1.toFixed(2)}`);
   };
   const sampler = setInterval(sample, options.sampleSeconds * 1000);
