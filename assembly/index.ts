@@ -23,6 +23,8 @@ import { STATUS_OK, REGION_ETA_CENTRE, REGION_SINH_ETA, REGION_COSH_ETA, REGION_
 export * from './shared-constants';
 // grooming of large-R jets by an instance set up for it (grooming.ts)
 export { configureGroomer, groomBatch, groomRegion } from './grooming';
+// the pileup chain's ghost-filled grid, made in the engine (ghost-grid.ts)
+export { clusterGhostGrid } from './ghost-grid';
 
 // @ts-ignore: decorator
 @external("env", "clock.nowNs")

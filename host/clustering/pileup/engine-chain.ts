@@ -2,27 +2,28 @@
 // The engine's pileup chain (clustering-spec.md part two, sections 8-10), bit for bit the
 // reference's (chain.ts) but on flat arrays reserved once per chain:
 //   threshold -> SoftKiller -> ghosts -> WebAssembly clustering -> areas, ρ, subtraction -> ptMin
-// Ghosts are towers, so the engine clusters the ghost-filled grid as it is; the steps around it
-// are a few passes over the event's towers or the grid's cells, cheap beside the clustering.
-// The last steps, from the engine's final jets to the reported ones, are in engine-jets.ts.
+// Ghosts are towers: with areas (and for the kt estimator of ρ) the engine makes the
+// ghost-filled grid itself from the real towers (ghost-grid-engine.ts) and the chain reads its
+// jets in place; the steps around it are a few passes over the event's towers or the grid's
+// cells, cheap beside the clustering. The last steps, from the engine's final jets to the
+// reported ones, are in engine-jets.ts.
 //
 // Layout (C = grid cells, P = patches of the SoftKiller or ρ layout):
 //   cellEt f64[C]       et of the real tower in each cell this event, 0 where none (so that a
 //                       patch sum may add every cell: adding +0 changes no sum's bits)
 //   cellReal u8[C]      1 while the cell holds a real tower (after threshold and SoftKiller)
 //   realCells i32[C]    the cells holding real towers, realCount of them, in input order
-//   inputIndex i32[C]   inputEt f64[C]    the clustering's input: real towers, and ghosts with
-//                       areas (then inputIndex is 0..C-1 once and for all)
-//   ktIndex i32[C]      ktEt f64[C]       the kt-ρ clustering's ghost-filled input without areas
+//   inputIndex i32[C]   inputEt f64[C]    the clustering's input without areas: the real towers
 //   patchValue f64[P]   per patch: SoftKiller's maxima, then ρ's sums and densities
 //   median f64[C]       sort scratch for a median (P <= C values, or kt jets <= C)
 
-import { MIN_ET } from '../grid.js';
-import { ENGINE_INDEX_OUTSIDE, ENGINE_INDEX_REPEATED, ENGINE_OK } from '../engine-module.js';
+import { MIN_ET, makeGridTables } from '../grid.js';
+import { ENGINE_INDEX_OUTSIDE, ENGINE_INDEX_REPEATED, ENGINE_OK, loadEngineModule } from '../engine-module.js';
 import { WasmClusterer } from '../engine.js';
 import type { ClusterSettings, Clusterer, Grid, JetSet, PileupSettings, RhoEstimator } from '../../types.js';
 import { rhoEstimatorOf } from './chain.js';
 import { ReportedJets } from './engine-jets.js';
+import { GhostGridEngine } from './ghost-grid-engine.js';
 import { cellAreaOf, makePatchLayout, type PatchLayout } from './patches.js';
 import { checkPileupSettings } from './settings.js';
 
@@ -56,8 +57,10 @@ export class EnginePileupClusterer implements Clusterer {
   private readonly cellCount: number;
   private readonly cellArea: number;
   private readonly rho: RhoEstimator | null;
-  private readonly clusterer: WasmClusterer;
-  private readonly ktClusterer: WasmClusterer | null;
+  /** the clustering without areas, and with them */
+  private readonly clusterer: WasmClusterer | null;
+  private readonly ghostClusterer: GhostGridEngine | null;
+  private readonly ktClusterer: GhostGridEngine | null;
   private readonly softKillerPatches: PatchLayout | null;
   private readonly rhoPatches: PatchLayout | null;
 
@@ -68,8 +71,6 @@ export class EnginePileupClusterer implements Clusterer {
   private readonly realCells: Int32Array;
   private readonly inputIndex: Int32Array;
   private readonly inputEt: Float64Array;
-  private readonly ktIndex: Int32Array;
-  private readonly ktEt: Float64Array;
   private readonly inputStart = new Int32Array(2);
   private readonly patchValue: Float64Array;
   private readonly median: Float64Array;
@@ -83,9 +84,13 @@ export class EnginePileupClusterer implements Clusterer {
     this.cellCount = grid.etaBins * grid.phiBins;
     this.cellArea = cellAreaOf(grid);
     // the engine sees towers already past the threshold, and every final jet (ptMin comes last)
-    this.clusterer = new WasmClusterer(grid, { ...settings, ptMin: 0, threshold: 0 }, options);
+    const module = options.module ?? loadEngineModule(options.debug ?? false);
+    const tables = makeGridTables(grid);
+    const engineSettings = { ...settings, ptMin: 0, threshold: 0 };
+    this.clusterer = pileup.areas ? null : new WasmClusterer(grid, engineSettings, { module });
+    this.ghostClusterer = pileup.areas ? new GhostGridEngine(tables, engineSettings, pileup.ghostEt, module) : null;
     this.ktClusterer = this.rho?.kind === 'kt'
-      ? new WasmClusterer(grid, { p: 1, radius: this.rho.radius, ptMin: 0, threshold: 0, recombination: 'e' }, options)
+      ? new GhostGridEngine(tables, { p: 1, radius: this.rho.radius, ptMin: 0, threshold: 0, recombination: 'e' }, pileup.ghostEt, module)
       : null;
     this.softKillerPatches = pileup.softKiller ? makePatchLayout(grid, pileup.softKiller) : null;
     this.rhoPatches = this.rho?.kind === 'patches' ? makePatchLayout(grid, this.rho.patch) : null;
@@ -96,13 +101,8 @@ export class EnginePileupClusterer implements Clusterer {
     this.cellEt = new Float64Array(cells);
     this.cellReal = new Uint8Array(cells);
     this.realCells = new Int32Array(cells);
-    this.inputIndex = new Int32Array(cells);
-    this.inputEt = new Float64Array(cells);
-    if (pileup.areas) for (let t = 0; t < cells; t++) this.inputIndex[t] = t;
-    const ktSeparate = this.ktClusterer !== null && !pileup.areas;
-    this.ktIndex = new Int32Array(ktSeparate ? cells : 0);
-    this.ktEt = new Float64Array(ktSeparate ? cells : 0);
-    for (let t = 0; t < this.ktIndex.length; t++) this.ktIndex[t] = t;
+    this.inputIndex = new Int32Array(pileup.areas ? 0 : cells);
+    this.inputEt = new Float64Array(pileup.areas ? 0 : cells);
     this.patchValue = new Float64Array(patches);
     this.median = new Float64Array(Math.max(patches, cells));
   }
@@ -116,7 +116,7 @@ export class EnginePileupClusterer implements Clusterer {
 
   /** Towers from..to of the arrays as one event; null with `status` set for a bad index. */
   clusterEvent(towerIndex: Int32Array, towerEt: Float64Array, from: number, to: number): JetSet | null {
-    const { cellEt, cellReal, realCells, pileup } = this;
+    const { cellEt, cellReal, realCells } = this;
     const cells = this.cellCount;
     const stageNs = this.stageNs;
     stageNs.fill(0);
@@ -167,19 +167,11 @@ export class EnginePileupClusterer implements Clusterer {
       clock = this.lap(STAGE_SOFTKILLER, clock);
     }
 
-    // the clustering's input: real towers (the engine orders them), and with areas a ghost on
-    // every other cell
-    let inputCount = 0;
-    if (pileup.areas) {
-      for (let t = 0; t < cells; t++) this.inputEt[t] = cellReal[t] === 1 ? cellEt[t] : pileup.ghostEt;
-      inputCount = cells;
-    } else {
-      for (let k = 0; k < realCount; k++) {
-        this.inputIndex[k] = realCells[k];
-        this.inputEt[k] = cellEt[realCells[k]];
-      }
-      inputCount = realCount;
-    }
+    // the clustering's input: the real towers (the engine orders them; with areas it puts a
+    // ghost on every other cell)
+    const ghosts = this.ghostClusterer;
+    if (ghosts) this.writeRealTowers(ghosts.realIndex, ghosts.realEt, realCount);
+    else this.writeRealTowers(this.inputIndex, this.inputEt, realCount);
     clock = this.lap(STAGE_CLUSTERING, clock);
 
     let rho = 0;
@@ -187,16 +179,33 @@ export class EnginePileupClusterer implements Clusterer {
       rho = this.patchRho(this.rhoPatches);
       clock = this.lap(STAGE_RHO_PATCHES, clock);
     } else if (this.ktClusterer) {
-      rho = this.ktRho(this.ktClusterer);
+      rho = this.ktRho(this.ktClusterer, realCount);
       clock = this.lap(STAGE_RHO_KT, clock);
     }
 
-    this.inputStart[1] = inputCount;
-    const batch = this.clusterer.clusterBatchReusing(1, this.inputStart, this.inputIndex, this.inputEt, true);
-    clock = this.lap(STAGE_CLUSTERING, clock);
-    const jets = this.reported.report(batch, cellReal, { rho, etCut, killed });
+    let jets: JetSet;
+    if (this.ghostClusterer) {
+      const rows = this.ghostClusterer.cluster(realCount, true);
+      clock = this.lap(STAGE_CLUSTERING, clock);
+      jets = this.reported.report(rows, rows.count, cellReal, { rho, etCut, killed });
+    } else {
+      this.inputStart[1] = realCount;
+      const batch = (this.clusterer as WasmClusterer).clusterBatchReusing(1, this.inputStart, this.inputIndex, this.inputEt, true);
+      clock = this.lap(STAGE_CLUSTERING, clock);
+      jets = this.reported.report(batch, batch.pt.length, cellReal, { rho, etCut, killed });
+    }
     this.lap(STAGE_SUBTRACTION, clock);
     return jets;
+  }
+
+  /** the event's real towers, in input order, into an engine's input */
+  private writeRealTowers(index: Int32Array, et: Float64Array, realCount: number): void {
+    const { realCells, cellEt } = this;
+    for (let k = 0; k < realCount; k++) {
+      const t = realCells[k];
+      index[k] = t;
+      et[k] = cellEt[t];
+    }
   }
 
   /** adds the time since `since` (ms, performance.now()) to a stage; returns the time now */
@@ -220,33 +229,27 @@ export class EnginePileupClusterer implements Clusterer {
 
   /** ρ from patches (spec section 9): sums over every cell in increasing flat index, densities, median */
   private patchRho(layout: PatchLayout): number {
-    const value = this.patchValue;
-    value.fill(0, 0, layout.patchCount);
-    for (let t = 0; t < this.cellCount; t++) value[layout.patchOfTower[t]] += this.cellEt[t];
-    for (let patch = 0; patch < layout.patchCount; patch++) {
-      value[patch] = value[patch] / (layout.cellsInPatch[patch] * this.cellArea);
+    const { patchValue: value, cellEt, cellCount, cellArea } = this;
+    const { patchOfTower, cellsInPatch, patchCount } = layout;
+    value.fill(0, 0, patchCount);
+    for (let t = 0; t < cellCount; t++) value[patchOfTower[t]] += cellEt[t];
+    for (let patch = 0; patch < patchCount; patch++) {
+      value[patch] = value[patch] / (cellsInPatch[patch] * cellArea);
     }
     return this.medianOf(value, layout.patchCount);
   }
 
-  /** ρ from kt jets with ghosts (spec section 9); the input is the ghost-filled grid */
-  private ktRho(kt: WasmClusterer): number {
-    let index = this.inputIndex;
-    let et = this.inputEt;
-    if (!this.pileup.areas) {
-      index = this.ktIndex;
-      et = this.ktEt;
-      for (let t = 0; t < this.cellCount; t++) et[t] = this.cellReal[t] === 1 ? this.cellEt[t] : this.pileup.ghostEt;
-    }
-    this.inputStart[1] = this.cellCount;
-    const jets = kt.clusterBatchReusing(1, this.inputStart, index, et, false);
+  /** ρ from kt jets with ghosts (spec section 9), on the ghost-filled grid of the real towers */
+  private ktRho(kt: GhostGridEngine, realCount: number): number {
+    this.writeRealTowers(kt.realIndex, kt.realEt, realCount);
+    const jets = kt.cluster(realCount, false);
     const radius = (this.rho as { radius: number }).radius;
     const low = this.grid.etaMin + radius;
     const high = this.grid.etaMax - radius;
     // jets come in decreasing pt, ties to the smaller index: the first two inside are the hardest
     let inside = 0;
     let kept = 0;
-    for (let r = 0; r < jets.pt.length; r++) {
+    for (let r = 0; r < jets.count; r++) {
       const y = jets.rapidity[r];
       if (!(low < y && y < high)) continue;
       if (inside++ < 2) continue;

@@ -6,9 +6,12 @@
 //     the jets kept so far, in the engine's output order; row = the engine's output rank
 //   order i32[J]   their reported order
 
-import type { BatchJets } from '../engine-batch.js';
+import type { EngineJetRows } from './ghost-grid-engine.js';
 import { allocateJetSet } from '../jet-set.js';
 import type { JetSet, PileupValues } from '../../types.js';
+
+/** the engine's final jets of one event: a BatchJets of one event, or a ghost grid's rows */
+type EngineRows = Omit<EngineJetRows, 'count'>;
 
 export class ReportedJets {
   private readonly px: Float64Array;
@@ -52,14 +55,16 @@ export class ReportedJets {
    * asked, ptMin, then decreasing pt with ties to the smaller index. `cellReal[t]` is 1 for a
    * cell holding a real tower. `event` carries the event's rho, etCut and killed.
    */
-  report(batch: BatchJets, cellReal: Uint8Array, event: Omit<PileupValues, 'subtractedAway' | 'ghosts' | 'area' | 'ptRaw'>): JetSet {
+  report(batch: EngineRows, jetCount: number, cellReal: Uint8Array, event: Omit<PileupValues, 'subtractedAway' | 'ghosts' | 'area' | 'ptRaw'>): JetSet {
     const rho = event.rho;
+    const { towers, towerStart, towerCount } = batch;
     let count = 0;
     let subtractedAway = 0;
-    for (let r = 0; r < batch.pt.length; r++) {
+    for (let r = 0; r < jetCount; r++) {
       let real = 0;
-      const start = batch.towerStart[r];
-      for (let k = start; k < start + batch.towerCount[r]; k++) real += cellReal[batch.towers[k]];
+      const start = towerStart[r];
+      const end = start + towerCount[r];
+      for (let k = start; k < end; k++) real += cellReal[towers[k]];
       if (real === 0) continue; // a pure-ghost jet is never reported
       const area = this.areas ? batch.towerCount[r] * this.cellArea : 0;
       let px = batch.px[r];
@@ -118,7 +123,7 @@ export class ReportedJets {
     return this.jetIndex[a] < this.jetIndex[b];
   }
 
-  private pack(batch: BatchJets, cellReal: Uint8Array, count: number, event: Omit<PileupValues, 'ghosts' | 'area' | 'ptRaw'>): JetSet {
+  private pack(batch: EngineRows, cellReal: Uint8Array, count: number, event: Omit<PileupValues, 'ghosts' | 'area' | 'ptRaw'>): JetSet {
     const jets = allocateJetSet(count);
     const ghosts = new Int32Array(count);
     const area = new Float64Array(count);
@@ -144,12 +149,16 @@ export class ReportedJets {
     }
     // the real constituents only, still in increasing flat index
     jets.towers = new Int32Array(towerTotal);
+    const { towers, towerStart, towerCount } = batch;
+    const realTowers = jets.towers;
     for (let n = 0; n < count; n++) {
       const r = this.row[this.order[n]];
       let at = jets.towerStart[n];
-      const start = batch.towerStart[r];
-      for (let k = start; k < start + batch.towerCount[r]; k++) {
-        if (cellReal[batch.towers[k]] === 1) jets.towers[at++] = batch.towers[k];
+      const start = towerStart[r];
+      const end = start + towerCount[r];
+      for (let k = start; k < end; k++) {
+        const t = towers[k];
+        if (cellReal[t] === 1) realTowers[at++] = t;
       }
     }
     jets.pileup = { ...event, ghosts, area, ptRaw };
