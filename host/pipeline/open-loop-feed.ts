@@ -25,8 +25,15 @@ import type { BatchOutcome, BatchPool } from './pool.js';
 import type { RunDelivery } from './run-delivery.js';
 import type { EventMessage, ServeTask } from './worker-contract.js';
 
-/** Events are published this long before they are due (the reader sleeps on a ms-coarse timer). */
+/** Events are published at least this long before they are due (the reader sleeps on a ms-coarse timer). */
 export const PUBLISH_AHEAD_NS = 30_000_000;
+/**
+ * ... and at most this much more: the reader sleeps only when the next event is due more than
+ * PUBLISH_AHEAD_NS + PUBLISH_BURST_NS ahead, then publishes every event of the next
+ * PUBLISH_BURST_NS at once, so it wakes on a timer about every 10 ms, not once per event
+ * (each wake takes a core from the workers for a moment).
+ */
+export const PUBLISH_BURST_NS = 10_000_000;
 /** The first event is due this long after the run starts, so it is published ahead like the rest. */
 export const START_LEAD_NS = 5_000_000;
 
@@ -186,8 +193,8 @@ export class OpenLoopFeed {
       waitedForRoom = true;
       await this.nextResult();
     }
-    const aheadMs = (dueNs - PUBLISH_AHEAD_NS - sharedClockNs()) / 1e6;
-    if (aheadMs >= 1) await sleepUnlessAborted(Math.floor(aheadMs), this.plan.signal);
+    const aheadNs = dueNs - PUBLISH_AHEAD_NS - sharedClockNs();
+    if (aheadNs >= PUBLISH_BURST_NS) await sleepUnlessAborted(Math.floor(aheadNs / 1e6), this.plan.signal);
     // stopped while waiting to publish: the event is not sent (the read loop says why)
     if (this.plan.signal?.aborted) return;
     const ordinal = this.ring.publish(dueNs, record.bytes, record.offset);
