@@ -32,7 +32,8 @@ import { startTree, buildTree, updateTree, treeWinner, setCandidate, setEmptyCan
 import { measureBox, layTiles, insertJet, removeJet, setLocalPhi, openAround, tileColumns,
   aroundRowFirst, aroundRowLast, aroundColumnFirst, aroundColumnLast } from './groom-tiles';
 
-/** soft drop's first reach, in tower pitches: about the diagonal of a tower and a half */
+/** soft drop's first reach, in tower pitches: a little more than a tower's diagonal (measured: 1.05,
+ * 1.5 and 2.2 took the same time within 1 %) */
 // @ts-ignore: decorator
 @inline const FIRST_REACH_TOWERS: f64 = 1.5;
 // @ts-ignore: decorator

@@ -38,6 +38,10 @@ interface GroomExports {
   groomRegion(id: number): number;
 }
 
+function copyRows(from: Float64Array | Int32Array, to: Float64Array | Int32Array, count: number, first: number): void {
+  for (let n = 0; n < count; n++) to[first + n] = from[n];
+}
+
 /** One instance of the engine set up for one groomer, with views over its regions made once. */
 class GroomingInstance {
   private readonly exports: GroomExports;
@@ -104,11 +108,12 @@ class GroomingInstance {
       for (let n = 0; n < count; n++) {
         if (this.outStatus[n] !== ENGINE_OK) throw new Error(`engine: grooming jet ${first + n}: ${describeStatus(this.outStatus[n])}`);
       }
-      for (let f = 0; f < JET_DOUBLE_FIELDS.length; f++) out[JET_DOUBLE_FIELDS[f]].set(this.doubles[f].subarray(0, count), first);
-      out.towerCount.set(this.towers.subarray(0, count), first);
-      subjets?.set(this.subjets.subarray(0, count), first);
-      zg?.set(this.zg.subarray(0, count), first);
-      deltaRg?.set(this.deltaRg.subarray(0, count), first);
+      // plain loops: a subarray() per field costs more than copying a few rows
+      for (let f = 0; f < JET_DOUBLE_FIELDS.length; f++) copyRows(this.doubles[f], out[JET_DOUBLE_FIELDS[f]], count, first);
+      copyRows(this.towers, out.towerCount, count, first);
+      if (subjets) copyRows(this.subjets, subjets, count, first);
+      if (zg) copyRows(this.zg, zg, count, first);
+      if (deltaRg) copyRows(this.deltaRg, deltaRg, count, first);
     }
   }
 }
@@ -133,6 +138,11 @@ export class EngineGroomer implements JetGroomer {
 
   groom(jets: JetSet, towerIndex: Int32Array, towerEt: Float64Array): void {
     if (!this.trimmer && !this.softDropper) return;
+    if (jets.count === 0) {
+      if (this.trimmer) jets.trim = allocateTrimmedJets(0);
+      if (this.softDropper) jets.softDrop = allocateSoftDropJets(0);
+      return;
+    }
     // every reported tower is one of the input's, with the et it came in with
     const cellEt = this.cellEt;
     for (let k = 0; k < towerIndex.length; k++) cellEt[towerIndex[k]] = towerEt[k];
