@@ -176,6 +176,9 @@ function shapeProblem(summary: RunSummary): string | null {
   for (const path of numbers) {
     if (typeof at(path) !== 'number') return `${path} is ${kindOf(at(path))}, expected a number`;
   }
+  for (const path of ['configuration.engine', 'configuration.arrival.mode']) {
+    if (typeof at(path) !== 'string') return `${path} is ${kindOf(at(path))}, expected a string`;
+  }
   for (const path of ['shards', 'invalidEvents', 'failedBatches', 'check.differences', 'histograms.multiplicity']) {
     if (!Array.isArray(at(path))) return `${path} is ${kindOf(at(path))}, expected an array`;
   }

@@ -45,7 +45,7 @@ export const spec: CommandSpec = {
     ...INFLATE_OPTIONS,
     { name: 'max-record-bytes', kind: 'integer', argument: '<n>', description: `largest record accepted (default: ${DEFAULT_MAX_RECORD_BYTES})` },
     FORCE_OPTION,
-    { name: 'quiet', kind: 'flag', short: 'q', description: 'do not print the progress bar, the per-event problems and the summary line' },
+    { name: 'quiet', kind: 'flag', short: 'q', description: 'do not print the progress bar, the per-event problems and the summary line (kept when records were unreadable: exit 2)' },
   ],
 };
 
@@ -99,7 +99,8 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
     io.stderr.write(`jetlag export: ${unreadable.message}; ${records} before it written to ${outLabel}\n`);
     return 2;
   }
-  if (!quiet) {
+  // exit 2 says why even under --quiet
+  if (!quiet || tally.broken > 0) {
     io.stderr.write(`jetlag export: read ${tally.events} events (${tally.invalid} invalid` +
       `${tally.broken > 0 ? `, ${tally.broken} unreadable records` : ''}` +
       `${tally.outOfOrder > 0 ? `, ${tally.outOfOrder} out of order left out` : ''}` +
