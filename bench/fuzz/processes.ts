@@ -128,7 +128,7 @@ function rejectionKind(line: string, command: string, dir: string): string {
   return kindOf(text.replaceAll(dir + '/', ''));
 }
 
-function classify(outcome: Outcome, target: Target, mutated: string, dir: string, tally: ProcessTally): { kind: ProcessFindingKind; detail: string } | null {
+function classify(outcome: Outcome, target: Target, mutated: string, dir: string, caseNumber: number, tally: ProcessTally): { kind: ProcessFindingKind; detail: string } | null {
   const lastLine = outcome.stderr.trimEnd().split('\n').pop() ?? '';
   if (outcome.timedOut) return { kind: 'timeout', detail: `killed after ${outcome.elapsedMs.toFixed(0)} ms` };
   if (outcome.signal !== null) return { kind: 'signal', detail: outcome.signal };
@@ -143,7 +143,7 @@ function classify(outcome: Outcome, target: Target, mutated: string, dir: string
     const rough = lines.some((line) => !line.startsWith(`jetlag ${target.command}: `)) ? 'a line not led by the command'
       : lastLine.startsWith(`jetlag ${target.command}: ${mutated}`) && !/, byte \d+/.test(lastLine) ? 'names the input but no byte' : null;
     if (rough !== null) {
-      const seen = tally.roughRejections.get(`${rough}: ${kind}`) ?? { count: 0, example: outcome.stderr.slice(0, 400).replaceAll(dir + '/', '').replace(/\n/g, ' | ') };
+      const seen = tally.roughRejections.get(`${rough}: ${kind}`) ?? { count: 0, example: `case ${caseNumber}: ` + outcome.stderr.slice(0, 400).replaceAll(dir + '/', '').replace(/\n/g, ' | ') };
       seen.count++;
       tally.roughRejections.set(`${rough}: ${kind}`, seen);
     }
@@ -181,7 +181,7 @@ export async function runProcessCampaign(options: ProcessCampaignOptions): Promi
       const outcome = await runProcess(cli, args, dir, boundMs);
       rmSync(mutated, { force: true });
       rmSync(out, { force: true });
-      const finding = classify(outcome, target, mutated, dir, tally);
+      const finding = classify(outcome, target, mutated, dir, caseNumber, tally);
       if (finding !== null) {
         tally.findings.push({ ...finding, seed: options.seed, caseNumber, how, commandLine: `${args.join(' ')} (${target.input})` });
       }
