@@ -187,12 +187,12 @@ export class EnginePileupClusterer implements Clusterer {
     if (this.ghostClusterer) {
       const rows = this.ghostClusterer.cluster(realCount, true);
       clock = this.lap(STAGE_CLUSTERING, clock);
-      jets = this.reported.report(rows, rows.count, cellReal, { rho, etCut, killed });
+      jets = this.reported.report(rows, rows.count, cellReal, rho, etCut, killed);
     } else {
       this.inputStart[1] = realCount;
       const batch = (this.clusterer as WasmClusterer).clusterBatchReusing(1, this.inputStart, this.inputIndex, this.inputEt, true);
       clock = this.lap(STAGE_CLUSTERING, clock);
-      jets = this.reported.report(batch, batch.pt.length, cellReal, { rho, etCut, killed });
+      jets = this.reported.report(batch, batch.pt.length, cellReal, rho, etCut, killed);
     }
     this.lap(STAGE_SUBTRACTION, clock);
     return jets;
