@@ -9,14 +9,17 @@
 //   3. open loop, 1 worker (the default in an open loop on 2 cores) at a quarter of what one
 //      worker sustains: the same figures with the program idle between events;
 //   4. the program's own time against the WASM engine's service time on the same events,
-//      closed loop, 1 worker: p50, p99 and the median of the per-event ratios.
+//      closed loop, 1 worker: p50, p99 and the median of the per-event ratios;
+//   5. the machine's floor at the moment: exec-pipe-floor.c, a C parent and a C child on a
+//      socket pair with the events' record size and the program's median own time, no codecs
+//      and no event loop: what two wake-ups and the copies cost here, whatever jetlag does.
 // Events are invented (the toy generator). Figures go to stdout and to
 // bench/results/exec-pipe.json (not committed). The machine is shared: each figure carries the
 // load average its run started at.
 
 import { execFileSync } from 'node:child_process';
 import { closeSync, mkdirSync, mkdtempSync, openSync, rmSync, writeFileSync, writeSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { encodeEventRecord } from '../host/formats/event-codec.js';
 import { encodeFileHeader } from '../host/formats/file-header.js';
@@ -26,6 +29,7 @@ import { DEFAULT_GRID } from '../host/types.js';
 import { runEvents } from '../host/pipeline/run.js';
 import type { RunOptions } from '../host/pipeline/run-plan.js';
 import { describeMachine, type RunSummary } from '../host/measure/summary.js';
+import { LatencyRecorder } from '../host/measure/latency.js';
 
 const quick = process.argv.includes('--quick');
 const events = quick ? 150 : 400;
@@ -41,17 +45,31 @@ function line(text: string): void {
 const median = (values: number[]) => [...values].sort((a, b) => a - b)[Math.floor(values.length / 2)];
 const us = (value: number | null | undefined) => (value === null || value === undefined || Number.isNaN(value) ? '—' : value.toFixed(value < 100 ? 1 : 0));
 
-/** `events` distinct pileup-200 toy events; returns the mean towers per event. */
-function writeEvents(path: string): number {
+/** `events` distinct pileup-200 toy events; returns the mean towers and record bytes per event. */
+function writeEvents(path: string): { meanTowers: number; meanRecordBytes: number } {
   const fd = openSync(path, 'w');
   writeSync(fd, delimit(encodeFileHeader({ kind: 'events', grid: DEFAULT_GRID, producer: 'jetlag bench', label: 'invented toy events (Halden ring scenario)' })));
   let towers = 0;
+  let bytes = 0;
   for (const event of generateEvents(DEFAULT_GRID, { events, pileup: 200, seed: 2026 })) {
     towers += event.towerIndex.length;
-    writeSync(fd, delimit(encodeEventRecord({ event: event.event, towerIndex: event.towerIndex, towerEt: event.towerEt })));
+    bytes += writeSync(fd, delimit(encodeEventRecord({ event: event.event, towerIndex: event.towerIndex, towerEt: event.towerEt })));
   }
   closeSync(fd);
-  return towers / events;
+  return { meanTowers: towers / events, meanRecordBytes: bytes / events };
+}
+
+/** Section 5: p10, p50, p90, p99 of the C pair's round trip minus the child's own time, µs; null when it cannot be built. */
+function machineFloor(workUs: number, recordBytes: number): number[] | null {
+  const floorProgram = join(dir, 'exec-pipe-floor');
+  try {
+    execFileSync('cc', ['-O2', '-o', floorProgram, new URL('../../bench/exec-pipe-floor.c', import.meta.url).pathname], { stdio: ['ignore', 'ignore', 'pipe'] });
+    const printed = execFileSync(floorProgram, [String(events), String(Math.round(workUs)), String(recordBytes), String(recordBytes)], { encoding: 'utf8' });
+    return printed.trim().split(' ').map(Number);
+  } catch (error) {
+    line(`exec-pipe: the C floor could not be built or run (${(error as Error).message.split('\n')[0]})`);
+    return null;
+  }
 }
 
 /** The example built into the temporary folder; null (and why) when it cannot be. */
@@ -66,6 +84,8 @@ function buildExample(): string | null {
 }
 
 interface ProgramRound {
+  /** the pipe's cost when the scheduler was least in the way, to set beside the floor's p10 */
+  pipeP10Us: number | null;
   pipeP50Us: number | null;
   pipeP99Us: number | null;
   serviceP50Us: number | null;
@@ -85,7 +105,9 @@ async function timedRun(options: RunOptions): Promise<RunSummary> {
 
 function programRound(summary: RunSummary): ProgramRound {
   const { latency } = summary;
+  const pipe = summary.histograms.pipe;
   return {
+    pipeP10Us: pipe ? LatencyRecorder.decode(pipe, 'pipe').percentileNs(10) / 1e3 : null,
     pipeP50Us: latency.pipe?.p50_us ?? null, pipeP99Us: latency.pipe?.p99_us ?? null,
     serviceP50Us: latency.service.p50_us, serviceP99Us: latency.service.p99_us,
     roundTripP50Us: latency.roundTrip?.p50_us ?? null,
@@ -94,7 +116,7 @@ function programRound(summary: RunSummary): ProgramRound {
 }
 
 function describeRound(what: string, round: ProgramRound): string {
-  return `${what}: pipe's cost p50 ${us(round.pipeP50Us)} µs, p99 ${us(round.pipeP99Us)} µs; ` +
+  return `${what}: pipe's cost p10 ${us(round.pipeP10Us)} µs, p50 ${us(round.pipeP50Us)} µs, p99 ${us(round.pipeP99Us)} µs; ` +
     `own time p50 ${us(round.serviceP50Us)} µs, p99 ${us(round.serviceP99Us)} µs; round trip p50 ${us(round.roundTripP50Us)} µs; ` +
     `${round.eventsPerSecond.toFixed(0)} events/s; load average ${round.load?.toFixed(1) ?? '—'}`;
 }
@@ -102,7 +124,7 @@ function describeRound(what: string, round: ProgramRound): string {
 const program = buildExample();
 if (program !== null) {
   const file = join(dir, 'pileup200.events');
-  const meanTowers = writeEvents(file);
+  const { meanTowers, meanRecordBytes } = writeEvents(file);
   line(`exec-pipe: ${events} pileup-200 toy events, mean ${meanTowers.toFixed(0)} towers per event; C++ example built in ${dir}`);
   const base: RunOptions = {
     input: file, check: { mode: 'none', fraction: 0, seed: 1 }, engine: 'wasm',
@@ -145,6 +167,17 @@ if (program !== null) {
   line(`same events, closed loop, 1 worker: C++ example's own time p50 ${us(side.programP50Us)} µs, p99 ${us(side.programP99Us)} µs; ` +
     `WASM engine's service p50 ${us(side.wasmP50Us)} µs, p99 ${us(side.wasmP99Us)} µs; C++ / WASM per event, median of ${side.pairedEvents}: ` +
     `${side.medianRatio.toFixed(1)}×; load average ${side.load.map((x) => x?.toFixed(1) ?? '—').join(', ')}`);
+
+  // 5. the machine's floor: the same sizes and own time, C on both sides
+  const workUs = median(closedOne.map((round) => round.serviceP50Us ?? 0));
+  const recordBytes = Math.round(meanRecordBytes);
+  const floor = machineFloor(workUs, recordBytes);
+  if (floor !== null) {
+    const floorLoad = loadavg()[0];
+    results.machineFloor = { workUs, recordBytes, p10Us: floor[0], p50Us: floor[1], p90Us: floor[2], p99Us: floor[3], load: floorLoad };
+    line(`machine's floor (C parent and child on a socket pair, ${recordBytes} bytes each way, ${workUs.toFixed(0)} µs of work, ${events} rounds): ` +
+      `round trip minus work p10 ${us(floor[0])} µs, p50 ${us(floor[1])} µs, p90 ${us(floor[2])} µs, p99 ${us(floor[3])} µs; load average ${floorLoad.toFixed(1)} (at its end)`);
+  }
 
   mkdirSync(new URL('../../bench/results/', import.meta.url), { recursive: true });
   writeFileSync(new URL('../../bench/results/exec-pipe.json', import.meta.url), JSON.stringify(results, null, 2) + '\n');

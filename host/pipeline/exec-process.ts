@@ -132,10 +132,12 @@ export class ProgramProcess {
   send(event: number, record: Uint8Array): void {
     if (this.ended) throw new Error('send() on an ended program process');
     const writtenNs = now();
+    // the write first: the bookkeeping and the timer (which counts from writtenNs) are jetlag's
+    // work, not the pipe's, and would otherwise sit inside the round trip
+    this.child.stdin.write(record);
     this.inFlightEvents.push(event);
     this.inFlightWrittenNs.push(writtenNs);
     if (this.inFlight === 1) { this.headSinceNs = writtenNs; this.armTimer(); }
-    this.child.stdin.write(record);
   }
 
   /** Ends the stream; resolves when the program has exited (killed after graceMs). */
