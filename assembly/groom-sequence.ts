@@ -104,14 +104,28 @@ function refreshCandidate(i: i32): void {
   updateTree(getI32(jetSlot, i));
 }
 
-/** Marks the jets around `gone` whose neighbour it was as lost, onto the redo list. */
-function collectLost(gone: i32): void {
+/** Marks the jets whose neighbour was `gone` or `other` (-1: none) as lost, onto the redo list:
+ * one pass over the tiles around either (a neighbour lies within the reach, so in them). */
+function collectLost(gone: i32, other: i32): void {
   openAround(gone);
-  for (let row = aroundRowFirst; row <= aroundRowLast; row++) {
+  let rowFirst = aroundRowFirst;
+  let rowLast = aroundRowLast;
+  let columnFirst = aroundColumnFirst;
+  let columnLast = aroundColumnLast;
+  if (other >= 0) {
+    openAround(other);
+    rowFirst = min<i32>(rowFirst, aroundRowFirst);
+    rowLast = max<i32>(rowLast, aroundRowLast);
+    columnFirst = min<i32>(columnFirst, aroundColumnFirst);
+    columnLast = max<i32>(columnLast, aroundColumnLast);
+  }
+  const second = other >= 0 ? other : gone;
+  for (let row = rowFirst; row <= rowLast; row++) {
     const base = row * tileColumns;
-    for (let tile = base + aroundColumnFirst; tile <= base + aroundColumnLast; tile++) {
+    for (let tile = base + columnFirst; tile <= base + columnLast; tile++) {
       for (let j = getI32(tileHead, tile); j >= 0; j = getI32(tileNext, j)) {
-        if (getI32(jetNn, j) == gone) {
+        const nn = getI32(jetNn, j);
+        if ((nn == gone) | (nn == second)) {
           setI32(jetNn, j, LOST);
           setI32(redo, lostCount++, j);
         }
@@ -184,8 +198,7 @@ function merge(i: i32, j: i32): void {
   setF64(jetW, k, w);
   if (searchReach2 < Infinity && needsWideSearch(w)) wideMerge = true;
   lostCount = 0;
-  collectLost(a);
-  collectLost(b);
+  collectLost(a, b);
   // a parent on the other's list is no longer searched for
   setI32(jetNn, a, -1);
   setI32(jetNn, b, -1);
@@ -210,7 +223,7 @@ function merge(i: i32, j: i32): void {
 function finish(i: i32): void {
   setI32(finalJet, groomFinalCount++, i);
   lostCount = 0;
-  collectLost(i);
+  collectLost(i, -1);
   removeJet(i);
   const s = getI32(jetSlot, i);
   setI32(slotJet, s, -1);
