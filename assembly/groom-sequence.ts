@@ -51,6 +51,13 @@ let lostCount: i32 = 0;
 /** a merged jet's weight left the safe range while tiles were in use: start again on one tile */
 let wideMerge: bool = false;
 
+// The searches keep the best so far without a branch (which jet wins is data no predictor
+// learns): integer selects over the doubles' bits, which V8 keeps as conditional moves. dR2 and
+// the keys are never negative (nor -0), so their bits order as the numbers do; a NaN's bits lie
+// above +Inf's, so it never wins, as with comparisons of doubles.
+// @ts-ignore: decorator
+@inline const INFINITY_BITS: u64 = 0x7ff0000000000000;
+
 /** Jet i's neighbour from scratch among the jets in the 3 x 3 tiles around it. */
 function searchNeighbour(i: i32): void {
   openAround(i);
@@ -59,26 +66,26 @@ function searchNeighbour(i: i32): void {
   const w = getF64(jetW, i);
   const limit = searchReach2;
   const scale = invR2;
+  const limitBits = reinterpret<u64>(limit);
   let bestJet = BEAM;
-  let bestKey: f64 = Infinity;
-  let bestDR2: f64 = Infinity;
+  let bestKey = INFINITY_BITS;
+  let bestDR2 = INFINITY_BITS;
   for (let row = aroundRowFirst; row <= aroundRowLast; row++) {
     const base = row * tileColumns;
     for (let tile = base + aroundColumnFirst; tile <= base + aroundColumnLast; tile++) {
       for (let j = getI32(tileHead, tile); j >= 0; j = getI32(tileNext, j)) {
-        const d = deltaR2(y, phi, getF64(jetY, j), getF64(jetPhi, j));
-        const key = (w * d) * scale;
-        if (j != i && d <= limit && (key < bestKey || (key == bestKey && j < bestJet))) {
-          bestJet = j;
-          bestKey = key;
-          bestDR2 = d;
-        }
+        const d = reinterpret<u64>(deltaR2(y, phi, getF64(jetY, j), getF64(jetPhi, j)));
+        const key = reinterpret<u64>((w * reinterpret<f64>(d)) * scale);
+        const better = (j != i) & (d <= limitBits) & ((key < bestKey) | ((key == bestKey) & (j < bestJet)));
+        bestJet = select<i32>(j, bestJet, better);
+        bestKey = select<u64>(key, bestKey, better);
+        bestDR2 = select<u64>(d, bestDR2, better);
       }
     }
   }
   setI32(jetNn, i, bestJet == BEAM ? -1 : bestJet);
-  setF64(jetNnDR2, i, bestDR2);
-  setF64(jetNnKey, i, bestKey);
+  setF64(jetNnDR2, i, reinterpret<f64>(bestDR2));
+  setF64(jetNnKey, i, reinterpret<f64>(bestKey));
 }
 
 /** Jet i's candidate: the smaller of its beam and its pair with its neighbour (spec section 4;
@@ -153,27 +160,27 @@ function offerNewJet(k: i32): void {
   const w = getF64(jetW, k);
   const limit = searchReach2;
   const scale = invR2;
+  const limitBits = reinterpret<u64>(limit);
   let bestJet = BEAM;
-  let bestKey: f64 = Infinity;
-  let bestDR2: f64 = Infinity;
+  let bestKey = INFINITY_BITS;
+  let bestDR2 = INFINITY_BITS;
   for (let row = aroundRowFirst; row <= aroundRowLast; row++) {
     const base = row * tileColumns;
     for (let tile = base + aroundColumnFirst; tile <= base + aroundColumnLast; tile++) {
       for (let j = getI32(tileHead, tile); j >= 0; j = getI32(tileNext, j)) {
-        if (j == k) continue;
-        const d = deltaR2(y, phi, getF64(jetY, j), getF64(jetPhi, j));
-        if (!(d <= limit)) continue;
-        const key = (w * d) * scale;
-        if (key < bestKey || (key == bestKey && j < bestJet)) {
-          bestJet = j;
-          bestKey = key;
-          bestDR2 = d;
-        }
+        const dR2 = deltaR2(y, phi, getF64(jetY, j), getF64(jetPhi, j));
+        const d = reinterpret<u64>(dR2);
+        const key = reinterpret<u64>((w * dR2) * scale);
+        const within = (j != k) & (d <= limitBits);
+        const better = within & ((key < bestKey) | ((key == bestKey) & (j < bestJet)));
+        bestJet = select<i32>(j, bestJet, better);
+        bestKey = select<u64>(key, bestKey, better);
+        bestDR2 = select<u64>(d, bestDR2, better);
         // j's key to k; a lost jet compares with the key of the neighbour it lost
-        const keyOfJ = (getF64(jetW, j) * d) * scale;
-        if (keyOfJ < getF64(jetNnKey, j)) {
+        const keyOfJ = (getF64(jetW, j) * dR2) * scale;
+        if (within && keyOfJ < getF64(jetNnKey, j)) {
           setI32(jetNn, j, k);
-          setF64(jetNnDR2, j, d);
+          setF64(jetNnDR2, j, dR2);
           setF64(jetNnKey, j, keyOfJ);
           refreshCandidate(j);
         }
@@ -181,8 +188,8 @@ function offerNewJet(k: i32): void {
     }
   }
   setI32(jetNn, k, bestJet == BEAM ? -1 : bestJet);
-  setF64(jetNnDR2, k, bestDR2);
-  setF64(jetNnKey, k, bestKey);
+  setF64(jetNnDR2, k, reinterpret<f64>(bestDR2));
+  setF64(jetNnKey, k, reinterpret<f64>(bestKey));
   refreshCandidate(k);
 }
 
