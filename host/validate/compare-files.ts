@@ -119,19 +119,19 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
   if (header?.settings) {
     for (const [key, name] of SETTING_NAMES) {
       if (key === 'ptMin' && settings.ptMin > header.settings.ptMin) {
-        options.note(`compare: jets must agree above --ptmin ${settings.ptMin} GeV (the candidate was made with ptmin ${header.settings.ptMin})`);
+        options.note(`jetlag compare: jets must agree above --ptmin ${settings.ptMin} GeV (the candidate was made with ptmin ${header.settings.ptMin})`);
         continue;
       }
       if (settings[key] !== header.settings[key]) {
-        options.note(`compare: ${name} ${settings[key]} differs from the candidate header's ${key} ${header.settings[key]} (engine ${header.settings.engine}); using ${settings[key]}`);
+        options.note(`jetlag compare: ${name} ${settings[key]} differs from the candidate header's ${key} ${header.settings[key]} (engine ${header.settings.engine}); using ${settings[key]}`);
       }
     }
     if (settings.ptMin < header.settings.ptMin) {
-      options.note(`compare: the candidate kept only jets with pt >= ${header.settings.ptMin} GeV, so reference jets in [${settings.ptMin}, ${header.settings.ptMin}) GeV will be unmatched`);
+      options.note(`jetlag compare: the candidate kept only jets with pt >= ${header.settings.ptMin} GeV, so reference jets in [${settings.ptMin}, ${header.settings.ptMin}) GeV will be unmatched`);
     }
   } else {
     // a wrong setting here fails every event, so say which ones were used
-    options.note(`compare: the candidate (${candidate.format}) names no algorithm settings; the reference uses ${describeSettings(settings)}` +
+    options.note(`jetlag compare: the candidate (${candidate.format}) names no algorithm settings; the reference uses ${describeSettings(settings)}` +
       ` from the options and defaults (threshold ${settings.threshold} GeV; give --algorithm, --radius, --threshold ... as the candidate was made)`);
   }
 
@@ -145,13 +145,13 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
   const pileupAsked = options.pileupOver ? options.pileupOver(headerPileup) : headerPileup;
   const pileup = pileupStepsOn(pileupAsked) ? pileupAsked : null;
   if (header?.settings && describePileup(pileup) !== describePileup(header.settings.pileup)) {
-    options.note(`compare: the reference runs ${describePileup(pileup) || 'no pileup steps'}; the candidate header names ${describePileup(header.settings.pileup) || 'none'}`);
+    options.note(`jetlag compare: the reference runs ${describePileup(pileup) || 'no pileup steps'}; the candidate header names ${describePileup(header.settings.pileup) || 'none'}`);
   }
   const headerGrooming = header?.settings?.grooming ?? NO_GROOMING;
   const groomingAsked = options.groomingOver ? options.groomingOver(headerGrooming) : headerGrooming;
   const grooming = groomingIsOn(groomingAsked) ? groomingAsked : null;
   if (header?.settings && describeGrooming(grooming ?? NO_GROOMING) !== describeGrooming(headerGrooming)) {
-    options.note(`compare: the reference grooms ${describeGrooming(grooming ?? NO_GROOMING) || 'nothing'}; the candidate header names ${describeGrooming(headerGrooming) || 'no grooming'}`);
+    options.note(`jetlag compare: the reference grooms ${describeGrooming(grooming ?? NO_GROOMING) || 'nothing'}; the candidate header names ${describeGrooming(headerGrooming) || 'no grooming'}`);
   }
   const groomed = new GroomedAgreement(settings.ptMin, tolerance.ptTol);
   let reference: ReturnType<typeof makeClusterer>;
