@@ -1,33 +1,29 @@
-// One grooming re-clustering (clustering-spec.md sections 2-5, as section 12 asks): the n towers
-// of one jet in evIndex/evEt, clustered with the instance's p and R on the jet's own small tiles
-// (groom-tiles.ts) instead of the event grid's cells, whose searches over R = 1 degenerate once
-// the Cambridge/Aachen jets have left their cells. Every live jet keeps its nearest neighbour by
-// section 4's key ((w_i * dR2) * invR2, then the smaller index) among the jets within the search
-// reach, and its candidate (pair or beam) in the tournament tree (tournament.ts, by slot).
+// Soft drop's re-clustering (clustering-spec.md sections 2-5, as section 12 asks): the n towers
+// of one jet in evIndex/evEt, clustered with p = 0 and R = 1 without beams down to one jet, on
+// the jet's own small tiles (groom-tiles.ts) instead of the event grid's cells, whose searches
+// over R = 1 degenerate once the Cambridge/Aachen jets have left their cells. Every live jet
+// keeps its nearest neighbour by section 4's key ((w_i * dR2) * invR2, then the smaller index;
+// here w = 1 and invR2 = 1, so the key is dR2 itself) among the jets within the search reach,
+// and its pair candidate in the tournament tree (tournament.ts, by slot).
 //
-// - Trimming (beams on): the reach is R's (settings.ts reach2), tiles at least that wide; a pair
-//   beyond it always loses to a beam, so each jet's candidate is the one of section 4.
-// - Soft drop (beams off, p = 0, R = 1: the key is dR2 itself): the reach starts at about a
-//   tower diagonal. While the smallest pair lies within it, that pair is some jet's neighbour
-//   (section 4's argument) and wins; once no jet has a neighbour within the reach, the reach
-//   grows (FIRST_REACH_TOWERS, REACH_GROWTH) and the tiles and neighbours are made again, until
-//   one tile holds every jet and the reach is unlimited.
-// - One tile, no reach (all jets searched): when the towers span pi or more in phi, or a weight
-//   leaves the range where the reach argument holds (kinematics.ts needsWideSearch; the whole
-//   re-clustering then starts again this way).
+// The reach starts at about a tower diagonal. While the smallest pair lies within it, that pair
+// is some jet's neighbour (section 4's argument) and wins; once no jet has a neighbour within
+// the reach, the reach grows (FIRST_REACH_TOWERS, REACH_GROWTH) and the tiles and neighbours are
+// made again, until one tile holds every jet and the reach is unlimited. When the towers span pi
+// or more in phi there is one tile from the start (groom-tiles.ts).
 //
 // After a merge only these change: the jets whose neighbour was one of the parents (searched
 // again, unless the new jet is strictly nearer than the lost neighbour: then it is theirs, since
 // every other jet came after the lost one), the jets for which the new jet comes first (the new
 // jet has the largest index, so only a strictly smaller key counts) and the new jet itself.
 //
-// Counts: groomJetCount jets made (towers first, jetInto as in sequence.ts), groomFinalCount
-// final jets in finalJet (beams on).
+// groomJetCount: the jets made (towers first, jetInto as in sequence.ts); the last is the root.
+// Trimming does not come here: at R = RSUB the event grid's sequence is faster (grooming.ts).
 
 import { evIndex, evEt, jetY, jetPhi, jetKt2, jetInto, jetW, jetNn, jetNnDR2, jetNnKey, jetSlot,
-  slotJet, jetTile, tileHead, tileNext, finalJet, redo, getF64, setF64, getI32, setI32 } from './layout';
-import { invR2, reach, reach2, beamsOff, etaPitch, phiPitch, BEAM } from './settings';
-import { loadTower, mergeJets, deltaR2, weightOf, needsWideSearch } from './kinematics';
+  slotJet, tileHead, tileNext, redo, getF64, setF64, getI32, setI32 } from './layout';
+import { invR2, etaPitch, phiPitch, BEAM } from './settings';
+import { loadTower, mergeJets, deltaR2, weightOf } from './kinematics';
 import { startTree, buildTree, updateTree, treeWinner, setCandidate, setEmptyCandidate, isBeamCandidate } from './tournament';
 import { measureBox, layTiles, insertJet, removeJet, setLocalPhi, openAround, tileColumns,
   aroundRowFirst, aroundRowLast, aroundColumnFirst, aroundColumnLast } from './groom-tiles';
@@ -43,13 +39,10 @@ import { measureBox, layTiles, insertJet, removeJet, setLocalPhi, openAround, ti
 @inline const LOST: i32 = -2;
 
 export let groomJetCount: i32 = 0;
-export let groomFinalCount: i32 = 0;
 
 /** pairs with dR2 above this are not looked at (+Inf: every pair) */
 let searchReach2: f64 = Infinity;
 let lostCount: i32 = 0;
-/** a merged jet's weight left the safe range while tiles were in use: start again on one tile */
-let wideMerge: bool = false;
 
 // The searches keep the best so far without a branch (which jet wins is data no predictor
 // learns): integer selects over the doubles' bits, which V8 keeps as conditional moves. dR2 and
@@ -88,22 +81,18 @@ function searchNeighbour(i: i32): void {
   setF64(jetNnKey, i, reinterpret<f64>(bestKey));
 }
 
-/** Jet i's candidate: the smaller of its beam and its pair with its neighbour (spec section 4;
- * the same rule as cells.ts refreshCandidate). The tree is the caller's. */
+/** Jet i's candidate: its pair with its neighbour (spec section 4 without beams), or, with no
+ * neighbour within the reach, a beam at +Inf that the sequence takes as "widen the reach". The
+ * tree is the caller's. */
 function setJetCandidate(i: i32): void {
   const s = getI32(jetSlot, i);
-  const w = getF64(jetW, i);
-  const beam = select<f64>(Infinity, w, beamsOff);
   const q = getI32(jetNn, i);
   if (q >= 0) {
-    const d = (min<f64>(w, getF64(jetW, q)) * getF64(jetNnDR2, i)) * invR2;
-    // on equal measures the pair comes first: its smaller index is <= i and its larger < BEAM
-    if (d <= beam) {
-      setCandidate(s, d, min<i32>(i, q), max<i32>(i, q));
-      return;
-    }
+    const d = (min<f64>(getF64(jetW, i), getF64(jetW, q)) * getF64(jetNnDR2, i)) * invR2;
+    setCandidate(s, d, min<i32>(i, q), max<i32>(i, q));
+  } else {
+    setCandidate(s, Infinity, i, BEAM);
   }
-  setCandidate(s, beam, i, BEAM);
 }
 
 function refreshCandidate(i: i32): void {
@@ -203,7 +192,6 @@ function merge(i: i32, j: i32): void {
   setI32(jetInto, k, -1);
   const w = weightOf(getF64(jetKt2, k));
   setF64(jetW, k, w);
-  if (searchReach2 < Infinity && needsWideSearch(w)) wideMerge = true;
   lostCount = 0;
   collectLost(a, b);
   // a parent on the other's list is no longer searched for
@@ -227,18 +215,6 @@ function merge(i: i32, j: i32): void {
   searchLost();
 }
 
-function finish(i: i32): void {
-  setI32(finalJet, groomFinalCount++, i);
-  lostCount = 0;
-  collectLost(i, -1);
-  removeJet(i);
-  const s = getI32(jetSlot, i);
-  setI32(slotJet, s, -1);
-  setEmptyCandidate(s);
-  updateTree(s);
-  searchLost();
-}
-
 /** Tiles at least `side` wide (+Inf: one tile) over the n slots' live jets, their neighbours
  * and candidates made again. */
 function retile(n: i32, side: f64, sideReach2: f64): void {
@@ -257,55 +233,33 @@ function retile(n: i32, side: f64, sideReach2: f64): void {
   buildTree();
 }
 
-/** One attempt; false when a merged jet's weight needs the one-tile way (then redone). */
-function attempt(n: i32, oneTile: bool): bool {
+/** Clusters the n towers in evIndex/evEt (n >= 1) down to one jet; every slot's candidate is
+ * left empty. */
+export function groomCluster(n: i32): void {
   startTree(n);
   groomJetCount = n;
-  groomFinalCount = 0;
-  wideMerge = false;
-  let wideTower = false;
   for (let t = 0; t < n; t++) {
     loadTower(t, getI32(evIndex, t), getF64(evEt, t));
     setI32(jetInto, t, -1);
-    const w = weightOf(getF64(jetKt2, t));
-    setF64(jetW, t, w);
-    wideTower = wideTower || needsWideSearch(w);
+    setF64(jetW, t, weightOf(getF64(jetKt2, t)));
     setI32(jetSlot, t, t);
     setI32(slotJet, t, t);
   }
   measureBox(n);
-  let side: f64 = Infinity;
-  let sideReach2: f64 = Infinity;
-  if (!oneTile && !wideTower) {
-    side = beamsOff ? FIRST_REACH_TOWERS * max<f64>(etaPitch, phiPitch) : reach;
-    sideReach2 = beamsOff ? side * side : reach2;
-  }
-  retile(n, side, sideReach2);
-  let live = n;
-  while (live > (beamsOff ? 1 : 0)) {
-    const s = treeWinner();
-    const i = getI32(slotJet, s);
-    if (!isBeamCandidate(s)) {
-      merge(i, getI32(jetNn, i));
-    } else if (!beamsOff) {
-      finish(i);
-    } else {
-      // no pair within the reach: a wider one (none at all only for NaN coordinates, which
-      // validated input never has)
-      if (side == Infinity) break;
+  let side = FIRST_REACH_TOWERS * max<f64>(etaPitch, phiPitch);
+  retile(n, side, side * side);
+  for (let live = n; live > 1; live--) {
+    let s = treeWinner();
+    // no pair within the reach: a wider one (none at all only for NaN coordinates, which
+    // validated input never has)
+    while (isBeamCandidate(s) && side < Infinity) {
       side = side * REACH_GROWTH;
       retile(n, side, side * side);
-      continue;
+      s = treeWinner();
     }
-    live--;
-    if (wideMerge) return false;
+    if (isBeamCandidate(s)) break;
+    const i = getI32(slotJet, s);
+    merge(i, getI32(jetNn, i));
   }
-  if (beamsOff) setI32(finalJet, groomFinalCount++, groomJetCount - 1);
-  return true;
-}
-
-/** Clusters the n towers in evIndex/evEt (n >= 1); every slot's candidate is left empty. */
-export function groomCluster(n: i32): void {
-  if (!attempt(n, false)) attempt(n, true);
   for (let s = 0; s < n; s++) setEmptyCandidate(s);
 }

@@ -9,7 +9,7 @@
 // phi lie between its parents' (E-scheme: (E + pz) / (E - pz) of a sum is between the parts'
 // ratios; the sum of two transverse vectors less than pi apart points between them), so every
 // jet stays in the box up to rounding, which the clamp to the edge tiles absorbs. That needs the
-// towers within less than pi in phi of each other; otherwise (or on request) there is one tile.
+// towers within less than pi in phi of each other; otherwise there is one tile.
 
 import { jetY, jetPhi, jetTile, jetLocalPhi, tileHead, tileNext, tilePrev, TILE_LIMIT,
   getF64, setF64, getI32, setI32 } from './layout';
