@@ -6,7 +6,7 @@
 
 import { checkGrid, type GridTables } from '../grid.js';
 import { checkEngineSettings, engineImports, ENGINE_OK, REGION, writeGridTables, type EngineExports } from '../engine-module.js';
-import type { ClusterSettings } from '../../types.js';
+import type { ClusterSettings, JetSet } from '../../types.js';
 
 interface GhostGridExports extends EngineExports {
   clusterGhostGrid(ghostEt: number, withTowers: number): number;
@@ -14,19 +14,7 @@ interface GhostGridExports extends EngineExports {
 
 /** The final jets of the last event, as views of the engine's output regions (the first
  * `count` entries of each), in section 6's order; the fields and meanings of BatchJets. */
-export interface EngineJetRows {
-  count: number;
-  px: Float64Array;
-  py: Float64Array;
-  pz: Float64Array;
-  energy: Float64Array;
-  pt: Float64Array;
-  rapidity: Float64Array;
-  phi: Float64Array;
-  mass: Float64Array;
-  towerCount: Int32Array;
-  towerStart: Int32Array;
-  towers: Int32Array;
+export interface EngineJetRows extends Omit<JetSet, 'pileup' | 'trim' | 'softDrop'> {
   jetIndex: Int32Array;
 }
 
