@@ -7,7 +7,10 @@
 // plain clustering and for the pileup chain's settings. The engine computes every column; it
 // gives the reference's bits (tests/pileup-engine-bit-exact.test.ts).
 //
-//   npm run build:host && node dist/bench/pileup-physics.bench.js [--events 300]
+//   npm run build:host && node dist/bench/pileup-physics.bench.js [--events 300] [--patch-sizes 3:3,7:7]
+//
+// --patch-sizes adds a column 'subtracted, ρ patches PE:PP' per size, to see how the patch
+// estimator's offset depends on the patch size (the spec's default is 5:5).
 
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
@@ -34,6 +37,12 @@ const columns: { name: string; clusterer: Clusterer }[] = [
   { name: 'SoftKiller 5:5', clusterer: chain({ ...off, softKiller: { etaRows: 5, phiColumns: 5 } }) },
   { name: 'SoftKiller + subtracted', clusterer: chain({ ...off, softKiller: { etaRows: 5, phiColumns: 5 }, areas: true, rho: patches, subtract: true }) },
 ];
+const patchSizesAt = process.argv.indexOf('--patch-sizes');
+for (const size of patchSizesAt >= 0 ? process.argv[patchSizesAt + 1].split(',') : []) {
+  const [etaRows, phiColumns] = size.split(':').map(Number);
+  const rho = { kind: 'patches', patch: { etaRows, phiColumns } } as const;
+  columns.push({ name: `subtracted, ρ patches ${etaRows}:${phiColumns}`, clusterer: chain({ ...off, areas: true, rho, subtract: true }) });
+}
 const truthClusterer = new WasmClusterer(DEFAULT_GRID, settings);
 
 function deltaR(y1: number, phi1: number, y2: number, phi2: number): number {
