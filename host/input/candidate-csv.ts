@@ -5,7 +5,7 @@ import { InputError } from '../errors.js';
 import { GROOMED_CSV_SUFFIXES } from '../formats/groomed-csv-columns.js';
 import { EVENT_CSV_COLUMNS, EVENT_CSV_SUFFIX } from '../formats/event-csv-columns.js';
 import type { CandidateEvent } from './candidate-reader.js';
-import { emptyEvent, JetColumns, quote, type Line } from './candidate-lines.js';
+import { emptyEvent, JetColumns, MAX_CANDIDATE_JETS_PER_EVENT, quote, type Line } from './candidate-lines.js';
 
 /** the third: `jetlag export` of jets with pileup values (spec part two); the columns after m are not compared */
 export const CANDIDATE_CSV_HEADERS = ['event,pt,y,phi', 'event,pt,y,phi,m', 'event,pt,y,phi,m,ghosts,area,ptRaw,rho,etCut,killed,subtractedAway'] as const;
@@ -13,7 +13,7 @@ export const CANDIDATE_CSV_HEADERS = ['event,pt,y,phi', 'event,pt,y,phi,m', 'eve
 const EVENT_NUMBER = /^[0-9]+$/;
 const DECIMAL = /^[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?$/;
 
-export async function* csvEvents(input: AsyncGenerator<Line>, label: string): AsyncGenerator<CandidateEvent> {
+export async function* csvEvents(input: AsyncGenerator<Line>, label: string, maxJetsPerEvent = MAX_CANDIDATE_JETS_PER_EVENT): AsyncGenerator<CandidateEvent> {
   const columns = new JetColumns();
   let fields = 0;
   /** the per-event columns at the end of an exported row: not compared, not checked */
@@ -79,6 +79,10 @@ export async function* csvEvents(input: AsyncGenerator<Line>, label: string): As
     }
     if (bad > 0) {
       currentError = `row at line ${number}, byte ${offset}: bad ${columnNames[bad]} ${quote(parts[bad])}`;
+      continue;
+    }
+    if (columns.count === maxJetsPerEvent) {
+      currentError = `row at line ${number}, byte ${offset}: more than ${maxJetsPerEvent} jets in one event, more than any grid has cells`;
       continue;
     }
     columns.push(Number(parts[1]), Number(parts[2]), Number(parts[3]), columnNames[4] === 'm' ? Number(parts[4]) : 0);

@@ -68,6 +68,11 @@ function lineText(bytes: Buffer): string {
   return bytes.toString('utf8', 0, end);
 }
 
+/** Jets one candidate event may hold: each jet holds at least one tower, and no grid has more
+ * cells than this (host/clustering/grid.ts checkGrid), so a CSV that goes on past it is refused
+ * rather than grown without bound. */
+export const MAX_CANDIDATE_JETS_PER_EVENT = 1 << 22;
+
 /** Growable per-event jet columns, reused from event to event. */
 export class JetColumns {
   count = 0;
