@@ -1,5 +1,6 @@
 // The main thread's side of the open loop's way back (event-results.ts): it waits on the slots'
-// WRITTEN word with Atomics.waitAsync (no thread hop beyond the main thread's own wake-up),
+// WRITTEN word, blocking for a moment at a time while events are out (BLOCKING_WAIT_MS), else
+// with Atomics.waitAsync (no thread hop beyond the main thread's own wake-up),
 // looks at the slots of the events claimed and not yet complete, and takes each event's time
 // of return as the moment the whole result is on this thread: its slot seen done and, when a
 // message carries the rest, that message received.
@@ -16,6 +17,17 @@ const waitAsync = (Atomics as unknown as { waitAsync: WaitAsync }).waitAsync;
 
 /** How long one wait lasts at most (ms), so a stopped collector is never stuck. */
 const WAIT_MS = 100;
+/**
+ * With events claimed and not yet back, the thread blocks on the word for at most this long
+ * (ms) before it lets its event loop run: a blocked thread is woken by the kernel straight away,
+ * while Atomics.waitAsync's wake-up goes through the event loop's task queue (about 100 µs
+ * later on this project's test machines, bench:pool). The reader publishes tens of ms ahead, so
+ * its timers can wait this long.
+ */
+const BLOCKING_WAIT_MS = 1;
+
+/** one turn of the event loop (timers, reads, worker messages) */
+const letLoopRun = (): Promise<void> => new Promise((resolve) => setImmediate(resolve));
 
 export class ResultCollector {
   readonly slots = new ResultSlots(makeResultBuffers());
@@ -51,6 +63,11 @@ export class ResultCollector {
       const written = Atomics.load(flags, WRITTEN);
       this.scan();
       if (this.stopped) break;
+      if (this.scanFrom < this.claimed()) {
+        if (Atomics.wait(flags, WRITTEN, written, BLOCKING_WAIT_MS) !== 'timed-out') this.scan();
+        await letLoopRun();
+        continue;
+      }
       const waiting = waitAsync(flags, WRITTEN, written, WAIT_MS);
       if (waiting.async) await waiting.value;
     }
