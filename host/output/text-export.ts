@@ -9,7 +9,7 @@
 // grid other than the default states its grid in a `# grid` line before the header
 // (input/csv-grid.ts), so that it reads back on the grid it came from.
 
-import { InputError } from '../errors.js';
+import { InputError, UsageError } from '../errors.js';
 import { openRecordFile, type RecordSource } from '../input/event-source.js';
 import type { InflateLimits } from '../input/input-chunks.js';
 import { CANDIDATE_CSV_HEADERS } from '../input/candidate-csv.js';
@@ -33,7 +33,11 @@ export const JETS_CSV_HEADER = 'event,pt,y,phi,m';
  */
 export const PILEUP_JETS_CSV_HEADER = CANDIDATE_CSV_HEADERS[2];
 
-export type TextFormat = 'csv' | 'jsonl';
+/** events-csv: a jets file's events, one row each (`EVENTS_CSV_HEADER`), those without jets too */
+export type TextFormat = 'csv' | 'jsonl' | 'events-csv';
+
+/** one row per valid event of a jets file: its number, jets, time clustering and towers */
+export const EVENTS_CSV_HEADER = 'event,jets,cluster_time_ns,towers';
 
 export interface ExportTally {
   events: number;
@@ -75,8 +79,8 @@ export interface TextExportOptions {
 
 export interface TextExportResult {
   tally: ExportTally;
-  /** what the rows are: jets (a jets file) or towers */
-  rowsAre: 'jets' | 'towers';
+  /** what the rows are: jets or events (a jets file) or towers */
+  rowsAre: 'jets' | 'towers' | 'events';
   /** the input became unreadable here; everything before it was written */
   unreadable: InputError | null;
 }
@@ -85,6 +89,10 @@ export interface TextExportResult {
 export async function exportAsText(options: TextExportOptions): Promise<TextExportResult> {
   const { format, onProblem, onRecord } = options;
   const source = await openRecordFile(options.input, { grid: options.grid, maxRecordBytes: options.maxRecordBytes, maxEventGap: options.maxEventGap, fileLabel: options.fileLabel, inflate: options.inflate });
+  if (format === 'events-csv' && source.format !== 'jets-file') {
+    await source.records.return(undefined);
+    throw new UsageError(`export: --format events-csv takes a jets file; ${source.label} holds towers (use csv or jsonl)`);
+  }
   const out = await TextFileWriter.open(options.out, { stdout: options.stdout, force: options.force });
   const tally: ExportTally = { events: 0, rows: 0, invalid: 0, broken: 0, outOfOrder: 0, lastCsvEvent: -1, outsideAcceptance: 0 };
   let unreadable: InputError | null = null;
@@ -99,7 +107,7 @@ export async function exportAsText(options: TextExportOptions): Promise<TextExpo
     unreadable = error;
   }
   await out.close();
-  return { tally, rowsAre: source.format === 'jets-file' ? 'jets' : 'towers', unreadable };
+  return { tally, rowsAre: format === 'events-csv' ? 'events' : source.format === 'jets-file' ? 'jets' : 'towers', unreadable };
 }
 
 /** CSV only: true when the rows of `event` can follow those written so far; else counts and reports it. */
@@ -177,6 +185,7 @@ async function exportJets(source: RecordSource, format: TextFormat, out: TextFil
   // trimming and soft drop (spec section 12): their columns follow the others, when they ran
   const grooming = source.header.settings?.grooming;
   if (format === 'csv') await out.write(`${withPileup ? PILEUP_JETS_CSV_HEADER : JETS_CSV_HEADER}${groomedCsvHeader(grooming)}${EVENT_CSV_SUFFIX}\n`);
+  if (format === 'events-csv') await out.write(EVENTS_CSV_HEADER + '\n');
   let record = -1;
   for await (const raw of source.records) {
     record++;
@@ -197,11 +206,18 @@ async function exportJets(source: RecordSource, format: TextFormat, out: TextFil
     }
     if (decoded.error !== '') {
       tally.invalid++;
-      if (format === 'csv') {
-        onProblem(`${source.label}, event ${decoded.event}, byte ${raw.offset}: ${decoded.error} (invalid event, no CSV rows written)`);
-      } else {
+      if (format === 'jsonl') {
         await out.write(formatErrorLine(decoded.event, decoded.error) + '\n');
+      } else {
+        onProblem(`${source.label}, event ${decoded.event}, byte ${raw.offset}: ${decoded.error} (invalid event, no CSV rows written)`);
       }
+      continue;
+    }
+    if (format === 'events-csv') {
+      if (!csvOrderAllows(decoded.event, tally, onProblem, `${source.label}, event ${decoded.event}, byte ${raw.offset}`)) continue;
+      tally.rows++;
+      // an empty towers cell: the record does not say (an older file), never an invented 0
+      await out.write(`${decoded.event},${decoded.jets.count},${decoded.clusterTimeNs},${decoded.eventTowers ?? ''}\n`);
       continue;
     }
     if (format === 'csv' && decoded.jets.count > 0 && !csvOrderAllows(decoded.event, tally, onProblem, `${source.label}, event ${decoded.event}, byte ${raw.offset}`)) continue;

@@ -18,7 +18,10 @@
 //               groomed columns after these (output/groomed-csv.ts). Every row ends with
 //               its event's cluster_time_ns and towers (towers that entered clustering; an
 //               empty cell when the file does not record it); an event without jets has
-//               no row, so for every event's time use jsonl.
+//               no row, so for every event's time use events-csv or jsonl.
+// jets, events-csv  event,jets,cluster_time_ns,towers: one row per valid event, those
+//               without jets too (for plotting time against towers); invalid events are
+//               reported on stderr and left out
 // jets, jsonl   the line form of `jetlag cluster --format jsonl` (jets-jsonl.ts), with
 //               "cluster_time_ns" and "towers" (null when not recorded) after "event"
 // Numbers are written with String(x), so every double reads back identical.
@@ -35,10 +38,10 @@ import { RecordProgress } from '../../measure/input-progress.js';
 export const spec: CommandSpec = {
   name: 'export',
   summary: 'Write an event file, a CSV tower file or a jets file as CSV or JSON lines.',
-  usage: 'jetlag export <file> [--format csv|jsonl] [--out <file>] [options]',
+  usage: 'jetlag export <file> [--format csv|jsonl|events-csv] [--out <file>] [options]',
   positionals: { min: 1, max: 1 },
   options: [
-    { name: 'format', kind: 'string', argument: '<csv|jsonl>', description: 'output form (default: csv)' },
+    { name: 'format', kind: 'string', argument: '<csv|jsonl|events-csv>', description: 'output form (default: csv); events-csv: one row per event of a jets file (event, jets, cluster_time_ns, towers)' },
     { name: 'out', kind: 'string', argument: '<file>', description: 'where to write; - for stdout (default: -)' },
     ...GRID_OPTIONS.map((o) => ({ ...o, description: o.description.replace(' (default:', ', for CSV input (default:') })),
     MAX_EVENT_GAP_OPTION,
@@ -67,7 +70,7 @@ class ProblemLines {
 export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   const args = parseArgs(spec, argv);
   const format = (args.values.format as string | undefined) ?? 'csv';
-  if (format !== 'csv' && format !== 'jsonl') throw new UsageError(`export: --format must be csv or jsonl, got ${JSON.stringify(format)}`);
+  if (format !== 'csv' && format !== 'jsonl' && format !== 'events-csv') throw new UsageError(`export: --format must be csv, jsonl or events-csv, got ${JSON.stringify(format)}`);
   const input = args.positionals[0];
   const outPath = (args.values.out as string | undefined) ?? '-';
   const quiet = args.values.quiet === true;
