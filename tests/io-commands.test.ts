@@ -213,7 +213,7 @@ describe('jetlag export of events', () => {
   });
 
   it('rejects an unknown format', async () => {
-    await expect(run(exportMain, ['x.pb', '--format', 'xml'])).rejects.toThrow(new UsageError('export: --format must be csv or jsonl, got "xml"'));
+    await expect(run(exportMain, ['x.pb', '--format', 'xml'])).rejects.toThrow(new UsageError('export: --format must be csv, jsonl or events-csv, got "xml"'));
   });
 });
 
