@@ -47,19 +47,11 @@ export interface TowerEvent {
 
 /**
  * Final jets of one event, in the spec's output order (decreasing pt, ties to smaller index).
- * Jet k's constituents are towers[towerStart[k] .. towerStart[k] + towerCount[k]), increasing.
+ * Jet k's constituents are towers[towerStart[k] .. towerStart[k] + towerCount[k]), increasing;
+ * its four-vector, pt, y, phi and mass are the fields it shares with a groomed row.
  */
-export interface JetSet {
+export interface JetSet extends GroomedFourVectors {
   count: number;
-  px: Float64Array;
-  py: Float64Array;
-  pz: Float64Array;
-  energy: Float64Array;
-  pt: Float64Array;
-  rapidity: Float64Array;
-  phi: Float64Array;
-  mass: Float64Array;
-  towerCount: Int32Array;
   towerStart: Int32Array;
   towers: Int32Array;
   /** set only when pileup steps ran (spec part two, sections 8-10) */
