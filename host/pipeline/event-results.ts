@@ -56,10 +56,13 @@ export function resultOffset(ordinal: number): number {
 export class ResultSlots {
   readonly fields: Float64Array;
   readonly flags: Int32Array;
+  /** every slot's bytes, for clearing one without a view per event */
+  private readonly bytes: Uint8Array;
 
   constructor(readonly buffers: ResultBuffers) {
     this.fields = new Float64Array(buffers.slots);
     this.flags = new Int32Array(buffers.flags);
+    this.bytes = new Uint8Array(buffers.slots);
   }
 
   private fieldAt(ordinal: number): number {
@@ -69,7 +72,7 @@ export class ResultSlots {
   /** Worker side: an empty result buffer for the event, in its slot (the batch code fills it). */
   clear(ordinal: number): { buffer: SharedArrayBuffer; byteOffset: number } {
     const byteOffset = resultOffset(ordinal);
-    new Uint8Array(this.buffers.slots, byteOffset, RESULT_SLOT_BYTES).fill(0);
+    this.bytes.fill(0, byteOffset, byteOffset + RESULT_SLOT_BYTES);
     return { buffer: this.buffers.slots, byteOffset };
   }
 
