@@ -61,12 +61,21 @@ export class RisingLine {
     this.sumXY += x * y;
   }
 
-  /** How much the line rises from the first value to the last; 0 with fewer than two. */
-  rise(): number {
+  /** values given so far */
+  get count(): number {
+    return this.n;
+  }
+
+  /** The line's rise per step; 0 with fewer than two values. */
+  slope(): number {
     const n = this.n;
     if (n < 2) return 0;
-    const slope = (n * this.sumXY - this.sumX * this.sumY) / (n * this.sumXX - this.sumX * this.sumX);
-    return slope * (n - 1);
+    return (n * this.sumXY - this.sumX * this.sumY) / (n * this.sumXX - this.sumX * this.sumX);
+  }
+
+  /** How much the line rises from the first value to the last; 0 with fewer than two. */
+  rise(): number {
+    return this.n < 2 ? 0 : this.slope() * (this.n - 1);
   }
 }
 
@@ -121,8 +130,8 @@ export class OpenLoopFeed {
   /** first exception thrown while delivering a result; re-thrown by feed() */
   private deliverError: unknown = null;
   private lastReceivedNs = 0;
-  /** least-squares sums of (ordinal, return time from the start): the sustained rate's fit */
-  private readonly fit = { n: 0, x: 0, xx: 0, y: 0, xy: 0 };
+  /** return times from the start, in delivery (= input) order: the sustained rate's fit */
+  private readonly returnLine = new RisingLine();
   /** a line through the backlog (events due, result not back) at each result, in the order results came: saturation data */
   private readonly backlogLine = new RisingLine();
   private readonly ports: MessagePort[] = [];
@@ -253,10 +262,7 @@ export class OpenLoopFeed {
     const message = this.collector.take(ordinal);
     const slot = ordinal % SLOT_COUNT;
     const receivedNs = this.collector.receivedAt[slot];
-    const fit = this.fit;
-    const x = message.ordinal;
-    const y = receivedNs - this.startNs;
-    fit.n++; fit.x += x; fit.xx += x * x; fit.y += y; fit.xy += x * y;
+    this.returnLine.add(receivedNs - this.startNs);
     const dueNs = this.dueOf[slot];
     if (message.claimedEarly && message.result) this.delivery.tally.recordDispatchLatenessNs(message.startNs - dueNs);
     this.outcomeOffset[0] = this.offsetOf[slot];
@@ -292,12 +298,11 @@ export class OpenLoopFeed {
    */
   private recordRates(): void {
     const events = this.ring.count;
-    const fit = this.fit;
-    if (events < 2 || fit.n < 2) return;
+    if (events < 2 || this.returnLine.count < 2) return;
     const firstDue = this.firstDueNs;
     const lastDue = this.dueOf[(events - 1) % SLOT_COUNT];
     const offeredHz = lastDue > firstDue ? ((events - 1) * 1e9) / (lastDue - firstDue) : Infinity;
-    const slopeNs = (fit.n * fit.xy - fit.x * fit.y) / (fit.n * fit.xx - fit.x * fit.x);
+    const slopeNs = this.returnLine.slope();
     const sustainedHz = slopeNs > 0 ? 1e9 / slopeNs : Infinity;
     const backlogGrew = this.backlogLine.rise() > Math.max(BACKLOG_RISE_WORKERS * this.plan.workers, BACKLOG_RISE_FRACTION * events);
     this.delivery.tally.recordRates(offeredHz, sustainedHz, backlogGrew);
