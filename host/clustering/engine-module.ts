@@ -97,6 +97,37 @@ export function writeGridTables(memory: WebAssembly.Memory, region: (id: number)
   put(REGION.sinPhi, tables.sinPhi, phiBins);
 }
 
+/** What an engine instance is made for: the generalised-kt settings configureEngine() takes. */
+export interface EngineInstanceSettings {
+  p: number;
+  radius: number;
+  ptMin: number;
+  threshold: number;
+  /** 1 for winner-take-all recombination, else 0 */
+  wta: number;
+}
+
+/**
+ * A new instance of the module, its memory reserved for `towerCapacity` towers and
+ * `eventCapacity` events, the grid tables written and the search configured; a one-line error
+ * when memory cannot be had. `purpose` names the use in that error ("" or e.g. "grooming on ").
+ */
+export function startEngineInstance<T extends Pick<EngineExports, 'memory' | 'setup' | 'region' | 'configureEngine'>>(
+  module: WebAssembly.Module, tables: GridTables, towerCapacity: number, eventCapacity: number,
+  settings: EngineInstanceSettings, purpose = '',
+): T {
+  const { grid, towerTotal } = tables;
+  const e = new WebAssembly.Instance(module, engineImports(module)).exports as unknown as T;
+  if (!e.setup(grid.etaBins, grid.phiBins, towerCapacity, eventCapacity)) {
+    throw new Error(`engine: cannot reserve memory for ${purpose}a grid of ${towerTotal} towers`);
+  }
+  writeGridTables(e.memory, (id) => e.region(id), tables);
+  if (!e.configureEngine(settings.p, settings.radius, settings.ptMin, settings.threshold, settings.wta, grid.etaMin, grid.etaMax)) {
+    throw new Error(`engine: cannot reserve memory for the search rows of R = ${settings.radius} on a grid of ${towerTotal} towers`);
+  }
+  return e;
+}
+
 /** Throws a one-line error naming the setting when the engine cannot use it. */
 export function checkEngineSettings(settings: ClusterSettings): void {
   const { p, radius, ptMin, threshold, recombination } = settings;

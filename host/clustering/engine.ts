@@ -9,7 +9,7 @@
 import { checkGrid, makeGridTables, type GridTables } from './grid.js';
 import { allocateBatchJets, batchEventJets, makeEngineViews, type BatchJets, type EngineViews } from './engine-batch.js';
 import { JET_DOUBLE_FIELDS } from './jet-set.js';
-import { checkEngineSettings, describeStatus, engineImports, ENGINE_OK, loadEngineModule, writeGridTables, type EngineExports } from './engine-module.js';
+import { checkEngineSettings, describeStatus, ENGINE_OK, loadEngineModule, startEngineInstance, type EngineExports } from './engine-module.js';
 import type { ClusterSettings, Clusterer, Grid, JetSet } from '../types.js';
 
 /** towers per call at least (a call may also hold fewer, bigger events) */
@@ -35,18 +35,11 @@ export class WasmClusterer implements Clusterer {
     this.settings = { ...settings };
     this.tables = makeGridTables(grid);
     const module = options.module ?? loadEngineModule(options.debug ?? false);
-    const instance = new WebAssembly.Instance(module, engineImports(module));
-    this.exports = instance.exports as unknown as EngineExports;
     this.towerCapacity = Math.max(this.tables.towerTotal, BATCH_TOWERS_MIN);
     this.eventCapacity = BATCH_EVENTS;
-    if (!this.exports.setup(grid.etaBins, grid.phiBins, this.towerCapacity, this.eventCapacity)) {
-      throw new Error(`engine: cannot reserve memory for a grid of ${this.tables.towerTotal} towers`);
-    }
-    writeGridTables(this.exports.memory, (id) => this.exports.region(id), this.tables);
     const s = this.settings;
-    if (!this.exports.configureEngine(s.p, s.radius, s.ptMin, s.threshold, s.recombination === 'wta' ? 1 : 0, grid.etaMin, grid.etaMax)) {
-      throw new Error(`engine: cannot reserve memory for the search rows of R = ${s.radius} on a grid of ${this.tables.towerTotal} towers`);
-    }
+    this.exports = startEngineInstance<EngineExports>(module, this.tables, this.towerCapacity, this.eventCapacity,
+      { p: s.p, radius: s.radius, ptMin: s.ptMin, threshold: s.threshold, wta: s.recombination === 'wta' ? 1 : 0 });
     this.views = this.makeViews();
   }
 

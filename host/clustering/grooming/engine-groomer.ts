@@ -11,7 +11,7 @@
 // input tower by cell; only cells of this event's towers are ever read).
 
 import { checkGrid, makeGridTables, type GridTables } from '../grid.js';
-import { ENGINE_OK, REGION, describeStatus, engineImports, loadEngineModule, writeGridTables } from '../engine-module.js';
+import { ENGINE_OK, REGION, describeStatus, loadEngineModule, startEngineInstance } from '../engine-module.js';
 import { JET_DOUBLE_FIELDS } from '../jet-set.js';
 import type { Grid, GroomedFourVectors, GroomingSettings, JetSet } from '../../types.js';
 import type { JetGroomer } from './groomer.js';
@@ -57,17 +57,10 @@ class GroomingInstance {
   private readonly deltaRg: Float64Array;
 
   constructor(tables: GridTables, mode: number, p: number, radius: number, cut: number, beta: number, jetRadius: number, module: WebAssembly.Module) {
-    const { grid, towerTotal } = tables;
-    this.exports = new WebAssembly.Instance(module, engineImports(module)).exports as unknown as GroomExports;
-    const e = this.exports;
+    const { towerTotal } = tables;
     // one event's jets hold at most every tower once
-    if (!e.setup(grid.etaBins, grid.phiBins, towerTotal, JETS_PER_CALL)) {
-      throw new Error(`engine: cannot reserve memory for grooming on a grid of ${towerTotal} towers`);
-    }
-    writeGridTables(e.memory, (id) => e.region(id), tables);
-    if (!e.configureEngine(p, radius, 0, 0, 0, grid.etaMin, grid.etaMax)) {
-      throw new Error(`engine: cannot reserve memory for the search rows of R = ${radius} on a grid of ${towerTotal} towers`);
-    }
+    this.exports = startEngineInstance<GroomExports>(module, tables, towerTotal, JETS_PER_CALL, { p, radius, ptMin: 0, threshold: 0, wta: 0 }, 'grooming on ');
+    const e = this.exports;
     e.configureGroomer(mode, cut, beta, jetRadius);
     // memory never grows after configureEngine(): views made now stay valid
     const buffer = e.memory.buffer;

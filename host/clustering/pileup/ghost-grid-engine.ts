@@ -5,7 +5,7 @@
 // call.
 
 import { checkGrid, type GridTables } from '../grid.js';
-import { checkEngineSettings, engineImports, ENGINE_OK, REGION, writeGridTables, type EngineExports } from '../engine-module.js';
+import { checkEngineSettings, ENGINE_OK, REGION, startEngineInstance, type EngineExports } from '../engine-module.js';
 import type { ClusterSettings, JetSet } from '../../types.js';
 
 interface GhostGridExports extends EngineExports {
@@ -31,17 +31,10 @@ export class GhostGridEngine {
     const { grid, towerTotal } = tables;
     checkGrid(grid);
     checkEngineSettings(settings);
-    this.exports = new WebAssembly.Instance(module, engineImports(module)).exports as unknown as GhostGridExports;
-    const e = this.exports;
-    if (!e.setup(grid.etaBins, grid.phiBins, towerTotal, 1)) {
-      throw new Error(`engine: cannot reserve memory for a grid of ${towerTotal} towers`);
-    }
-    writeGridTables(e.memory, (id) => e.region(id), tables);
     const wta = settings.recombination === 'wta' ? 1 : 0;
     // the chain hands over towers already past the threshold, and wants every final jet
-    if (!e.configureEngine(settings.p, settings.radius, 0, 0, wta, grid.etaMin, grid.etaMax)) {
-      throw new Error(`engine: cannot reserve memory for the search rows of R = ${settings.radius} on a grid of ${towerTotal} towers`);
-    }
+    this.exports = startEngineInstance<GhostGridExports>(module, tables, towerTotal, 1, { p: settings.p, radius: settings.radius, ptMin: 0, threshold: 0, wta });
+    const e = this.exports;
     // memory never grows after configureEngine(): views made now stay valid
     const buffer = e.memory.buffer;
     const f64 = (id: number) => new Float64Array(buffer, e.region(id), towerTotal);
