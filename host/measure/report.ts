@@ -88,6 +88,9 @@ function latencyLines(summary: RunSummary): string[] {
   if (openLoop) {
     rows.push(latencyRow('wait', l.wait), latencyRow('return', l.return), latencyRow('end-to-end', l.endToEnd));
     rows.push(latencyRow('harness: dispatch late', summary.harness.dispatchLateness));
+    const { overhead, cpuWait } = summary.harness;
+    if (overhead) rows.push(latencyRow('end-to-end − service', overhead));
+    if (cpuWait) rows.push(latencyRow('  not delayed', cpuWait.overheadUndelayed), latencyRow('CPU wait', cpuWait.wait));
   }
   const lines = [`  ${'latency µs'.padEnd(LABEL_WIDTH)}${COLUMNS.map((col) => col.padStart(CELL_WIDTH)).join('')}`];
   lines.push(...rows.map((row) => row.text));
@@ -97,6 +100,8 @@ function latencyLines(summary: RunSummary): string[] {
   if (openLoop) {
     lines.push(`  ${''.padEnd(LABEL_WIDTH)}end-to-end = wait + service + return, per event, from its scheduled arrival to its result on the main thread;`);
     lines.push(`  ${''.padEnd(LABEL_WIDTH)}dispatch late: the harness handing events over after their scheduled time (part of wait)`);
+    const cpuWait = summary.harness.cpuWait;
+    if (cpuWait) lines.push(...cpuWaitLines(cpuWait));
   } else {
     lines.push(`  ${''.padEnd(LABEL_WIDTH)}a closed loop measures capacity; latency under load needs an open loop (--rate or --poisson)`);
   }
@@ -104,6 +109,17 @@ function latencyLines(summary: RunSummary): string[] {
     lines.push(`  ${''.padEnd(LABEL_WIDTH)}${FEW_EVENTS_MARK} p99 on fewer than ${grouped(P99_MIN_EVENTS)} events or p99.9 on fewer than ${grouped(P999_MIN_EVENTS)}: few events above it, a rough figure`);
   }
   return lines;
+}
+
+/** What the CPU-wait rows mean, and how many events the machine delayed. */
+function cpuWaitLines(cpuWait: NonNullable<RunSummary['harness']['cpuWait']>): string[] {
+  const pad = `  ${''.padEnd(LABEL_WIDTH)}`;
+  const share = cpuWait.events > 0 ? ((100 * cpuWait.delayed) / cpuWait.events).toFixed(1) : '0.0';
+  return [
+    `${pad}CPU wait: per event, the time its worker's thread and the main thread were ready to run while another thread`,
+    `${pad}held the core (Linux run-queue time); ${grouped(cpuWait.delayed)} of ${grouped(cpuWait.events)} events (${share} %) waited over ${cpuWait.delayedOverUs} µs:`,
+    `${pad}their latency includes the machine's other work; "not delayed": end-to-end − service of the others`,
+  ];
 }
 
 function throughputLine(summary: RunSummary): string {

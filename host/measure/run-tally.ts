@@ -59,6 +59,13 @@ export interface Saturation {
   saturated: boolean;
 }
 
+/**
+ * An event whose threads waited longer than this for a CPU counts as delayed by the machine.
+ * A thread woken from a sleep waits a few µs on a run queue even on an idle machine: that
+ * wake-up is part of the harness's cost, not the machine's (value chosen with bench:pool).
+ */
+export const CPU_WAIT_DELAY_NS = 20_000;
+
 export class RunTally {
   read = 0;
   ok = 0;
@@ -83,6 +90,14 @@ export class RunTally {
   readonly endToEnd = new LatencyRecorder();
   /** open loop, a property of the harness: actual hand-over to the pool minus the scheduled time */
   readonly dispatchLateness = new LatencyRecorder();
+  /** open loop, per event: end-to-end minus service, what the harness and the machine added */
+  readonly overhead = new LatencyRecorder();
+  /** ... of the events that did not wait for a CPU (cpuWait at most CPU_WAIT_DELAY_NS): the harness's own share */
+  readonly overheadUndelayed = new LatencyRecorder();
+  /** open loop, per event where measured: ns its worker's and the main thread waited for a CPU while it was on them */
+  readonly cpuWait = new LatencyRecorder();
+  /** events whose cpuWait exceeded CPU_WAIT_DELAY_NS */
+  cpuWaitDelayed = 0;
   /** towers that entered clustering, per clustered event (the main driver of service time) */
   readonly towersPerEvent = new LatencyRecorder();
   readonly stages: Record<Stage, LatencyRecorder> = {
@@ -134,6 +149,18 @@ export class RunTally {
     this.wait.recordNs(waitNs);
     this.returnTrip.recordNs(returnNs);
     this.endToEnd.recordNs(endToEndNs);
+  }
+
+  /**
+   * One clustered event of an open loop: end-to-end minus service, and how long its threads
+   * waited for a CPU (-1: not measured; then it counts in neither split).
+   */
+  recordHarnessOverhead(overheadNs: number, cpuWaitNs: number): void {
+    this.overhead.recordNs(overheadNs);
+    if (cpuWaitNs < 0) return;
+    this.cpuWait.recordNs(cpuWaitNs);
+    if (cpuWaitNs > CPU_WAIT_DELAY_NS) this.cpuWaitDelayed++;
+    else this.overheadUndelayed.recordNs(overheadNs);
   }
 
   /** Open loop, per event handed to the pool: how late the harness was against its schedule. */
@@ -205,6 +232,10 @@ export class RunTally {
     this.returnTrip.merge(other.returnTrip);
     this.endToEnd.merge(other.endToEnd);
     this.dispatchLateness.merge(other.dispatchLateness);
+    this.overhead.merge(other.overhead);
+    this.overheadUndelayed.merge(other.overheadUndelayed);
+    this.cpuWait.merge(other.cpuWait);
+    this.cpuWaitDelayed += other.cpuWaitDelayed;
     this.towersPerEvent.merge(other.towersPerEvent);
     for (const stage of STAGES) this.stages[stage].merge(other.stages[stage]);
     for (const stage of PILEUP_STAGES) this.pileupStages[stage].merge(other.pileupStages[stage]);

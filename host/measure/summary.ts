@@ -6,7 +6,7 @@
 import os from 'node:os';
 import { LatencyRecorder, type EncodedLatency, type LatencyStats } from './latency.js';
 import { fitScaling, scalingSamples, type Scaling } from './scaling-fit.js';
-import { PILEUP_STAGES, STAGES, type PileupStage, type CheckedDifference, type FailedBatch, type InvalidEvent, type RunTally, type Saturation, type Stage } from './run-tally.js';
+import { CPU_WAIT_DELAY_NS, PILEUP_STAGES, STAGES, type PileupStage, type CheckedDifference, type FailedBatch, type InvalidEvent, type RunTally, type Saturation, type Stage } from './run-tally.js';
 import type { MachineLoad } from './machine-load.js';
 import { summarizeTolerance, type FailedEvent, type ToleranceSummary } from './program-figures.js';
 import { plainHistograms, type PlainHistogram } from './plain-histogram.js';
@@ -122,6 +122,15 @@ export interface RunSummary {
   harness: {
     /** open loop: actual hand-over to the pool minus the scheduled time */
     dispatchLateness: LatencyStats;
+    /** open loop, per event: end-to-end minus service (wait + return: what the harness and the machine added) */
+    overhead?: LatencyStats;
+    /**
+     * open loop, where the kernel keeps it (Linux): per event, how long its worker's thread and
+     * the main thread waited for a CPU while it was on them (thread-cpu-wait.ts); `delayed`
+     * events waited more than `delayedOverUs`; `overheadUndelayed` is the overhead of the
+     * others (it still holds queueing behind an event that was delayed)
+     */
+    cpuWait?: { events: number; delayed: number; delayedOverUs: number; wait: LatencyStats; overheadUndelayed: LatencyStats };
   };
   /** open loop: offered against sustained rate; null in a closed loop */
   saturation: Saturation | null;
@@ -145,6 +154,10 @@ export interface RunSummary {
     return: EncodedLatency;
     endToEnd: EncodedLatency;
     dispatchLateness: EncodedLatency;
+    /** open loop only (absent in summaries from before them) */
+    overhead?: EncodedLatency;
+    cpuWait?: EncodedLatency;
+    overheadUndelayed?: EncodedLatency;
     towersPerEvent: EncodedLatency;
     stages: Record<Stage, EncodedLatency>;
     pileupStages?: Partial<Record<PileupStage, EncodedLatency>>;
@@ -259,7 +272,16 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
       ...(tally.grooming.count > 0 ? { grooming: tally.grooming.stats() } : {}),
       ...(program ? { roundTrip: tally.roundTrip.stats(), pipe: tally.pipe.stats() } : {}),
     },
-    harness: { dispatchLateness: openLoopStats(tally.dispatchLateness, openLoop) },
+    harness: {
+      dispatchLateness: openLoopStats(tally.dispatchLateness, openLoop),
+      ...(openLoop ? { overhead: tally.overhead.stats() } : {}),
+      ...(openLoop && tally.cpuWait.count > 0 ? {
+        cpuWait: {
+          events: tally.cpuWait.count, delayed: tally.cpuWaitDelayed, delayedOverUs: CPU_WAIT_DELAY_NS / 1e3,
+          wait: tally.cpuWait.stats(), overheadUndelayed: tally.overheadUndelayed.stats(),
+        },
+      } : {}),
+    },
     saturation: openLoop ? tally.saturation : null,
     towersPerEvent: towersPerEventOf(towers),
     machineLoad: tally.machineLoad,
@@ -282,6 +304,7 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
       return: tally.returnTrip.encode(),
       endToEnd: tally.endToEnd.encode(),
       dispatchLateness: tally.dispatchLateness.encode(),
+      ...(openLoop ? { overhead: tally.overhead.encode(), cpuWait: tally.cpuWait.encode(), overheadUndelayed: tally.overheadUndelayed.encode() } : {}),
       towersPerEvent: towers.encode(),
       stages: stagesEncoded,
       ...(chainRan ? { pileupStages: chainEncoded } : {}),

@@ -11,6 +11,7 @@
 //     [START_NS]               when the worker started on the event, shared clock ns
 //     [CLAIMED_EARLY]          1: the worker held the event before it was due and waited for it
 //     [JETS], [TOWERS_OFFERED], [TOWERS_BELOW_THRESHOLD], [TOWERS_OUTSIDE_ACCEPTANCE]
+//     [CPU_WAIT_NS]            the worker's thread's wait for a CPU while on the event, -1 unknown
 //     [EXTRAS]                 1: a message on the serve task's port carries the rest of the
 //                              result (an invalid event's reason, the check sample's record,
 //                              jets bytes, the engine's name, a failure, a program's figures);
@@ -32,7 +33,8 @@ export const TOWERS_OFFERED = 3;
 export const TOWERS_BELOW_THRESHOLD = 4;
 export const TOWERS_OUTSIDE_ACCEPTANCE = 5;
 export const EXTRAS = 6;
-const RESULT_FIELDS = 7;
+export const CPU_WAIT_NS = 7;
+const RESULT_FIELDS = 8;
 export const RESULT_SLOT_BYTES = RESULT_VIEW_BYTES + 8 * RESULT_FIELDS;
 
 export const WRITTEN = 0;
@@ -80,10 +82,11 @@ export class ResultSlots {
    * Worker side: the event's figures beside its result buffer, then the slot marked done and
    * the main thread woken. `result` null (a failure) or not in the slot: extras must be 1.
    */
-  write(ordinal: number, startNs: number, claimedEarly: boolean, result: BatchResult | null, extras: boolean): void {
+  write(ordinal: number, startNs: number, claimedEarly: boolean, cpuWaitNs: number, result: BatchResult | null, extras: boolean): void {
     const at = this.fieldAt(ordinal);
     const { fields, flags } = this;
     fields[at + START_NS] = startNs;
+    fields[at + CPU_WAIT_NS] = cpuWaitNs;
     fields[at + CLAIMED_EARLY] = claimedEarly ? 1 : 0;
     fields[at + JETS] = result ? result.jets : 0;
     fields[at + TOWERS_OFFERED] = result ? result.towersOffered : 0;
@@ -116,6 +119,7 @@ export class ResultSlots {
     into.ordinal = ordinal;
     into.startNs = fields[at + START_NS];
     into.claimedEarly = fields[at + CLAIMED_EARLY] === 1;
+    into.cpuWaitNs = fields[at + CPU_WAIT_NS];
     into.failure = null;
     result.batchIndex = ordinal;
     result.engine = engine;
@@ -130,7 +134,7 @@ export class ResultSlots {
   /** Main side: a message and result object for read() to fill, made once. */
   reusableMessage(): EventMessage & { result: BatchResult } {
     return {
-      ordinal: 0, startNs: 0, claimedEarly: false, failure: null,
+      ordinal: 0, startNs: 0, claimedEarly: false, failure: null, cpuWaitNs: -1,
       result: {
         batchIndex: 0, count: 1, engine: '', buffer: this.buffers.slots, bufferOffset: 0,
         invalid: [], differences: [], disagreeing: [], sampled: [],

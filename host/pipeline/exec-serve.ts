@@ -7,7 +7,7 @@
 import { readBatch } from './cluster-batch.js';
 import { execWorkerOf, finishExecBatch } from './exec-batch.js';
 import { sharedClockNs } from './shared-clock.js';
-import { claimRingEvent, describeFailure, postRingOutcome, takeRingSeat, waitUntil } from './open-loop-serve.js';
+import { claimRingEvent, describeFailure, postRingOutcome, takeRingSeat, waitForArrival } from './open-loop-serve.js';
 import type { EventMessage, ServeTask, WorkerConfig } from './worker-contract.js';
 import type { ExecWorkerConfig } from './exec-run-contract.js';
 
@@ -22,7 +22,7 @@ export async function serveRingWithProgram(config: WorkerConfig, exec: ExecWorke
     let startNs = 0;
     try {
       const work = readBatch(running.state, event.task);
-      waitUntil(event.dueNs, seat.sleeper);
+      waitForArrival(seat, event.dueNs);
       startNs = sharedClockNs();
       message = { ordinal, startNs, claimedEarly, result: await finishExecBatch(running, work), failure: null };
     } catch (error) {

@@ -8,6 +8,7 @@
 import { SLOT_COUNT } from './event-ring.js';
 import { makeResultBuffers, ResultSlots, WRITTEN } from './event-results.js';
 import { sharedClockNs } from './shared-clock.js';
+import { ThreadCpuWait } from '../measure/thread-cpu-wait.js';
 import type { EventMessage } from './worker-contract.js';
 
 /** Atomics.waitAsync (ES2024; the project's TypeScript lib predates it, Node has it). */
@@ -41,6 +42,18 @@ export class ResultCollector {
   /** lowest ordinal that may still be incomplete */
   private scanFrom = 0;
   private stopped = false;
+  /**
+   * this thread's wait for a CPU (thread-cpu-wait.ts): read before each sleep, and at the first
+   * result seen after it; the difference is charged to the results seen on that wake (their
+   * return waited for it). Results seen without a sleep before are charged nothing: the thread
+   * was running its own loop, and a delay there is the harness's.
+   */
+  private readonly cpuWait = new ThreadCpuWait();
+  private cpuWaitBeforeSleepNs = -1;
+  private wakeCpuWaitNs = 0;
+  private woke = false;
+  /** what each slot's event was charged (ns; -1 unknown) */
+  readonly mainCpuWaitOf = new Float64Array(SLOT_COUNT);
 
   /**
    * `claimed()`: events claimed by workers so far (results exist for those only);
@@ -59,22 +72,27 @@ export class ResultCollector {
   /** Waits for results and completes them until stop(). */
   async run(): Promise<void> {
     const flags = this.slots.flags;
+    let slept = false;
     while (!this.stopped) {
       const written = Atomics.load(flags, WRITTEN);
-      this.scan();
+      this.scan(slept);
+      slept = false;
       if (this.stopped) break;
+      this.cpuWaitBeforeSleepNs = this.cpuWait.waitNs();
       if (this.scanFrom < this.claimed()) {
-        if (Atomics.wait(flags, WRITTEN, written, BLOCKING_WAIT_MS) !== 'timed-out') this.scan();
+        if (Atomics.wait(flags, WRITTEN, written, BLOCKING_WAIT_MS) !== 'timed-out') this.scan(true);
         await letLoopRun();
         continue;
       }
       const waiting = waitAsync(flags, WRITTEN, written, WAIT_MS);
       if (waiting.async) await waiting.value;
+      slept = true;
     }
   }
 
   stop(): void {
     this.stopped = true;
+    this.cpuWait.close();
     Atomics.notify(this.slots.flags, WRITTEN);
   }
 
@@ -106,7 +124,10 @@ export class ResultCollector {
     return this.slots.read(ordinal, this.reusable, this.engine);
   }
 
-  private scan(): void {
+  /** `afterSleep`: the thread has just woken; the first result seen reads what the wake cost */
+  private scan(afterSleep = false): void {
+    this.woke = afterSleep;
+    this.wakeCpuWaitNs = 0;
     const claimed = this.claimed();
     const { slots } = this;
     for (let ordinal = this.scanFrom; ordinal < claimed; ordinal++) {
@@ -114,6 +135,18 @@ export class ResultCollector {
       if (!slots.hasExtras(ordinal) || this.extras.has(ordinal)) this.complete(ordinal);
     }
     while (this.scanFrom < claimed && this.isComplete(this.scanFrom)) this.scanFrom++;
+    this.woke = false;
+    this.wakeCpuWaitNs = 0;
+  }
+
+  /** what this wake charges the results it sees: read once, at the first of them */
+  private chargeWake(): number {
+    if (this.woke) {
+      this.woke = false;
+      const nowNs = this.cpuWait.waitNs();
+      this.wakeCpuWaitNs = nowNs >= 0 && this.cpuWaitBeforeSleepNs >= 0 ? nowNs - this.cpuWaitBeforeSleepNs : -1;
+    }
+    return this.wakeCpuWaitNs;
   }
 
   private complete(ordinal: number): void {
@@ -121,6 +154,7 @@ export class ResultCollector {
     const receivedNs = sharedClockNs();
     this.completeOrdinal[slot] = ordinal + 1;
     this.receivedAt[slot] = receivedNs;
+    this.mainCpuWaitOf[slot] = this.cpuWait.available ? this.chargeWake() : -1;
     this.onComplete(ordinal, receivedNs);
   }
 }

@@ -106,6 +106,11 @@ export interface OpenLoopPlan {
   maxRecordBytes: number;
 }
 
+/** an event's wait for a CPU: its worker's and the main thread's; -1 when either is unknown */
+function cpuWaitOf(workerNs: number, mainNs: number): number {
+  return workerNs >= 0 && mainNs >= 0 ? workerNs + mainNs : -1;
+}
+
 export class OpenLoopFeed {
   records = 0;
   lastOffset = 0;
@@ -275,6 +280,7 @@ export class OpenLoopFeed {
       startNs: this.outcomeDue,
       finishedNs: receivedNs,
       workerStartNs: message.startNs,
+      cpuWaitNs: cpuWaitOf(message.cpuWaitNs ?? -1, this.collector.mainCpuWaitOf[slot]),
       result: message.result,
       failure: message.failure,
     };

@@ -16,6 +16,7 @@ import { claimNext, copyRecord, DATA_LENGTH, DUE_NS, RECORD_OFFSET, ringViews, S
 import { needsExtras, ResultSlots } from './event-results.js';
 import { finishBatch, readBatch, type WorkerHooks, type WorkerState } from './cluster-batch.js';
 import { sharedClockNs } from './shared-clock.js';
+import { ThreadCpuWait } from '../measure/thread-cpu-wait.js';
 import { batchDataStart, batchViews, type BatchResult, type BatchTask, type EventMessage, type ServeTask } from './worker-contract.js';
 
 /**
@@ -24,6 +25,15 @@ import { batchDataStart, batchViews, type BatchResult, type BatchTask, type Even
  * is 50 µs); on a busy one, later. Measured with bench/pool.bench.ts (open loop section).
  */
 export const SPIN_BEFORE_DUE_NS = 300_000;
+
+/**
+ * Waits until dueNs on the shared clock: a sleep for most of it, then a spin. The seat's CPU
+ * wait is counted from here: a thread kept off the core while it spins or wakes starts late.
+ */
+export function waitForArrival(seat: RingSeat, dueNs: number): void {
+  seat.cpuWaitFromNs = seat.cpuWait.waitNs();
+  waitUntil(dueNs, seat.sleeper);
+}
 
 /** Waits until dueNs on the shared clock: a sleep for most of it, then a spin. */
 export function waitUntil(dueNs: number, sleeper: Int32Array): void {
@@ -51,6 +61,9 @@ export interface RingSeat {
   claimed: ClaimedEvent;
   /** the engine name last sent to the main thread (a result with another one goes with a message) */
   engineSent: string | null;
+  /** this thread's wait for a CPU (thread-cpu-wait.ts), and its value when the wait for the event's arrival began */
+  cpuWait: ThreadCpuWait;
+  cpuWaitFromNs: number;
 }
 
 /** Takes a seat at the ring; the worker state is made ready for batches of one event. */
@@ -65,7 +78,7 @@ export function takeRingSeat(state: WorkerState, serve: ServeTask['serve']): Rin
     views: ringViews(serve.ring), results: new ResultSlots(serve.results), holds: WORKER_HOLDS + serve.workerIndex,
     sleeper: new Int32Array(new SharedArrayBuffer(4)), dataStart, port: serve.port, input,
     claimed: { ordinal: 0, dueNs: 0, task: { batchIndex: 0, count: 1, dataStart, buffer: input }, claimedEarly: false },
-    engineSent: null,
+    engineSent: null, cpuWait: new ThreadCpuWait(), cpuWaitFromNs: -1,
   };
 }
 
@@ -113,6 +126,9 @@ export function claimRingEvent(seat: RingSeat): ClaimedEvent | null {
  * hold goes first as a message (its jets bytes, and a result buffer of its own, moved).
  */
 export function postRingOutcome(seat: RingSeat, message: EventMessage): void {
+  const cpuWaitNowNs = seat.cpuWaitFromNs >= 0 ? seat.cpuWait.waitNs() : -1;
+  message.cpuWaitNs = cpuWaitNowNs >= 0 ? cpuWaitNowNs - seat.cpuWaitFromNs : -1;
+  seat.cpuWaitFromNs = -1;
   const result = message.result;
   const extras = needsExtras(result, seat.engineSent);
   if (extras) {
@@ -122,7 +138,7 @@ export function postRingOutcome(seat: RingSeat, message: EventMessage): void {
     seat.port.postMessage(message, transfer);
     if (result) seat.engineSent = result.engine;
   }
-  seat.results.write(message.ordinal, message.startNs, message.claimedEarly, result, extras);
+  seat.results.write(message.ordinal, message.startNs, message.claimedEarly, message.cpuWaitNs, result, extras);
   Atomics.store(seat.views.control, seat.holds, 0);
 }
 
@@ -140,7 +156,7 @@ export function serveRing(state: WorkerState, serve: ServeTask['serve'], hooks: 
     try {
       ensureClusterer(state);
       const work = readBatch(state, event.task, seat.results.clear(ordinal));
-      waitUntil(event.dueNs, seat.sleeper);
+      waitForArrival(seat, event.dueNs);
       startNs = sharedClockNs();
       const result: BatchResult = finishBatch(state, work, hooks);
       message = { ordinal, startNs, claimedEarly, result, failure: null };

@@ -109,6 +109,11 @@ export interface BatchOutcome {
   finishedNs: number;
   /** open loop (one event): when a worker started on it, after its arrival (shared clock) */
   workerStartNs?: number;
+  /**
+   * open loop (one event): ns its worker's thread and the main thread waited for a CPU while
+   * it was on them (thread-cpu-wait.ts); -1 where not measured
+   */
+  cpuWaitNs?: number;
   result: BatchResult | null;
   failure: string | null;
 }

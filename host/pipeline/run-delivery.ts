@@ -30,9 +30,10 @@ export interface DeliveryContext {
 /**
  * One clustered event: its number, towers that entered clustering, service time, and in an
  * open loop its scheduled arrival, start in a worker and result back on the main thread (ns
- * on the run's clock); in a closed loop the three times are those of its batch.
+ * on the run's clock), and the ns it waited for a CPU on its worker's and the main thread
+ * (-1 unknown); in a closed loop the three times are those of its batch, and the wait -1.
  */
-export type EventObserver = (event: number, towers: number, serviceNs: number, scheduledNs: number, startNs: number, doneNs: number) => void;
+export type EventObserver = (event: number, towers: number, serviceNs: number, scheduledNs: number, startNs: number, doneNs: number, cpuWaitNs: number) => void;
 
 /** An event of the check sample, kept from the timed pass for the check pass (check-pass.ts). */
 export interface SampledRecord {
@@ -145,7 +146,7 @@ export class RunDelivery {
         tally.pipe.recordNs(Math.max(0, result.exec.roundTripNs[k] - clusterNs));
       }
       const onEvent = this.context.onEvent;
-      if (onEvent) onEvent(views.eventNumber[k], views.towersClustered[k], clusterNs, outcome.startNs[k], outcome.workerStartNs ?? outcome.startNs[k], outcome.finishedNs);
+      if (onEvent) onEvent(views.eventNumber[k], views.towersClustered[k], clusterNs, outcome.startNs[k], outcome.workerStartNs ?? outcome.startNs[k], outcome.finishedNs, outcome.cpuWaitNs ?? -1);
       for (const stage of STAGES) {
         const index = STAGE_INDEX[stage];
         const value = views.stageNs[at + index];
@@ -167,6 +168,7 @@ export class RunDelivery {
         const startNs = outcome.workerStartNs ?? dueNs;
         const endToEndNs = outcome.finishedNs - dueNs;
         tally.recordOpenLoopEvent(startNs - dueNs, outcome.finishedNs - startNs - clusterNs, endToEndNs);
+        tally.recordHarnessOverhead(endToEndNs - clusterNs, outcome.cpuWaitNs ?? -1);
         if (endToEndNs > budgetNs) tally.overBudget++;
         continue;
       }

@@ -157,6 +157,12 @@ export interface EventMessage {
   /** one-event result; null when the worker failed on it */
   result: BatchResult | null;
   failure: string | null;
+  /**
+   * ns the worker's thread spent waiting for a CPU (runnable, another thread on the core) from
+   * the start of its wait for the event's arrival to its result's write; -1 where not measured
+   * (thread-cpu-wait.ts). Set by postRingOutcome.
+   */
+  cpuWaitNs?: number;
 }
 
 /** Where the record bytes start in a batch buffer of `count` records. */
