@@ -26,6 +26,7 @@ import type { RunOptions } from '../host/pipeline/run-plan.js';
 import { workerFile } from '../host/pipeline/pool.js';
 import { describeMachine, type RunSummary } from '../host/measure/summary.js';
 import { LatencyRecorder } from '../host/measure/latency.js';
+import { CPU_WAIT_DELAY_NS } from '../host/measure/run-tally.js';
 
 // `--exec-pipe`: an outside program as the engine instead (exec-pipe.bench.ts)
 if (process.argv.includes('--exec-pipe')) {
@@ -248,11 +249,14 @@ if (!streamingOnly) {
 // lateness (open-loop-feed.ts), at half the closed loop's events/s. Then 1 against 2 workers at
 // half of what one worker sustains, both well below capacity: whether a worker per core
 // (the main thread sharing a core with a worker) or cores - 1 workers gives the lower overhead.
-const openLoopEvents = quick ? 600 : 1500;
+// 5000 events (several seconds a run): a p99 of the first second alone is mostly start-up
+const openLoopEvents = quick ? 600 : 5000;
+const openLoopFile = join(dir, 'pileup200-open-loop.events');
+if (!streamingOnly) writeToyFile(openLoopFile, openLoopEvents, 200, 500);
 async function openLoopRound(workers: number, rateHz: number) {
   const overhead = new LatencyRecorder();
   const summary = await timedRun({
-    ...base, workers, maxEvents: openLoopEvents, arrival: { kind: 'fixed', rateHz },
+    ...base, input: openLoopFile, workers, maxEvents: openLoopEvents, arrival: { kind: 'fixed', rateHz },
     onEvent: (_event, _towers, serviceNs, scheduledNs, _startNs, doneNs) => overhead.recordNs(doneNs - scheduledNs - serviceNs),
   });
   return { summary, overhead: overhead.stats(), lateness: summary.harness.dispatchLateness };
@@ -269,6 +273,11 @@ if (!streamingOnly) {
     overheadP50Us: pick((x) => x.overhead.p50_us), overheadP99Us: pick((x) => x.overhead.p99_us),
     waitP50Us: pick((x) => x.summary.latency.wait.p50_us), returnP50Us: pick((x) => x.summary.latency.return.p50_us),
     serviceP50Us: pick((x) => x.summary.latency.service.p50_us),
+    // the events whose threads did not wait for a CPU (thread-cpu-wait.ts): the harness's own share
+    delayedPercent: pick((x) => { const c = x.summary.harness.cpuWait; return c ? (100 * c.delayed) / c.events : null; }),
+    undelayedP50Us: pick((x) => x.summary.harness.cpuWait?.overheadUndelayed.p50_us ?? null),
+    undelayedP99Us: pick((x) => x.summary.harness.cpuWait?.overheadUndelayed.p99_us ?? null),
+    cpuWaitP99Us: pick((x) => x.summary.harness.cpuWait?.wait.p99_us ?? null),
     loadAverages: rounds.map((x) => x.summary.machineLoad?.loadAverageStart ?? null),
   };
   results.openLoop = figures;
@@ -277,6 +286,8 @@ if (!streamingOnly) {
     `end-to-end minus service p50 ${us(figures.overheadP50Us)} µs, p99 ${us(figures.overheadP99Us)} µs ` +
     `(wait p50 ${us(figures.waitP50Us)}, return p50 ${us(figures.returnP50Us)}; service p50 ${us(figures.serviceP50Us)} µs); ` +
     `load average ${figures.loadAverages.map((x) => x?.toFixed(1)).join(', ')}`);
+  line(`  the same runs, CPU wait: ${figures.delayedPercent?.toFixed(1)} % of events waited over ${CPU_WAIT_DELAY_NS / 1e3} µs for a CPU on their threads ` +
+    `(CPU wait p99 ${us(figures.cpuWaitP99Us)} µs); end-to-end minus service of the others p50 ${us(figures.undelayedP50Us)} µs, p99 ${us(figures.undelayedP99Us)} µs`);
 
   const lowHz = (closedOneWorkerHz || 500) / 2;
   const byWorkers: Record<number, { overheadP50: number[]; overheadP99: number[]; latenessP50: number[] }> = {

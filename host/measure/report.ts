@@ -117,8 +117,8 @@ function cpuWaitLines(cpuWait: NonNullable<RunSummary['harness']['cpuWait']>): s
   const share = cpuWait.events > 0 ? ((100 * cpuWait.delayed) / cpuWait.events).toFixed(1) : '0.0';
   return [
     `${pad}CPU wait: per event, the time its worker's thread and the main thread were ready to run while another thread`,
-    `${pad}held the core (Linux run-queue time); ${grouped(cpuWait.delayed)} of ${grouped(cpuWait.events)} events (${share} %) waited over ${cpuWait.delayedOverUs} µs:`,
-    `${pad}their latency includes the machine's other work; "not delayed": end-to-end − service of the others`,
+    `${pad}(the machine's other work, or this run's own) held the core (Linux run-queue time); ${grouped(cpuWait.delayed)} of ${grouped(cpuWait.events)} events`,
+    `${pad}(${share} %) waited over ${cpuWait.delayedOverUs} µs; "not delayed": end-to-end − service of the others (queueing behind a delayed event stays in)`,
   ];
 }
 
