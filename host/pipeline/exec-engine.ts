@@ -25,6 +25,7 @@
 
 import { encodeStreamEvent, encodeStreamHeader } from './exec-stream.js';
 import { ProgramProcess, type FaultKind, type ProcessFault } from './exec-process.js';
+import { Watchdog } from './exec-watchdog.js';
 import { DEFAULT_MAX_RECORD_BYTES } from '../input/record-framer.js';
 import type { DecodedJets } from '../formats/jets-codec.js';
 import type { ClusterSettings, Grid, JetSet } from '../types.js';
@@ -106,12 +107,15 @@ export class ExecEngine {
   private readonly headerRecord: Uint8Array;
   private readonly resolvers: Resolver[] = [];
   private resolverHead = 0;
-  private roomWaiters: (() => void)[] = [];
   private readonly maxInFlight: number;
+  private readonly watchdog: Watchdog;
+  private pumpScheduled = false;
 
   private constructor(private readonly options: ExecEngineOptions) {
     this.headerRecord = encodeStreamHeader(options.grid, options.settings, options.producer, options.streamLabel ?? '');
     this.maxInFlight = options.maxInFlight ?? 1;
+    // the start-up timeout is never shorter than the per-event one
+    this.watchdog = new Watchdog(options.timeoutMs);
   }
 
   static async start(options: ExecEngineOptions): Promise<ExecEngine> {
@@ -124,29 +128,59 @@ export class ExecEngine {
     return this.resolvers.length - this.resolverHead;
   }
 
+  /**
+   * Writes the event and, when the window is full (always, with one event in flight), waits
+   * for the oldest answer in a blocking read; then lets the event loop run once, for the
+   * program's stderr and exit status, outside the round trip.
+   */
   async submit(event: number, towerIndex: Int32Array, towerEt: Float64Array): Promise<ExecOutcome> {
     const record = encodeStreamEvent(event, towerIndex, towerEt, this.options.settings.threshold);
     while (true) {
       await this.ensureProcess(false);
-      if (this.process!.inFlight < this.maxInFlight) break;
-      await new Promise<void>((wake) => this.roomWaiters.push(wake));
+      // other submits ran while this one waited: the process may be full, or gone
+      if (this.process!.alive && this.process!.inFlight < this.maxInFlight) break;
+      await this.receiveOldest();
     }
-    return new Promise<ExecOutcome>((resolve) => {
-      this.resolvers.push(resolve);
-      this.counts.sent++;
-      this.process!.send(event, record);
-    });
+    const outcome = new Promise<ExecOutcome>((resolve) => this.resolvers.push(resolve));
+    this.counts.sent++;
+    const running = this.process!;
+    if (running.send(event, record) && running.inFlight >= this.maxInFlight) running.receive();
+    if (!running.alive) await running.settled();
+    else if (running.inFlight > 0) this.schedulePump();
+    await new Promise<void>((resolve) => setImmediate(resolve));
+    return outcome;
   }
 
   async close(): Promise<void> {
-    while (this.inFlight > 0) await new Promise<void>((wake) => this.roomWaiters.push(wake));
+    while (this.inFlight > 0) await this.receiveOldest();
     const running = this.process;
     this.process = null;
     if (running) await running.stop(this.options.timeoutMs);
+    this.watchdog.close();
   }
 
-  /** A live process, started (or restarted) when there is none. */
+  /** The oldest answer of the running process, or its fault, settled. */
+  private async receiveOldest(): Promise<void> {
+    const running = this.process;
+    if (running === null) return;
+    if (running.alive && running.inFlight > 0) running.receive();
+    if (!running.alive) await running.settled();
+  }
+
+  /** Events left in flight under a window of several are read when the caller yields. */
+  private schedulePump(): void {
+    if (this.pumpScheduled) return;
+    this.pumpScheduled = true;
+    setImmediate(() => {
+      this.pumpScheduled = false;
+      const running = this.process;
+      while (running !== null && running.alive && running.inFlight > 0) running.receive();
+    });
+  }
+
+  /** A live process, started (or restarted) when there is none; a fault is settled first. */
   private async ensureProcess(first: boolean): Promise<void> {
+    if (this.process !== null && !this.process.alive) await this.process.settled();
     while (this.process === null || !this.process.alive) {
       if (this.starting === null) this.starting = this.startOne(first).finally(() => { this.starting = null; });
       await this.starting;
@@ -175,6 +209,7 @@ export class ExecEngine {
         maxRecordBytes: this.options.maxRecordBytes ?? DEFAULT_MAX_RECORD_BYTES,
       },
       { answered: (event, answer, roundTripNs) => this.onAnswer(event, answer, roundTripNs), faulted: (fault, failed) => this.onFault(fault, failed) },
+      this.watchdog,
     );
     const fault = await started.start();
     if (started.spawnError) throw new ExecEngineError(`${this.options.label}: cannot start the program: ${started.spawnError.message}`);
@@ -201,11 +236,6 @@ export class ExecEngine {
     return resolve;
   }
 
-  private wakeOne(): void {
-    const wake = this.roomWaiters.shift();
-    if (wake) wake();
-  }
-
   private onAnswer(event: number, answer: DecodedJets, roundTripNs: number): void {
     const resolve = this.nextResolver();
     if (answer.error !== '') {
@@ -215,7 +245,6 @@ export class ExecEngine {
       this.counts.answered++;
       resolve({ ok: true, event, jets: answer.jets, hasTowers: answer.hasTowers, serviceNs: answer.clusterTimeNs, roundTripNs });
     }
-    this.wakeOne();
   }
 
   private onFault(fault: ProcessFault, failed: number[]): void {
@@ -228,7 +257,5 @@ export class ExecEngine {
       const message = event === fault.event ? fault.line : `${this.options.label}, event ${event}: in flight when the program failed (${fault.line})`;
       this.nextResolver()({ ok: false, event, reason: fault.kind, message });
     }
-    // every waiter goes on: the next submit restarts the program
-    for (const wake of this.roomWaiters.splice(0)) wake();
   }
 }

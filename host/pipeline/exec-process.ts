@@ -1,26 +1,38 @@
 // One running instance of an outside clustering program (exec-engine.ts restarts them): the
-// child process, its stdin (event stream out), its stdout (jets stream in, cut by the
-// project's record framer under the record cap) and the tail of its stderr.
+// child process, its stdin (event stream out) and stdout (jets stream in, cut by the project's
+// record framer under the record cap) on blocking pipes (exec-fifo.ts), and its stderr's tail.
 //
 //   start()                   spawns, writes the stream header, waits for the program's jets
 //                             header (the handshake keeps start-up out of the first event's
 //                             round trip)
-//   send(event, recordBytes)  writes one event; its answer or its failure comes back through
-//                             the `answered` / `failed` callbacks, in the order sent
+//   send(event, recordBytes)  writes one event with a blocking write
+//   receive()                 waits in a blocking read until the next answer is in (the
+//                             `answered` callback, in the order sent) or the instance faults
+//   settled()                 a fault's completion: exit status and stderr are read on the
+//                             event loop, then the `faulted` callback
 //   stop(graceMs)             ends stdin, waits for the program to exit, kills it after graceMs
 //
-// Faults end the instance: every event in flight fails with the fault's line, the process is
-// killed, and nothing it writes afterwards is read. Kinds: 'exited' (exit, crash or closed
-// stdout), 'timed-out' (no answer within the timeout, counted from when the event was written
-// or, behind another event, from that event's answer), 'malformed' (bad framing, a record
-// that is not the jets record due, a bad header).
+// Why blocking: while its event is out the worker has nothing else to do, and a read that
+// returns the moment the answer's last byte is in costs less than a wake-up of the event loop
+// (README, "Timing your own program"). A blocking read cannot time out, so a watchdog thread
+// (exec-watchdog.ts) kills the program at the deadline and wakes the read; stderr and the exit
+// status stay on the event loop, which runs between events (exec-engine.ts yields to it).
 //
-// In flight: parallel arrays used as a queue, head at inFlightHead; an event is written once
-// and answered or failed once. Times are process.hrtime.bigint() (monotonic) as numbers of ns.
+// Faults end the instance: every event in flight fails with the fault's line, the process is
+// killed, and nothing it writes afterwards is read. Kinds: 'exited' (exit, crash, closed
+// stdout or stdin), 'timed-out' (no answer within the timeout, counted from when the event was
+// written or, behind another event, from that event's answer), 'malformed' (bad framing, a
+// record that is not the jets record due, a bad header).
+//
+// In flight: parallel arrays used as a queue, head at inFlightHead. Times are
+// process.hrtime.bigint() (monotonic) as numbers of ns.
 
-import { spawn, type ChildProcessWithoutNullStreams } from 'node:child_process';
+import { spawn, type ChildProcess } from 'node:child_process';
+import { readSync, writeSync } from 'node:fs';
 import { RecordFramer } from '../input/record-framer.js';
 import { checkProgramHeader, readProgramAnswer } from './exec-stream.js';
+import { closeChildEnds, closeJetlagEnds, openProgramPipes, type ProgramPipes } from './exec-fifo.js';
+import type { Watchdog } from './exec-watchdog.js';
 import type { DecodedJets } from '../formats/jets-codec.js';
 import type { ClusterSettings, Grid } from '../types.js';
 
@@ -36,7 +48,7 @@ export interface ProcessFault {
 
 export interface ProcessHandlers {
   answered(event: number, answer: DecodedJets, roundTripNs: number): void;
-  /** once per instance; `inFlight` are the events that fail with it, oldest first */
+  /** once per instance, after start(); `inFlight` are the events that fail with it, oldest first */
   faulted(fault: ProcessFault, inFlight: number[]): void;
 }
 
@@ -60,52 +72,54 @@ const STDERR_TAIL_BYTES = 4096;
 const STDERR_TAIL_LINES = 3;
 /** after stdout closes, how long to wait for the exit status before killing */
 const EXIT_STATUS_WAIT_MS = 1000;
+/** one read takes a whole pileup-200 answer */
+const READ_CHUNK_BYTES = 1 << 16;
 
 const now = (): number => Number(process.hrtime.bigint());
 
 export class ProgramProcess {
-  private readonly child: ChildProcessWithoutNullStreams;
+  private readonly child: ChildProcess;
+  private readonly pipes: ProgramPipes;
   private readonly framer: RecordFramer;
+  private readonly chunk = Buffer.allocUnsafe(READ_CHUNK_BYTES);
   private stderrTail: Buffer = Buffer.alloc(0);
   private headerSeen = false;
-  private headerWaiter: ((fault: ProcessFault | null) => void) | null = null;
   /** faulted or stopped: nothing more is read, nothing more fails */
   private ended = false;
-  /** stdout closed by the program: waiting for its exit status before the fault */
-  private outputClosed = false;
+  private settling: Promise<ProcessFault | null> = Promise.resolve(null);
   private stderrEnded = false;
   private exitStatus: { code: number | null; signal: NodeJS.Signals | null } | null = null;
   private exitWaiters: (() => void)[] = [];
+  private spawnWaiter: (() => void) | null = null;
   private readonly inFlightEvents: number[] = [];
   private readonly inFlightWrittenNs: number[] = [];
   private inFlightHead = 0;
-  private headSinceNs = 0;
-  private timer: NodeJS.Timeout | null = null;
   /** the name the program gives itself in its header (settings.engine) */
   engineName = '';
   /** spawn failure (ENOENT, EACCES): restarting cannot help */
   spawnError: Error | null = null;
 
-  constructor(private readonly config: ProcessSettings, private readonly handlers: ProcessHandlers) {
+  constructor(private readonly config: ProcessSettings, private readonly handlers: ProcessHandlers, private readonly watchdog: Watchdog) {
     this.framer = new RecordFramer(config.maxRecordBytes);
-    this.child = spawn(config.argv[0], config.argv.slice(1), {
-      stdio: ['pipe', 'pipe', 'pipe'],
-      env: config.env ? { ...process.env, ...config.env } : process.env,
-    });
+    this.pipes = openProgramPipes();
+    try {
+      this.child = spawn(config.argv[0], config.argv.slice(1), {
+        stdio: [this.pipes.childStdin, this.pipes.childStdout, 'pipe'],
+        env: config.env ? { ...process.env, ...config.env } : process.env,
+      });
+    } finally {
+      closeChildEnds(this.pipes);
+    }
     this.child.on('error', (error) => {
       this.spawnError = error;
-      this.fault('exited', null, `cannot start: ${error.message}`);
+      this.spawnWaiter?.();
     });
     this.child.on('exit', (code, signal) => {
       this.exitStatus = { code, signal };
       for (const wake of this.exitWaiters.splice(0)) wake();
     });
-    // a program that stops reading makes writes fail with EPIPE; its closed stdout says more
-    this.child.stdin.on('error', () => {});
-    this.child.stdout.on('data', (chunk: Buffer) => this.onOutput(chunk));
-    this.child.stdout.on('end', () => this.onOutputEnd());
-    this.child.stderr.on('end', () => { this.stderrEnded = true; });
-    this.child.stderr.on('data', (chunk: Buffer) => {
+    this.child.stderr?.on('end', () => { this.stderrEnded = true; });
+    this.child.stderr?.on('data', (chunk: Buffer) => {
       const joined = Buffer.concat([this.stderrTail, chunk]);
       this.stderrTail = joined.length > STDERR_TAIL_BYTES ? joined.subarray(joined.length - STDERR_TAIL_BYTES) : joined;
     });
@@ -120,43 +134,90 @@ export class ProgramProcess {
   }
 
   /** Writes the stream header and waits for the program's; null when it came and fits. */
-  start(): Promise<ProcessFault | null> {
-    this.child.stdin.write(this.config.headerRecord);
-    return new Promise((resolve) => {
-      if (this.ended) return resolve({ kind: 'exited', line: `${this.config.label}: ended before writing its header`, event: null });
-      this.headerWaiter = resolve;
-      this.armTimer();
-    });
+  async start(): Promise<ProcessFault | null> {
+    if (this.child.pid === undefined) {
+      if (this.spawnError === null) await new Promise<void>((resolve) => { this.spawnWaiter = resolve; });
+      this.ended = true;
+      closeJetlagEnds(this.pipes);
+      return { kind: 'exited', line: `${this.config.label}: cannot start: ${this.spawnError!.message}`, event: null };
+    }
+    this.watchdog.arm(this.child.pid, this.pipes.answersIn, BigInt(now()) + BigInt(this.config.startTimeoutMs) * 1_000_000n);
+    if (this.writeWhole(this.config.headerRecord)) {
+      while (!this.headerSeen && !this.ended) this.readOnce();
+    }
+    if (!this.ended) this.watchdog.disarm();
+    return this.ended ? this.settling : null;
   }
 
-  send(event: number, record: Uint8Array): void {
+  /** Writes one event; false when the program is gone (settled() then says why). */
+  send(event: number, record: Uint8Array): boolean {
     if (this.ended) throw new Error('send() on an ended program process');
     const writtenNs = now();
-    // the write first: the bookkeeping and the timer (which counts from writtenNs) are jetlag's
-    // work, not the pipe's, and would otherwise sit inside the round trip
-    this.child.stdin.write(record);
+    // the watchdog covers the write too: a program that stops reading blocks it
+    if (this.inFlight === 0) this.watchdog.arm(this.child.pid!, this.pipes.answersIn, BigInt(writtenNs) + BigInt(this.config.timeoutMs) * 1_000_000n);
     this.inFlightEvents.push(event);
     this.inFlightWrittenNs.push(writtenNs);
-    if (this.inFlight === 1) { this.headSinceNs = writtenNs; this.armTimer(); }
+    return this.writeWhole(record);
+  }
+
+  /** Blocks until the oldest event in flight is answered (true) or the instance faults (false). */
+  receive(): boolean {
+    const due = this.inFlight;
+    while (!this.ended && this.inFlight === due) this.readOnce();
+    return !this.ended;
+  }
+
+  /** The fault that ended this instance, once its line is complete (null: none). */
+  settled(): Promise<ProcessFault | null> {
+    return this.settling;
   }
 
   /** Ends the stream; resolves when the program has exited (killed after graceMs). */
   async stop(graceMs: number): Promise<void> {
-    if (this.ended) return this.kill();
+    if (this.ended) {
+      await this.settling;
+      return this.kill();
+    }
     this.ended = true;
-    this.clearTimer();
-    this.child.stdin.end();
+    this.watchdog.disarm();
+    closeJetlagEnds(this.pipes);
     if (!(await this.waitForExit(graceMs))) this.kill();
   }
 
-  private onOutput(chunk: Buffer): void {
-    if (this.ended || this.outputClosed) return;
+  private writeWhole(bytes: Uint8Array): boolean {
+    try {
+      for (let written = 0; written < bytes.length;) written += writeSync(this.pipes.eventsOut, bytes, written);
+      return true;
+    } catch (error) {
+      // EPIPE: the program closed its stdin, most often by exiting; its exit status says more
+      if (this.watchdog.disarm()) this.fault('exited', this.dueEvent(), '', 'input');
+      else this.timedOut();
+      return false;
+    }
+  }
+
+  /** One blocking read of the program's output, framed; faults on end of file or the watchdog. */
+  private readOnce(): void {
+    let count: number;
+    try {
+      count = readSync(this.pipes.answersIn, this.chunk, 0, READ_CHUNK_BYTES, null);
+    } catch (error) {
+      count = 0;
+      if ((error as NodeJS.ErrnoException).code === 'EAGAIN') return;
+    }
     const arrivedNs = now();
-    this.framer.feed(chunk, (bytes, offset) => {
+    if (this.watchdog.fired) return this.timedOut();
+    if (count === 0) {
+      this.framer.finish();
+      const cut = this.framer.problem ? ` (${this.framer.problem.detail}, output byte ${this.framer.problem.offset})` : '';
+      if (!this.watchdog.disarm()) return this.timedOut();
+      return this.fault('exited', this.dueEvent(), cut, 'output');
+    }
+    this.framer.feed(this.chunk.subarray(0, count), (bytes, offset) => {
       if (!this.ended) this.onRecord(bytes, offset, arrivedNs);
     });
     if (this.framer.problem && !this.ended) {
-      this.fault('malformed', this.dueEvent(), `output byte ${this.framer.problem.offset}: ${this.framer.problem.detail}`);
+      this.fault('malformed', this.dueEvent(), `output byte ${this.framer.problem.offset}: ${this.framer.problem.detail}`, null);
     }
   }
 
@@ -167,22 +228,20 @@ export class ProgramProcess {
   private onRecord(bytes: Uint8Array, offset: number, arrivedNs: number): void {
     if (!this.headerSeen) {
       const checked = checkProgramHeader(bytes, this.config.grid, this.config.settings);
-      if ('problem' in checked) return this.fault('malformed', null, `output byte ${offset}: ${checked.problem}`);
+      if ('problem' in checked) return this.fault('malformed', null, `output byte ${offset}: ${checked.problem}`, null);
       this.engineName = checked.engineName;
       this.headerSeen = true;
-      this.clearTimer();
-      const waiter = this.headerWaiter;
-      this.headerWaiter = null;
-      if (waiter) waiter(null);
       return;
     }
     const due = this.dueEvent();
     if (due === null) {
-      return this.fault('malformed', null, `output byte ${offset}: a record with no event in flight (one answer per event)`);
+      return this.fault('malformed', null, `output byte ${offset}: a record with no event in flight (one answer per event)`, null);
     }
     const pending = this.inFlightEvents.slice(this.inFlightHead);
     const result = readProgramAnswer(bytes, due, pending);
-    if (!result.ok) return this.fault('malformed', due, `output byte ${offset}: ${result.problem}`);
+    if (!result.ok) return this.fault('malformed', due, `output byte ${offset}: ${result.problem}`, null);
+    // answered at the deadline: the watchdog has killed the program already
+    if (!this.watchdog.disarm()) return this.timedOut();
     const writtenNs = this.inFlightWrittenNs[this.inFlightHead];
     this.inFlightHead++;
     if (this.inFlightHead === this.inFlightEvents.length) {
@@ -190,27 +249,50 @@ export class ProgramProcess {
       this.inFlightEvents.length = 0;
       this.inFlightWrittenNs.length = 0;
       this.inFlightHead = 0;
-      this.clearTimer();
     } else {
-      this.headSinceNs = Math.max(arrivedNs, this.inFlightWrittenNs[this.inFlightHead]);
-      this.armTimer();
+      const sinceNs = Math.max(arrivedNs, this.inFlightWrittenNs[this.inFlightHead]);
+      this.watchdog.arm(this.child.pid!, this.pipes.answersIn, BigInt(Math.round(sinceNs)) + BigInt(this.config.timeoutMs) * 1_000_000n);
     }
     this.handlers.answered(due, result.answer, arrivedNs - writtenNs);
   }
 
-  private onOutputEnd(): void {
-    if (this.ended || this.outputClosed) return;
-    this.framer.finish();
-    const cut = this.framer.problem ? ` (${this.framer.problem.detail}, output byte ${this.framer.problem.offset})` : '';
-    // stdout closed first; the exit status and the rest of stderr follow (or the program
-    // keeps running without its output, and is killed)
-    this.outputClosed = true;
-    this.clearTimer();
-    void this.waitForExit(EXIT_STATUS_WAIT_MS).then(async (exited) => {
-      if (exited) await this.waitForStderr(EXIT_STATUS_WAIT_MS);
-      const how = exited ? describeExit(this.exitStatus!) : 'closed its output and was killed';
-      this.fault('exited', this.dueEvent(), `${how}${cut}${this.stderrText()}`);
-    });
+  private timedOut(): void {
+    const what = this.headerSeen ? `no answer within ${this.config.timeoutMs} ms` : `no jets header within ${this.config.startTimeoutMs} ms of starting`;
+    this.fault('timed-out', this.dueEvent(), `${what} (timed out); killed`, null);
+  }
+
+  /**
+   * Ends this instance once: the events in flight are taken now, the line is completed on the
+   * event loop, then reported. `closed`: the program closed its output or its input, so the
+   * line waits for its exit status and the rest of its stderr (`detail` then follows the exit).
+   * The watchdog is disarmed (or has fired) before any fault, so the answers fd may close.
+   */
+  private fault(kind: FaultKind, event: number | null, detail: string, closed: 'output' | 'input' | null): void {
+    if (this.ended) return;
+    this.ended = true;
+    this.watchdog.disarm();
+    const failed = this.inFlightEvents.slice(this.inFlightHead);
+    this.inFlightEvents.length = 0;
+    this.inFlightWrittenNs.length = 0;
+    this.inFlightHead = 0;
+    if (closed === null) this.kill();
+    const where = event !== null ? `${this.config.label}, event ${event}` : this.config.label;
+    const reported = this.headerSeen;
+    this.settling = (async () => {
+      let line = `${where}: ${detail}`;
+      if (closed !== null) {
+        // stdout (or stdin) closed first; the exit status and the rest of stderr follow, or the
+        // program keeps running without them, and is killed
+        const exited = await this.waitForExit(EXIT_STATUS_WAIT_MS);
+        if (exited) await this.waitForStderr(EXIT_STATUS_WAIT_MS);
+        const how = exited ? describeExit(this.exitStatus!) : `closed its ${closed} and was killed`;
+        line = `${where}: ${how}${detail}${this.stderrText()}`;
+        this.kill();
+      }
+      const fault: ProcessFault = { kind, line, event };
+      if (reported) this.handlers.faulted(fault, failed);
+      return fault;
+    })();
   }
 
   private waitForExit(ms: number): Promise<boolean> {
@@ -232,47 +314,10 @@ export class ProgramProcess {
     return `; its stderr ended: ${lines.slice(-STDERR_TAIL_LINES).map((line) => JSON.stringify(line)).join(' | ')}`;
   }
 
-  private armTimer(): void {
-    this.clearTimer();
-    const limitMs = this.headerSeen ? this.config.timeoutMs - (now() - this.headSinceNs) / 1e6 : this.config.startTimeoutMs;
-    this.timer = setTimeout(() => this.onTimeout(), Math.max(0, limitMs));
-  }
-
-  private clearTimer(): void {
-    if (this.timer !== null) clearTimeout(this.timer);
-    this.timer = null;
-  }
-
-  private onTimeout(): void {
-    this.timer = null;
-    if (this.ended || this.outputClosed) return;
-    const what = this.headerSeen ? `no answer within ${this.config.timeoutMs} ms` : `no jets header within ${this.config.startTimeoutMs} ms of starting`;
-    this.fault('timed-out', this.dueEvent(), `${what} (timed out); killed`);
-  }
-
-  /** Ends this instance once: kills the program and fails everything in flight. */
-  private fault(kind: FaultKind, event: number | null, detail: string): void {
-    if (this.ended) return;
-    this.ended = true;
-    this.clearTimer();
-    this.kill();
-    const where = event !== null ? `${this.config.label}, event ${event}` : this.config.label;
-    const fault: ProcessFault = { kind, line: `${where}: ${detail}`, event };
-    const failed = this.inFlightEvents.slice(this.inFlightHead);
-    this.inFlightEvents.length = 0;
-    this.inFlightWrittenNs.length = 0;
-    this.inFlightHead = 0;
-    const waiter = this.headerWaiter;
-    this.headerWaiter = null;
-    if (waiter) waiter(fault);
-    else this.handlers.faulted(fault, failed);
-  }
-
   private kill(): void {
-    if (this.exitStatus === null && this.child.exitCode === null) this.child.kill('SIGKILL');
-    this.child.stdout.destroy();
-    this.child.stderr.destroy();
-    this.child.stdin.destroy();
+    if (this.exitStatus === null && this.child.exitCode === null && this.child.pid !== undefined) this.child.kill('SIGKILL');
+    this.child.stderr?.destroy();
+    closeJetlagEnds(this.pipes);
   }
 }
 
