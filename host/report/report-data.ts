@@ -51,6 +51,10 @@ export interface RunView {
   returnTrip: LatencySeries | null;
   endToEnd: LatencySeries | null;
   dispatchLateness: LatencySeries | null;
+  /** open loop: end-to-end minus service per event; of the events no thread of which waited for a CPU; that wait */
+  overhead: LatencySeries | null;
+  overheadUndelayed: LatencySeries | null;
+  cpuWait: LatencySeries | null;
   stages: Record<string, LatencyStats>;
   /** the pileup chain's stages that ran, inside the cluster stage (spec part two); {} when none */
   pileupStages: Record<string, LatencyStats>;
@@ -159,6 +163,9 @@ export function runView(summary: Json, source: string, extra: { points?: EventPo
     returnTrip: openLoop ? seriesOf(summary, [['latency', 'return']], ['return']) : null,
     endToEnd: openLoop ? seriesOf(summary, [['latency', 'endToEnd']], ['endToEnd']) : null,
     dispatchLateness: openLoop ? seriesOf(summary, [['harness', 'dispatchLateness'], ['latency', 'dispatchLag']], ['dispatchLateness', 'dispatchLag']) : null,
+    overhead: openLoop ? seriesOf(summary, [['harness', 'overhead']], ['overhead']) : null,
+    overheadUndelayed: openLoop ? seriesOf(summary, [['harness', 'cpuWait', 'overheadUndelayed']], ['overheadUndelayed']) : null,
+    cpuWait: openLoop ? seriesOf(summary, [['harness', 'cpuWait', 'wait']], ['cpuWait']) : null,
     stages: summary.latency?.stages ?? {},
     pileupStages: summary.latency?.pileupStages ?? {},
     grooming: isStats(summary.latency?.grooming) ? summary.latency.grooming : null,

@@ -108,6 +108,9 @@ export function latencyTable(runs: RunView[]): string {
     ['return (open loop)', (run) => run.returnTrip],
     ['end-to-end (open loop)', (run) => run.endToEnd],
     ['dispatch lateness (harness)', (run) => run.dispatchLateness],
+    ['end-to-end − service (open loop)', (run) => run.overhead],
+    ['… of events not delayed for a CPU', (run) => run.overheadUndelayed],
+    ['CPU wait per event (run queue)', (run) => run.cpuWait],
   ];
   const several = runs.length > 1;
   const rows: [string, ...Cell[]][] = [];
