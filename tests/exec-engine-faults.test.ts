@@ -94,6 +94,23 @@ describe('an engine program', () => {
     countsAddUp(engine);
   });
 
+  it('that hangs on event 5 with a child holding its stdout is still timed out and restarted', { timeout: 20_000 }, async () => {
+    // killing the program leaves its child's copy of stdout open: the blocking read of its
+    // answers must be woken by the watchdog, not by an end of file that comes 60 s later
+    const pidFile = join(tempDirForTest('exec-hang-child'), 'child.pid');
+    const { options: o, faults } = options('hang-child', 5, { timeoutMs: 1000 }, [pidFile]);
+    const engine = await ExecEngine.start(o);
+    try {
+      const outcomes = await runEvents(engine, 8);
+      expect(failedEvents(outcomes)).toEqual([5]);
+      expect(faults).toEqual(['exec:faulty-engine hang-child, event 5: no answer within 1000 ms (timed out); killed']);
+      expect(engine.counts).toMatchObject({ sent: 8, answered: 7, timedOut: 1, restarts: 1 });
+      countsAddUp(engine);
+    } finally {
+      try { process.kill(Number(readFileSync(pidFile, 'utf8')), 'SIGKILL'); } catch { /* already gone */ }
+    }
+  });
+
   it('that writes garbage is named with the event and the byte offset in its output', async () => {
     const offsetFile = join(tempDirForTest('exec-garbage'), 'offset');
     const { options: o, faults } = options('garbage', 3, {}, [offsetFile]);

@@ -8,7 +8,7 @@
 //   disarm(): boolean              true when disarmed in time (or nothing armed); false when
 //                                  the watchdog fired, returned after its kill and wake-up byte
 //                                  are done (so the answers fd may then be closed)
-//   fired                          the armed wait's deadline passed and the program was killed
+//   fired                          the armed wait's deadline passed: the program is being killed
 //   close()
 //
 // No message per event: the thread sleeps (Atomics.wait) until the armed deadline or, with
@@ -104,9 +104,12 @@ export class Watchdog {
     return false;
   }
 
-  /** whether the armed wait's deadline has passed and the program was killed */
+  /**
+   * Whether the watchdog has taken the armed wait (its deadline passed): the kill and the
+   * wake-up byte may still be under way, so whatever was read is not the program's answer.
+   */
   get fired(): boolean {
-    return this.armedSequence !== 0 && Atomics.load(this.control, FIRED) === this.armedSequence;
+    return this.armedSequence !== 0 && Atomics.load(this.control, ARMED) !== this.armedSequence;
   }
 
   close(): void {
