@@ -253,10 +253,10 @@ if (!streamingOnly) {
 const openLoopEvents = quick ? 600 : 5000;
 const openLoopFile = join(dir, 'pileup200-open-loop.events');
 if (!streamingOnly) writeToyFile(openLoopFile, openLoopEvents, 200, 500);
-async function openLoopRound(workers: number, rateHz: number) {
+async function openLoopRound(workers: number, rateHz: number, cpuWaitPerEvent = false) {
   const overhead = new LatencyRecorder();
   const summary = await timedRun({
-    ...base, input: openLoopFile, workers, maxEvents: openLoopEvents, arrival: { kind: 'fixed', rateHz },
+    ...base, input: openLoopFile, workers, maxEvents: openLoopEvents, arrival: { kind: 'fixed', rateHz }, cpuWaitPerEvent,
     onEvent: (_event, _towers, serviceNs, scheduledNs, _startNs, doneNs) => overhead.recordNs(doneNs - scheduledNs - serviceNs),
   });
   return { summary, overhead: overhead.stats(), lateness: summary.harness.dispatchLateness };
@@ -274,10 +274,9 @@ if (!streamingOnly) {
     waitP50Us: pick((x) => x.summary.latency.wait.p50_us), returnP50Us: pick((x) => x.summary.latency.return.p50_us),
     serviceP50Us: pick((x) => x.summary.latency.service.p50_us),
     // the events whose threads did not wait for a CPU (thread-cpu-wait.ts): the harness's own share
-    delayedPercent: pick((x) => { const c = x.summary.harness.cpuWait; return c ? (100 * c.delayed) / c.events : null; }),
-    undelayedP50Us: pick((x) => x.summary.harness.cpuWait?.overheadUndelayed.p50_us ?? null),
-    undelayedP99Us: pick((x) => x.summary.harness.cpuWait?.overheadUndelayed.p99_us ?? null),
-    cpuWaitP99Us: pick((x) => x.summary.harness.cpuWait?.wait.p99_us ?? null),
+    workersCpuWaitMs: pick((x) => x.summary.harness.cpuWait?.workersMs ?? null),
+    mainCpuWaitMs: pick((x) => x.summary.harness.cpuWait?.mainMs ?? null),
+    wallSeconds: pick((x) => x.summary.throughput.wallSeconds),
     loadAverages: rounds.map((x) => x.summary.machineLoad?.loadAverageStart ?? null),
   };
   results.openLoop = figures;
@@ -286,8 +285,25 @@ if (!streamingOnly) {
     `end-to-end minus service p50 ${us(figures.overheadP50Us)} µs, p99 ${us(figures.overheadP99Us)} µs ` +
     `(wait p50 ${us(figures.waitP50Us)}, return p50 ${us(figures.returnP50Us)}; service p50 ${us(figures.serviceP50Us)} µs); ` +
     `load average ${figures.loadAverages.map((x) => x?.toFixed(1)).join(', ')}`);
-  line(`  the same runs, CPU wait: ${figures.delayedPercent?.toFixed(1)} % of events waited over ${CPU_WAIT_DELAY_NS / 1e3} µs for a CPU on their threads ` +
-    `(CPU wait p99 ${us(figures.cpuWaitP99Us)} µs); end-to-end minus service of the others p50 ${us(figures.undelayedP50Us)} µs, p99 ${us(figures.undelayedP99Us)} µs`);
+  line(`  the same runs, the threads' wait for a CPU (Linux run-queue time; medians): workers ${figures.workersCpuWaitMs?.toFixed(0)} ms in all ` +
+    `over ${figures.wallSeconds.toFixed(1)} s, main thread ${figures.mainCpuWaitMs?.toFixed(0)} ms`);
+
+  // the same rate with each event's wait for a CPU read (run --cpu-wait-per-event): which events
+  // the machine delayed, and the overhead of the others
+  const perEventRounds: Awaited<ReturnType<typeof openLoopRound>>[] = [];
+  for (let r = 0; r < 3; r++) perEventRounds.push(await openLoopRound(2, halfHz, true));
+  const perEventPick = (f: (x: NonNullable<RunSummary['harness']['cpuWait']>['perEvent']) => number | null | undefined) =>
+    median(perEventRounds.map((x) => f(x.summary.harness.cpuWait?.perEvent) ?? NaN));
+  const perEvent = {
+    delayedPercent: perEventPick((x) => (x ? (100 * x.delayed) / x.events : null)),
+    cpuWaitP50Us: perEventPick((x) => x?.wait.p50_us), cpuWaitP99Us: perEventPick((x) => x?.wait.p99_us),
+    undelayedP50Us: perEventPick((x) => x?.overheadUndelayed.p50_us), undelayedP99Us: perEventPick((x) => x?.overheadUndelayed.p99_us),
+    overheadP50Us: median(perEventRounds.map((x) => x.overhead.p50_us ?? NaN)), overheadP99Us: median(perEventRounds.map((x) => x.overhead.p99_us ?? NaN)),
+  };
+  results.openLoopCpuWaitPerEvent = perEvent;
+  line(`  with each event's CPU wait read (--cpu-wait-per-event), medians of 3 runs: ${perEvent.delayedPercent.toFixed(1)} % of events waited over ` +
+    `${CPU_WAIT_DELAY_NS / 1e3} µs for a CPU on their threads (CPU wait p50 ${us(perEvent.cpuWaitP50Us)}, p99 ${us(perEvent.cpuWaitP99Us)} µs); ` +
+    `end-to-end minus service p50 ${us(perEvent.overheadP50Us)}, p99 ${us(perEvent.overheadP99Us)} µs; of the events not delayed p50 ${us(perEvent.undelayedP50Us)}, p99 ${us(perEvent.undelayedP99Us)} µs`);
 
   const lowHz = (closedOneWorkerHz || 500) / 2;
   const byWorkers: Record<number, { overheadP50: number[]; overheadP99: number[]; latenessP50: number[] }> = {

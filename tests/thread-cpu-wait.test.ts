@@ -75,7 +75,7 @@ describe.runIf(process.platform === 'linux')('an open loop on a machine kept bus
     else process.env.JETLAG_TEST_STUB_US = stubBefore;
   });
 
-  it('charges the time its threads waited for a CPU to the events, and the counts add up', async () => {
+  it('charges the time its threads waited for a CPU to the run, and with --cpu-wait-per-event to each event, and the counts add up', async () => {
     // twice as many busy processes as cores: every runnable thread of the run waits its turn
     for (let k = 0; k < 2 * availableParallelism(); k++) {
       spinners.push(spawn(process.execPath, ['-e', 'for (;;) {}'], { stdio: 'ignore' }));
@@ -86,15 +86,36 @@ describe.runIf(process.platform === 'linux')('an open loop on a machine kept bus
     process.env.JETLAG_TEST_STUB_US = '3000';
     const summary = await runEvents({
       input: file.path, workers: 1, check: { mode: 'none', fraction: 0, seed: 1 }, workerFile: faultWorker, progress: null,
-      arrival: { kind: 'fixed', rateHz: 100 },
+      arrival: { kind: 'fixed', rateHz: 100 }, cpuWaitPerEvent: true,
     });
     expect(summary.events.ok).toBe(40);
     const cpuWait = summary.harness.cpuWait!;
-    expect(cpuWait.events).toBe(40);
-    expect(cpuWait.delayed).toBeGreaterThan(0);
-    expect(cpuWait.wait.max_us).toBeGreaterThan(cpuWait.delayedOverUs);
-    expect(cpuWait.overheadUndelayed.count + cpuWait.delayed).toBe(40);
+    // the worker spun 120 ms in all beside two busy processes per core
+    expect(cpuWait.workersMs).toBeGreaterThan(1);
+    expect(cpuWait.mainMs).toBeGreaterThanOrEqual(0);
+    const perEvent = cpuWait.perEvent!;
+    expect(perEvent.events).toBe(40);
+    expect(perEvent.delayed).toBeGreaterThan(0);
+    expect(perEvent.wait.max_us).toBeGreaterThan(perEvent.delayedOverUs);
+    // an event's share is part of its thread's whole
+    expect(perEvent.wait.max_us! / 1e3).toBeLessThanOrEqual(cpuWait.workersMs + cpuWait.mainMs);
+    expect(perEvent.overheadUndelayed.count + perEvent.delayed).toBe(40);
     expect(summary.harness.overhead!.count).toBe(40);
-    expect(formatReport(summary)).toContain(`${cpuWait.delayed} of 40 events`);
+    const report = formatReport(summary);
+    expect(report).toContain(`${perEvent.delayed} of 40 events`);
+    expect(report).toContain('main thread');
+  });
+
+  it('reads only the run\'s totals without --cpu-wait-per-event', async () => {
+    stubBefore = process.env.JETLAG_TEST_STUB_US;
+    process.env.JETLAG_TEST_STUB_US = '1000';
+    const summary = await runEvents({
+      input: file.path, workers: 1, maxEvents: 10, check: { mode: 'none', fraction: 0, seed: 1 }, workerFile: faultWorker, progress: null,
+      arrival: { kind: 'fixed', rateHz: 100 },
+    });
+    const cpuWait = summary.harness.cpuWait!;
+    expect(cpuWait.workersMs).toBeGreaterThanOrEqual(0);
+    expect(cpuWait.perEvent).toBeUndefined();
+    expect(summary.harness.overhead!.count).toBe(10);
   });
 });

@@ -90,7 +90,7 @@ function latencyLines(summary: RunSummary): string[] {
     rows.push(latencyRow('harness: dispatch late', summary.harness.dispatchLateness));
     const { overhead, cpuWait } = summary.harness;
     if (overhead) rows.push(latencyRow('end-to-end − service', overhead));
-    if (cpuWait) rows.push(latencyRow('  not delayed', cpuWait.overheadUndelayed), latencyRow('CPU wait', cpuWait.wait));
+    if (cpuWait?.perEvent) rows.push(latencyRow('  not delayed', cpuWait.perEvent.overheadUndelayed), latencyRow('CPU wait', cpuWait.perEvent.wait));
   }
   const lines = [`  ${'latency µs'.padEnd(LABEL_WIDTH)}${COLUMNS.map((col) => col.padStart(CELL_WIDTH)).join('')}`];
   lines.push(...rows.map((row) => row.text));
@@ -101,7 +101,7 @@ function latencyLines(summary: RunSummary): string[] {
     lines.push(`  ${''.padEnd(LABEL_WIDTH)}end-to-end = wait + service + return, per event, from its scheduled arrival to its result on the main thread;`);
     lines.push(`  ${''.padEnd(LABEL_WIDTH)}dispatch late: the harness handing events over after their scheduled time (part of wait)`);
     const cpuWait = summary.harness.cpuWait;
-    if (cpuWait) lines.push(...cpuWaitLines(cpuWait));
+    if (cpuWait) lines.push(...cpuWaitLines(cpuWait, summary.throughput.wallSeconds, summary.configuration.workers));
   } else {
     lines.push(`  ${''.padEnd(LABEL_WIDTH)}a closed loop measures capacity; latency under load needs an open loop (--rate or --poisson)`);
   }
@@ -111,15 +111,23 @@ function latencyLines(summary: RunSummary): string[] {
   return lines;
 }
 
-/** What the CPU-wait rows mean, and how many events the machine delayed. */
-function cpuWaitLines(cpuWait: NonNullable<RunSummary['harness']['cpuWait']>): string[] {
+/** The threads' wait for a CPU over the run, and with per-event figures what their rows mean. */
+function cpuWaitLines(cpuWait: NonNullable<RunSummary['harness']['cpuWait']>, wallSeconds: number, workers: number): string[] {
   const pad = `  ${''.padEnd(LABEL_WIDTH)}`;
-  const share = cpuWait.events > 0 ? ((100 * cpuWait.delayed) / cpuWait.events).toFixed(1) : '0.0';
-  return [
-    `${pad}CPU wait: per event, the time its worker's thread and the main thread were ready to run while another thread`,
-    `${pad}(the machine's other work, or this run's own) held the core (Linux run-queue time); ${grouped(cpuWait.delayed)} of ${grouped(cpuWait.events)} events`,
-    `${pad}(${share} %) waited over ${cpuWait.delayedOverUs} µs; "not delayed": end-to-end − service of the others (queueing behind a delayed event stays in)`,
+  const perWorker = wallSeconds > 0 && workers > 0 ? ` (${((100 * cpuWait.workersMs) / (1e3 * wallSeconds * workers)).toFixed(1)} % of the run's wall time per worker)` : '';
+  const lines = [
+    `${pad}CPU wait: ready to run while another thread (the machine's other work, or this run's own) held the core,`,
+    `${pad}Linux run-queue time: workers ${grouped(cpuWait.workersMs)} ms in all${perWorker}, main thread ${grouped(cpuWait.mainMs)} ms`,
   ];
+  const perEvent = cpuWait.perEvent;
+  if (perEvent) {
+    const share = perEvent.events > 0 ? ((100 * perEvent.delayed) / perEvent.events).toFixed(1) : '0.0';
+    lines.push(
+      `${pad}per event, on its worker's thread and the main thread: ${grouped(perEvent.delayed)} of ${grouped(perEvent.events)} events (${share} %) waited`,
+      `${pad}over ${perEvent.delayedOverUs} µs; "not delayed": end-to-end − service of the others (queueing behind a delayed event stays in)`,
+    );
+  }
+  return lines;
 }
 
 function throughputLine(summary: RunSummary): string {

@@ -98,6 +98,8 @@ export class RunTally {
   readonly cpuWait = new LatencyRecorder();
   /** events whose cpuWait exceeded CPU_WAIT_DELAY_NS */
   cpuWaitDelayed = 0;
+  /** open loop, where the kernel keeps it: the serving threads' and the main thread's wait for a CPU over the run (ns) */
+  threadCpuWait: { workersNs: number; mainNs: number } | null = null;
   /** towers that entered clustering, per clustered event (the main driver of service time) */
   readonly towersPerEvent = new LatencyRecorder();
   readonly stages: Record<Stage, LatencyRecorder> = {
@@ -161,6 +163,11 @@ export class RunTally {
     this.cpuWait.recordNs(cpuWaitNs);
     if (cpuWaitNs > CPU_WAIT_DELAY_NS) this.cpuWaitDelayed++;
     else this.overheadUndelayed.recordNs(overheadNs);
+  }
+
+  /** Open loop, once at the end: the threads' wait for a CPU over the run (-1: unknown, nothing recorded). */
+  recordThreadCpuWait(workersNs: number, mainNs: number): void {
+    this.threadCpuWait = workersNs >= 0 && mainNs >= 0 ? { workersNs, mainNs } : null;
   }
 
   /** Open loop, per event handed to the pool: how late the harness was against its schedule. */
@@ -236,6 +243,10 @@ export class RunTally {
     this.overheadUndelayed.merge(other.overheadUndelayed);
     this.cpuWait.merge(other.cpuWait);
     this.cpuWaitDelayed += other.cpuWaitDelayed;
+    if (other.threadCpuWait) {
+      const own = this.threadCpuWait ?? { workersNs: 0, mainNs: 0 };
+      this.threadCpuWait = { workersNs: own.workersNs + other.threadCpuWait.workersNs, mainNs: own.mainNs + other.threadCpuWait.mainNs };
+    }
     this.towersPerEvent.merge(other.towersPerEvent);
     for (const stage of STAGES) this.stages[stage].merge(other.stages[stage]);
     for (const stage of PILEUP_STAGES) this.pileupStages[stage].merge(other.pileupStages[stage]);

@@ -34,7 +34,9 @@ export function tallyFromSummary(summary: RunSummary, where = 'summary'): RunTal
   if (histograms.overhead) tally.overhead.merge(LatencyRecorder.decode(histograms.overhead, `${where}: histograms.overhead`));
   if (histograms.cpuWait) tally.cpuWait.merge(LatencyRecorder.decode(histograms.cpuWait, `${where}: histograms.cpuWait`));
   if (histograms.overheadUndelayed) tally.overheadUndelayed.merge(LatencyRecorder.decode(histograms.overheadUndelayed, `${where}: histograms.overheadUndelayed`));
-  tally.cpuWaitDelayed = summary.harness.cpuWait?.delayed ?? 0;
+  const cpuWait = summary.harness.cpuWait;
+  tally.cpuWaitDelayed = cpuWait?.perEvent?.delayed ?? 0;
+  if (cpuWait) tally.threadCpuWait = { workersNs: cpuWait.workersMs * 1e6, mainNs: cpuWait.mainMs * 1e6 };
   tally.towersPerEvent.merge(LatencyRecorder.decode(histograms.towersPerEvent, `${where}: histograms.towersPerEvent`));
   for (const stage of STAGES) {
     tally.stages[stage].merge(LatencyRecorder.decode(summary.histograms.stages[stage], `${where}: histograms.stages.${stage}`));

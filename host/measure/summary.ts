@@ -125,12 +125,18 @@ export interface RunSummary {
     /** open loop, per event: end-to-end minus service (wait + return: what the harness and the machine added) */
     overhead?: LatencyStats;
     /**
-     * open loop, where the kernel keeps it (Linux): per event, how long its worker's thread and
-     * the main thread waited for a CPU while it was on them (thread-cpu-wait.ts); `delayed`
-     * events waited more than `delayedOverUs`; `overheadUndelayed` is the overhead of the
-     * others (it still holds queueing behind an event that was delayed)
+     * open loop, where the kernel keeps it (Linux; thread-cpu-wait.ts): how long the serving
+     * threads (summed) and the main thread were ready to run while another thread held the core,
+     * over the run; with `run --cpu-wait-per-event` also per event, on its worker's thread and
+     * the main thread while it was on them: `delayed` events waited more than `delayedOverUs`,
+     * `overheadUndelayed` is end-to-end minus service of the others (queueing behind a delayed
+     * event stays in it)
      */
-    cpuWait?: { events: number; delayed: number; delayedOverUs: number; wait: LatencyStats; overheadUndelayed: LatencyStats };
+    cpuWait?: {
+      workersMs: number;
+      mainMs: number;
+      perEvent?: { events: number; delayed: number; delayedOverUs: number; wait: LatencyStats; overheadUndelayed: LatencyStats };
+    };
   };
   /** open loop: offered against sustained rate; null in a closed loop */
   saturation: Saturation | null;
@@ -275,10 +281,16 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
     harness: {
       dispatchLateness: openLoopStats(tally.dispatchLateness, openLoop),
       ...(openLoop ? { overhead: tally.overhead.stats() } : {}),
-      ...(openLoop && tally.cpuWait.count > 0 ? {
+      ...(openLoop && tally.threadCpuWait ? {
         cpuWait: {
-          events: tally.cpuWait.count, delayed: tally.cpuWaitDelayed, delayedOverUs: CPU_WAIT_DELAY_NS / 1e3,
-          wait: tally.cpuWait.stats(), overheadUndelayed: tally.overheadUndelayed.stats(),
+          workersMs: tally.threadCpuWait.workersNs / 1e6,
+          mainMs: tally.threadCpuWait.mainNs / 1e6,
+          ...(tally.cpuWait.count > 0 ? {
+            perEvent: {
+              events: tally.cpuWait.count, delayed: tally.cpuWaitDelayed, delayedOverUs: CPU_WAIT_DELAY_NS / 1e3,
+              wait: tally.cpuWait.stats(), overheadUndelayed: tally.overheadUndelayed.stats(),
+            },
+          } : {}),
         },
       } : {}),
     },

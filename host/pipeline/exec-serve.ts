@@ -7,12 +7,12 @@
 import { readBatch } from './cluster-batch.js';
 import { execWorkerOf, finishExecBatch } from './exec-batch.js';
 import { sharedClockNs } from './shared-clock.js';
-import { claimRingEvent, describeFailure, postRingOutcome, takeRingSeat, waitForArrival } from './open-loop-serve.js';
-import type { EventMessage, ServeTask, WorkerConfig } from './worker-contract.js';
+import { claimRingEvent, describeFailure, leaveRingSeat, postRingOutcome, takeRingSeat, waitForArrival } from './open-loop-serve.js';
+import type { EventMessage, ServeOutcome, ServeTask, WorkerConfig } from './worker-contract.js';
 import type { ExecWorkerConfig } from './exec-run-contract.js';
 
-/** Serves the ring through the program until the ring is closed and every event claimed; returns the events served. */
-export async function serveRingWithProgram(config: WorkerConfig, exec: ExecWorkerConfig, serve: ServeTask['serve']): Promise<number> {
+/** Serves the ring through the program until the ring is closed and every event claimed; returns the events served and the thread's wait for a CPU. */
+export async function serveRingWithProgram(config: WorkerConfig, exec: ExecWorkerConfig, serve: ServeTask['serve']): Promise<ServeOutcome> {
   const running = await execWorkerOf(config, exec);
   const seat = takeRingSeat(running.state, serve);
   let served = 0;
@@ -31,5 +31,5 @@ export async function serveRingWithProgram(config: WorkerConfig, exec: ExecWorke
     postRingOutcome(seat, message);
     served++;
   }
-  return served;
+  return leaveRingSeat(seat, served);
 }

@@ -43,12 +43,16 @@ export class ResultCollector {
   private scanFrom = 0;
   private stopped = false;
   /**
-   * this thread's wait for a CPU (thread-cpu-wait.ts): read before each sleep, and at the first
-   * result seen after it; the difference is charged to the results seen on that wake (their
-   * return waited for it). Results seen without a sleep before are charged nothing: the thread
-   * was running its own loop, and a delay there is the harness's.
+   * this thread's wait for a CPU (thread-cpu-wait.ts): read when the collector starts and stops
+   * (mainCpuWaitNs); per event (perEvent) also before each sleep, and at the first result seen
+   * after it, the difference charged to the results seen on that wake (their return waited for
+   * it). Results seen without a sleep before are charged nothing: the thread was running its
+   * own loop, and a delay there is the harness's.
    */
   private readonly cpuWait = new ThreadCpuWait();
+  private cpuWaitAtStartNs = -1;
+  /** this thread's wait for a CPU from run() to stop() (ns; -1 unknown) */
+  mainCpuWaitNs = -1;
   private cpuWaitBeforeSleepNs = -1;
   private wakeCpuWaitNs = 0;
   private woke = false;
@@ -63,6 +67,7 @@ export class ResultCollector {
     private engine: string,
     private readonly claimed: () => number,
     private readonly onComplete: (ordinal: number, receivedNs: number) => void,
+    private readonly perEvent = false,
   ) {}
 
   isComplete(ordinal: number): boolean {
@@ -72,13 +77,14 @@ export class ResultCollector {
   /** Waits for results and completes them until stop(). */
   async run(): Promise<void> {
     const flags = this.slots.flags;
+    this.cpuWaitAtStartNs = this.cpuWait.waitNs();
     let slept = false;
     while (!this.stopped) {
       const written = Atomics.load(flags, WRITTEN);
       this.scan(slept);
       slept = false;
       if (this.stopped) break;
-      this.cpuWaitBeforeSleepNs = this.cpuWait.waitNs();
+      if (this.perEvent) this.cpuWaitBeforeSleepNs = this.cpuWait.waitNs();
       if (this.scanFrom < this.claimed()) {
         if (Atomics.wait(flags, WRITTEN, written, BLOCKING_WAIT_MS) !== 'timed-out') this.scan(true);
         await letLoopRun();
@@ -92,6 +98,8 @@ export class ResultCollector {
 
   stop(): void {
     this.stopped = true;
+    const nowNs = this.cpuWait.waitNs();
+    this.mainCpuWaitNs = nowNs >= 0 && this.cpuWaitAtStartNs >= 0 ? nowNs - this.cpuWaitAtStartNs : -1;
     this.cpuWait.close();
     Atomics.notify(this.slots.flags, WRITTEN);
   }
@@ -154,7 +162,7 @@ export class ResultCollector {
     const receivedNs = sharedClockNs();
     this.completeOrdinal[slot] = ordinal + 1;
     this.receivedAt[slot] = receivedNs;
-    this.mainCpuWaitOf[slot] = this.cpuWait.available ? this.chargeWake() : -1;
+    this.mainCpuWaitOf[slot] = this.perEvent && this.cpuWait.available ? this.chargeWake() : -1;
     this.onComplete(ordinal, receivedNs);
   }
 }

@@ -23,7 +23,7 @@ import { sharedClockNs } from './shared-clock.js';
 import { ResultCollector } from './open-loop-collect.js';
 import type { BatchOutcome, BatchPool } from './pool.js';
 import type { RunDelivery } from './run-delivery.js';
-import type { EventMessage, ServeTask } from './worker-contract.js';
+import type { EventMessage, ServeOutcome, ServeTask } from './worker-contract.js';
 
 /** Events are published at least this long before they are due (the reader sleeps on a ms-coarse timer). */
 export const PUBLISH_AHEAD_NS = 30_000_000;
@@ -104,6 +104,8 @@ export interface OpenLoopPlan {
   maxEvents: number | null | undefined;
   signal: AbortSignal | undefined;
   maxRecordBytes: number;
+  /** each event's wait for a CPU on its threads, not only the run's totals (RunOptions.cpuWaitPerEvent) */
+  cpuWaitPerEvent: boolean;
 }
 
 /** an event's wait for a CPU: its worker's and the main thread's; -1 when either is unknown */
@@ -143,6 +145,8 @@ export class OpenLoopFeed {
   private readonly serving: Promise<void>[] = [];
   private wake: (() => void) | null = null;
   private readingDone = false;
+  /** the serving threads' wait for a CPU over their serve tasks, summed (ns; -1 unknown) */
+  private workersCpuWaitNs = 0;
 
   constructor(
     private readonly plan: OpenLoopPlan,
@@ -152,7 +156,7 @@ export class OpenLoopFeed {
   ) {
     this.ring = new RingWriter(makeRingBuffers(plan.maxRecordBytes));
     const control = this.ring.views.control;
-    this.collector = new ResultCollector(delivery.engineName, () => Atomics.load(control, CLAIMED), (ordinal, receivedNs) => this.onResult(ordinal, receivedNs));
+    this.collector = new ResultCollector(delivery.engineName, () => Atomics.load(control, CLAIMED), (ordinal, receivedNs) => this.onResult(ordinal, receivedNs), plan.cpuWaitPerEvent);
   }
 
   /** Starts the serving workers, reads and publishes every event, and waits for every result. */
@@ -176,6 +180,7 @@ export class OpenLoopFeed {
     for (const port of this.ports) port.close();
     this.endNs = this.lastReceivedNs || sharedClockNs();
     this.recordRates();
+    this.delivery.tally.recordThreadCpuWait(this.workersCpuWaitNs, this.collector.mainCpuWaitNs);
   }
 
   private async publishAll(records: AsyncIterable<RawRecord>): Promise<void> {
@@ -227,10 +232,15 @@ export class OpenLoopFeed {
     const { port1, port2 } = new MessageChannel();
     port1.on('message', (message: EventMessage) => this.collector.onMessage(message));
     this.ports.push(port1);
-    const task: ServeTask = { serve: { ring: this.ring.buffers, results: this.collector.slots.buffers, workerIndex: w, port: port2 } };
+    const task: ServeTask = { serve: { ring: this.ring.buffers, results: this.collector.slots.buffers, workerIndex: w, port: port2, cpuWaitPerEvent: this.plan.cpuWaitPerEvent } };
     this.serving.push(this.pool.runTask(task, [port2]).then(
-      () => undefined,
+      (value: unknown) => {
+        const outcome = value as ServeOutcome;
+        // a thread that died took its figure with it: the total is then unknown
+        this.workersCpuWaitNs = outcome.cpuWaitNs >= 0 && this.workersCpuWaitNs >= 0 ? this.workersCpuWaitNs + outcome.cpuWaitNs : -1;
+      },
       (error: unknown) => {
+        this.workersCpuWaitNs = -1;
         const held = Atomics.load(this.ring.views.control, WORKER_HOLDS + w) - 1;
         Atomics.store(this.ring.views.control, WORKER_HOLDS + w, 0);
         const reason = error instanceof Error ? (error.message.split('\n')[0] || error.name) : String(error);

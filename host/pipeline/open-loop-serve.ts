@@ -17,7 +17,7 @@ import { needsExtras, ResultSlots } from './event-results.js';
 import { finishBatch, readBatch, type WorkerHooks, type WorkerState } from './cluster-batch.js';
 import { sharedClockNs } from './shared-clock.js';
 import { ThreadCpuWait } from '../measure/thread-cpu-wait.js';
-import { batchDataStart, batchViews, type BatchResult, type BatchTask, type EventMessage, type ServeTask } from './worker-contract.js';
+import { batchDataStart, batchViews, type BatchResult, type BatchTask, type EventMessage, type ServeOutcome, type ServeTask } from './worker-contract.js';
 
 /**
  * How long before an event's arrival a waiting worker stops sleeping and spins. A timed
@@ -31,7 +31,7 @@ export const SPIN_BEFORE_DUE_NS = 300_000;
  * wait is counted from here: a thread kept off the core while it spins or wakes starts late.
  */
 export function waitForArrival(seat: RingSeat, dueNs: number): void {
-  seat.cpuWaitFromNs = seat.cpuWait.waitNs();
+  if (seat.cpuWaitPerEvent) seat.cpuWaitFromNs = seat.cpuWait.waitNs();
   waitUntil(dueNs, seat.sleeper);
 }
 
@@ -61,8 +61,13 @@ export interface RingSeat {
   claimed: ClaimedEvent;
   /** the engine name last sent to the main thread (a result with another one goes with a message) */
   engineSent: string | null;
-  /** this thread's wait for a CPU (thread-cpu-wait.ts), and its value when the wait for the event's arrival began */
+  /**
+   * this thread's wait for a CPU (thread-cpu-wait.ts): its value when the seat was taken, and
+   * with cpuWaitPerEvent when the wait for the event's arrival began (-1 otherwise)
+   */
   cpuWait: ThreadCpuWait;
+  cpuWaitPerEvent: boolean;
+  cpuWaitAtSeatNs: number;
   cpuWaitFromNs: number;
 }
 
@@ -78,8 +83,20 @@ export function takeRingSeat(state: WorkerState, serve: ServeTask['serve']): Rin
     views: ringViews(serve.ring), results: new ResultSlots(serve.results), holds: WORKER_HOLDS + serve.workerIndex,
     sleeper: new Int32Array(new SharedArrayBuffer(4)), dataStart, port: serve.port, input,
     claimed: { ordinal: 0, dueNs: 0, task: { batchIndex: 0, count: 1, dataStart, buffer: input }, claimedEarly: false },
-    engineSent: null, cpuWait: new ThreadCpuWait(), cpuWaitFromNs: -1,
+    engineSent: null, ...threadCpuWaitFields(serve.cpuWaitPerEvent),
   };
+}
+
+function threadCpuWaitFields(perEvent: boolean): Pick<RingSeat, 'cpuWait' | 'cpuWaitPerEvent' | 'cpuWaitAtSeatNs' | 'cpuWaitFromNs'> {
+  const cpuWait = new ThreadCpuWait();
+  return { cpuWait, cpuWaitPerEvent: perEvent, cpuWaitAtSeatNs: cpuWait.waitNs(), cpuWaitFromNs: -1 };
+}
+
+/** Leaves the seat: what the serve task returns (the thread's wait for a CPU since it sat down). */
+export function leaveRingSeat(seat: RingSeat, served: number): ServeOutcome {
+  const nowNs = seat.cpuWait.waitNs();
+  seat.cpuWait.close();
+  return { served, cpuWaitNs: nowNs >= 0 && seat.cpuWaitAtSeatNs >= 0 ? nowNs - seat.cpuWaitAtSeatNs : -1 };
 }
 
 /** the input buffer's first size for a record; it grows to the largest record */
@@ -144,9 +161,9 @@ export function postRingOutcome(seat: RingSeat, message: EventMessage): void {
 
 /**
  * Serves the ring until it is closed and every event has been claimed; returns the number of
- * events served. `ensureClusterer` makes the clusterer again after a failed event dropped it.
+ * events served and the thread's wait for a CPU meanwhile. `ensureClusterer` makes the clusterer again after a failed event dropped it.
  */
-export function serveRing(state: WorkerState, serve: ServeTask['serve'], hooks: WorkerHooks, ensureClusterer: (state: WorkerState) => void): number {
+export function serveRing(state: WorkerState, serve: ServeTask['serve'], hooks: WorkerHooks, ensureClusterer: (state: WorkerState) => void): ServeOutcome {
   const seat = takeRingSeat(state, serve);
   let served = 0;
   for (let event = claimRingEvent(seat); event !== null; event = claimRingEvent(seat)) {
@@ -169,5 +186,5 @@ export function serveRing(state: WorkerState, serve: ServeTask['serve'], hooks: 
     served++;
   }
   // the port stays open: the host closes its end once every result is in
-  return served;
+  return leaveRingSeat(seat, served);
 }

@@ -67,6 +67,11 @@ export interface RunOptions {
   onProblem?: (line: string) => void;
   /** every clustered event, in input order (run-delivery.ts) */
   onEvent?: EventObserver;
+  /**
+   * open loop: read each event's wait for a CPU on its threads (thread-cpu-wait.ts; two reads
+   * of a few µs each per event on each side, so off by default; the run's totals are always read)
+   */
+  cpuWaitPerEvent?: boolean;
   /** batches out at once (default 2 per worker, so a worker never waits for the host) */
   maxInFlight?: number;
   /** the pool's worker script (default: the product worker); tests run one with planted faults */

@@ -69,7 +69,7 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   await pool.warmUp(plan.workers);
   const feedPlan = { batch: plan.batch, shard: plan.shard, maxEvents: options.maxEvents, signal: options.signal ? AbortSignal.any([options.signal, engineStop.signal]) : engineStop.signal };
   const feed = schedule.openLoop
-    ? new OpenLoopFeed({ ...feedPlan, workers: plan.workers, maxRecordBytes: DEFAULT_MAX_RECORD_BYTES }, schedule, pool, delivery)
+    ? new OpenLoopFeed({ ...feedPlan, workers: plan.workers, maxRecordBytes: DEFAULT_MAX_RECORD_BYTES, cpuWaitPerEvent: options.cpuWaitPerEvent ?? false }, schedule, pool, delivery)
     : new RecordFeed(feedPlan, pool, delivery);
   const progress = new ProgressBar(options.progress ?? process.stderr, { eventsDone: () => delivery.tally.read, bytesDone: () => delivery.offsetDone }, { bytes: bytesTotal }, Boolean(options.progress));
   let wallSeconds = 0;

@@ -140,7 +140,15 @@ export interface ServeTask {
     /** this worker's place in the ring's WORKER_HOLDS table */
     workerIndex: number;
     port: MessagePort;
+    /** read the thread's wait for a CPU per event (EventMessage.cpuWaitNs), not only over the whole serve */
+    cpuWaitPerEvent: boolean;
   };
+}
+
+/** Worker -> host, at the end of a serve task: events served, and the thread's wait for a CPU meanwhile (ns; -1 unknown). */
+export interface ServeOutcome {
+  served: number;
+  cpuWaitNs: number;
 }
 
 /**
@@ -160,7 +168,7 @@ export interface EventMessage {
   /**
    * ns the worker's thread spent waiting for a CPU (runnable, another thread on the core) from
    * the start of its wait for the event's arrival to its result's write; -1 where not measured
-   * (thread-cpu-wait.ts). Set by postRingOutcome.
+   * (thread-cpu-wait.ts; only with cpuWaitPerEvent). Set by postRingOutcome.
    */
   cpuWaitNs?: number;
 }

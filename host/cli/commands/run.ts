@@ -38,6 +38,7 @@ const RUN_OPTIONS: OptionSpec[] = [
   { name: 'budget-us', kind: 'number', argument: '<us>', description: 'latency budget per event; events over it are counted (default: none)' },
   { name: 'max-miss-fraction', kind: 'number', argument: '<F>', description: 'fail the run (exit code 1) when more than this fraction of the clustered events miss --budget-us, for CI (default: none)' },
   { name: 'find-rate', kind: 'flag', description: 'also search the highest open-loop rate whose end-to-end p99 stays within --budget-us (7 open-loop runs over the input; bound them with --events)' },
+  { name: 'cpu-wait-per-event', kind: 'flag', description: 'open loop: also read, per event, how long its worker\'s thread and the main thread waited for a CPU (Linux run-queue time; a few µs of reads per event), and report the overhead of the events not delayed (default: the run\'s totals only)' },
   { name: 'scan-workers', kind: 'flag', description: 'also repeat the closed-loop run with 1 .. cores workers and report the scaling' },
   { name: 'check', kind: 'string', argument: '<all|fraction|none>', description: `compare the engine's jets with the reference bit for bit on all events, a seeded fraction, or none (default: ${DEFAULT_CHECK.fraction})` },
   { name: 'repro', kind: 'string', argument: '<file>', description: 'write each event on which the engine and the reference disagree, whole, to this event file (default: none)' },
@@ -142,6 +143,8 @@ export function runOptionsFrom(args: ParsedArgs): RunOptions & { maxMissFraction
     throw new UsageError(`run: --engine ${engineText} is not generalised kt and has no reference to be checked against bit for bit; leave out --check (use jetlag compare for its accuracy)`);
   }
   const engine: EngineName = window !== null ? windowFinderName(window) : engineText === 'reference' ? 'reference' : 'wasm';
+  const cpuWaitPerEvent = args.values['cpu-wait-per-event'] === true;
+  if (cpuWaitPerEvent && arrival.kind === 'closed') throw new UsageError('run: --cpu-wait-per-event needs an open loop (--rate or --poisson)');
   return {
     input: args.positionals[0],
     workers: positiveInteger(args, 'workers'),
@@ -165,6 +168,7 @@ export function runOptionsFrom(args: ParsedArgs): RunOptions & { maxMissFraction
     maxMissFraction,
     findRate: wantFindRate,
     scanWorkers: args.values['scan-workers'] === true,
+    cpuWaitPerEvent,
     json: (args.values.json as string | undefined) ?? null,
     quiet: args.values.quiet === true,
     poisson: poissonRate !== undefined,
