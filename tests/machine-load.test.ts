@@ -23,6 +23,19 @@ describe('the machine as measured', () => {
     expect(load.busyReason).toBe('the process got 2.00 s of CPU for 3.80 s its workers spent on events');
   });
 
+  it('is busy when the workers waited for a CPU more than a tenth of their time on events', () => {
+    expect(judgeMachineLoad({ ...quiet, workerCpuWaitSeconds: 0.3 }).busy).toBe(false);
+    const load = judgeMachineLoad({ ...quiet, workerCpuWaitSeconds: 0.5 });
+    expect(load.busy).toBe(true);
+    expect(load.busyReason).toBe('the workers waited 0.50 s for a CPU against 3.80 s on events');
+  });
+
+  it('of shards adds the workers\' wait for a CPU when both measured it', () => {
+    const both = combineMachineLoads(judgeMachineLoad({ ...quiet, workerCpuWaitSeconds: 0.1 }), judgeMachineLoad({ ...quiet, workerCpuWaitSeconds: 0.2 }));
+    expect(both.workerCpuWaitSeconds).toBeCloseTo(0.3, 9);
+    expect(combineMachineLoads(judgeMachineLoad({ ...quiet, workerCpuWaitSeconds: 0.1 }), judgeMachineLoad(quiet)).workerCpuWaitSeconds).toBeUndefined();
+  });
+
   it('of shards is busy when one shard was', () => {
     const combined = combineMachineLoads(judgeMachineLoad(quiet), judgeMachineLoad({ ...quiet, loadAverageStart: 6.5 }));
     expect(combined.busy).toBe(true);

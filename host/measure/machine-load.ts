@@ -16,6 +16,8 @@ export interface MachineLoad {
   wallSeconds: number;
   /** wall time the workers spent on events, summed over events (every stage, in the worker) */
   workerBusySeconds: number;
+  /** open loop on Linux: the serving threads' time ready to run while another thread held the core, summed (thread-cpu-wait.ts) */
+  workerCpuWaitSeconds?: number;
   busy: boolean;
   /** why the machine counts as busy, in words; null when it does not */
   busyReason: string | null;
@@ -27,6 +29,8 @@ export interface MachineLoad {
  * good part of their events.
  */
 export const BUSY_CPU_SHARE = 0.8;
+/** Workers that waited for a CPU longer than this share of their time on events were kept off the cores. */
+export const BUSY_WAIT_SHARE = 0.1;
 
 function coresOf(): number {
   return typeof os.availableParallelism === 'function' ? os.availableParallelism() : os.cpus().length;
@@ -38,8 +42,11 @@ export class MachineLoadProbe {
   private readonly cpuStart = process.cpuUsage();
   private readonly wallStartNs = process.hrtime.bigint();
 
-  /** workerBusyNs: the workers' wall time on events, summed (from the run's stage times) */
-  finish(workerBusyNs: number): MachineLoad {
+  /**
+   * workerBusyNs: the workers' wall time on events, summed (from the run's stage times);
+   * workerCpuWaitNs: their wait for a CPU, when measured
+   */
+  finish(workerBusyNs: number, workerCpuWaitNs?: number): MachineLoad {
     const cpu = process.cpuUsage(this.cpuStart);
     const wallSeconds = Number(process.hrtime.bigint() - this.wallStartNs) / 1e9;
     return judgeMachineLoad({
@@ -49,6 +56,7 @@ export class MachineLoadProbe {
       cpuSeconds: (cpu.user + cpu.system) / 1e6,
       wallSeconds,
       workerBusySeconds: workerBusyNs / 1e9,
+      ...(workerCpuWaitNs === undefined ? {} : { workerCpuWaitSeconds: workerCpuWaitNs / 1e9 }),
     });
   }
 }
@@ -64,7 +72,7 @@ function round(value: number, digits: number): number {
  * over its wall time; that much is taken off before comparing with the cores.
  */
 export function judgeMachineLoad(measured: Omit<MachineLoad, 'busy' | 'busyReason'>): MachineLoad {
-  const { cores, loadAverageStart, loadAverageEnd, cpuSeconds, wallSeconds, workerBusySeconds } = measured;
+  const { cores, loadAverageStart, loadAverageEnd, cpuSeconds, wallSeconds, workerBusySeconds, workerCpuWaitSeconds } = measured;
   const ownThreads = wallSeconds > 0 ? cpuSeconds / wallSeconds : 0;
   const othersAtEnd = loadAverageEnd - ownThreads;
   const reasons: string[] = [];
@@ -73,6 +81,9 @@ export function judgeMachineLoad(measured: Omit<MachineLoad, 'busy' | 'busyReaso
   if (workerBusySeconds > 0 && cpuSeconds < BUSY_CPU_SHARE * workerBusySeconds) {
     reasons.push(`the process got ${cpuSeconds.toFixed(2)} s of CPU for ${workerBusySeconds.toFixed(2)} s its workers spent on events`);
   }
+  if (workerCpuWaitSeconds !== undefined && workerBusySeconds > 0 && workerCpuWaitSeconds > BUSY_WAIT_SHARE * workerBusySeconds) {
+    reasons.push(`the workers waited ${workerCpuWaitSeconds.toFixed(2)} s for a CPU against ${workerBusySeconds.toFixed(2)} s on events`);
+  }
   return {
     cores,
     loadAverageStart: round(loadAverageStart, 2),
@@ -80,6 +91,7 @@ export function judgeMachineLoad(measured: Omit<MachineLoad, 'busy' | 'busyReaso
     cpuSeconds: round(cpuSeconds, 3),
     wallSeconds: round(wallSeconds, 3),
     workerBusySeconds: round(workerBusySeconds, 3),
+    ...(workerCpuWaitSeconds === undefined ? {} : { workerCpuWaitSeconds: round(workerCpuWaitSeconds, 3) }),
     busy: reasons.length > 0,
     busyReason: reasons.length > 0 ? reasons.join('; ') : null,
   };
@@ -95,6 +107,8 @@ export function combineMachineLoads(a: MachineLoad, b: MachineLoad): MachineLoad
     cpuSeconds: round(a.cpuSeconds + b.cpuSeconds, 3),
     wallSeconds: Math.max(a.wallSeconds, b.wallSeconds),
     workerBusySeconds: round(a.workerBusySeconds + b.workerBusySeconds, 3),
+    ...(a.workerCpuWaitSeconds !== undefined && b.workerCpuWaitSeconds !== undefined
+      ? { workerCpuWaitSeconds: round(a.workerCpuWaitSeconds + b.workerCpuWaitSeconds, 3) } : {}),
     busy: a.busy || b.busy,
     busyReason: reasons.length > 0 ? reasons.join('; ') : null,
   };

@@ -191,7 +191,7 @@ export class RunTally {
   recordMachineLoad(probe: MachineLoadProbe): void {
     let workerBusyNs = 0;
     for (const stage of STAGES) workerBusyNs += this.stages[stage].sumNs;
-    this.machineLoad = probe.finish(workerBusyNs);
+    this.machineLoad = probe.finish(workerBusyNs, this.threadCpuWait?.workersNs);
   }
 
   addInvalid(entry: InvalidEvent): void {
