@@ -9,6 +9,7 @@ import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { runEvents } from '../host/pipeline/run.js';
 import { mergeSummaries } from '../host/measure/summary-merge.js';
+import { formatProgramReport } from '../host/measure/program-report.js';
 import { ExecEngineError } from '../host/pipeline/exec-engine.js';
 import { DEFAULT_TOLERANCE } from '../host/validate/tolerance-compare.js';
 import type { ExecWorkerConfig } from '../host/pipeline/exec-run-contract.js';
@@ -61,6 +62,12 @@ describe('run with the C++ example as its engine', () => {
     expect(service.p50_us!).toBeLessThan(roundTrip.p50_us!);
     expect(service.mean_us!).toBeLessThan(roundTrip.mean_us!);
     expect(summary.configuration.engine).toBe('exec:pairwise-clusterer');
+  });
+
+  it('says in its text report what the pipe\'s cost is made of', () => {
+    const report = formatProgramReport(summary);
+    expect(report).toMatch(/round trip - own time: the pipe's cost +p50 +[\d.]+ µs/);
+    expect(report).toContain("the program's parse and serialisation outside its own clock");
   });
 });
 

@@ -23,7 +23,10 @@ export function formatProgramReport(summary: RunSummary): string {
   const lines = [`engine program ${summary.configuration.engine}:`];
   lines.push(row("the program's own time (service)", summary.latency.service));
   lines.push(row('round trip (jetlag writes -> reads)', roundTrip));
-  if (summary.latency.pipe) lines.push(row('round trip - own time: the pipe\'s cost', summary.latency.pipe));
+  if (summary.latency.pipe) {
+    lines.push(row('round trip - own time: the pipe\'s cost', summary.latency.pipe));
+    lines.push('    (the event\'s write and the answer\'s read on both sides, the program\'s parse and serialisation outside its own clock, and the wake-ups of both)');
+  }
   const failed = summary.failedEvents ?? [];
   const reasons = new Map<string, number>();
   for (const entry of failed) reasons.set(entry.reason, (reasons.get(entry.reason) ?? 0) + 1);
