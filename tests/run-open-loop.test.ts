@@ -75,6 +75,15 @@ describe('an open loop with a stub of known cost', () => {
     expect(summary.saturation).toMatchObject({ offeredHz: 5, saturated: false });
   });
 
+  it('starts the clock once every worker has taken its seat: a worker slow to start is not the first events\' wait', async () => {
+    // the serve task starts 400 ms late; one event due every 20 ms from the run's start
+    restore.push(withEnv('JETLAG_TEST_STUB_US', '1000'), withEnv('JETLAG_TEST_SERVE_DELAY_MS', '400'));
+    const summary = await runEvents({ ...base, maxEvents: 10, arrival: { kind: 'fixed', rateHz: 50 } });
+    expect(summary.latency.endToEnd.count).toBe(10);
+    // counted from a start before the worker sat down, the first event would wait 400 ms
+    expect(summary.latency.wait.max_us).toBeLessThan(200_000);
+  });
+
   it('charges a stalled worker to the events due during the stall, from their scheduled arrival (no coordinated omission, common practice)', async () => {
     // one worker, 200 µs per event, one event due every 2 ms; event 40 stalls the worker 60 ms,
     // so the ~30 events due during the stall wait up to ~58 ms, each from its own arrival

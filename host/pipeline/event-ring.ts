@@ -10,6 +10,8 @@
 //     [PUBLISHED]          events published so far (ordinals 0 .. PUBLISHED-1 are readable)
 //     [CLAIMED]            events claimed so far by workers (claims are in ordinal order)
 //     [CLOSED]             1 once the reader has published its last event
+//     [SEATED]             workers that have taken their seat at the ring (the run's clock
+//                          starts once all have: a worker's start-up is not an event's wait)
 //     [WORKER_HOLDS + w]   ordinal + 1 of the event worker w holds, 0 when none (if a worker's
 //                          thread dies, the reader fails the event it held)
 //   slots    Float64[SLOT_COUNT * SLOT_FIELDS], event j in slot j % SLOT_COUNT:
@@ -32,6 +34,7 @@ export const RECORD_OFFSET = 3;
 export const PUBLISHED = 0;
 export const CLAIMED = 1;
 export const CLOSED = 2;
+export const SEATED = 3;
 export const WORKER_HOLDS = 8;
 /** workers a ring serves, at most */
 export const RING_WORKERS_MAX = 248;

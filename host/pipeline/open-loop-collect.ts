@@ -14,7 +14,7 @@ import type { EventMessage } from './worker-contract.js';
 /** Atomics.waitAsync (ES2024; the project's TypeScript lib predates it, Node has it). */
 type WaitAsync = (array: Int32Array, index: number, value: number, timeoutMs: number) =>
   { async: false; value: string } | { async: true; value: Promise<string> };
-const waitAsync = (Atomics as unknown as { waitAsync: WaitAsync }).waitAsync;
+export const waitAsync = (Atomics as unknown as { waitAsync: WaitAsync }).waitAsync;
 
 /** How long one wait lasts at most (ms), so a stopped collector is never stuck. */
 const WAIT_MS = 100;

@@ -18,9 +18,9 @@ import { MessageChannel, type MessagePort } from 'node:worker_threads';
 import { InputError } from '../errors.js';
 import type { RawRecord } from '../input/record-reader.js';
 import type { ArrivalSchedule } from './arrivals.js';
-import { CLAIMED, makeRingBuffers, RingWriter, SLOT_COUNT, WORKER_HOLDS } from './event-ring.js';
+import { CLAIMED, makeRingBuffers, RingWriter, SEATED, SLOT_COUNT, WORKER_HOLDS } from './event-ring.js';
 import { sharedClockNs } from './shared-clock.js';
-import { ResultCollector } from './open-loop-collect.js';
+import { ResultCollector, waitAsync } from './open-loop-collect.js';
 import type { BatchOutcome, BatchPool } from './pool.js';
 import type { RunDelivery } from './run-delivery.js';
 import type { EventMessage, ServeOutcome, ServeTask } from './worker-contract.js';
@@ -36,6 +36,8 @@ export const PUBLISH_AHEAD_NS = 30_000_000;
 export const PUBLISH_BURST_NS = 10_000_000;
 /** The first event is due this long after the run starts, so it is published ahead like the rest. */
 export const START_LEAD_NS = 5_000_000;
+/** How long the run waits for its workers to take their seats at the ring before it starts without them. */
+const SEATING_WAIT_MS = 30_000;
 
 /** a backlog rising through the run by more than this many events per worker and ... */
 const BACKLOG_RISE_WORKERS = 4;
@@ -163,6 +165,7 @@ export class OpenLoopFeed {
   async feed(records: AsyncIterable<RawRecord>): Promise<void> {
     const collecting = this.collector.run();
     for (let w = 0; w < this.plan.workers; w++) this.serve(w);
+    await this.workersSeated();
     this.startNs = sharedClockNs() + START_LEAD_NS;
     try {
       await this.publishAll(records);
@@ -181,6 +184,25 @@ export class OpenLoopFeed {
     this.endNs = this.lastReceivedNs || sharedClockNs();
     this.recordRates();
     this.delivery.tally.recordThreadCpuWait(this.workersCpuWaitNs, this.collector.mainCpuWaitNs);
+  }
+
+  /**
+   * Until every worker has taken its seat at the ring (its serve task received and started), at
+   * most SEATING_WAIT_MS: the first events are due after that, so a worker's start-up is not
+   * charged to them as waiting. A worker that cannot start is the serve task's failure to
+   * report; the run then starts without it.
+   */
+  private async workersSeated(): Promise<void> {
+    const control = this.ring.views.control;
+    const giveUpNs = sharedClockNs() + SEATING_WAIT_MS * 1e6;
+    for (;;) {
+      const seated = Atomics.load(control, SEATED);
+      if (seated >= this.plan.workers || this.plan.signal?.aborted) return;
+      const leftMs = (giveUpNs - sharedClockNs()) / 1e6;
+      if (leftMs <= 0) return;
+      const waiting = waitAsync(control, SEATED, seated, Math.min(leftMs, 100));
+      if (waiting.async) await waiting.value;
+    }
   }
 
   private async publishAll(records: AsyncIterable<RawRecord>): Promise<void> {

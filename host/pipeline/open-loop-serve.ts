@@ -12,7 +12,7 @@
 // timer of any event loop decides when an event starts. One input buffer serves every event.
 
 import type { MessagePort } from 'node:worker_threads';
-import { claimNext, copyRecord, DATA_LENGTH, DUE_NS, RECORD_OFFSET, ringViews, SLOT_COUNT, SLOT_FIELDS, WORKER_HOLDS } from './event-ring.js';
+import { claimNext, copyRecord, DATA_LENGTH, DUE_NS, RECORD_OFFSET, ringViews, SEATED, SLOT_COUNT, SLOT_FIELDS, WORKER_HOLDS } from './event-ring.js';
 import { needsExtras, ResultSlots } from './event-results.js';
 import { finishBatch, readBatch, type WorkerHooks, type WorkerState } from './cluster-batch.js';
 import { sharedClockNs } from './shared-clock.js';
@@ -79,8 +79,11 @@ export function takeRingSeat(state: WorkerState, serve: ServeTask['serve']): Rin
   }
   const dataStart = batchDataStart(1);
   const input = new ArrayBuffer(dataStart + INPUT_BYTES_INITIAL);
+  const views = ringViews(serve.ring);
+  Atomics.add(views.control, SEATED, 1);
+  Atomics.notify(views.control, SEATED);
   return {
-    views: ringViews(serve.ring), results: new ResultSlots(serve.results), holds: WORKER_HOLDS + serve.workerIndex,
+    views, results: new ResultSlots(serve.results), holds: WORKER_HOLDS + serve.workerIndex,
     sleeper: new Int32Array(new SharedArrayBuffer(4)), dataStart, port: serve.port, input,
     claimed: { ordinal: 0, dueNs: 0, task: { batchIndex: 0, count: 1, dataStart, buffer: input }, claimedEarly: false },
     engineSent: null, ...threadCpuWaitFields(serve.cpuWaitPerEvent),

@@ -18,6 +18,8 @@
 //                                 of a run, but the same ones every time
 //   JETLAG_TEST_STUB_STALL=E:MS   event number E sleeps MS ms inside its timed clustering, once
 //                                 per worker thread (a stalled worker)
+//   JETLAG_TEST_SERVE_DELAY_MS=MS an open-loop serve task sleeps MS ms before it takes its seat
+//                                 at the ring (a worker slow to start)
 
 import { makeBatchRunner } from '../../host/pipeline/worker.js';
 import { killsBatch, killSlot } from './kill-points.js';
@@ -122,6 +124,8 @@ export default async function runBatchWithFaults(task: BatchTask): Promise<unkno
     kill.slot = killsBatch(task.batchIndex, kill.perMille, kill.seed) ? killSlot(task.batchIndex, kill.seed, task.count) : -1;
     eventsServed = 0;
   }
+  const serveDelayMs = Number(process.env.JETLAG_TEST_SERVE_DELAY_MS ?? 0);
+  if ('serve' in (task as object) && serveDelayMs > 0) await new Promise((resolve) => setTimeout(resolve, serveDelayMs));
   if (fault && fault.batch === task.batchIndex) {
     if (fault.kind === 'throw') throw new Error(`planted fault in batch ${task.batchIndex}`);
     if (fault.kind === 'exit') process.exit(3);
