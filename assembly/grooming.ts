@@ -3,12 +3,12 @@
 // of its real constituents (inIndex/inEt/inStart, layout.ts), re-clusters each one, and writes
 // one groomed row per jet (groomPx .. groomDeltaR).
 //
-// - Trimming (arXiv:0912.1342): the instance is configured with p = 1, R = RSUB and re-clusters
-//   on the event grid's cells (sequence.ts); the final subjets in section 6's order (as
-//   output.ts sorts them), those with pt >= FCUT * pt_jet summed.
+// Both re-cluster on the table of a jet's live jets (groom-pairs.ts), not on the event grid's
+// cells: a jet's few dozen towers are searched faster in a flat table.
+// - Trimming (arXiv:0912.1342): the instance is configured with p = 1, R = RSUB; the final
+//   subjets in section 6's order (as output.ts sorts them), those with pt >= FCUT * pt_jet summed.
 // - Soft drop (arXiv:1402.2657): p = 0, R = 1 and no beam candidates (settings.ts beamsOff),
-//   re-clustered on tiles of the jet's own (groom-sequence.ts) down to one jet; then the merging
-//   tree is walked from its root.
+//   re-clustered down to one jet; then the merging tree is walked from its root.
 //
 // nodeTowers, nodeParentA, nodeParentB (layout.ts) hold each jet's towers and parents, built
 // from jetInto after the sequence: a jet is always made from two earlier ones.
@@ -19,8 +19,7 @@ import { inStart, outStatus, jetKt2, jetY, jetPhi, jetPx, jetPy, jetPz, jetE, je
   nodeParentB, getF64, setF64, getI32, setI32 } from './layout';
 import { setBeamsOff, TWO_PI } from './settings';
 import { selectTowers } from './input';
-import { groomCluster, groomJetCount } from './groom-sequence';
-import { clusterTowers, finalCount, jetCount } from './sequence';
+import { pairCluster, pairJetCount, pairFinalCount } from './groom-pairs';
 import { deltaR2 } from './kinematics';
 import { sortPermutation } from './sort';
 import { STATUS_OK, GROOM_TRIM, GROOM_SOFT_DROP, GROOM_REGION_JET_PT, GROOM_REGION_PX, GROOM_REGION_PY,
@@ -78,12 +77,10 @@ export function groomBatch(count: i32): void {
     setI32(outStatus, e, n < 0 ? n : STATUS_OK);
     if (n <= 0) continue;
     if (groomMode == GROOM_TRIM) {
-      // the event grid's own sequence: at R = RSUB its searches stay short (measured: 81-87 µs
-      // per event against 106-107 µs on the jet's tiles, bench/grooming.bench.ts at ptMin 200)
-      clusterTowers(n);
+      pairCluster(n);
       trim(e, n);
     } else if (groomMode == GROOM_SOFT_DROP) {
-      groomCluster(n);
+      pairCluster(n);
       softDrop(e, n);
     }
   }
@@ -122,8 +119,8 @@ function buildTree(n: i32, total: i32): void {
 
 /** Trimming: the final subjets in output order, those with pt >= FCUT * pt_jet summed. */
 function trim(e: i32, n: i32): void {
-  buildTree(n, jetCount);
-  const subjets = finalCount;
+  buildTree(n, pairJetCount);
+  const subjets = pairFinalCount;
   for (let s = 0; s < subjets; s++) {
     const jet = getI32(finalJet, s);
     setI32(finalScratch, s, jet);
@@ -177,7 +174,7 @@ function trim(e: i32, n: i32): void {
 /** Soft drop: from the root down the harder branch until a merge passes z > ZCUT (dR / R)^BETA. */
 function softDrop(e: i32, n: i32): void {
   // the last jet made is the root of the one tree (no beams)
-  const root = groomJetCount - 1;
+  const root = pairJetCount - 1;
   buildTree(n, root + 1);
   let node = root;
   let zg: f64 = 0;

@@ -33,6 +33,8 @@
 //            (groom-tiles.ts, per jet of one re-clustering:) tileNext tilePrev jetTile jetNn
 //            jetSlot i32[2C]  jetW jetNnDR2 jetNnKey jetLocalPhi f64[2C]  slotJet i32[C]
 //            tileHead i32[TILE_LIMIT]
+//            (groom-pairs.ts, the live jets' table by position:) liveJet i32[C]  liveY livePhi
+//            f64[C]; (per jet:) jetPlace pointedHead pointedNext pointedPrev i32[2C]  jetReach2 f64[2C]
 //   offsets  offDr offDc i32[O]  offDist f64[O]  offPerm offScratch offTmpI i32[O]  offTmpF f64[O]
 //            offStep i32[O]   (O = OFFSET_LIMIT; offPerm, offScratch, offTmpI, offTmpF only while
 //            the offsets are sorted, offsets.ts)
@@ -168,6 +170,14 @@ export let slotJet: usize = 0;
 export let tileHead: usize = 0;
 // @ts-ignore: decorator
 @inline export const TILE_LIMIT: i32 = 4096;
+export let liveJet: usize = 0;
+export let liveY: usize = 0;
+export let livePhi: usize = 0;
+export let jetPlace: usize = 0;
+export let pointedHead: usize = 0;
+export let pointedNext: usize = 0;
+export let pointedPrev: usize = 0;
+export let jetReach2: usize = 0;
 
 export let offDr: usize = 0;
 export let offDc: usize = 0;
@@ -328,6 +338,14 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   jetLocalPhi = take(jets << 3);
   slotJet = take(cells << 2);
   tileHead = take(<usize>TILE_LIMIT << 2);
+  liveJet = take(cells << 2);
+  liveY = take(cells << 3);
+  livePhi = take(cells << 3);
+  jetPlace = take(jets << 2);
+  pointedHead = take(jets << 2);
+  pointedNext = take(jets << 2);
+  pointedPrev = take(jets << 2);
+  jetReach2 = take(jets << 3);
 
   offDr = take(<usize>OFFSET_LIMIT << 2);
   offDc = take(<usize>OFFSET_LIMIT << 2);

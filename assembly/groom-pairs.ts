@@ -1,0 +1,370 @@
+// Grooming's re-clustering of one jet's constituents (clustering-spec.md sections 2-5, as section
+// 12 asks): the n towers in evIndex/evEt, with the instance's p and R, beams or not (settings.ts
+// beamsOff), on one flat table of the live jets in increasing y instead of cells or tiles. A
+// large-R jet has some 60-110 towers: few enough that a search may look at every live jet (the
+// published nearest-neighbour method with all pairs, arXiv:hep-ph/0512210), and the table's
+// order in y lets most searches stop early. Each jet keeps its neighbour by section 4's exact key
+// ((w_i * dR2) * invR2, then the smaller jet index), sought among all live jets (no reach), so
+// it is section 4's nn(i) as written; the smallest candidate comes from the tournament tree
+// (tournament.ts, by slot), and only the jets whose neighbour went away search again.
+//
+// Why a search may stop: dR2 = dy * dy + dphi * dphi >= dy * dy, and (w * x) * invR2 never
+// decreases with x, so a jet whose (w * (dy * dy)) * invR2 is above the best key cannot beat it,
+// nor can any jet farther along the table (its dy is at least as large). The same bound limits
+// the new jet's offers: jet q takes it only when its key to it is below q's own, which needs
+// dR2 < q's neighbour's dR2 <= offerReach2 (an upper bound of those, made exact every few steps).
+//
+// Table (layout.ts), by position 0..liveCount-1, y never decreasing: liveY, livePhi, liveJet.
+// Per jet index: jetPlace (its position), jetSlot, jetW, jetNn (-1: none), jetNnKey, jetNnDR2,
+// and the list of the jets whose neighbour it is (pointedHead, pointedNext, pointedPrev), so that
+// a merge or a beam step finds who lost a neighbour without a pass over the table.
+//
+// pairJetCount: the jets made (towers first, jetInto as in sequence.ts; without beams the last
+// is the root); finalJet[0..pairFinalCount): the jets made final by beam steps.
+
+import { evIndex, evEt, jetY, jetPhi, jetKt2, jetInto, jetW, jetNn, jetNnKey, jetNnDR2, jetSlot,
+  slotJet, finalJet, redo, liveJet, liveY, livePhi, jetPlace, pointedHead, pointedNext, pointedPrev,
+  jetReach2, getF64, setF64, getI32, setI32 } from './layout';
+import { invR2, beamsOff, reach2, BEAM, PI, TWO_PI } from './settings';
+import { loadTower, mergeJets, weightOf, needsWideSearch } from './kinematics';
+import { startTree, buildTree, updateTree, treeWinner, isBeamCandidate,
+  setCandidate as setSlotCandidate, setEmptyCandidate } from './tournament';
+
+// The searches keep the best so far without a branch: integer selects over the doubles' bits
+// (keys and dR2 are never negative, so their bits order as the numbers do; a NaN's bits lie above
+// +Inf's, so it never wins).
+// @ts-ignore: decorator
+@inline const INFINITY_BITS: u64 = 0x7ff0000000000000;
+/** steps between exact recomputations of offerReach2 */
+// @ts-ignore: decorator
+@inline const REACH_REFRESH_STEPS: i32 = 8;
+
+export let pairJetCount: i32 = 0;
+export let pairFinalCount: i32 = 0;
+let liveCount: i32 = 0;
+let lostCount: i32 = 0;
+/** at least every live jet's neighbour dR2: no offer is taken farther away */
+let offerReach2: f64 = Infinity;
+
+// @ts-ignore: decorator
+@inline function bitsAt(base: usize, j: i32): u64 {
+  return load<u64>(base + (<usize>j << 3));
+}
+
+// @ts-ignore: decorator
+@inline function setBitsAt(base: usize, j: i32, bits: u64): void {
+  store<u64>(base + (<usize>j << 3), bits);
+}
+
+/** kinematics.ts deltaR2, the same operations, with the seam's choice made on the doubles' bits:
+ * V8 turns a select of doubles into a branch, which jets across the phi seam mispredict. */
+// @ts-ignore: decorator
+@inline function pairDR2(y1: f64, phi1: f64, y2: f64, phi2: f64): f64 {
+  const dphi = abs<f64>(phi1 - phi2);
+  const wrapped = TWO_PI - dphi;
+  const d = reinterpret<f64>(select<u64>(reinterpret<u64>(wrapped), reinterpret<u64>(dphi), dphi > PI));
+  const dy = y1 - y2;
+  return dy * dy + d * d;
+}
+
+/** Jet i leaves the list of its neighbour's pointers. */
+function unlinkPointer(i: i32): void {
+  const nn = getI32(jetNn, i);
+  if (nn < 0) return;
+  const prev = getI32(pointedPrev, i);
+  const next = getI32(pointedNext, i);
+  if (prev >= 0) setI32(pointedNext, prev, next);
+  else setI32(pointedHead, nn, next);
+  if (next >= 0) setI32(pointedPrev, next, prev);
+}
+
+/** Jet i's neighbour becomes q (BEAM: none), with its key and dR2. */
+function setNeighbour(i: i32, q: i32, keyBits: u64, dR2Bits: u64): void {
+  unlinkPointer(i);
+  if (q == BEAM) {
+    setI32(jetNn, i, -1);
+  } else {
+    setI32(jetNn, i, q);
+    const head = getI32(pointedHead, q);
+    setI32(pointedNext, i, head);
+    setI32(pointedPrev, i, -1);
+    if (head >= 0) setI32(pointedPrev, head, i);
+    setI32(pointedHead, q, i);
+  }
+  setBitsAt(jetNnKey, i, keyBits);
+  setBitsAt(jetNnDR2, i, dR2Bits);
+  offerReach2 = max<f64>(offerReach2, min<f64>(reinterpret<f64>(dR2Bits), getF64(jetReach2, i)));
+}
+
+/** Jet i gets its weight and how far its neighbour may lie: with beams, a pair farther than the
+ * reach always loses to the beam (settings.ts reach2; section 4), except for weights so extreme
+ * that the bound cannot be relied on (kinematics.ts needsWideSearch); without beams, anywhere. */
+function setWeight(i: i32): void {
+  const w = weightOf(getF64(jetKt2, i));
+  setF64(jetW, i, w);
+  setF64(jetReach2, i, beamsOff || needsWideSearch(w) ? Infinity : reach2);
+}
+
+/** Jet i's candidate into its slot (the tree is the caller's): the smaller, in section 4's
+ * order, of its pair with its neighbour and (with beams) its beam. */
+function setCandidate(i: i32): void {
+  const s = getI32(jetSlot, i);
+  const q = getI32(jetNn, i);
+  const w = getF64(jetW, i);
+  if (q >= 0) {
+    const measure = (min<f64>(w, getF64(jetW, q)) * getF64(jetNnDR2, i)) * invR2;
+    // the beam's tie word (i, BEAM) comes after the pair's (min, max) when measures are equal
+    if (beamsOff || !(reinterpret<u64>(w) < reinterpret<u64>(measure))) {
+      setSlotCandidate(s, measure, min<i32>(i, q), max<i32>(i, q));
+      return;
+    }
+  } else if (beamsOff) {
+    setEmptyCandidate(s);
+    return;
+  }
+  setSlotCandidate(s, w, i, BEAM);
+}
+
+/** Jet i's neighbour from scratch: from its position p up and down the table until the bound
+ * says no farther jet can come first. */
+function searchNeighbour(i: i32): void {
+  const p = getI32(jetPlace, i);
+  const y = getF64(liveY, p);
+  const phi = getF64(livePhi, p);
+  const w = getF64(jetW, i);
+  const limit = getF64(jetReach2, i);
+  const limitBits = reinterpret<u64>(limit);
+  const scale = invR2;
+  const count = liveCount;
+  const ys = liveY;
+  const phis = livePhi;
+  const jets = liveJet;
+  let bestJet = BEAM;
+  let bestKey = INFINITY_BITS;
+  let bestDR2 = INFINITY_BITS;
+  for (let q = p + 1; q < count; q++) {
+    const yq = getF64(ys, q);
+    const dy = y - yq;
+    const dy2 = dy * dy;
+    if (dy2 > limit || (w * dy2) * scale > reinterpret<f64>(bestKey)) break;
+    const j = getI32(jets, q);
+    const dR2 = pairDR2(y, phi, yq, getF64(phis, q));
+    const key = reinterpret<u64>((w * dR2) * scale);
+    const better = (reinterpret<u64>(dR2) <= limitBits) & ((key < bestKey) | ((key == bestKey) & (j < bestJet)));
+    bestJet = select<i32>(j, bestJet, better);
+    bestKey = select<u64>(key, bestKey, better);
+    bestDR2 = select<u64>(reinterpret<u64>(dR2), bestDR2, better);
+  }
+  for (let q = p - 1; q >= 0; q--) {
+    const yq = getF64(ys, q);
+    const dy = y - yq;
+    const dy2 = dy * dy;
+    if (dy2 > limit || (w * dy2) * scale > reinterpret<f64>(bestKey)) break;
+    const j = getI32(jets, q);
+    const dR2 = pairDR2(y, phi, yq, getF64(phis, q));
+    const key = reinterpret<u64>((w * dR2) * scale);
+    const better = (reinterpret<u64>(dR2) <= limitBits) & ((key < bestKey) | ((key == bestKey) & (j < bestJet)));
+    bestJet = select<i32>(j, bestJet, better);
+    bestKey = select<u64>(key, bestKey, better);
+    bestDR2 = select<u64>(reinterpret<u64>(dR2), bestDR2, better);
+  }
+  setNeighbour(i, bestJet, bestKey, bestDR2);
+}
+
+/** The jets whose neighbour was `gone` go onto the redo list. */
+function collectLost(gone: i32): void {
+  for (let q = getI32(pointedHead, gone); q >= 0; q = getI32(pointedNext, q)) setI32(redo, lostCount++, q);
+}
+
+/** The jets on the redo list search again, unless they took the step's new jet `k` (-1: none)
+ * in its offers, strictly nearer by their key than the neighbour they lost: then every other
+ * jet came after it. */
+function searchLost(k: i32): void {
+  for (let r = 0; r < lostCount; r++) {
+    const j = getI32(redo, r);
+    if (k >= 0 && getI32(jetNn, j) == k) continue;
+    searchNeighbour(j);
+    setCandidate(j);
+    updateTree(getI32(jetSlot, j));
+  }
+  lostCount = 0;
+}
+
+/** Position p leaves the table; the jets above it move down one. */
+function removeAt(p: i32): void {
+  const last = --liveCount;
+  for (let q = p; q < last; q++) {
+    const j = getI32(liveJet, q + 1);
+    setI32(liveJet, q, j);
+    setI32(jetPlace, j, q);
+    setF64(liveY, q, getF64(liveY, q + 1));
+    setF64(livePhi, q, getF64(livePhi, q + 1));
+  }
+}
+
+/** Jet k fills the hole at position p, then moves to where its y belongs. */
+function insertNear(p: i32, k: i32): i32 {
+  const y = getF64(jetY, k);
+  let at = p;
+  // shift the jets it passes by one, up or down
+  while (at > 0 && getF64(liveY, at - 1) > y) {
+    const j = getI32(liveJet, at - 1);
+    setI32(liveJet, at, j);
+    setI32(jetPlace, j, at);
+    setF64(liveY, at, getF64(liveY, at - 1));
+    setF64(livePhi, at, getF64(livePhi, at - 1));
+    at--;
+  }
+  while (at + 1 < liveCount && getF64(liveY, at + 1) < y) {
+    const j = getI32(liveJet, at + 1);
+    setI32(liveJet, at, j);
+    setI32(jetPlace, j, at);
+    setF64(liveY, at, getF64(liveY, at + 1));
+    setF64(livePhi, at, getF64(livePhi, at + 1));
+    at++;
+  }
+  setI32(liveJet, at, k);
+  setI32(jetPlace, k, at);
+  setF64(liveY, at, y);
+  setF64(livePhi, at, getF64(jetPhi, k));
+  return at;
+}
+
+/** Beam step: jet i is final. */
+function finish(i: i32): void {
+  setI32(finalJet, pairFinalCount++, i);
+  const s = getI32(jetSlot, i);
+  setEmptyCandidate(s);
+  updateTree(s);
+  removeAt(getI32(jetPlace, i));
+  unlinkPointer(i);
+  collectLost(i);
+  searchLost(-1);
+}
+
+/** Pair step: jet i and its neighbour make a new jet. */
+function merge(i: i32): void {
+  const j = getI32(jetNn, i);
+  const a = min<i32>(i, j);
+  const b = max<i32>(i, j);
+  const k = pairJetCount++;
+  mergeJets(a, b, k);
+  setI32(jetInto, a, k);
+  setI32(jetInto, b, k);
+  setI32(jetInto, k, -1);
+  setWeight(k);
+  const w = getF64(jetW, k);
+  const limit = getF64(jetReach2, k);
+  const limitBits = reinterpret<u64>(limit);
+  setI32(jetNn, k, -1);
+  setI32(pointedHead, k, -1);
+  // the new jet takes the smaller of its parents' slots; the other stays empty
+  const sa = getI32(jetSlot, a);
+  const sb = getI32(jetSlot, b);
+  const sk = min<i32>(sa, sb);
+  const emptied = max<i32>(sa, sb);
+  setEmptyCandidate(emptied);
+  updateTree(emptied);
+  setI32(slotJet, emptied, -1);
+  setI32(jetSlot, k, sk);
+  setI32(slotJet, sk, k);
+  // the upper parent leaves the table, the new jet starts at the lower one's position
+  const pa = getI32(jetPlace, a);
+  const pb = getI32(jetPlace, b);
+  removeAt(max<i32>(pa, pb));
+  const pk = insertNear(min<i32>(pa, pb), k);
+  unlinkPointer(a);
+  unlinkPointer(b);
+  collectLost(a);
+  collectLost(b);
+
+  // one pass each way: k's own neighbour, and its offers to the jets within offerReach2
+  const y = getF64(jetY, k);
+  const phi = getF64(jetPhi, k);
+  const scale = invR2;
+  const offerReach = offerReach2;
+  const count = liveCount;
+  let bestJet = BEAM;
+  let bestKey = INFINITY_BITS;
+  let bestDR2 = INFINITY_BITS;
+  for (let direction = 1; direction >= -1; direction -= 2) {
+    for (let q = pk + direction; q >= 0 && q < count; q += direction) {
+      const yq = getF64(liveY, q);
+      const dy = y - yq;
+      const dy2 = dy * dy;
+      if (dy2 > offerReach && (dy2 > limit || (w * dy2) * scale > reinterpret<f64>(bestKey))) break;
+      const jq = getI32(liveJet, q);
+      const dR2 = pairDR2(y, phi, yq, getF64(livePhi, q));
+      const dR2Bits = reinterpret<u64>(dR2);
+      const key = reinterpret<u64>((w * dR2) * scale);
+      const better = (dR2Bits <= limitBits) & ((key < bestKey) | ((key == bestKey) & (jq < bestJet)));
+      bestJet = select<i32>(jq, bestJet, better);
+      bestKey = select<u64>(key, bestKey, better);
+      bestDR2 = select<u64>(reinterpret<u64>(dR2), bestDR2, better);
+      // q's key to k against its neighbour's (for a lost one, the neighbour it lost); k has the
+      // largest index, so only a strictly smaller key counts
+      const keyOfQ = reinterpret<u64>((getF64(jetW, jq) * dR2) * scale);
+      if (keyOfQ < bitsAt(jetNnKey, jq) && dR2 <= getF64(jetReach2, jq)) {
+        setNeighbour(jq, k, keyOfQ, reinterpret<u64>(dR2));
+        setCandidate(jq);
+        updateTree(getI32(jetSlot, jq));
+      }
+    }
+  }
+  setNeighbour(k, bestJet, bestKey, bestDR2);
+  setCandidate(k);
+  updateTree(sk);
+  searchLost(k);
+}
+
+/** offerReach2 made exact again: the largest neighbour dR2 of the live jets. */
+function refreshOfferReach(): void {
+  let widest: u64 = 0;
+  for (let p = 0; p < liveCount; p++) {
+    const j = getI32(liveJet, p);
+    const dR2 = reinterpret<u64>(min<f64>(getF64(jetNnDR2, j), getF64(jetReach2, j)));
+    widest = select<u64>(dR2, widest, dR2 > widest);
+  }
+  offerReach2 = reinterpret<f64>(widest);
+}
+
+/** Clusters the n towers in evIndex/evEt (n >= 1): with beams until no jet is left, without
+ * down to one jet. Every slot's candidate is left empty. */
+export function pairCluster(n: i32): void {
+  pairJetCount = n;
+  pairFinalCount = 0;
+  liveCount = 0;
+  lostCount = 0;
+  offerReach2 = 0;
+  startTree(n);
+  for (let t = 0; t < n; t++) {
+    loadTower(t, getI32(evIndex, t), getF64(evEt, t));
+    setI32(jetInto, t, -1);
+    setWeight(t);
+    setI32(jetNn, t, -1);
+    setI32(pointedHead, t, -1);
+    setI32(jetSlot, t, t);
+    setI32(slotJet, t, t);
+    // towers come in flat-index order, row by row, so this rarely moves anything
+    liveCount++;
+    insertNear(t, t);
+  }
+  for (let t = 0; t < n; t++) searchNeighbour(t);
+  for (let t = 0; t < n; t++) setCandidate(t);
+  buildTree();
+  let steps = 0;
+  while (liveCount > 0) {
+    if (beamsOff && liveCount == 1) break;
+    const s = treeWinner();
+    const i = getI32(slotJet, s);
+    // no live candidate at all only for NaN coordinates, which validated input never has
+    if (i < 0 || (beamsOff && isBeamCandidate(s))) break;
+    if (isBeamCandidate(s)) {
+      finish(i);
+    } else {
+      if (++steps % REACH_REFRESH_STEPS == 0) refreshOfferReach();
+      merge(i);
+    }
+  }
+  for (let t = 0; t < n; t++) setEmptyCandidate(t);
+}
