@@ -12,7 +12,8 @@
 //      closed loop, 1 worker: p50, p99 and the median of the per-event ratios;
 //   5. the machine's floor at the moment: exec-pipe-floor.c, a C parent and a C child on a
 //      socket pair with the events' record size and the program's median own time, no codecs
-//      and no event loop: what two wake-ups and the copies cost here, whatever jetlag does.
+//      and no event loop: what two wake-ups and the copies cost here, whatever jetlag does;
+//      then the same with both on one CPU (taskset), where no wake-up finds its CPU idle.
 // Events are invented (the toy generator). Figures go to stdout and to
 // bench/results/exec-pipe.json (not committed). The machine is shared: each figure carries the
 // load average its run started at.
@@ -59,12 +60,17 @@ function writeEvents(path: string): { meanTowers: number; meanRecordBytes: numbe
   return { meanTowers: towers / events, meanRecordBytes: bytes / events };
 }
 
-/** Section 5: p10, p50, p90, p99 of the C pair's round trip minus the child's own time, µs; null when it cannot be built. */
-function machineFloor(workUs: number, recordBytes: number): number[] | null {
+/**
+ * Section 5: p10, p50, p90, p99 of the C pair's round trip minus the child's own time, µs;
+ * null when it cannot be built. `oneCpu`: both processes on CPU 0 (taskset), so that neither
+ * wake-up has to bring an idle CPU back (on this virtual machine, the larger part of the floor).
+ */
+function machineFloor(workUs: number, recordBytes: number, oneCpu: boolean): number[] | null {
   const floorProgram = join(dir, 'exec-pipe-floor');
   try {
     execFileSync('cc', ['-O2', '-o', floorProgram, new URL('../../bench/exec-pipe-floor.c', import.meta.url).pathname], { stdio: ['ignore', 'ignore', 'pipe'] });
-    const printed = execFileSync(floorProgram, [String(events), String(Math.round(workUs)), String(recordBytes), String(recordBytes)], { encoding: 'utf8' });
+    const argv = [floorProgram, String(events), String(Math.round(workUs)), String(recordBytes), String(recordBytes)];
+    const printed = oneCpu ? execFileSync('taskset', ['-c', '0', ...argv], { encoding: 'utf8' }) : execFileSync(argv[0], argv.slice(1), { encoding: 'utf8' });
     return printed.trim().split(' ').map(Number);
   } catch (error) {
     line(`exec-pipe: the C floor could not be built or run (${(error as Error).message.split('\n')[0]})`);
@@ -171,11 +177,12 @@ if (program !== null) {
   // 5. the machine's floor: the same sizes and own time, C on both sides
   const workUs = median(closedOne.map((round) => round.serviceP50Us ?? 0));
   const recordBytes = Math.round(meanRecordBytes);
-  const floor = machineFloor(workUs, recordBytes);
-  if (floor !== null) {
+  for (const oneCpu of [false, true]) {
+    const floor = machineFloor(workUs, recordBytes, oneCpu);
+    if (floor === null) continue;
     const floorLoad = loadavg()[0];
-    results.machineFloor = { workUs, recordBytes, p10Us: floor[0], p50Us: floor[1], p90Us: floor[2], p99Us: floor[3], load: floorLoad };
-    line(`machine's floor (C parent and child on a socket pair, ${recordBytes} bytes each way, ${workUs.toFixed(0)} µs of work, ${events} rounds): ` +
+    results[oneCpu ? 'machineFloorOneCpu' : 'machineFloor'] = { workUs, recordBytes, p10Us: floor[0], p50Us: floor[1], p90Us: floor[2], p99Us: floor[3], load: floorLoad };
+    line(`machine's floor${oneCpu ? ', both on CPU 0' : ''} (C parent and child on a socket pair, ${recordBytes} bytes each way, ${workUs.toFixed(0)} µs of work, ${events} rounds): ` +
       `round trip minus work p10 ${us(floor[0])} µs, p50 ${us(floor[1])} µs, p90 ${us(floor[2])} µs, p99 ${us(floor[3])} µs; load average ${floorLoad.toFixed(1)} (at its end)`);
   }
 
