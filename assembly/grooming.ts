@@ -16,13 +16,13 @@
 import { inStart, outStatus, jetKt2, jetY, jetPhi, jetPx, jetPy, jetPz, jetE, jetInto, finalJet,
   finalOrder, finalScratch, finalPt, groomJetPt, groomPx, groomPy, groomPz, groomE, groomPt, groomY,
   groomPhi, groomMass, groomTowers, groomSubjets, groomZ, groomDeltaR, nodeTowers, nodeParentA,
-  nodeParentB, getF64, setF64, getI32, setI32 } from './layout';
-import { setBeamsOff, TWO_PI } from './settings';
+  nodeParentB, inIndex, inEt, evIndex, evEt, cellTotal, getF64, setF64, getI32, setI32 } from './layout';
+import { setBeamsOff, threshold, TWO_PI } from './settings';
 import { selectTowers } from './input';
 import { pairCluster, pairJetCount, pairFinalCount } from './groom-pairs';
 import { deltaR2 } from './kinematics';
 import { sortPermutation } from './sort';
-import { STATUS_OK, GROOM_TRIM, GROOM_SOFT_DROP, GROOM_REGION_JET_PT, GROOM_REGION_PX, GROOM_REGION_PY,
+import { MIN_ET, STATUS_OK, GROOM_TRIM, GROOM_SOFT_DROP, GROOM_REGION_JET_PT, GROOM_REGION_PX, GROOM_REGION_PY,
   GROOM_REGION_PZ, GROOM_REGION_ENERGY, GROOM_REGION_PT, GROOM_REGION_RAPIDITY, GROOM_REGION_PHI, GROOM_REGION_MASS,
   GROOM_REGION_TOWERS, GROOM_REGION_SUBJETS, GROOM_REGION_ZG, GROOM_REGION_DELTA_RG } from './shared-constants';
 
@@ -73,7 +73,7 @@ export function groomRegion(id: i32): usize {
 export function groomBatch(count: i32): void {
   for (let e = 0; e < count; e++) {
     clearRow(e);
-    const n = selectTowers(getI32(inStart, e), getI32(inStart, e + 1));
+    const n = selectConstituents(getI32(inStart, e), getI32(inStart, e + 1));
     setI32(outStatus, e, n < 0 ? n : STATUS_OK);
     if (n <= 0) continue;
     if (groomMode == GROOM_TRIM) {
@@ -84,6 +84,27 @@ export function groomBatch(count: i32): void {
       softDrop(e, n);
     }
   }
+}
+
+/** selectTowers() for one jet's constituents, which the host passes in increasing flat index:
+ * one pass while they are (then the sort and its repeat check have nothing to do), else
+ * selectTowers() itself. */
+function selectConstituents(start: i32, end: i32): i32 {
+  const total = <u32>cellTotal;
+  let n = 0;
+  let previous = -1;
+  for (let k = start; k < end; k++) {
+    const index = getI32(inIndex, k);
+    if (<u32>index >= total || index <= previous) return selectTowers(start, end);
+    const et = getF64(inEt, k);
+    if (et > threshold && et >= MIN_ET) {
+      setI32(evIndex, n, index);
+      setF64(evEt, n, et);
+      n++;
+      previous = index;
+    }
+  }
+  return n;
 }
 
 function clearRow(e: i32): void {
