@@ -38,6 +38,12 @@ describe('jetlag run options', () => {
     expect(() => options(['--find-rate'])).toThrow('run: --find-rate needs --budget-us');
   });
 
+  it('take --cpu-wait-per-event in an open loop and refuse it in a closed one', () => {
+    expect(options(['--rate', '100', '--cpu-wait-per-event']).cpuWaitPerEvent).toBe(true);
+    expect(options(['--rate', '100']).cpuWaitPerEvent).toBe(false);
+    expect(() => options(['--cpu-wait-per-event'])).toThrow(UsageError);
+  });
+
   it('take the algorithm shorthand for p', () => {
     expect(options(['--algorithm', 'kt', '--radius', '0.6']).settings).toMatchObject({ p: 1, radius: 0.6 });
   });
