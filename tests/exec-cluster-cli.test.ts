@@ -3,6 +3,8 @@
 // number lost), and the summary says what failed and which clock measured what. The program is
 // tests/fixtures/engines/faulty-engine.mjs.
 
+import { spawnSync } from 'node:child_process';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { main as clusterMain } from '../host/cli/commands/cluster.js';
@@ -13,6 +15,7 @@ import { tempDirForSuite } from './support/temp-dir.js';
 import { toyEvents, writeEventFile } from './support/run-files.js';
 
 const FIXTURE = join(import.meta.dirname, 'fixtures', 'engines', 'faulty-engine.mjs');
+const CLI = join(import.meta.dirname, '..', 'dist', 'host', 'cli', 'cli.js');
 const dir = tempDirForSuite('exec-cluster');
 const input = writeEventFile(join(dir, 'events.jetlag'), toyEvents(24, 3, 2)).path;
 
@@ -57,6 +60,17 @@ describe('cluster --engine exec:', () => {
     expect(code).toBe(2);
     expect(stderr).toMatch(/failed 2 times and was restarted 1 times \(--engine-restarts 1\); last: .*event 1: exited with status 3.*; stopped there, the 2 events before it were written/);
     expect((await jetsRecords(out)).map((record) => record.error !== '')).toEqual([true, true]);
+  });
+
+  it('ends the program and exits when its output cannot be opened', () => {
+    // the program is started before the output (the jets header names it); an output that
+    // exists must not leave it running, which would keep jetlag from exiting
+    const out = join(dir, 'exists.jets');
+    writeFileSync(out, 'not to be replaced');
+    const result = spawnSync(process.execPath, [CLI, 'cluster', input, '--engine', program('well', -1), '--out', out], { encoding: 'utf8', timeout: 30_000 });
+    expect(result.error).toBeUndefined();
+    expect(result.status).toBe(2);
+    expect(result.stderr).toContain('the file exists');
   });
 
   it('refuses shell features in the command, and --emulate beside it, as usage errors', async () => {

@@ -98,10 +98,15 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
   const grid = source.header.grid;
   const pileup = pileupStepsOn(options.pileup) ? options.pileup : null;
   if (options.program && pileup) throw new UsageError('cluster: an engine program runs the plain clustering only; leave out --areas, --rho, --subtract and --softkiller');
-  const program = options.program ? await startProgramEngine(options.program, grid, settings, source.label, options.maxRecordBytes) : null;
-  const programTimes = new ProgramTimes();
   const grooming = groomingIsOn(options.grooming) ? options.grooming : null;
   if (options.program && grooming) throw new UsageError('cluster: an engine program runs the plain clustering only; leave out --trim and --softdrop');
+  const program = options.program ? await startProgramEngine(options.program, grid, settings, source.label, options.maxRecordBytes) : null;
+  const programTimes = new ProgramTimes();
+  // an output that cannot be opened (it exists, no --force) ends the program too, or it would keep jetlag alive
+  const closeProgramAndThrow = async (error: unknown): Promise<never> => {
+    await program?.close();
+    throw error;
+  };
   const clusterer = program ? null : makeClusterer(options.engine, grid, settings, options.emulation, pileup, 'cluster', grooming);
   if (clusterer && 'withTowers' in clusterer) (clusterer as { withTowers: boolean }).withTowers = withTowers;
   const engineName = program ? program.engineName || options.program!.label : options.emulation ? emulationName(options.emulation) : clusterer!.name;
@@ -115,9 +120,9 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
   const jetsFile = options.format === 'jets'
     ? await JetsFileWriter.open(out, grid, { ...settings, engine: engineName, ...(pileup ? { pileup } : {}), ...(grooming ? { grooming } : {}) },
       { producer: producerName('cluster'), label: options.label ?? `${windowLabel}${pileupLabel}jets of ${source.label}` },
-      { gzip: options.gzip, stdout: options.stdout, force: options.force })
+      { gzip: options.gzip, stdout: options.stdout, force: options.force }).catch(closeProgramAndThrow)
     : null;
-  const lines = options.format === 'jsonl' ? await TextFileWriter.open(out, { stdout: options.stdout, force: options.force }) : null;
+  const lines = options.format === 'jsonl' ? await TextFileWriter.open(out, { stdout: options.stdout, force: options.force }).catch(closeProgramAndThrow) : null;
 
   let events = 0;
   let invalid = 0;
