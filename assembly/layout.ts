@@ -30,11 +30,10 @@
 //            groomTowers groomSubjets i32[EV]  groomZ groomDeltaR f64[EV]   (read by the host)
 //            nodeTowers nodeParentA nodeParentB i32[2C]   (per jet of one re-clustering: its
 //            towers, and the two jets a merge made it from, -1 for a tower)
-//            (groom-tiles.ts, per jet of one re-clustering:) tileNext tilePrev jetTile jetNn
-//            jetSlot i32[2C]  jetW jetNnDR2 jetNnKey jetLocalPhi f64[2C]  slotJet i32[C]
-//            tileHead i32[TILE_LIMIT]
-//            (groom-pairs.ts, the live jets' table by position:) liveJet i32[C]  liveY livePhi
-//            f64[C]; (per jet:) jetPlace pointedHead pointedNext pointedPrev i32[2C]  jetReach2 f64[2C]
+//            (groom-pairs.ts, per jet of one re-clustering:) jetNn jetSlot jetPlace pointedHead
+//            pointedNext pointedPrev i32[2C]  jetW jetNnDR2 jetNnKey jetReach2 f64[2C]
+//            (per slot:) slotJet i32[C]  (the live jets' table, by position:) liveJet i32[C]
+//            liveY livePhi f64[C]
 //   offsets  offDr offDc i32[O]  offDist f64[O]  offPerm offScratch offTmpI i32[O]  offTmpF f64[O]
 //            offStep i32[O]   (O = OFFSET_LIMIT; offPerm, offScratch, offTmpI, offTmpF only while
 //            the offsets are sorted, offsets.ts)
@@ -157,19 +156,12 @@ export let groomDeltaR: usize = 0;
 export let nodeTowers: usize = 0;
 export let nodeParentA: usize = 0;
 export let nodeParentB: usize = 0;
-export let tileNext: usize = 0;
-export let tilePrev: usize = 0;
-export let jetTile: usize = 0;
 export let jetNn: usize = 0;
 export let jetSlot: usize = 0;
 export let jetW: usize = 0;
 export let jetNnDR2: usize = 0;
 export let jetNnKey: usize = 0;
-export let jetLocalPhi: usize = 0;
 export let slotJet: usize = 0;
-export let tileHead: usize = 0;
-// @ts-ignore: decorator
-@inline export const TILE_LIMIT: i32 = 4096;
 export let liveJet: usize = 0;
 export let liveY: usize = 0;
 export let livePhi: usize = 0;
@@ -327,17 +319,12 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   nodeTowers = take(jets << 2);
   nodeParentA = take(jets << 2);
   nodeParentB = take(jets << 2);
-  tileNext = take(jets << 2);
-  tilePrev = take(jets << 2);
-  jetTile = take(jets << 2);
   jetNn = take(jets << 2);
   jetSlot = take(jets << 2);
   jetW = take(jets << 3);
   jetNnDR2 = take(jets << 3);
   jetNnKey = take(jets << 3);
-  jetLocalPhi = take(jets << 3);
   slotJet = take(cells << 2);
-  tileHead = take(<usize>TILE_LIMIT << 2);
   liveJet = take(cells << 2);
   liveY = take(cells << 3);
   livePhi = take(cells << 3);

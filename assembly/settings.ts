@@ -21,8 +21,8 @@ export let reach: f64 = 0;
 export let ptMin: f64 = 0;
 export let threshold: f64 = 0;
 export let winnerTakeAll: bool = false;
-/** no beam candidates: only pairs compete (soft drop's re-clustering, grooming.ts); a jet then
- * offers a beam of measure +Infinity only while no other jet lies within the reach */
+/** no beam candidates: only pairs compete (soft drop's re-clustering, grooming.ts and
+ * groom-pairs.ts, where every jet's neighbour is then sought without a reach) */
 export let beamsOff: bool = false;
 
 export function setBeamsOff(off: bool): void {

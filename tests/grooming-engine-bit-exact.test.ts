@@ -76,11 +76,11 @@ describe('engine grooming against the reference', () => {
     ['trimming 0.2:0.05', { trim: { subjetRadius: 0.2, ptFraction: 0.05 }, softDrop: null }],
   ] as [string, GroomingSettings][]) {
     it(`${name} of made-up jets: spread over the grid, across the seam, huge and tiny et, 300 jets`, () => {
-      // the engine re-clusters on tiles over the box of a jet's towers (assembly/groom-tiles.ts):
-      // towers spread over the grid span pi or more in phi (one tile, every pair searched), a
-      // jet across the seam has its box measured the short way round, soft drop's reach grows
-      // until the far pairs are found, and weights beyond the reach argument's range (et near
-      // the spec's limits, 1e150 and 1e-150) make trimming search every pair
+      // the engine re-clusters on a table of the jet's live jets in increasing y
+      // (assembly/groom-pairs.ts): towers spread over the grid give long searches, a jet across
+      // the seam takes the wrapped dphi, soft drop searches without a reach, and weights beyond
+      // the reach argument's range (et near the spec's limits, 1e150 and 1e-150) make trimming
+      // search without one too
       const reference = new ReferenceGroomer(grid, grooming, 1);
       const engine = new EngineGroomer(grid, grooming, 1);
       const random = seededRandom(99 + name.length);
