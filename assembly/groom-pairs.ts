@@ -1,11 +1,13 @@
-// Grooming's re-clustering of one jet's constituents (clustering-spec.md sections 2-5, as section
-// 12 asks): the n towers in evIndex/evEt, with the instance's p and R, beams or not (settings.ts
-// beamsOff), on one flat table of the live jets in increasing y instead of cells or tiles. A
+// Soft drop's re-clustering of one jet's constituents (clustering-spec.md sections 2-5, as section
+// 12 asks): the n towers in evIndex/evEt, with the instance's p and R and no beam candidates
+// (settings.ts beamsOff), down to one jet, on one flat table of the live jets in increasing y
+// instead of cells or tiles (trimming, with beams, stays on the event grid's cells). A
 // large-R jet has some 60-110 towers: few enough that a search may look at every live jet (the
 // published nearest-neighbour method with all pairs, arXiv:hep-ph/0512210), and the table's
 // order in y lets most searches stop early. Each jet keeps its neighbour by section 4's exact key
-// ((w_i * dR2) * invR2, then the smaller jet index), sought among all live jets (no reach), so
-// it is section 4's nn(i) as written; the smallest candidate comes from the tournament tree
+// ((w_i * dR2) * invR2, then the smaller jet index), sought among all live jets (without beams
+// there is no reach), so it is section 4's nn(i) as written; the smallest pair comes from the
+// tournament tree
 // (tournament.ts, by slot), and only the jets whose neighbour went away search again.
 //
 // Why a search may stop: dR2 = dy * dy + dphi * dphi >= dy * dy, and (w * x) * invR2 never
@@ -19,14 +21,13 @@
 // and the list of the jets whose neighbour it is (pointedHead, pointedNext, pointedPrev), so that
 // a merge or a beam step finds who lost a neighbour without a pass over the table.
 //
-// pairJetCount: the jets made (towers first, jetInto as in sequence.ts; without beams the last
-// is the root); finalJet[0..pairFinalCount): the jets made final by beam steps.
+// pairJetCount: the jets made (towers first, jetInto as in sequence.ts); the last is the root.
 
 import { evIndex, evEt, jetY, jetPhi, jetKt2, jetInto, jetW, jetNn, jetNnKey, jetNnDR2, jetSlot,
-  slotJet, finalJet, redo, liveJet, liveY, livePhi, jetPlace, pointedHead, pointedNext, pointedPrev,
-  jetReach2, getF64, setF64, getI32, setI32 } from './layout';
-import { invR2, beamsOff, reach2, BEAM, PI, TWO_PI } from './settings';
-import { loadTower, mergeJets, weightOf, needsWideSearch } from './kinematics';
+  slotJet, redo, liveJet, liveY, livePhi, jetPlace, pointedHead, pointedNext, pointedPrev,
+  getF64, setF64, getI32, setI32 } from './layout';
+import { invR2, BEAM, PI, TWO_PI } from './settings';
+import { loadTower, mergeJets, weightOf } from './kinematics';
 import { startTree, buildTree, updateTree, treeWinner, isBeamCandidate,
   setCandidate as setSlotCandidate, setEmptyCandidate } from './tournament';
 
@@ -40,7 +41,6 @@ import { startTree, buildTree, updateTree, treeWinner, isBeamCandidate,
 @inline const REACH_REFRESH_STEPS: i32 = 8;
 
 export let pairJetCount: i32 = 0;
-export let pairFinalCount: i32 = 0;
 let liveCount: i32 = 0;
 let lostCount: i32 = 0;
 /** at least every live jet's neighbour dR2: no offer is taken farther away */
@@ -93,36 +93,20 @@ function setNeighbour(i: i32, q: i32, keyBits: u64, dR2Bits: u64): void {
   }
   setBitsAt(jetNnKey, i, keyBits);
   setBitsAt(jetNnDR2, i, dR2Bits);
-  offerReach2 = max<f64>(offerReach2, min<f64>(reinterpret<f64>(dR2Bits), getF64(jetReach2, i)));
+  offerReach2 = max<f64>(offerReach2, reinterpret<f64>(dR2Bits));
 }
 
-/** Jet i gets its weight and how far its neighbour may lie: with beams, a pair farther than the
- * reach always loses to the beam (settings.ts reach2; section 4), except for weights so extreme
- * that the bound cannot be relied on (kinematics.ts needsWideSearch); without beams, anywhere. */
-function setWeight(i: i32): void {
-  const w = weightOf(getF64(jetKt2, i));
-  setF64(jetW, i, w);
-  setF64(jetReach2, i, beamsOff || needsWideSearch(w) ? Infinity : reach2);
-}
-
-/** Jet i's candidate into its slot (the tree is the caller's): the smaller, in section 4's
- * order, of its pair with its neighbour and (with beams) its beam. */
+/** Jet i's candidate into its slot (the tree is the caller's): its pair with its neighbour
+ * (section 4 without beams), or none. */
 function setCandidate(i: i32): void {
   const s = getI32(jetSlot, i);
   const q = getI32(jetNn, i);
-  const w = getF64(jetW, i);
   if (q >= 0) {
-    const measure = (min<f64>(w, getF64(jetW, q)) * getF64(jetNnDR2, i)) * invR2;
-    // the beam's tie word (i, BEAM) comes after the pair's (min, max) when measures are equal
-    if (beamsOff || !(reinterpret<u64>(w) < reinterpret<u64>(measure))) {
-      setSlotCandidate(s, measure, min<i32>(i, q), max<i32>(i, q));
-      return;
-    }
-  } else if (beamsOff) {
+    const measure = (min<f64>(getF64(jetW, i), getF64(jetW, q)) * getF64(jetNnDR2, i)) * invR2;
+    setSlotCandidate(s, measure, min<i32>(i, q), max<i32>(i, q));
+  } else {
     setEmptyCandidate(s);
-    return;
   }
-  setSlotCandidate(s, w, i, BEAM);
 }
 
 /** Jet i's neighbour from scratch: from its position p up and down the table until the bound
@@ -132,8 +116,6 @@ function searchNeighbour(i: i32): void {
   const y = getF64(liveY, p);
   const phi = getF64(livePhi, p);
   const w = getF64(jetW, i);
-  const limit = getF64(jetReach2, i);
-  const limitBits = reinterpret<u64>(limit);
   const scale = invR2;
   const count = liveCount;
   const ys = liveY;
@@ -145,12 +127,11 @@ function searchNeighbour(i: i32): void {
   for (let q = p + 1; q < count; q++) {
     const yq = getF64(ys, q);
     const dy = y - yq;
-    const dy2 = dy * dy;
-    if (dy2 > limit || (w * dy2) * scale > reinterpret<f64>(bestKey)) break;
+    if ((w * (dy * dy)) * scale > reinterpret<f64>(bestKey)) break;
     const j = getI32(jets, q);
     const dR2 = pairDR2(y, phi, yq, getF64(phis, q));
     const key = reinterpret<u64>((w * dR2) * scale);
-    const better = (reinterpret<u64>(dR2) <= limitBits) & ((key < bestKey) | ((key == bestKey) & (j < bestJet)));
+    const better = (key < bestKey) | ((key == bestKey) & (j < bestJet));
     bestJet = select<i32>(j, bestJet, better);
     bestKey = select<u64>(key, bestKey, better);
     bestDR2 = select<u64>(reinterpret<u64>(dR2), bestDR2, better);
@@ -158,12 +139,11 @@ function searchNeighbour(i: i32): void {
   for (let q = p - 1; q >= 0; q--) {
     const yq = getF64(ys, q);
     const dy = y - yq;
-    const dy2 = dy * dy;
-    if (dy2 > limit || (w * dy2) * scale > reinterpret<f64>(bestKey)) break;
+    if ((w * (dy * dy)) * scale > reinterpret<f64>(bestKey)) break;
     const j = getI32(jets, q);
     const dR2 = pairDR2(y, phi, yq, getF64(phis, q));
     const key = reinterpret<u64>((w * dR2) * scale);
-    const better = (reinterpret<u64>(dR2) <= limitBits) & ((key < bestKey) | ((key == bestKey) & (j < bestJet)));
+    const better = (key < bestKey) | ((key == bestKey) & (j < bestJet));
     bestJet = select<i32>(j, bestJet, better);
     bestKey = select<u64>(key, bestKey, better);
     bestDR2 = select<u64>(reinterpret<u64>(dR2), bestDR2, better);
@@ -176,13 +156,13 @@ function collectLost(gone: i32): void {
   for (let q = getI32(pointedHead, gone); q >= 0; q = getI32(pointedNext, q)) setI32(redo, lostCount++, q);
 }
 
-/** The jets on the redo list search again, unless they took the step's new jet `k` (-1: none)
- * in its offers, strictly nearer by their key than the neighbour they lost: then every other
- * jet came after it. */
+/** The jets on the redo list search again, unless they took the step's new jet `k` in its
+ * offers, strictly nearer by their key than the neighbour they lost: then every other jet came
+ * after it. */
 function searchLost(k: i32): void {
   for (let r = 0; r < lostCount; r++) {
     const j = getI32(redo, r);
-    if (k >= 0 && getI32(jetNn, j) == k) continue;
+    if (getI32(jetNn, j) == k) continue;
     searchNeighbour(j);
     setCandidate(j);
     updateTree(getI32(jetSlot, j));
@@ -230,18 +210,6 @@ function insertNear(p: i32, k: i32): i32 {
   return at;
 }
 
-/** Beam step: jet i is final. */
-function finish(i: i32): void {
-  setI32(finalJet, pairFinalCount++, i);
-  const s = getI32(jetSlot, i);
-  setEmptyCandidate(s);
-  updateTree(s);
-  removeAt(getI32(jetPlace, i));
-  unlinkPointer(i);
-  collectLost(i);
-  searchLost(-1);
-}
-
 /** Pair step: jet i and its neighbour make a new jet. */
 function merge(i: i32): void {
   const j = getI32(jetNn, i);
@@ -252,10 +220,8 @@ function merge(i: i32): void {
   setI32(jetInto, a, k);
   setI32(jetInto, b, k);
   setI32(jetInto, k, -1);
-  setWeight(k);
-  const w = getF64(jetW, k);
-  const limit = getF64(jetReach2, k);
-  const limitBits = reinterpret<u64>(limit);
+  const w = weightOf(getF64(jetKt2, k));
+  setF64(jetW, k, w);
   setI32(jetNn, k, -1);
   setI32(pointedHead, k, -1);
   // the new jet takes the smaller of its parents' slots; the other stays empty
@@ -292,19 +258,19 @@ function merge(i: i32): void {
       const yq = getF64(liveY, q);
       const dy = y - yq;
       const dy2 = dy * dy;
-      if (dy2 > offerReach && (dy2 > limit || (w * dy2) * scale > reinterpret<f64>(bestKey))) break;
+      if (dy2 > offerReach && (w * dy2) * scale > reinterpret<f64>(bestKey)) break;
       const jq = getI32(liveJet, q);
       const dR2 = pairDR2(y, phi, yq, getF64(livePhi, q));
       const dR2Bits = reinterpret<u64>(dR2);
       const key = reinterpret<u64>((w * dR2) * scale);
-      const better = (dR2Bits <= limitBits) & ((key < bestKey) | ((key == bestKey) & (jq < bestJet)));
+      const better = (key < bestKey) | ((key == bestKey) & (jq < bestJet));
       bestJet = select<i32>(jq, bestJet, better);
       bestKey = select<u64>(key, bestKey, better);
       bestDR2 = select<u64>(reinterpret<u64>(dR2), bestDR2, better);
       // q's key to k against its neighbour's (for a lost one, the neighbour it lost); k has the
       // largest index, so only a strictly smaller key counts
       const keyOfQ = reinterpret<u64>((getF64(jetW, jq) * dR2) * scale);
-      if (keyOfQ < bitsAt(jetNnKey, jq) && dR2 <= getF64(jetReach2, jq)) {
+      if (keyOfQ < bitsAt(jetNnKey, jq)) {
         setNeighbour(jq, k, keyOfQ, reinterpret<u64>(dR2));
         setCandidate(jq);
         updateTree(getI32(jetSlot, jq));
@@ -322,17 +288,16 @@ function refreshOfferReach(): void {
   let widest: u64 = 0;
   for (let p = 0; p < liveCount; p++) {
     const j = getI32(liveJet, p);
-    const dR2 = reinterpret<u64>(min<f64>(getF64(jetNnDR2, j), getF64(jetReach2, j)));
+    const dR2 = bitsAt(jetNnDR2, j);
     widest = select<u64>(dR2, widest, dR2 > widest);
   }
   offerReach2 = reinterpret<f64>(widest);
 }
 
-/** Clusters the n towers in evIndex/evEt (n >= 1): with beams until no jet is left, without
- * down to one jet. Every slot's candidate is left empty. */
+/** Clusters the n towers in evIndex/evEt (n >= 1) down to one jet. Every slot's candidate is
+ * left empty. */
 export function pairCluster(n: i32): void {
   pairJetCount = n;
-  pairFinalCount = 0;
   liveCount = 0;
   lostCount = 0;
   offerReach2 = 0;
@@ -340,7 +305,7 @@ export function pairCluster(n: i32): void {
   for (let t = 0; t < n; t++) {
     loadTower(t, getI32(evIndex, t), getF64(evEt, t));
     setI32(jetInto, t, -1);
-    setWeight(t);
+    setF64(jetW, t, weightOf(getF64(jetKt2, t)));
     setI32(jetNn, t, -1);
     setI32(pointedHead, t, -1);
     setI32(jetSlot, t, t);
@@ -353,18 +318,13 @@ export function pairCluster(n: i32): void {
   for (let t = 0; t < n; t++) setCandidate(t);
   buildTree();
   let steps = 0;
-  while (liveCount > 0) {
-    if (beamsOff && liveCount == 1) break;
+  while (liveCount > 1) {
     const s = treeWinner();
     const i = getI32(slotJet, s);
-    // no live candidate at all only for NaN coordinates, which validated input never has
-    if (i < 0 || (beamsOff && isBeamCandidate(s))) break;
-    if (isBeamCandidate(s)) {
-      finish(i);
-    } else {
-      if (++steps % REACH_REFRESH_STEPS == 0) refreshOfferReach();
-      merge(i);
-    }
+    // no pair at all only for NaN coordinates, which validated input never has
+    if (i < 0 || isBeamCandidate(s)) break;
+    if (++steps % REACH_REFRESH_STEPS == 0) refreshOfferReach();
+    merge(i);
   }
   for (let t = 0; t < n; t++) setEmptyCandidate(t);
 }

@@ -3,12 +3,12 @@
 // of its real constituents (inIndex/inEt/inStart, layout.ts), re-clusters each one, and writes
 // one groomed row per jet (groomPx .. groomDeltaR).
 //
-// Both re-cluster on the table of a jet's live jets (groom-pairs.ts), not on the event grid's
-// cells: a jet's few dozen towers are searched faster in a flat table.
-// - Trimming (arXiv:0912.1342): the instance is configured with p = 1, R = RSUB; the final
-//   subjets in section 6's order (as output.ts sorts them), those with pt >= FCUT * pt_jet summed.
+// - Trimming (arXiv:0912.1342): the instance is configured with p = 1, R = RSUB and re-clusters
+//   on the event grid's cells (sequence.ts); the final subjets in section 6's order (as
+//   output.ts sorts them), those with pt >= FCUT * pt_jet summed.
 // - Soft drop (arXiv:1402.2657): p = 0, R = 1 and no beam candidates (settings.ts beamsOff),
-//   re-clustered down to one jet; then the merging tree is walked from its root.
+//   re-clustered on a table of the jet's live jets (groom-pairs.ts) down to one jet; then the
+//   merging tree is walked from its root.
 //
 // nodeTowers, nodeParentA, nodeParentB (layout.ts) hold each jet's towers and parents, built
 // from jetInto after the sequence: a jet is always made from two earlier ones.
@@ -19,7 +19,8 @@ import { inStart, outStatus, jetKt2, jetY, jetPhi, jetPx, jetPy, jetPz, jetE, je
   nodeParentB, inIndex, inEt, evIndex, evEt, cellTotal, getF64, setF64, getI32, setI32 } from './layout';
 import { setBeamsOff, threshold, TWO_PI } from './settings';
 import { selectTowers } from './input';
-import { pairCluster, pairJetCount, pairFinalCount } from './groom-pairs';
+import { pairCluster, pairJetCount } from './groom-pairs';
+import { clusterTowers, finalCount, jetCount } from './sequence';
 import { deltaR2 } from './kinematics';
 import { sortPermutation } from './sort';
 import { MIN_ET, STATUS_OK, GROOM_TRIM, GROOM_SOFT_DROP, GROOM_REGION_JET_PT, GROOM_REGION_PX, GROOM_REGION_PY,
@@ -77,7 +78,10 @@ export function groomBatch(count: i32): void {
     setI32(outStatus, e, n < 0 ? n : STATUS_OK);
     if (n <= 0) continue;
     if (groomMode == GROOM_TRIM) {
-      pairCluster(n);
+      // the event grid's own sequence: at R = RSUB its searches stay short; the live-jet table
+      // with beams added (groom-pairs.ts) took 1.03-1.07 times as long in paired runs
+      // (bench/grooming-pair.bench.ts), so it serves soft drop only
+      clusterTowers(n);
       trim(e, n);
     } else if (groomMode == GROOM_SOFT_DROP) {
       pairCluster(n);
@@ -140,8 +144,8 @@ function buildTree(n: i32, total: i32): void {
 
 /** Trimming: the final subjets in output order, those with pt >= FCUT * pt_jet summed. */
 function trim(e: i32, n: i32): void {
-  buildTree(n, pairJetCount);
-  const subjets = pairFinalCount;
+  buildTree(n, jetCount);
+  const subjets = finalCount;
   for (let s = 0; s < subjets; s++) {
     const jet = getI32(finalJet, s);
     setI32(finalScratch, s, jet);

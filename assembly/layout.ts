@@ -31,7 +31,7 @@
 //            nodeTowers nodeParentA nodeParentB i32[2C]   (per jet of one re-clustering: its
 //            towers, and the two jets a merge made it from, -1 for a tower)
 //            (groom-pairs.ts, per jet of one re-clustering:) jetNn jetSlot jetPlace pointedHead
-//            pointedNext pointedPrev i32[2C]  jetW jetNnDR2 jetNnKey jetReach2 f64[2C]
+//            pointedNext pointedPrev i32[2C]  jetW jetNnDR2 jetNnKey f64[2C]
 //            (per slot:) slotJet i32[C]  (the live jets' table, by position:) liveJet i32[C]
 //            liveY livePhi f64[C]
 //   offsets  offDr offDc i32[O]  offDist f64[O]  offPerm offScratch offTmpI i32[O]  offTmpF f64[O]
@@ -169,7 +169,6 @@ export let jetPlace: usize = 0;
 export let pointedHead: usize = 0;
 export let pointedNext: usize = 0;
 export let pointedPrev: usize = 0;
-export let jetReach2: usize = 0;
 
 export let offDr: usize = 0;
 export let offDc: usize = 0;
@@ -332,7 +331,6 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   pointedHead = take(jets << 2);
   pointedNext = take(jets << 2);
   pointedPrev = take(jets << 2);
-  jetReach2 = take(jets << 3);
 
   offDr = take(<usize>OFFSET_LIMIT << 2);
   offDc = take(<usize>OFFSET_LIMIT << 2);

@@ -1,6 +1,6 @@
-// The engine's grooming (assembly/groom-pairs.ts: a table of a jet's live jets in increasing y,
-// searches stopped by dy alone) against the reference, bit for bit, on jets made to test that
-// table: every tower in one row (equal y everywhere, no search can stop early), every tower in
+// The engine's grooming against the reference, bit for bit, on jets made to test soft drop's
+// table of a jet's live jets in increasing y (assembly/groom-pairs.ts, searches stopped by dy
+// alone; trimming, on the event grid's cells, gets the same jets): every tower in one row (equal y everywhere, no search can stop early), every tower in
 // one column, a full block of cells (equal distances everywhere, so the ties of clustering-spec.md
 // section 4 decide), a row across the phi seam, unsorted constituents (the engine's own sort),
 // and one jet of several hundred towers spread over the grid.
