@@ -4,35 +4,37 @@
 // instead of cells or tiles (trimming, with beams, stays on the event grid's cells). A
 // large-R jet has some 60-110 towers: few enough that a search may look at every live jet (the
 // published nearest-neighbour method with all pairs, arXiv:hep-ph/0512210), and the table's
-// order in y lets most searches stop early. Each jet keeps its neighbour by section 4's exact key
-// ((w_i * dR2) * invR2, then the smaller jet index), sought among all live jets (without beams
-// there is no reach), so it is section 4's nn(i) as written; the smallest pair comes from the
-// tournament tree
-// (tournament.ts, by slot), and only the jets whose neighbour went away search again.
+// order in y lets most searches stop early. Soft drop's p = 0 and R = 1 make every weight 1 and
+// invR2 = 1, so section 4's key ((w_i * dR2) * invR2, then the smaller jet index) and a pair's
+// measure (min(w_i, w_j) * dR2) * invR2 are dR2 itself, bit for bit (multiplying by 1 is exact;
+// grooming.ts configures only these). Each jet keeps its neighbour by that key, sought among all
+// live jets (without beams there is no reach), so it is section 4's nn(i) as written; the
+// smallest pair comes from the tournament tree (tournament.ts, by slot), and only the jets whose
+// neighbour went away search again.
 //
-// Why a search may stop: dR2 = dy * dy + dphi * dphi >= dy * dy, and (w * x) * invR2 never
-// decreases with x, so a jet whose (w * (dy * dy)) * invR2 is above the best key cannot beat it,
-// nor can any jet farther along the table (its dy is at least as large). The same bound limits
-// the new jet's offers: jet q takes it only when its key to it is below q's own, which needs
-// dR2 < q's neighbour's dR2 <= offerReach2 (an upper bound of those, made exact every few steps).
+// Why a search may stop: dR2 = dy * dy + dphi * dphi >= dy * dy, so a jet whose dy * dy is above
+// the best dR2 cannot beat it, nor can any jet farther along the table (its dy is at least as
+// large). The same bound limits the new jet's offers: jet q takes it only when its dR2 to it is
+// below q's neighbour's, which is at most offerReach2 (an upper bound of those, made exact every
+// few steps).
 //
 // Table (layout.ts), by position 0..liveCount-1, y never decreasing: liveY, livePhi, liveJet.
-// Per jet index: jetPlace (its position), jetSlot, jetW, jetNn (-1: none), jetNnKey, jetNnDR2,
-// and the list of the jets whose neighbour it is (pointedHead, pointedNext, pointedPrev), so that
-// a merge or a beam step finds who lost a neighbour without a pass over the table.
+// Per jet index: jetPlace (its position), jetSlot, jetNn (-1: none), jetNnDR2, and the list of
+// the jets whose neighbour it is (pointedHead, pointedNext, pointedPrev), so that a merge finds
+// who lost a neighbour without a pass over the table.
 //
 // pairJetCount: the jets made (towers first, jetInto as in sequence.ts); the last is the root.
 
-import { evIndex, evEt, jetY, jetPhi, jetKt2, jetInto, jetW, jetNn, jetNnKey, jetNnDR2, jetSlot,
-  slotJet, redo, liveJet, liveY, livePhi, jetPlace, pointedHead, pointedNext, pointedPrev,
-  getF64, setF64, getI32, setI32 } from './layout';
-import { invR2, BEAM, PI, TWO_PI } from './settings';
-import { loadTower, mergeJets, weightOf } from './kinematics';
+import { evIndex, evEt, jetY, jetPhi, jetInto, jetNn, jetNnDR2, jetSlot, slotJet, redo, liveJet,
+  liveY, livePhi, jetPlace, pointedHead, pointedNext, pointedPrev, getF64, setF64, getI32,
+  setI32 } from './layout';
+import { BEAM, PI, TWO_PI } from './settings';
+import { loadTower, mergeJets } from './kinematics';
 import { startTree, buildTree, updateTree, treeWinner, isBeamCandidate,
   setCandidate as setSlotCandidate, setEmptyCandidate } from './tournament';
 
 // The searches keep the best so far without a branch: integer selects over the doubles' bits
-// (keys and dR2 are never negative, so their bits order as the numbers do; a NaN's bits lie above
+// (dR2 is never negative, so their bits order as the numbers do; a NaN's bits lie above
 // +Inf's, so it never wins).
 // @ts-ignore: decorator
 @inline const INFINITY_BITS: u64 = 0x7ff0000000000000;
@@ -78,8 +80,8 @@ function unlinkPointer(i: i32): void {
   if (next >= 0) setI32(pointedPrev, next, prev);
 }
 
-/** Jet i's neighbour becomes q (BEAM: none), with its key and dR2. */
-function setNeighbour(i: i32, q: i32, keyBits: u64, dR2Bits: u64): void {
+/** Jet i's neighbour becomes q (BEAM: none), at dR2 (its key). */
+function setNeighbour(i: i32, q: i32, dR2Bits: u64): void {
   unlinkPointer(i);
   if (q == BEAM) {
     setI32(jetNn, i, -1);
@@ -91,7 +93,6 @@ function setNeighbour(i: i32, q: i32, keyBits: u64, dR2Bits: u64): void {
     if (head >= 0) setI32(pointedPrev, head, i);
     setI32(pointedHead, q, i);
   }
-  setBitsAt(jetNnKey, i, keyBits);
   setBitsAt(jetNnDR2, i, dR2Bits);
   offerReach2 = max<f64>(offerReach2, reinterpret<f64>(dR2Bits));
 }
@@ -102,8 +103,7 @@ function setCandidate(i: i32): void {
   const s = getI32(jetSlot, i);
   const q = getI32(jetNn, i);
   if (q >= 0) {
-    const measure = (min<f64>(getF64(jetW, i), getF64(jetW, q)) * getF64(jetNnDR2, i)) * invR2;
-    setSlotCandidate(s, measure, min<i32>(i, q), max<i32>(i, q));
+    setSlotCandidate(s, getF64(jetNnDR2, i), min<i32>(i, q), max<i32>(i, q));
   } else {
     setEmptyCandidate(s);
   }
@@ -115,40 +115,33 @@ function searchNeighbour(i: i32): void {
   const p = getI32(jetPlace, i);
   const y = getF64(liveY, p);
   const phi = getF64(livePhi, p);
-  const w = getF64(jetW, i);
-  const scale = invR2;
   const count = liveCount;
   const ys = liveY;
   const phis = livePhi;
   const jets = liveJet;
   let bestJet = BEAM;
-  let bestKey = INFINITY_BITS;
   let bestDR2 = INFINITY_BITS;
   for (let q = p + 1; q < count; q++) {
     const yq = getF64(ys, q);
     const dy = y - yq;
-    if ((w * (dy * dy)) * scale > reinterpret<f64>(bestKey)) break;
+    if (dy * dy > reinterpret<f64>(bestDR2)) break;
     const j = getI32(jets, q);
-    const dR2 = pairDR2(y, phi, yq, getF64(phis, q));
-    const key = reinterpret<u64>((w * dR2) * scale);
-    const better = (key < bestKey) | ((key == bestKey) & (j < bestJet));
+    const dR2 = reinterpret<u64>(pairDR2(y, phi, yq, getF64(phis, q)));
+    const better = (dR2 < bestDR2) | ((dR2 == bestDR2) & (j < bestJet));
     bestJet = select<i32>(j, bestJet, better);
-    bestKey = select<u64>(key, bestKey, better);
-    bestDR2 = select<u64>(reinterpret<u64>(dR2), bestDR2, better);
+    bestDR2 = select<u64>(dR2, bestDR2, better);
   }
   for (let q = p - 1; q >= 0; q--) {
     const yq = getF64(ys, q);
     const dy = y - yq;
-    if ((w * (dy * dy)) * scale > reinterpret<f64>(bestKey)) break;
+    if (dy * dy > reinterpret<f64>(bestDR2)) break;
     const j = getI32(jets, q);
-    const dR2 = pairDR2(y, phi, yq, getF64(phis, q));
-    const key = reinterpret<u64>((w * dR2) * scale);
-    const better = (key < bestKey) | ((key == bestKey) & (j < bestJet));
+    const dR2 = reinterpret<u64>(pairDR2(y, phi, yq, getF64(phis, q)));
+    const better = (dR2 < bestDR2) | ((dR2 == bestDR2) & (j < bestJet));
     bestJet = select<i32>(j, bestJet, better);
-    bestKey = select<u64>(key, bestKey, better);
-    bestDR2 = select<u64>(reinterpret<u64>(dR2), bestDR2, better);
+    bestDR2 = select<u64>(dR2, bestDR2, better);
   }
-  setNeighbour(i, bestJet, bestKey, bestDR2);
+  setNeighbour(i, bestJet, bestDR2);
 }
 
 /** The jets whose neighbour was `gone` go onto the redo list. */
@@ -157,7 +150,7 @@ function collectLost(gone: i32): void {
 }
 
 /** The jets on the redo list search again, unless they took the step's new jet `k` in its
- * offers, strictly nearer by their key than the neighbour they lost: then every other jet came
+ * offers, strictly nearer than the neighbour they lost: then every other jet came
  * after it. */
 function searchLost(k: i32): void {
   for (let r = 0; r < lostCount; r++) {
@@ -220,8 +213,6 @@ function merge(i: i32): void {
   setI32(jetInto, a, k);
   setI32(jetInto, b, k);
   setI32(jetInto, k, -1);
-  const w = weightOf(getF64(jetKt2, k));
-  setF64(jetW, k, w);
   setI32(jetNn, k, -1);
   setI32(pointedHead, k, -1);
   // the new jet takes the smaller of its parents' slots; the other stays empty
@@ -247,37 +238,31 @@ function merge(i: i32): void {
   // one pass each way: k's own neighbour, and its offers to the jets within offerReach2
   const y = getF64(jetY, k);
   const phi = getF64(jetPhi, k);
-  const scale = invR2;
   const offerReach = offerReach2;
   const count = liveCount;
   let bestJet = BEAM;
-  let bestKey = INFINITY_BITS;
   let bestDR2 = INFINITY_BITS;
   for (let direction = 1; direction >= -1; direction -= 2) {
     for (let q = pk + direction; q >= 0 && q < count; q += direction) {
       const yq = getF64(liveY, q);
       const dy = y - yq;
       const dy2 = dy * dy;
-      if (dy2 > offerReach && (w * dy2) * scale > reinterpret<f64>(bestKey)) break;
+      if (dy2 > offerReach && dy2 > reinterpret<f64>(bestDR2)) break;
       const jq = getI32(liveJet, q);
-      const dR2 = pairDR2(y, phi, yq, getF64(livePhi, q));
-      const dR2Bits = reinterpret<u64>(dR2);
-      const key = reinterpret<u64>((w * dR2) * scale);
-      const better = (key < bestKey) | ((key == bestKey) & (jq < bestJet));
+      const dR2 = reinterpret<u64>(pairDR2(y, phi, yq, getF64(livePhi, q)));
+      const better = (dR2 < bestDR2) | ((dR2 == bestDR2) & (jq < bestJet));
       bestJet = select<i32>(jq, bestJet, better);
-      bestKey = select<u64>(key, bestKey, better);
-      bestDR2 = select<u64>(reinterpret<u64>(dR2), bestDR2, better);
-      // q's key to k against its neighbour's (for a lost one, the neighbour it lost); k has the
-      // largest index, so only a strictly smaller key counts
-      const keyOfQ = reinterpret<u64>((getF64(jetW, jq) * dR2) * scale);
-      if (keyOfQ < bitsAt(jetNnKey, jq)) {
-        setNeighbour(jq, k, keyOfQ, reinterpret<u64>(dR2));
+      bestDR2 = select<u64>(dR2, bestDR2, better);
+      // q's dR2 to k against its neighbour's (for a lost one, the neighbour it lost); k has the
+      // largest index, so only a strictly smaller one counts
+      if (dR2 < bitsAt(jetNnDR2, jq)) {
+        setNeighbour(jq, k, dR2);
         setCandidate(jq);
         updateTree(getI32(jetSlot, jq));
       }
     }
   }
-  setNeighbour(k, bestJet, bestKey, bestDR2);
+  setNeighbour(k, bestJet, bestDR2);
   setCandidate(k);
   updateTree(sk);
   searchLost(k);
@@ -305,7 +290,6 @@ export function pairCluster(n: i32): void {
   for (let t = 0; t < n; t++) {
     loadTower(t, getI32(evIndex, t), getF64(evEt, t));
     setI32(jetInto, t, -1);
-    setF64(jetW, t, weightOf(getF64(jetKt2, t)));
     setI32(jetNn, t, -1);
     setI32(pointedHead, t, -1);
     setI32(jetSlot, t, t);
