@@ -31,7 +31,7 @@
 //            nodeTowers nodeParentA nodeParentB i32[2C]   (per jet of one re-clustering: its
 //            towers, and the two jets a merge made it from, -1 for a tower)
 //            (groom-pairs.ts, per jet of one re-clustering:) jetNn jetSlot jetPlace pointedHead
-//            pointedNext pointedPrev i32[2C]  jetW jetNnDR2 jetNnKey f64[2C]
+//            pointedNext pointedPrev i32[2C]  jetNnDR2 f64[2C]
 //            (per slot:) slotJet i32[C]  (the live jets' table, by position:) liveJet i32[C]
 //            liveY livePhi f64[C]
 //   offsets  offDr offDc i32[O]  offDist f64[O]  offPerm offScratch offTmpI i32[O]  offTmpF f64[O]
@@ -158,9 +158,7 @@ export let nodeParentA: usize = 0;
 export let nodeParentB: usize = 0;
 export let jetNn: usize = 0;
 export let jetSlot: usize = 0;
-export let jetW: usize = 0;
 export let jetNnDR2: usize = 0;
-export let jetNnKey: usize = 0;
 export let slotJet: usize = 0;
 export let liveJet: usize = 0;
 export let liveY: usize = 0;
@@ -320,9 +318,7 @@ export function reserve(etaCount: i32, phiCount: i32, towerCapacity: i32, eventC
   nodeParentB = take(jets << 2);
   jetNn = take(jets << 2);
   jetSlot = take(jets << 2);
-  jetW = take(jets << 3);
   jetNnDR2 = take(jets << 3);
-  jetNnKey = take(jets << 3);
   slotJet = take(cells << 2);
   liveJet = take(cells << 2);
   liveY = take(cells << 3);
