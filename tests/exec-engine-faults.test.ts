@@ -82,6 +82,20 @@ describe('an engine program', () => {
     countsAddUp(engine);
   });
 
+  it('that writes a lot to stderr is not held up by it, and its last lines are still quoted', async () => {
+    // 1 MiB per event is more than a pipe or a socket holds: the program must not wait for
+    // jetlag to read it while jetlag waits for its answer
+    const { options: o, faults } = options('chatty', 6, { timeoutMs: 3000 });
+    const engine = await ExecEngine.start(o);
+    const outcomes = await runEvents(engine, 8);
+    expect(failedEvents(outcomes)).toEqual([6]);
+    expect(faults).toHaveLength(1);
+    expect(faults[0]).toContain('exec:faulty-engine chatty, event 6: exited with status 3');
+    expect(faults[0]).toContain('"faulty-engine: giving up on event 6"');
+    expect(engine.counts).toMatchObject({ sent: 8, answered: 7, exited: 1, timedOut: 0, restarts: 1 });
+    countsAddUp(engine);
+  });
+
   it('that hangs on event 5 is killed after the timeout, that event failed as timed out', async () => {
     const { options: o, faults } = options('hang', 5, { timeoutMs: 1500 });
     const engine = await ExecEngine.start(o);

@@ -130,8 +130,8 @@ export class ExecEngine {
 
   /**
    * Writes the event and, when the window is full (always, with one event in flight), waits
-   * for the oldest answer in a blocking read; then lets the event loop run once, for the
-   * program's stderr and exit status, outside the round trip.
+   * for the oldest answer in a blocking read; a fault is settled (its exit status awaited)
+   * before the outcome resolves.
    */
   async submit(event: number, towerIndex: Int32Array, towerEt: Float64Array): Promise<ExecOutcome> {
     const record = encodeStreamEvent(event, towerIndex, towerEt, this.options.settings.threshold);
@@ -147,7 +147,6 @@ export class ExecEngine {
     if (running.send(event, record) && running.inFlight >= this.maxInFlight) running.receive();
     if (!running.alive) await running.settled();
     else if (running.inFlight > 0) this.schedulePump();
-    await new Promise<void>((resolve) => setImmediate(resolve));
     return outcome;
   }
 

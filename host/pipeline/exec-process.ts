@@ -1,6 +1,7 @@
 // One running instance of an outside clustering program (exec-engine.ts restarts them): the
 // child process, its stdin (event stream out) and stdout (jets stream in, cut by the project's
-// record framer under the record cap) on blocking pipes (exec-fifo.ts), and its stderr's tail.
+// record framer under the record cap) on blocking pipes (exec-fifo.ts), and its stderr in a file
+// (exec-stderr.ts) for the tail that fault lines quote.
 //
 //   start()                   spawns, writes the stream header, waits for the program's jets
 //                             header (the handshake keeps start-up out of the first event's
@@ -8,15 +9,16 @@
 //   send(event, recordBytes)  writes one event with a blocking write
 //   receive()                 waits in a blocking read until the next answer is in (the
 //                             `answered` callback, in the order sent) or the instance faults
-//   settled()                 a fault's completion: exit status and stderr are read on the
-//                             event loop, then the `faulted` callback
+//   settled()                 a fault's completion: the exit status is awaited on the event
+//                             loop, then the `faulted` callback
 //   stop(graceMs)             ends stdin, waits for the program to exit, kills it after graceMs
 //
 // Why blocking: while its event is out the worker has nothing else to do, and a read that
 // returns the moment the answer's last byte is in costs less than a wake-up of the event loop
 // (README, "Timing your own program"). A blocking read cannot time out, so a watchdog thread
-// (exec-watchdog.ts) kills the program at the deadline and wakes the read; stderr and the exit
-// status stay on the event loop, which runs between events (exec-engine.ts yields to it).
+// (exec-watchdog.ts) kills the program at the deadline and wakes the read; stderr goes to a
+// file, which never needs reading while the worker waits; only a fault's exit status is awaited
+// on the event loop.
 //
 // Faults end the instance: every event in flight fails with the fault's line, the process is
 // killed, and nothing it writes afterwards is read. Kinds: 'exited' (exit, crash, closed
@@ -32,6 +34,7 @@ import { readSync, writeSync } from 'node:fs';
 import { RecordFramer } from '../input/record-framer.js';
 import { checkProgramHeader, readProgramAnswer } from './exec-stream.js';
 import { closeChildEnds, closeJetlagEnds, openProgramPipes, type ProgramPipes } from './exec-fifo.js';
+import { StderrFile } from './exec-stderr.js';
 import type { Watchdog } from './exec-watchdog.js';
 import type { DecodedJets } from '../formats/jets-codec.js';
 import type { ClusterSettings, Grid } from '../types.js';
@@ -67,8 +70,7 @@ export interface ProcessSettings {
   maxRecordBytes: number;
 }
 
-/** stderr kept for fault lines: the last bytes, then the last lines of those */
-const STDERR_TAIL_BYTES = 4096;
+/** stderr lines quoted in a fault line, from the file's last bytes */
 const STDERR_TAIL_LINES = 3;
 /** after stdout closes, how long to wait for the exit status before killing */
 const EXIT_STATUS_WAIT_MS = 1000;
@@ -82,12 +84,11 @@ export class ProgramProcess {
   private readonly pipes: ProgramPipes;
   private readonly framer: RecordFramer;
   private readonly chunk = Buffer.allocUnsafe(READ_CHUNK_BYTES);
-  private stderrTail: Buffer = Buffer.alloc(0);
+  private readonly stderr = new StderrFile();
   private headerSeen = false;
   /** faulted or stopped: nothing more is read, nothing more fails */
   private ended = false;
   private settling: Promise<ProcessFault | null> = Promise.resolve(null);
-  private stderrEnded = false;
   private exitStatus: { code: number | null; signal: NodeJS.Signals | null } | null = null;
   private exitWaiters: (() => void)[] = [];
   private spawnWaiter: (() => void) | null = null;
@@ -104,7 +105,7 @@ export class ProgramProcess {
     this.pipes = openProgramPipes();
     try {
       this.child = spawn(config.argv[0], config.argv.slice(1), {
-        stdio: [this.pipes.childStdin, this.pipes.childStdout, 'pipe'],
+        stdio: [this.pipes.childStdin, this.pipes.childStdout, this.stderr.fd],
         env: config.env ? { ...process.env, ...config.env } : process.env,
       });
     } finally {
@@ -117,11 +118,6 @@ export class ProgramProcess {
     this.child.on('exit', (code, signal) => {
       this.exitStatus = { code, signal };
       for (const wake of this.exitWaiters.splice(0)) wake();
-    });
-    this.child.stderr?.on('end', () => { this.stderrEnded = true; });
-    this.child.stderr?.on('data', (chunk: Buffer) => {
-      const joined = Buffer.concat([this.stderrTail, chunk]);
-      this.stderrTail = joined.length > STDERR_TAIL_BYTES ? joined.subarray(joined.length - STDERR_TAIL_BYTES) : joined;
     });
   }
 
@@ -139,6 +135,7 @@ export class ProgramProcess {
       if (this.spawnError === null) await new Promise<void>((resolve) => { this.spawnWaiter = resolve; });
       this.ended = true;
       closeJetlagEnds(this.pipes);
+      this.stderr.close();
       return { kind: 'exited', line: `${this.config.label}: cannot start: ${this.spawnError!.message}`, event: null };
     }
     this.watchdog.arm(this.child.pid, this.pipes.answersIn, BigInt(now()) + BigInt(this.config.startTimeoutMs) * 1_000_000n);
@@ -182,6 +179,7 @@ export class ProgramProcess {
     this.watchdog.disarm();
     closeJetlagEnds(this.pipes);
     if (!(await this.waitForExit(graceMs))) this.kill();
+    this.stderr.close();
   }
 
   private writeWhole(bytes: Uint8Array): boolean {
@@ -253,6 +251,7 @@ export class ProgramProcess {
       const sinceNs = Math.max(arrivedNs, this.inFlightWrittenNs[this.inFlightHead]);
       this.watchdog.arm(this.child.pid!, this.pipes.answersIn, BigInt(Math.round(sinceNs)) + BigInt(this.config.timeoutMs) * 1_000_000n);
     }
+    this.stderr.trim();
     this.handlers.answered(due, result.answer, arrivedNs - writtenNs);
   }
 
@@ -264,7 +263,7 @@ export class ProgramProcess {
   /**
    * Ends this instance once: the events in flight are taken now, the line is completed on the
    * event loop, then reported. `closed`: the program closed its output or its input, so the
-   * line waits for its exit status and the rest of its stderr (`detail` then follows the exit).
+   * line waits for its exit status and quotes its stderr's last lines (`detail` then follows the exit).
    * The watchdog is disarmed (or has fired) before any fault, so the answers fd may close.
    */
   private fault(kind: FaultKind, event: number | null, detail: string, closed: 'output' | 'input' | null): void {
@@ -281,10 +280,9 @@ export class ProgramProcess {
     this.settling = (async () => {
       let line = `${where}: ${detail}`;
       if (closed !== null) {
-        // stdout (or stdin) closed first; the exit status and the rest of stderr follow, or the
-        // program keeps running without them, and is killed
+        // stdout (or stdin) closed first; the exit status follows, or the program keeps
+        // running without it, and is killed
         const exited = await this.waitForExit(EXIT_STATUS_WAIT_MS);
-        if (exited) await this.waitForStderr(EXIT_STATUS_WAIT_MS);
         const how = exited ? describeExit(this.exitStatus!) : `closed its ${closed} and was killed`;
         line = `${where}: ${how}${detail}${this.stderrText()}`;
         this.kill();
@@ -303,21 +301,16 @@ export class ProgramProcess {
     });
   }
 
-  private async waitForStderr(ms: number): Promise<void> {
-    const deadline = Date.now() + ms;
-    while (!this.stderrEnded && Date.now() < deadline) await new Promise((resolve) => setTimeout(resolve, 5));
-  }
-
   private stderrText(): string {
-    const lines = this.stderrTail.toString('utf8').split(/\r?\n/).map((line) => line.trim()).filter((line) => line !== '');
+    const lines = this.stderr.tail().toString('utf8').split(/\r?\n/).map((line) => line.trim()).filter((line) => line !== '');
     if (lines.length === 0) return '';
     return `; its stderr ended: ${lines.slice(-STDERR_TAIL_LINES).map((line) => JSON.stringify(line)).join(' | ')}`;
   }
 
   private kill(): void {
     if (this.exitStatus === null && this.child.exitCode === null && this.child.pid !== undefined) this.child.kill('SIGKILL');
-    this.child.stderr?.destroy();
     closeJetlagEnds(this.pipes);
+    this.stderr.close();
   }
 }
 
