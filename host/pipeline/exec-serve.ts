@@ -1,8 +1,8 @@
 // An open-loop worker whose engine is a program (`run --engine exec:… --rate|--poisson`): it
 // serves the event ring as open-loop-serve.ts does (claim when idle, read before the event is
 // due, wait for its arrival, then run it), but each event's run is the program's answer: the
-// worker writes the event and waits for the answer in a blocking read (exec-process.ts), then
-// lets its event loop run once (the program's stderr and exit status are read there).
+// worker writes the event and waits for the answer in a blocking read (exec-process.ts); its
+// event loop is needed only to settle a fault (the program's exit status).
 
 import { readBatch } from './cluster-batch.js';
 import { execWorkerOf, finishExecBatch } from './exec-batch.js';
