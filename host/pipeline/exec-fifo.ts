@@ -44,7 +44,11 @@ export function openProgramPipes(): ProgramPipes {
   try {
     const eventsPath = join(dir, 'events');
     const answersPath = join(dir, 'answers');
-    execFileSync('mkfifo', ['-m', '600', eventsPath, answersPath], { stdio: ['ignore', 'ignore', 'pipe'] });
+    try {
+      execFileSync('mkfifo', ['-m', '600', eventsPath, answersPath], { stdio: ['ignore', 'ignore', 'pipe'] });
+    } catch (error) {
+      throw new Error(`cannot make the engine program's pipes with mkfifo: ${(error as Error).message.split('\n')[0]}`);
+    }
     const events = openBothEnds(eventsPath);
     const answers = openBothEnds(answersPath);
     return { eventsOut: events.writing, childStdin: events.reading, answersIn: answers.reading, childStdout: answers.writing };
