@@ -120,7 +120,12 @@ export class ExecEngine {
 
   static async start(options: ExecEngineOptions): Promise<ExecEngine> {
     const engine = new ExecEngine(options);
-    await engine.ensureProcess(true);
+    try {
+      await engine.ensureProcess(true);
+    } catch (error) {
+      engine.watchdog.close();
+      throw error;
+    }
     return engine;
   }
 
