@@ -28,8 +28,8 @@
 import { evIndex, evEt, jetY, jetPhi, jetInto, jetNn, jetNnDR2, jetSlot, slotJet, redo, liveJet,
   liveY, livePhi, jetPlace, pointedHead, pointedNext, pointedPrev, getF64, setF64, getI32,
   setI32 } from './layout';
-import { BEAM, PI, TWO_PI } from './settings';
-import { loadTower, mergeJets } from './kinematics';
+import { BEAM } from './settings';
+import { loadTower, mergeJets, deltaR2 } from './kinematics';
 import { startTree, buildTree, updateTree, treeWinner, isBeamCandidate,
   setCandidate as setSlotCandidate, setEmptyCandidate } from './tournament';
 
@@ -56,17 +56,6 @@ let offerReach2: f64 = Infinity;
 // @ts-ignore: decorator
 @inline function setBitsAt(base: usize, j: i32, bits: u64): void {
   store<u64>(base + (<usize>j << 3), bits);
-}
-
-/** kinematics.ts deltaR2, the same operations, with the seam's choice made on the doubles' bits:
- * V8 turns a select of doubles into a branch, which jets across the phi seam mispredict. */
-// @ts-ignore: decorator
-@inline function pairDR2(y1: f64, phi1: f64, y2: f64, phi2: f64): f64 {
-  const dphi = abs<f64>(phi1 - phi2);
-  const wrapped = TWO_PI - dphi;
-  const d = reinterpret<f64>(select<u64>(reinterpret<u64>(wrapped), reinterpret<u64>(dphi), dphi > PI));
-  const dy = y1 - y2;
-  return dy * dy + d * d;
 }
 
 /** Jet i leaves the list of its neighbour's pointers. */
@@ -126,7 +115,7 @@ function searchNeighbour(i: i32): void {
     const dy = y - yq;
     if (dy * dy > reinterpret<f64>(bestDR2)) break;
     const j = getI32(jets, q);
-    const dR2 = reinterpret<u64>(pairDR2(y, phi, yq, getF64(phis, q)));
+    const dR2 = reinterpret<u64>(deltaR2(y, phi, yq, getF64(phis, q)));
     const better = (dR2 < bestDR2) | ((dR2 == bestDR2) & (j < bestJet));
     bestJet = select<i32>(j, bestJet, better);
     bestDR2 = select<u64>(dR2, bestDR2, better);
@@ -136,7 +125,7 @@ function searchNeighbour(i: i32): void {
     const dy = y - yq;
     if (dy * dy > reinterpret<f64>(bestDR2)) break;
     const j = getI32(jets, q);
-    const dR2 = reinterpret<u64>(pairDR2(y, phi, yq, getF64(phis, q)));
+    const dR2 = reinterpret<u64>(deltaR2(y, phi, yq, getF64(phis, q)));
     const better = (dR2 < bestDR2) | ((dR2 == bestDR2) & (j < bestJet));
     bestJet = select<i32>(j, bestJet, better);
     bestDR2 = select<u64>(dR2, bestDR2, better);
@@ -249,7 +238,7 @@ function merge(i: i32): void {
       const dy2 = dy * dy;
       if (dy2 > offerReach && dy2 > reinterpret<f64>(bestDR2)) break;
       const jq = getI32(liveJet, q);
-      const dR2 = reinterpret<u64>(pairDR2(y, phi, yq, getF64(livePhi, q)));
+      const dR2 = reinterpret<u64>(deltaR2(y, phi, yq, getF64(livePhi, q)));
       const better = (dR2 < bestDR2) | ((dR2 == bestDR2) & (jq < bestJet));
       bestJet = select<i32>(jq, bestJet, better);
       bestDR2 = select<u64>(dR2, bestDR2, better);

@@ -1,9 +1,13 @@
 // Two builds of the engine's groomers against each other and against the reference, in one
 // process, on the events of bench/grooming.bench.ts (toy pileup-200 events with 2 invented
 // boosted objects each, fictional Halden ring; invented data; anti-kt R = 1.0 jets above ptMin).
-// Every event is groomed by A, B and the reference in turn, each call timed on its own; a
-// figure is the mean over events of each event's median over rounds, as in grooming.bench.ts.
-// The machine's speed wanders by up to 1.6x over a minute, so only figures of one run compare.
+// Every event is groomed by the reference and A, then by the reference and B (B first in odd
+// rounds), each call timed on its own: each engine call comes right after a reference call, as
+// in grooming.bench.ts, where that costs the engine about a third more than a call after another
+// engine call would (the reference's allocations push the engine's memory out of the caches), so
+// a fixed order of A and B would favour the second. A figure is the mean over events of each
+// event's median over rounds, as in grooming.bench.ts. The machine's speed wanders by up to 1.6x
+// over a minute, so only figures of one run compare.
 //
 //   node dist/bench/grooming-pair.bench.js A.wasm B.wasm [--ptmin 200] [--rounds 20]
 //
@@ -60,14 +64,18 @@ for (const [name, grooming] of GROOMERS) {
     new ReferenceGroomer(DEFAULT_GRID, grooming, RADIUS),
   ];
   const times = groomers.map(() => events.map((): number[] => []));
+  const timeCall = (g: number, k: number, round: number): void => {
+    const began = performance.now();
+    groomers[g].groom(clustered[k], events[k].towerIndex, events[k].towerEt);
+    const us = (performance.now() - began) * 1000;
+    if (round >= 0) times[g][k].push(us);
+  };
   // three rounds of warm-up, so the JIT has compiled the hot code of each before timing
   for (let round = -3; round < rounds; round++) {
     for (let k = 0; k < events.length; k++) {
-      for (let g = 0; g < groomers.length; g++) {
-        const began = performance.now();
-        groomers[g].groom(clustered[k], events[k].towerIndex, events[k].towerEt);
-        const us = (performance.now() - began) * 1000;
-        if (round >= 0) times[g][k].push(us);
+      for (let n = 0; n < 2; n++) {
+        timeCall(2, k, round);
+        timeCall((n + round + 3) % 2, k, round);
       }
     }
   }
