@@ -79,8 +79,8 @@ export function groomBatch(count: i32): void {
     if (n <= 0) continue;
     if (groomMode == GROOM_TRIM) {
       // the event grid's own sequence: at R = RSUB its searches stay short; the live-jet table
-      // with beams added (groom-pairs.ts) took 1.03-1.07 times as long in paired runs
-      // (bench/grooming-pair.bench.ts), so it serves soft drop only
+      // with beams added (groom-pairs.ts) took 1.03-1.07 times as long, even as the second of a
+      // fixed pair (bench/grooming-pair.bench.ts), the place that favours, so it serves soft drop
       clusterTowers(n);
       trim(e, n);
     } else if (groomMode == GROOM_SOFT_DROP) {
