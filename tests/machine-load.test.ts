@@ -23,17 +23,19 @@ describe('the machine as measured', () => {
     expect(load.busyReason).toBe('the process got 2.00 s of CPU for 3.80 s its workers spent on events');
   });
 
-  it('is busy when the workers waited for a CPU more than a tenth of their time on events', () => {
-    expect(judgeMachineLoad({ ...quiet, workerCpuWaitSeconds: 0.3 }).busy).toBe(false);
-    const load = judgeMachineLoad({ ...quiet, workerCpuWaitSeconds: 0.5 });
+  it('is busy when the serving threads waited for a CPU more than a tenth of their time serving', () => {
+    expect(judgeMachineLoad({ ...quiet, workerCpuWaitSeconds: 0.3, workerServeSeconds: 4 }).busy).toBe(false);
+    const load = judgeMachineLoad({ ...quiet, workerCpuWaitSeconds: 0.5, workerServeSeconds: 4 });
     expect(load.busy).toBe(true);
-    expect(load.busyReason).toBe('the workers waited 0.50 s for a CPU against 3.80 s on events');
+    expect(load.busyReason).toBe('the workers waited 0.50 s for a CPU in 4.00 s of serving');
   });
 
   it('of shards adds the workers\' wait for a CPU when both measured it', () => {
-    const both = combineMachineLoads(judgeMachineLoad({ ...quiet, workerCpuWaitSeconds: 0.1 }), judgeMachineLoad({ ...quiet, workerCpuWaitSeconds: 0.2 }));
+    const waited = (seconds: number) => judgeMachineLoad({ ...quiet, workerCpuWaitSeconds: seconds, workerServeSeconds: 4 });
+    const both = combineMachineLoads(waited(0.1), waited(0.2));
     expect(both.workerCpuWaitSeconds).toBeCloseTo(0.3, 9);
-    expect(combineMachineLoads(judgeMachineLoad({ ...quiet, workerCpuWaitSeconds: 0.1 }), judgeMachineLoad(quiet)).workerCpuWaitSeconds).toBeUndefined();
+    expect(both.workerServeSeconds).toBe(8);
+    expect(combineMachineLoads(waited(0.1), judgeMachineLoad(quiet)).workerCpuWaitSeconds).toBeUndefined();
   });
 
   it('of shards is busy when one shard was', () => {

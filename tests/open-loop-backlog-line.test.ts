@@ -3,7 +3,7 @@
 // line's rise, which a steady ramp knows in advance.
 
 import { describe, expect, it } from 'vitest';
-import { RisingLine } from '../host/pipeline/open-loop-feed.js';
+import { RisingLine } from '../host/measure/rising-line.js';
 
 describe('RisingLine', () => {
   it('gives the rise of a ramp of three million values to a millionth of it', () => {

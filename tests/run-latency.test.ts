@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { LatencyRecorder } from '../host/measure/latency.js';
 import { ArrivalSchedule } from '../host/pipeline/arrivals.js';
-import { fittedRise } from '../host/pipeline/open-loop-feed.js';
+import { fittedRise } from '../host/measure/rising-line.js';
 import { makeRandom } from '../host/random.js';
 
 /** skewed latencies of the shape clustering times have: a body and a long tail */

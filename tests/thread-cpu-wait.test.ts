@@ -8,6 +8,8 @@ import { availableParallelism } from 'node:os';
 import { join } from 'node:path';
 import { parseRunQueueWaitNs, ThreadCpuWait } from '../host/measure/thread-cpu-wait.js';
 import { runEvents } from '../host/pipeline/run.js';
+import { RunTally } from '../host/measure/run-tally.js';
+import { harnessFigures } from '../host/measure/harness-figures.js';
 import { formatReport } from '../host/measure/report.js';
 import { toyEvents, writeEventFile } from './support/run-files.js';
 import { tempDirForSuite } from './support/temp-dir.js';
@@ -59,6 +61,34 @@ describe('the calling thread\'s wait', () => {
   });
 });
 
+describe('the threads\' wait for a CPU of shards merged', () => {
+  function shard(workersNs: number, mainNs: number, delayedEvents: number[]): RunTally {
+    const tally = new RunTally();
+    tally.recordThreadCpuWait(workersNs, mainNs, 2);
+    for (const waitNs of delayedEvents) tally.recordHarnessOverhead(100_000, waitNs);
+    return tally;
+  }
+
+  it('adds the totals of shards that all have them', () => {
+    const merged = new RunTally();
+    merged.merge(shard(3e6, 1e6, [0]));
+    merged.merge(shard(5e6, 2e6, [50_000]));
+    expect(harnessFigures(merged, true).cpuWait).toMatchObject({ workersMs: 8, mainMs: 3, servingThreads: 4 });
+  });
+
+  it('leaves the totals unknown when one shard lacks its figure, and keeps the per-event counts', () => {
+    const merged = new RunTally();
+    merged.merge(shard(3e6, 1e6, [0, 50_000]));
+    merged.merge(shard(-1, 2e6, [50_000, 0, 0]));
+    merged.merge(shard(5e6, 2e6, []));
+    const cpuWait = harnessFigures(merged, true).cpuWait!;
+    expect(cpuWait.workersMs).toBeNull();
+    expect(cpuWait.mainMs).toBeNull();
+    expect(cpuWait.perEvent).toMatchObject({ events: 5, delayed: 2 });
+    expect(cpuWait.perEvent!.overheadUndelayed.count).toBe(3);
+  });
+});
+
 describe.runIf(process.platform === 'linux')('an open loop on a machine kept busy', () => {
   const faultWorker = join(__dirname, '..', 'dist', 'tests', 'support', 'fault-worker.js');
   const file = writeEventFile(join(dir, 'toy.events'), toyEvents(40, 31, 2));
@@ -78,7 +108,8 @@ describe.runIf(process.platform === 'linux')('an open loop on a machine kept bus
   it('charges the time its threads waited for a CPU to the run, and with --cpu-wait-per-event to each event, and the counts add up', async () => {
     // twice as many busy processes as cores: every runnable thread of the run waits its turn
     for (let k = 0; k < 2 * availableParallelism(); k++) {
-      spinners.push(spawn(process.execPath, ['-e', 'for (;;) {}'], { stdio: 'ignore' }));
+      // each stops by itself after 20 s, should the test be cut off before afterEach
+      spinners.push(spawn(process.execPath, ['-e', 'const end = Date.now() + 20000; while (Date.now() < end) {}'], { stdio: 'ignore' }));
     }
     stubBefore = process.env.JETLAG_TEST_STUB_US;
     // 3 ms of spinning per event, one due every 10 ms: a thread sharing a core with two
@@ -98,7 +129,7 @@ describe.runIf(process.platform === 'linux')('an open loop on a machine kept bus
     expect(perEvent.delayed).toBeGreaterThan(0);
     expect(perEvent.wait.max_us).toBeGreaterThan(perEvent.delayedOverUs);
     // an event's share is part of its thread's whole
-    expect(perEvent.wait.max_us! / 1e3).toBeLessThanOrEqual(cpuWait.workersMs + cpuWait.mainMs);
+    expect(perEvent.wait.max_us! / 1e3).toBeLessThanOrEqual(cpuWait.workersMs! + cpuWait.mainMs!);
     expect(perEvent.overheadUndelayed.count + perEvent.delayed).toBe(40);
     expect(summary.harness.overhead!.count).toBe(40);
     const report = formatReport(summary);

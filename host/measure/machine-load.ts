@@ -16,8 +16,12 @@ export interface MachineLoad {
   wallSeconds: number;
   /** wall time the workers spent on events, summed over events (every stage, in the worker) */
   workerBusySeconds: number;
-  /** open loop on Linux: the serving threads' time ready to run while another thread held the core, summed (thread-cpu-wait.ts) */
+  /**
+   * open loop on Linux: the serving threads' time ready to run while another thread held the
+   * core, summed (thread-cpu-wait.ts), and their time serving (threads × the run's wall time)
+   */
   workerCpuWaitSeconds?: number;
+  workerServeSeconds?: number;
   busy: boolean;
   /** why the machine counts as busy, in words; null when it does not */
   busyReason: string | null;
@@ -29,7 +33,7 @@ export interface MachineLoad {
  * good part of their events.
  */
 export const BUSY_CPU_SHARE = 0.8;
-/** Workers that waited for a CPU longer than this share of their time on events were kept off the cores. */
+/** Serving threads that waited for a CPU longer than this share of their time serving were kept off the cores. */
 export const BUSY_WAIT_SHARE = 0.1;
 
 function coresOf(): number {
@@ -44,9 +48,9 @@ export class MachineLoadProbe {
 
   /**
    * workerBusyNs: the workers' wall time on events, summed (from the run's stage times);
-   * workerCpuWaitNs: their wait for a CPU, when measured
+   * cpuWait: the serving threads' wait for a CPU and their number, when measured
    */
-  finish(workerBusyNs: number, workerCpuWaitNs?: number): MachineLoad {
+  finish(workerBusyNs: number, cpuWait?: { workersNs: number; servingThreads: number }): MachineLoad {
     const cpu = process.cpuUsage(this.cpuStart);
     const wallSeconds = Number(process.hrtime.bigint() - this.wallStartNs) / 1e9;
     return judgeMachineLoad({
@@ -56,7 +60,7 @@ export class MachineLoadProbe {
       cpuSeconds: (cpu.user + cpu.system) / 1e6,
       wallSeconds,
       workerBusySeconds: workerBusyNs / 1e9,
-      ...(workerCpuWaitNs === undefined ? {} : { workerCpuWaitSeconds: workerCpuWaitNs / 1e9 }),
+      ...(cpuWait === undefined ? {} : { workerCpuWaitSeconds: cpuWait.workersNs / 1e9, workerServeSeconds: cpuWait.servingThreads * wallSeconds }),
     });
   }
 }
@@ -72,7 +76,7 @@ function round(value: number, digits: number): number {
  * over its wall time; that much is taken off before comparing with the cores.
  */
 export function judgeMachineLoad(measured: Omit<MachineLoad, 'busy' | 'busyReason'>): MachineLoad {
-  const { cores, loadAverageStart, loadAverageEnd, cpuSeconds, wallSeconds, workerBusySeconds, workerCpuWaitSeconds } = measured;
+  const { cores, loadAverageStart, loadAverageEnd, cpuSeconds, wallSeconds, workerBusySeconds, workerCpuWaitSeconds, workerServeSeconds } = measured;
   const ownThreads = wallSeconds > 0 ? cpuSeconds / wallSeconds : 0;
   const othersAtEnd = loadAverageEnd - ownThreads;
   const reasons: string[] = [];
@@ -81,8 +85,8 @@ export function judgeMachineLoad(measured: Omit<MachineLoad, 'busy' | 'busyReaso
   if (workerBusySeconds > 0 && cpuSeconds < BUSY_CPU_SHARE * workerBusySeconds) {
     reasons.push(`the process got ${cpuSeconds.toFixed(2)} s of CPU for ${workerBusySeconds.toFixed(2)} s its workers spent on events`);
   }
-  if (workerCpuWaitSeconds !== undefined && workerBusySeconds > 0 && workerCpuWaitSeconds > BUSY_WAIT_SHARE * workerBusySeconds) {
-    reasons.push(`the workers waited ${workerCpuWaitSeconds.toFixed(2)} s for a CPU against ${workerBusySeconds.toFixed(2)} s on events`);
+  if (workerCpuWaitSeconds !== undefined && workerServeSeconds !== undefined && workerServeSeconds > 0 && workerCpuWaitSeconds > BUSY_WAIT_SHARE * workerServeSeconds) {
+    reasons.push(`the workers waited ${workerCpuWaitSeconds.toFixed(2)} s for a CPU in ${workerServeSeconds.toFixed(2)} s of serving`);
   }
   return {
     cores,
@@ -91,7 +95,7 @@ export function judgeMachineLoad(measured: Omit<MachineLoad, 'busy' | 'busyReaso
     cpuSeconds: round(cpuSeconds, 3),
     wallSeconds: round(wallSeconds, 3),
     workerBusySeconds: round(workerBusySeconds, 3),
-    ...(workerCpuWaitSeconds === undefined ? {} : { workerCpuWaitSeconds: round(workerCpuWaitSeconds, 3) }),
+    ...(workerCpuWaitSeconds === undefined || workerServeSeconds === undefined ? {} : { workerCpuWaitSeconds: round(workerCpuWaitSeconds, 3), workerServeSeconds: round(workerServeSeconds, 3) }),
     busy: reasons.length > 0,
     busyReason: reasons.length > 0 ? reasons.join('; ') : null,
   };
@@ -107,8 +111,8 @@ export function combineMachineLoads(a: MachineLoad, b: MachineLoad): MachineLoad
     cpuSeconds: round(a.cpuSeconds + b.cpuSeconds, 3),
     wallSeconds: Math.max(a.wallSeconds, b.wallSeconds),
     workerBusySeconds: round(a.workerBusySeconds + b.workerBusySeconds, 3),
-    ...(a.workerCpuWaitSeconds !== undefined && b.workerCpuWaitSeconds !== undefined
-      ? { workerCpuWaitSeconds: round(a.workerCpuWaitSeconds + b.workerCpuWaitSeconds, 3) } : {}),
+    ...(a.workerCpuWaitSeconds !== undefined && b.workerCpuWaitSeconds !== undefined && a.workerServeSeconds !== undefined && b.workerServeSeconds !== undefined
+      ? { workerCpuWaitSeconds: round(a.workerCpuWaitSeconds + b.workerCpuWaitSeconds, 3), workerServeSeconds: round(a.workerServeSeconds + b.workerServeSeconds, 3) } : {}),
     busy: a.busy || b.busy,
     busyReason: reasons.length > 0 ? reasons.join('; ') : null,
   };

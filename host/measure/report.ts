@@ -5,6 +5,7 @@
 
 import type { LatencyStats } from './latency.js';
 import type { RunSummary } from './summary.js';
+import type { CpuWaitFigures } from './harness-figures.js';
 import { PILEUP_STAGES, type PileupStage } from './run-tally.js';
 
 /** the pileup chain's stages as the latency table names them (the HTML report's too) */
@@ -101,7 +102,7 @@ function latencyLines(summary: RunSummary): string[] {
     lines.push(`  ${''.padEnd(LABEL_WIDTH)}end-to-end = wait + service + return, per event, from its scheduled arrival to its result on the main thread;`);
     lines.push(`  ${''.padEnd(LABEL_WIDTH)}dispatch late: the harness handing events over after their scheduled time (part of wait)`);
     const cpuWait = summary.harness.cpuWait;
-    if (cpuWait) lines.push(...cpuWaitLines(cpuWait, summary.throughput.wallSeconds, summary.configuration.workers));
+    if (cpuWait) lines.push(...cpuWaitLines(cpuWait, summary.throughput.wallSeconds, summary.shards.length));
   } else {
     lines.push(`  ${''.padEnd(LABEL_WIDTH)}a closed loop measures capacity; latency under load needs an open loop (--rate or --poisson)`);
   }
@@ -112,19 +113,23 @@ function latencyLines(summary: RunSummary): string[] {
 }
 
 /** The threads' wait for a CPU over the run, and with per-event figures what their rows mean. */
-function cpuWaitLines(cpuWait: NonNullable<RunSummary['harness']['cpuWait']>, wallSeconds: number, workers: number): string[] {
+function cpuWaitLines(cpuWait: CpuWaitFigures, wallSeconds: number, shards: number): string[] {
   const pad = `  ${''.padEnd(LABEL_WIDTH)}`;
-  const perWorker = wallSeconds > 0 && workers > 0 ? ` (${((100 * cpuWait.workersMs) / (1e3 * wallSeconds * workers)).toFixed(1)} % of the run's wall time per worker)` : '';
-  const lines = [
-    `${pad}CPU wait: ready to run while another thread (the machine's other work, or this run's own) held the core,`,
-    `${pad}Linux run-queue time: workers ${grouped(cpuWait.workersMs)} ms in all${perWorker}, main thread ${grouped(cpuWait.mainMs)} ms`,
-  ];
+  const lines = [`${pad}CPU wait: ready to run while another thread (the machine's other work, or this run's own) held the core,`];
+  if (cpuWait.workersMs === null || cpuWait.mainMs === null || cpuWait.servingThreads === null) {
+    lines.push(`${pad}Linux run-queue time: the run's totals unknown (a thread or a shard could not give its figure)`);
+  } else {
+    // one run: its serving threads for its wall time; merged shards ran side by side, so no share is given
+    const share = shards === 1 && wallSeconds > 0 && cpuWait.servingThreads > 0
+      ? ` (${((100 * cpuWait.workersMs) / (1e3 * wallSeconds * cpuWait.servingThreads)).toFixed(1)} % of their time serving)` : '';
+    lines.push(`${pad}Linux run-queue time: workers ${grouped(cpuWait.workersMs)} ms in all${share}, main thread ${grouped(cpuWait.mainMs)} ms`);
+  }
   const perEvent = cpuWait.perEvent;
   if (perEvent) {
     const share = perEvent.events > 0 ? ((100 * perEvent.delayed) / perEvent.events).toFixed(1) : '0.0';
     lines.push(
-      `${pad}per event, on its worker's thread and the main thread: ${grouped(perEvent.delayed)} of ${grouped(perEvent.events)} events (${share} %) waited`,
-      `${pad}over ${perEvent.delayedOverUs} µs; "not delayed": end-to-end − service of the others (queueing behind a delayed event stays in)`,
+      `${pad}per event, on its worker's thread and the main thread: ${grouped(perEvent.delayed)} of ${grouped(perEvent.events)} events (${share} %) spent`,
+      `${pad}over ${perEvent.delayedOverUs} µs on a run queue; "not delayed": end-to-end − service of the others (queueing behind one that was stays in)`,
     );
   }
   return lines;

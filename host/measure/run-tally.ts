@@ -60,9 +60,10 @@ export interface Saturation {
 }
 
 /**
- * An event whose threads waited longer than this for a CPU counts as delayed by the machine.
- * A thread woken from a sleep waits a few µs on a run queue even on an idle machine: that
- * wake-up is part of the harness's cost, not the machine's (value chosen with bench:pool).
+ * With --cpu-wait-per-event, an event whose threads spent longer than this on a run queue counts
+ * as delayed. Not a line between the harness and the machine: on a virtual machine a thread
+ * woken onto a halted CPU waits tens of µs for it (bench:pool found over half the events past
+ * this), on a shared one milliseconds; the split shows how much of the tail goes with waits.
  */
 export const CPU_WAIT_DELAY_NS = 20_000;
 
@@ -92,14 +93,19 @@ export class RunTally {
   readonly dispatchLateness = new LatencyRecorder();
   /** open loop, per event: end-to-end minus service, what the harness and the machine added */
   readonly overhead = new LatencyRecorder();
-  /** ... of the events that did not wait for a CPU (cpuWait at most CPU_WAIT_DELAY_NS): the harness's own share */
+  /** ... of the events whose threads spent at most CPU_WAIT_DELAY_NS on a run queue */
   readonly overheadUndelayed = new LatencyRecorder();
   /** open loop, per event where measured: ns its worker's and the main thread waited for a CPU while it was on them */
   readonly cpuWait = new LatencyRecorder();
   /** events whose cpuWait exceeded CPU_WAIT_DELAY_NS */
   cpuWaitDelayed = 0;
-  /** open loop, where the kernel keeps it: the serving threads' and the main thread's wait for a CPU over the run (ns) */
-  threadCpuWait: { workersNs: number; mainNs: number } | null = null;
+  /**
+   * open loop, where the kernel keeps it: the serving threads' and the main thread's wait for a
+   * CPU over the run (ns), and the serving threads' count; null when none was recorded, and
+   * when a part of the run (a thread, a shard) could not give its figure (threadCpuWaitUnknown)
+   */
+  threadCpuWait: { workersNs: number; mainNs: number; servingThreads: number } | null = null;
+  threadCpuWaitUnknown = false;
   /** towers that entered clustering, per clustered event (the main driver of service time) */
   readonly towersPerEvent = new LatencyRecorder();
   readonly stages: Record<Stage, LatencyRecorder> = {
@@ -165,9 +171,11 @@ export class RunTally {
     else this.overheadUndelayed.recordNs(overheadNs);
   }
 
-  /** Open loop, once at the end: the threads' wait for a CPU over the run (-1: unknown, nothing recorded). */
-  recordThreadCpuWait(workersNs: number, mainNs: number): void {
-    this.threadCpuWait = workersNs >= 0 && mainNs >= 0 ? { workersNs, mainNs } : null;
+  /** Open loop, once at the end: the threads' wait for a CPU over the run (-1: unknown). */
+  recordThreadCpuWait(workersNs: number, mainNs: number, servingThreads: number): void {
+    const known = workersNs >= 0 && mainNs >= 0;
+    this.threadCpuWait = known ? { workersNs, mainNs, servingThreads } : null;
+    this.threadCpuWaitUnknown = !known;
   }
 
   /** Open loop, per event handed to the pool: how late the harness was against its schedule. */
@@ -191,7 +199,8 @@ export class RunTally {
   recordMachineLoad(probe: MachineLoadProbe): void {
     let workerBusyNs = 0;
     for (const stage of STAGES) workerBusyNs += this.stages[stage].sumNs;
-    this.machineLoad = probe.finish(workerBusyNs, this.threadCpuWait?.workersNs);
+    const cpuWait = this.threadCpuWait;
+    this.machineLoad = probe.finish(workerBusyNs, cpuWait ? { workersNs: cpuWait.workersNs, servingThreads: cpuWait.servingThreads } : undefined);
   }
 
   addInvalid(entry: InvalidEvent): void {
@@ -243,9 +252,13 @@ export class RunTally {
     this.overheadUndelayed.merge(other.overheadUndelayed);
     this.cpuWait.merge(other.cpuWait);
     this.cpuWaitDelayed += other.cpuWaitDelayed;
-    if (other.threadCpuWait) {
-      const own = this.threadCpuWait ?? { workersNs: 0, mainNs: 0 };
-      this.threadCpuWait = { workersNs: own.workersNs + other.threadCpuWait.workersNs, mainNs: own.mainNs + other.threadCpuWait.mainNs };
+    // shards side by side: their threads' waits add; one shard without its figure leaves the sum unknown
+    this.threadCpuWaitUnknown ||= other.threadCpuWaitUnknown;
+    if (this.threadCpuWaitUnknown) this.threadCpuWait = null;
+    else if (other.threadCpuWait) {
+      const own = this.threadCpuWait ?? { workersNs: 0, mainNs: 0, servingThreads: 0 };
+      const theirs = other.threadCpuWait;
+      this.threadCpuWait = { workersNs: own.workersNs + theirs.workersNs, mainNs: own.mainNs + theirs.mainNs, servingThreads: own.servingThreads + theirs.servingThreads };
     }
     this.towersPerEvent.merge(other.towersPerEvent);
     for (const stage of STAGES) this.stages[stage].merge(other.stages[stage]);

@@ -5,6 +5,7 @@
 import { readFileSync } from 'node:fs';
 import { InputError } from '../errors.js';
 import { LatencyRecorder } from './latency.js';
+import { restoreHarnessFigures } from './harness-figures.js';
 import { toleranceFiguresOf } from './program-figures.js';
 import { PILEUP_STAGES, RunTally, STAGES, type PileupStage } from './run-tally.js';
 import { renderSummary, SUMMARY_VERSION, type MachineInfo, type RunConfiguration, type RunSummary } from './summary.js';
@@ -34,9 +35,7 @@ export function tallyFromSummary(summary: RunSummary, where = 'summary'): RunTal
   if (histograms.overhead) tally.overhead.merge(LatencyRecorder.decode(histograms.overhead, `${where}: histograms.overhead`));
   if (histograms.cpuWait) tally.cpuWait.merge(LatencyRecorder.decode(histograms.cpuWait, `${where}: histograms.cpuWait`));
   if (histograms.overheadUndelayed) tally.overheadUndelayed.merge(LatencyRecorder.decode(histograms.overheadUndelayed, `${where}: histograms.overheadUndelayed`));
-  const cpuWait = summary.harness.cpuWait;
-  tally.cpuWaitDelayed = cpuWait?.perEvent?.delayed ?? 0;
-  if (cpuWait) tally.threadCpuWait = { workersNs: cpuWait.workersMs * 1e6, mainNs: cpuWait.mainMs * 1e6 };
+  restoreHarnessFigures(tally, summary.harness, summary.configuration.arrival.mode !== 'closed');
   tally.towersPerEvent.merge(LatencyRecorder.decode(histograms.towersPerEvent, `${where}: histograms.towersPerEvent`));
   for (const stage of STAGES) {
     tally.stages[stage].merge(LatencyRecorder.decode(summary.histograms.stages[stage], `${where}: histograms.stages.${stage}`));

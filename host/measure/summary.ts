@@ -6,7 +6,8 @@
 import os from 'node:os';
 import { LatencyRecorder, type EncodedLatency, type LatencyStats } from './latency.js';
 import { fitScaling, scalingSamples, type Scaling } from './scaling-fit.js';
-import { CPU_WAIT_DELAY_NS, PILEUP_STAGES, STAGES, type PileupStage, type CheckedDifference, type FailedBatch, type InvalidEvent, type RunTally, type Saturation, type Stage } from './run-tally.js';
+import { harnessFigures, harnessHistograms, type HarnessFigures } from './harness-figures.js';
+import { PILEUP_STAGES, STAGES, type PileupStage, type CheckedDifference, type FailedBatch, type InvalidEvent, type RunTally, type Saturation, type Stage } from './run-tally.js';
 import type { MachineLoad } from './machine-load.js';
 import { summarizeTolerance, type FailedEvent, type ToleranceSummary } from './program-figures.js';
 import { plainHistograms, type PlainHistogram } from './plain-histogram.js';
@@ -118,26 +119,8 @@ export interface RunSummary {
     /** an engine program only: per answered event, round trip minus its own time (the pipe's and the codecs' cost) */
     pipe?: LatencyStats;
   };
-  /** the harness's own figures, apart from the events' */
-  harness: {
-    /** open loop: actual hand-over to the pool minus the scheduled time */
-    dispatchLateness: LatencyStats;
-    /** open loop, per event: end-to-end minus service (wait + return: what the harness and the machine added) */
-    overhead?: LatencyStats;
-    /**
-     * open loop, where the kernel keeps it (Linux; thread-cpu-wait.ts): how long the serving
-     * threads (summed) and the main thread were ready to run while another thread held the core,
-     * over the run; with `run --cpu-wait-per-event` also per event, on its worker's thread and
-     * the main thread while it was on them: `delayed` events waited more than `delayedOverUs`,
-     * `overheadUndelayed` is end-to-end minus service of the others (queueing behind a delayed
-     * event stays in it)
-     */
-    cpuWait?: {
-      workersMs: number;
-      mainMs: number;
-      perEvent?: { events: number; delayed: number; delayedOverUs: number; wait: LatencyStats; overheadUndelayed: LatencyStats };
-    };
-  };
+  /** the harness's own figures, apart from the events' (harness-figures.ts) */
+  harness: HarnessFigures;
   /** open loop: offered against sustained rate; null in a closed loop */
   saturation: Saturation | null;
   /** towers that entered clustering, per clustered event */
@@ -278,22 +261,7 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
       ...(tally.grooming.count > 0 ? { grooming: tally.grooming.stats() } : {}),
       ...(program ? { roundTrip: tally.roundTrip.stats(), pipe: tally.pipe.stats() } : {}),
     },
-    harness: {
-      dispatchLateness: openLoopStats(tally.dispatchLateness, openLoop),
-      ...(openLoop ? { overhead: tally.overhead.stats() } : {}),
-      ...(openLoop && tally.threadCpuWait ? {
-        cpuWait: {
-          workersMs: tally.threadCpuWait.workersNs / 1e6,
-          mainMs: tally.threadCpuWait.mainNs / 1e6,
-          ...(tally.cpuWait.count > 0 ? {
-            perEvent: {
-              events: tally.cpuWait.count, delayed: tally.cpuWaitDelayed, delayedOverUs: CPU_WAIT_DELAY_NS / 1e3,
-              wait: tally.cpuWait.stats(), overheadUndelayed: tally.overheadUndelayed.stats(),
-            },
-          } : {}),
-        },
-      } : {}),
-    },
+    harness: harnessFigures(tally, openLoop),
     saturation: openLoop ? tally.saturation : null,
     towersPerEvent: towersPerEventOf(towers),
     machineLoad: tally.machineLoad,
@@ -316,7 +284,7 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
       return: tally.returnTrip.encode(),
       endToEnd: tally.endToEnd.encode(),
       dispatchLateness: tally.dispatchLateness.encode(),
-      ...(openLoop ? { overhead: tally.overhead.encode(), cpuWait: tally.cpuWait.encode(), overheadUndelayed: tally.overheadUndelayed.encode() } : {}),
+      ...(openLoop ? harnessHistograms(tally) : {}),
       towersPerEvent: towers.encode(),
       stages: stagesEncoded,
       ...(chainRan ? { pileupStages: chainEncoded } : {}),

@@ -1,9 +1,10 @@
 // How long the calling thread has waited for a CPU: runnable, but another thread held the core.
 // Linux keeps it per thread in /proc/thread-self/schedstat, three numbers (time on a CPU,
 // time waiting on a run queue, time slices), in ns (the kernel's Documentation/scheduler/
-// sched-stats.rst, "/proc/<pid>/schedstat"). The open loop reads it per event in the worker
-// and per wake on the main thread, so a latency that grew because the machine gave the core
-// to something else says so (open-loop-serve.ts, open-loop-collect.ts).
+// sched-stats.rst, "/proc/<pid>/schedstat"). The open loop reads it for each serving thread
+// and the main thread at the start and end of the run, and with --cpu-wait-per-event also per
+// event in the worker and per wake on the main thread, so a latency that grew because the
+// machine gave the core to something else says so (open-loop-serve.ts, open-loop-collect.ts).
 //
 // One read is a pread of a few dozen bytes into a buffer made once, parsed without allocating.
 

@@ -24,6 +24,9 @@
 //   data     Uint8[...]          record bytes, a byte ring; a growable buffer, grown (while
 //                                empty) when a record does not fit a quarter of it
 
+import { sharedClockNs } from './shared-clock.js';
+import { waitAsync } from './wait-async.js';
+
 export const SLOT_COUNT = 1024;
 export const SLOT_FIELDS = 4;
 export const DUE_NS = 0;
@@ -188,5 +191,23 @@ export class RingWriter {
       return length < head ? 0 : -1;
     }
     return this.writeAt + length < head ? this.writeAt : -1;
+  }
+}
+
+/**
+ * Until `workers` workers have taken their seat at the ring (SEATED), at most `giveUpMs`, or
+ * until the signal aborts: the run's clock starts after, so a worker's start-up is not charged
+ * to the first events as waiting. A worker that cannot start is its serve task's failure to
+ * report; the run then starts without it.
+ */
+export async function waitForSeats(control: Int32Array, workers: number, giveUpMs: number, signal: AbortSignal | undefined): Promise<void> {
+  const giveUpNs = sharedClockNs() + giveUpMs * 1e6;
+  for (;;) {
+    const seated = Atomics.load(control, SEATED);
+    if (seated >= workers || signal?.aborted) return;
+    const leftMs = (giveUpNs - sharedClockNs()) / 1e6;
+    if (leftMs <= 0) return;
+    const waiting = waitAsync(control, SEATED, seated, Math.min(leftMs, 100));
+    if (waiting.async) await waiting.value;
   }
 }

@@ -11,10 +11,7 @@ import { sharedClockNs } from './shared-clock.js';
 import { ThreadCpuWait } from '../measure/thread-cpu-wait.js';
 import type { EventMessage } from './worker-contract.js';
 
-/** Atomics.waitAsync (ES2024; the project's TypeScript lib predates it, Node has it). */
-type WaitAsync = (array: Int32Array, index: number, value: number, timeoutMs: number) =>
-  { async: false; value: string } | { async: true; value: Promise<string> };
-export const waitAsync = (Atomics as unknown as { waitAsync: WaitAsync }).waitAsync;
+import { waitAsync } from './wait-async.js';
 
 /** How long one wait lasts at most (ms), so a stopped collector is never stuck. */
 const WAIT_MS = 100;
@@ -44,10 +41,10 @@ export class ResultCollector {
   private stopped = false;
   /**
    * this thread's wait for a CPU (thread-cpu-wait.ts): read when the collector starts and stops
-   * (mainCpuWaitNs); per event (perEvent) also before each sleep, and at the first result seen
-   * after it, the difference charged to the results seen on that wake (their return waited for
-   * it). Results seen without a sleep before are charged nothing: the thread was running its
-   * own loop, and a delay there is the harness's.
+   * (mainCpuWaitNs); per event (perEvent) also before each blocking wait, and at the first result
+   * seen after it, the difference charged to the results seen on that wake (their return waited
+   * for it). Results seen otherwise (after an event-loop turn, or a wait through the loop) are
+   * charged nothing: what the thread waited for then may have come before the result.
    */
   private readonly cpuWait = new ThreadCpuWait();
   private cpuWaitAtStartNs = -1;
@@ -78,21 +75,18 @@ export class ResultCollector {
   async run(): Promise<void> {
     const flags = this.slots.flags;
     this.cpuWaitAtStartNs = this.cpuWait.waitNs();
-    let slept = false;
     while (!this.stopped) {
       const written = Atomics.load(flags, WRITTEN);
-      this.scan(slept);
-      slept = false;
+      this.scan();
       if (this.stopped) break;
-      if (this.perEvent) this.cpuWaitBeforeSleepNs = this.cpuWait.waitNs();
       if (this.scanFrom < this.claimed()) {
+        if (this.perEvent) this.cpuWaitBeforeSleepNs = this.cpuWait.waitNs();
         if (Atomics.wait(flags, WRITTEN, written, BLOCKING_WAIT_MS) !== 'timed-out') this.scan(true);
         await letLoopRun();
         continue;
       }
       const waiting = waitAsync(flags, WRITTEN, written, WAIT_MS);
       if (waiting.async) await waiting.value;
-      slept = true;
     }
   }
 

@@ -18,9 +18,10 @@ import { MessageChannel, type MessagePort } from 'node:worker_threads';
 import { InputError } from '../errors.js';
 import type { RawRecord } from '../input/record-reader.js';
 import type { ArrivalSchedule } from './arrivals.js';
-import { CLAIMED, makeRingBuffers, RingWriter, SEATED, SLOT_COUNT, WORKER_HOLDS } from './event-ring.js';
+import { CLAIMED, makeRingBuffers, RingWriter, SLOT_COUNT, waitForSeats, WORKER_HOLDS } from './event-ring.js';
 import { sharedClockNs } from './shared-clock.js';
-import { ResultCollector, waitAsync } from './open-loop-collect.js';
+import { ResultCollector } from './open-loop-collect.js';
+import { RisingLine } from '../measure/rising-line.js';
 import type { BatchOutcome, BatchPool } from './pool.js';
 import type { RunDelivery } from './run-delivery.js';
 import type { EventMessage, ServeOutcome, ServeTask } from './worker-contract.js';
@@ -43,50 +44,6 @@ const SEATING_WAIT_MS = 30_000;
 const BACKLOG_RISE_WORKERS = 4;
 /** ... this fraction of the events counts as growing (saturation) */
 const BACKLOG_RISE_FRACTION = 0.05;
-
-/**
- * A least-squares line through values given one at a time at x = 0, 1, 2, ..., kept as sums:
- * a run of millions of events keeps no value per event (npm run soak watches its memory).
- */
-export class RisingLine {
-  private n = 0;
-  private sumX = 0;
-  private sumXX = 0;
-  private sumY = 0;
-  private sumXY = 0;
-
-  add(y: number): void {
-    const x = this.n++;
-    this.sumX += x;
-    this.sumXX += x * x;
-    this.sumY += y;
-    this.sumXY += x * y;
-  }
-
-  /** values given so far */
-  get count(): number {
-    return this.n;
-  }
-
-  /** The line's rise per step; 0 with fewer than two values. */
-  slope(): number {
-    const n = this.n;
-    if (n < 2) return 0;
-    return (n * this.sumXY - this.sumX * this.sumY) / (n * this.sumXX - this.sumX * this.sumX);
-  }
-
-  /** How much the line rises from the first value to the last; 0 with fewer than two. */
-  rise(): number {
-    return this.n < 2 ? 0 : this.slope() * (this.n - 1);
-  }
-}
-
-/** How much a least-squares line through values[0..n) rises from the first to the last. */
-export function fittedRise(values: readonly number[]): number {
-  const line = new RisingLine();
-  for (const y of values) line.add(y);
-  return line.rise();
-}
 
 /** Resolves after `ms`, or at once when the signal aborts. */
 function sleepUnlessAborted(ms: number, signal: AbortSignal | undefined): Promise<void> {
@@ -165,7 +122,7 @@ export class OpenLoopFeed {
   async feed(records: AsyncIterable<RawRecord>): Promise<void> {
     const collecting = this.collector.run();
     for (let w = 0; w < this.plan.workers; w++) this.serve(w);
-    await this.workersSeated();
+    await waitForSeats(this.ring.views.control, this.plan.workers, SEATING_WAIT_MS, this.plan.signal);
     this.startNs = sharedClockNs() + START_LEAD_NS;
     try {
       await this.publishAll(records);
@@ -183,26 +140,7 @@ export class OpenLoopFeed {
     for (const port of this.ports) port.close();
     this.endNs = this.lastReceivedNs || sharedClockNs();
     this.recordRates();
-    this.delivery.tally.recordThreadCpuWait(this.workersCpuWaitNs, this.collector.mainCpuWaitNs);
-  }
-
-  /**
-   * Until every worker has taken its seat at the ring (its serve task received and started), at
-   * most SEATING_WAIT_MS: the first events are due after that, so a worker's start-up is not
-   * charged to them as waiting. A worker that cannot start is the serve task's failure to
-   * report; the run then starts without it.
-   */
-  private async workersSeated(): Promise<void> {
-    const control = this.ring.views.control;
-    const giveUpNs = sharedClockNs() + SEATING_WAIT_MS * 1e6;
-    for (;;) {
-      const seated = Atomics.load(control, SEATED);
-      if (seated >= this.plan.workers || this.plan.signal?.aborted) return;
-      const leftMs = (giveUpNs - sharedClockNs()) / 1e6;
-      if (leftMs <= 0) return;
-      const waiting = waitAsync(control, SEATED, seated, Math.min(leftMs, 100));
-      if (waiting.async) await waiting.value;
-    }
+    this.delivery.tally.recordThreadCpuWait(this.workersCpuWaitNs, this.collector.mainCpuWaitNs, this.plan.workers);
   }
 
   private async publishAll(records: AsyncIterable<RawRecord>): Promise<void> {

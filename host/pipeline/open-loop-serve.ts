@@ -169,6 +169,18 @@ export function postRingOutcome(seat: RingSeat, message: EventMessage): void {
 export function serveRing(state: WorkerState, serve: ServeTask['serve'], hooks: WorkerHooks, ensureClusterer: (state: WorkerState) => void): ServeOutcome {
   const seat = takeRingSeat(state, serve);
   let served = 0;
+  try {
+    served = serveSeat(seat, state, hooks, ensureClusterer);
+  } catch (error) {
+    seat.cpuWait.close();
+    throw error;
+  }
+  // the port stays open: the host closes its end once every result is in
+  return leaveRingSeat(seat, served);
+}
+
+function serveSeat(seat: RingSeat, state: WorkerState, hooks: WorkerHooks, ensureClusterer: (state: WorkerState) => void): number {
+  let served = 0;
   for (let event = claimRingEvent(seat); event !== null; event = claimRingEvent(seat)) {
     const { ordinal, claimedEarly } = event;
     let message: EventMessage;
@@ -188,6 +200,5 @@ export function serveRing(state: WorkerState, serve: ServeTask['serve'], hooks: 
     postRingOutcome(seat, message);
     served++;
   }
-  // the port stays open: the host closes its end once every result is in
-  return leaveRingSeat(seat, served);
+  return served;
 }
