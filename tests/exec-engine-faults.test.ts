@@ -7,6 +7,7 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { ExecEngine, ExecEngineError, type ExecEngineOptions, type ExecOutcome } from '../host/pipeline/exec-engine.js';
+import { encodeStreamEvent } from '../host/pipeline/exec-stream.js';
 import { DEFAULT_GRID, DEFAULT_SETTINGS } from '../host/types.js';
 import { tempDirForTest } from './support/temp-dir.js';
 
@@ -119,6 +120,33 @@ describe('an engine program', () => {
       expect(failedEvents(outcomes)).toEqual([5]);
       expect(faults).toEqual(['exec:faulty-engine hang-child, event 5: no answer within 1000 ms (timed out); killed']);
       expect(engine.counts).toMatchObject({ sent: 8, answered: 7, timedOut: 1, restarts: 1 });
+      countsAddUp(engine);
+    } finally {
+      try { process.kill(Number(readFileSync(pidFile, 'utf8')), 'SIGKILL'); } catch { /* already gone */ }
+    }
+  });
+
+  it('that stops reading with a child holding its stdin times out on an event larger than the pipe holds', { timeout: 20_000 }, async () => {
+    // jetlag is then blocked in the write of the event, which no wake-up byte can end: the
+    // program's whole process group is killed, so no reader is left and the write fails
+    const pidFile = join(tempDirForTest('exec-stall-stdin'), 'child.pid');
+    const grid = { ...DEFAULT_GRID, etaBins: 200, phiBins: 200 };
+    // it answers event 1, then reads no more: event 2 fills the pipe
+    const { options: o, faults } = options('stall-stdin', 1, { timeoutMs: 1000, grid }, [pidFile]);
+    const towerCount = grid.etaBins * grid.phiBins;
+    const towerIndex = Int32Array.from({ length: towerCount }, (_, k) => k);
+    const towerEt = Float64Array.from({ length: towerCount }, (_, k) => 1.5 + k / towerCount);
+    // the precondition: one event well past what a Linux pipe (64 KiB) and the program's own
+    // input buffer take in before the write blocks
+    expect(encodeStreamEvent(2, towerIndex, towerEt, DEFAULT_SETTINGS.threshold).length).toBeGreaterThan(4 << 16);
+    const engine = await ExecEngine.start(o);
+    try {
+      const outcomes: ExecOutcome[] = [];
+      for (let event = 0; event < 5; event++) outcomes.push(await engine.submit(event, towerIndex, towerEt));
+      await engine.close();
+      expect(failedEvents(outcomes)).toEqual([2]);
+      expect(faults).toEqual(['exec:faulty-engine stall-stdin, event 2: no answer within 1000 ms (timed out); killed']);
+      expect(engine.counts).toMatchObject({ sent: 5, answered: 4, timedOut: 1, restarts: 1 });
       countsAddUp(engine);
     } finally {
       try { process.kill(Number(readFileSync(pidFile, 'utf8')), 'SIGKILL'); } catch { /* already gone */ }

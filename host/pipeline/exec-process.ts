@@ -107,6 +107,8 @@ export class ProgramProcess {
       this.child = spawn(config.argv[0], config.argv.slice(1), {
         stdio: [this.pipes.childStdin, this.pipes.childStdout, this.stderr.fd],
         env: config.env ? { ...process.env, ...config.env } : process.env,
+        // its own process group, so that a kill reaches the children it starts too
+        detached: true,
       });
     } finally {
       closeChildEnds(this.pipes);
@@ -308,9 +310,19 @@ export class ProgramProcess {
   }
 
   private kill(): void {
-    if (this.exitStatus === null && this.child.exitCode === null && this.child.pid !== undefined) this.child.kill('SIGKILL');
+    // the whole group: a child left holding stdin or stdout would keep a blocking write or read waiting
+    if (this.child.pid !== undefined) killProgramGroup(this.child.pid);
     closeJetlagEnds(this.pipes);
     this.stderr.close();
+  }
+}
+
+/** SIGKILL to the program's process group (its pid: it was spawned detached); gone already is fine. */
+export function killProgramGroup(pid: number): void {
+  try {
+    process.kill(-pid, 'SIGKILL');
+  } catch {
+    // no process left in the group
   }
 }
 

@@ -1,7 +1,8 @@
 // The per-event timeout of an engine program while its worker waits in a blocking read
 // (exec-process.ts): the waiting thread cannot run a timer, so a small thread of its own does.
-// It kills the program when the armed deadline passes, then writes one byte into the answers
-// pipe, so that the read returns even when a child of the program still holds its stdout.
+// It kills the program's process group when the armed deadline passes (a write blocked on a
+// full events pipe then fails), then writes one byte into the answers pipe, so that the read
+// returns even when a child outside the group still holds the program's stdout.
 //
 //   new Watchdog(longestSleepMs)   starts the thread (unref'd: it never keeps jetlag alive)
 //   arm(pid, answersFd, deadlineNs)   one wait; deadline on the monotonic clock, ns
@@ -52,7 +53,10 @@ while (Atomics.load(control, STOP) === 0) {
     const nowNs = process.hrtime.bigint();
     if (nowNs >= due) {
       if (Atomics.compareExchange(control, ARMED, armed, 0) === armed) {
-        try { process.kill(pid, 'SIGKILL'); } catch {}
+        // the program's process group (exec-process.ts spawns it detached): a child of it that
+        // holds stdin would keep a blocking write of an event waiting; once no reader is left
+        // that write fails (EPIPE)
+        try { process.kill(-pid, 'SIGKILL'); } catch {}
         wakeReader(fd);
         Atomics.store(control, FIRED, armed);
         Atomics.notify(control, FIRED);
