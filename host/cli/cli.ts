@@ -7,6 +7,7 @@ import { pathToFileURL } from 'node:url';
 import { realpathSync } from 'node:fs';
 import { formatHelp, parseArgs, type CommandIo, type CommandMain, type CommandSpec } from './args.js';
 import { InputError, OutputError, UsageError } from '../errors.js';
+import { ExecEngineError } from '../pipeline/exec-error.js';
 import { VERSION } from '../version.js';
 
 interface CommandEntry {
@@ -87,7 +88,8 @@ export function reportError(error: unknown, io: CommandIo, command?: string): nu
     io.stderr.write(`jetlag ${oneLine(named)}\n`);
     return 2;
   }
-  if (error instanceof InputError || error instanceof OutputError) {
+  // ExecEngineError: an engine program that cannot be run, named in its one line
+  if (error instanceof InputError || error instanceof OutputError || error instanceof ExecEngineError) {
     io.stderr.write(`${lead} ${oneLine(error.message)}\n`);
     return 2;
   }

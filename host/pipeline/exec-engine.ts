@@ -26,6 +26,8 @@
 import { encodeStreamEvent, encodeStreamHeader } from './exec-stream.js';
 import { ProgramProcess, type FaultKind, type ProcessFault } from './exec-process.js';
 import { Watchdog } from './exec-watchdog.js';
+import { ExecEngineError } from './exec-error.js';
+import { checkPipePlatform } from './exec-fifo.js';
 import { DEFAULT_MAX_RECORD_BYTES } from '../input/record-framer.js';
 import type { DecodedJets } from '../formats/jets-codec.js';
 import type { ClusterSettings, Grid, JetSet } from '../types.js';
@@ -87,12 +89,7 @@ export interface ExecCounts {
   restarts: number;
 }
 
-export class ExecEngineError extends Error {
-  constructor(message: string) {
-    super(message);
-    this.name = 'ExecEngineError';
-  }
-}
+export { ExecEngineError };
 
 type Resolver = (outcome: ExecOutcome) => void;
 
@@ -119,6 +116,8 @@ export class ExecEngine {
   }
 
   static async start(options: ExecEngineOptions): Promise<ExecEngine> {
+    // on a system without what the pipes need, one line now rather than a hang at a timeout
+    checkPipePlatform(options.label);
     const engine = new ExecEngine(options);
     try {
       await engine.ensureProcess(true);

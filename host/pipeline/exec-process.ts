@@ -1,7 +1,7 @@
 // One running instance of an outside clustering program (exec-engine.ts restarts them): the
-// child process, its stdin (event stream out) and stdout (jets stream in, cut by the project's
-// record framer under the record cap) on blocking pipes (exec-fifo.ts), and its stderr in a file
-// (exec-stderr.ts) for the tail that fault lines quote.
+// child process (started by exec-spawn.ts), its stdin (event stream out) and stdout (jets stream
+// in, cut by the project's record framer under the record cap) on blocking pipes, and its
+// stderr in a file for the tail that fault lines quote.
 //
 //   start()                   spawns, writes the stream header, waits for the program's jets
 //                             header (the handshake keeps start-up out of the first event's
@@ -26,15 +26,16 @@
 // written or, behind another event, from that event's answer), 'malformed' (bad framing, a
 // record that is not the jets record due, a bad header).
 //
-// In flight: parallel arrays used as a queue, head at inFlightHead. Times are
-// process.hrtime.bigint() (monotonic) as numbers of ns.
+// In flight: exec-in-flight.ts. Times are process.hrtime.bigint() (monotonic) as numbers of ns.
 
-import { spawn, type ChildProcess } from 'node:child_process';
+import type { ChildProcess } from 'node:child_process';
 import { readSync, writeSync } from 'node:fs';
 import { RecordFramer } from '../input/record-framer.js';
 import { checkProgramHeader, readProgramAnswer } from './exec-stream.js';
-import { closeChildEnds, closeJetlagEnds, openProgramPipes, type ProgramPipes } from './exec-fifo.js';
-import { StderrFile } from './exec-stderr.js';
+import { closeJetlagEnds, type ProgramPipes } from './exec-fifo.js';
+import type { StderrFile } from './exec-stderr.js';
+import { killProgramGroup, spawnProgram } from './exec-spawn.js';
+import { InFlightEvents } from './exec-in-flight.js';
 import type { Watchdog } from './exec-watchdog.js';
 import type { DecodedJets } from '../formats/jets-codec.js';
 import type { ClusterSettings, Grid } from '../types.js';
@@ -84,7 +85,7 @@ export class ProgramProcess {
   private readonly pipes: ProgramPipes;
   private readonly framer: RecordFramer;
   private readonly chunk = Buffer.allocUnsafe(READ_CHUNK_BYTES);
-  private readonly stderr = new StderrFile();
+  private readonly stderr: StderrFile;
   private headerSeen = false;
   /** faulted or stopped: nothing more is read, nothing more fails */
   private ended = false;
@@ -92,9 +93,7 @@ export class ProgramProcess {
   private exitStatus: { code: number | null; signal: NodeJS.Signals | null } | null = null;
   private exitWaiters: (() => void)[] = [];
   private spawnWaiter: (() => void) | null = null;
-  private readonly inFlightEvents: number[] = [];
-  private readonly inFlightWrittenNs: number[] = [];
-  private inFlightHead = 0;
+  private readonly sent = new InFlightEvents();
   /** the name the program gives itself in its header (settings.engine) */
   engineName = '';
   /** spawn failure (ENOENT, EACCES): restarting cannot help */
@@ -102,17 +101,7 @@ export class ProgramProcess {
 
   constructor(private readonly config: ProcessSettings, private readonly handlers: ProcessHandlers, private readonly watchdog: Watchdog) {
     this.framer = new RecordFramer(config.maxRecordBytes);
-    this.pipes = openProgramPipes();
-    try {
-      this.child = spawn(config.argv[0], config.argv.slice(1), {
-        stdio: [this.pipes.childStdin, this.pipes.childStdout, this.stderr.fd],
-        env: config.env ? { ...process.env, ...config.env } : process.env,
-        // its own process group, so that a kill reaches the children it starts too
-        detached: true,
-      });
-    } finally {
-      closeChildEnds(this.pipes);
-    }
+    ({ child: this.child, pipes: this.pipes, stderr: this.stderr } = spawnProgram(config.argv, config.env, config.label));
     this.child.on('error', (error) => {
       this.spawnError = error;
       this.spawnWaiter?.();
@@ -124,7 +113,7 @@ export class ProgramProcess {
   }
 
   get inFlight(): number {
-    return this.inFlightEvents.length - this.inFlightHead;
+    return this.sent.count;
   }
 
   get alive(): boolean {
@@ -154,8 +143,7 @@ export class ProgramProcess {
     const writtenNs = now();
     // the watchdog covers the write too: a program that stops reading blocks it
     if (this.inFlight === 0) this.watchdog.arm(this.child.pid!, this.pipes.answersIn, BigInt(writtenNs) + BigInt(this.config.timeoutMs) * 1_000_000n);
-    this.inFlightEvents.push(event);
-    this.inFlightWrittenNs.push(writtenNs);
+    this.sent.push(event, writtenNs);
     return this.writeWhole(record);
   }
 
@@ -190,7 +178,7 @@ export class ProgramProcess {
       return true;
     } catch (error) {
       // EPIPE: the program closed its stdin, most often by exiting; its exit status says more
-      if (this.watchdog.disarm()) this.fault('exited', this.dueEvent(), '', 'input');
+      if (this.watchdog.disarm()) this.fault('exited', this.sent.oldest, '', 'input');
       else this.timedOut();
       return false;
     }
@@ -211,18 +199,14 @@ export class ProgramProcess {
       this.framer.finish();
       const cut = this.framer.problem ? ` (${this.framer.problem.detail}, output byte ${this.framer.problem.offset})` : '';
       if (!this.watchdog.disarm()) return this.timedOut();
-      return this.fault('exited', this.dueEvent(), cut, 'output');
+      return this.fault('exited', this.sent.oldest, cut, 'output');
     }
     this.framer.feed(this.chunk.subarray(0, count), (bytes, offset) => {
       if (!this.ended) this.onRecord(bytes, offset, arrivedNs);
     });
     if (this.framer.problem && !this.ended) {
-      this.fault('malformed', this.dueEvent(), `output byte ${this.framer.problem.offset}: ${this.framer.problem.detail}`, null);
+      this.fault('malformed', this.sent.oldest, `output byte ${this.framer.problem.offset}: ${this.framer.problem.detail}`, null);
     }
-  }
-
-  private dueEvent(): number | null {
-    return this.inFlight > 0 ? this.inFlightEvents[this.inFlightHead] : null;
   }
 
   private onRecord(bytes: Uint8Array, offset: number, arrivedNs: number): void {
@@ -233,24 +217,18 @@ export class ProgramProcess {
       this.headerSeen = true;
       return;
     }
-    const due = this.dueEvent();
+    const due = this.sent.oldest;
     if (due === null) {
       return this.fault('malformed', null, `output byte ${offset}: a record with no event in flight (one answer per event)`, null);
     }
-    const pending = this.inFlightEvents.slice(this.inFlightHead);
-    const result = readProgramAnswer(bytes, due, pending);
+    const result = readProgramAnswer(bytes, due, this.sent.pending());
     if (!result.ok) return this.fault('malformed', due, `output byte ${offset}: ${result.problem}`, null);
     // answered at the deadline: the watchdog has killed the program already
     if (!this.watchdog.disarm()) return this.timedOut();
-    const writtenNs = this.inFlightWrittenNs[this.inFlightHead];
-    this.inFlightHead++;
-    if (this.inFlightHead === this.inFlightEvents.length) {
-      // queue empty: start over so the arrays do not grow for the life of the process
-      this.inFlightEvents.length = 0;
-      this.inFlightWrittenNs.length = 0;
-      this.inFlightHead = 0;
-    } else {
-      const sinceNs = Math.max(arrivedNs, this.inFlightWrittenNs[this.inFlightHead]);
+    const writtenNs = this.sent.oldestWrittenNs;
+    this.sent.dropOldest();
+    if (this.sent.count > 0) {
+      const sinceNs = Math.max(arrivedNs, this.sent.oldestWrittenNs);
       this.watchdog.arm(this.child.pid!, this.pipes.answersIn, BigInt(Math.round(sinceNs)) + BigInt(this.config.timeoutMs) * 1_000_000n);
     }
     this.stderr.trim();
@@ -259,7 +237,7 @@ export class ProgramProcess {
 
   private timedOut(): void {
     const what = this.headerSeen ? `no answer within ${this.config.timeoutMs} ms` : `no jets header within ${this.config.startTimeoutMs} ms of starting`;
-    this.fault('timed-out', this.dueEvent(), `${what} (timed out); killed`, null);
+    this.fault('timed-out', this.sent.oldest, `${what} (timed out); killed`, null);
   }
 
   /**
@@ -272,10 +250,7 @@ export class ProgramProcess {
     if (this.ended) return;
     this.ended = true;
     this.watchdog.disarm();
-    const failed = this.inFlightEvents.slice(this.inFlightHead);
-    this.inFlightEvents.length = 0;
-    this.inFlightWrittenNs.length = 0;
-    this.inFlightHead = 0;
+    const failed = this.sent.takeAll();
     if (closed === null) this.kill();
     const where = event !== null ? `${this.config.label}, event ${event}` : this.config.label;
     const reported = this.headerSeen;
@@ -314,15 +289,6 @@ export class ProgramProcess {
     if (this.child.pid !== undefined) killProgramGroup(this.child.pid);
     closeJetlagEnds(this.pipes);
     this.stderr.close();
-  }
-}
-
-/** SIGKILL to the program's process group (its pid: it was spawned detached); gone already is fine. */
-export function killProgramGroup(pid: number): void {
-  try {
-    process.kill(-pid, 'SIGKILL');
-  } catch {
-    // no process left in the group
   }
 }
 
