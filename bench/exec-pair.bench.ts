@@ -11,18 +11,14 @@
 // paired p50 ratios (this build / the other). Events are invented (the toy generator).
 
 import { execFileSync } from 'node:child_process';
-import { closeSync, mkdtempSync, openSync, rmSync, writeSync } from 'node:fs';
+import { mkdtempSync, rmSync } from 'node:fs';
 import { loadavg, tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
-import { encodeEventRecord } from '../host/formats/event-codec.js';
-import { encodeFileHeader } from '../host/formats/file-header.js';
-import { delimit } from '../host/formats/wire.js';
-import { generateEvents } from '../host/generator/generate.js';
-import { DEFAULT_GRID } from '../host/types.js';
 import { runEvents } from '../host/pipeline/run.js';
 import type { RunOptions } from '../host/pipeline/run-plan.js';
 import type { RunSummary } from '../host/measure/summary.js';
+import { writeToyEventFile } from './support/toy-event-file.js';
 
 function option(name: string, fallback: number): number {
   const at = process.argv.indexOf(name);
@@ -43,12 +39,7 @@ const dir = mkdtempSync(join(tmpdir(), 'jetlag-exec-pair-'));
 try {
   execFileSync('make', ['-s', '-C', new URL('../../examples/engines/cpp/', import.meta.url).pathname, `BUILD=${dir}`], { stdio: ['ignore', 'ignore', 'inherit'] });
   const input = join(dir, 'pileup200.events');
-  const fd = openSync(input, 'w');
-  writeSync(fd, delimit(encodeFileHeader({ kind: 'events', grid: DEFAULT_GRID, producer: 'jetlag bench', label: 'invented toy events (Halden ring scenario)' })));
-  for (const event of generateEvents(DEFAULT_GRID, { events, pileup: 200, seed: 2026 })) {
-    writeSync(fd, delimit(encodeEventRecord({ event: event.event, towerIndex: event.towerIndex, towerEt: event.towerEt })));
-  }
-  closeSync(fd);
+  writeToyEventFile(input, { events, pileup: 200 });
   const options: RunOptions = {
     input, workers, check: { mode: 'none', fraction: 0, seed: 1 }, engine: 'wasm', progress: null,
     program: { argv: [join(dir, 'pairwise-clusterer')], label: 'exec:pairwise-clusterer', timeoutMs: 60_000, maxRestarts: 0, tolerance: null },

@@ -19,18 +19,14 @@
 // load average its run started at.
 
 import { execFileSync } from 'node:child_process';
-import { closeSync, mkdirSync, mkdtempSync, openSync, rmSync, writeFileSync, writeSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { encodeEventRecord } from '../host/formats/event-codec.js';
-import { encodeFileHeader } from '../host/formats/file-header.js';
-import { delimit } from '../host/formats/wire.js';
-import { generateEvents } from '../host/generator/generate.js';
-import { DEFAULT_GRID } from '../host/types.js';
 import { runEvents } from '../host/pipeline/run.js';
 import type { RunOptions } from '../host/pipeline/run-plan.js';
 import { describeMachine, type RunSummary } from '../host/measure/summary.js';
 import { LatencyRecorder } from '../host/measure/latency.js';
+import { writeToyEventFile } from './support/toy-event-file.js';
 
 const quick = process.argv.includes('--quick');
 const events = quick ? 150 : 400;
@@ -45,20 +41,6 @@ function line(text: string): void {
 
 const median = (values: number[]) => [...values].sort((a, b) => a - b)[Math.floor(values.length / 2)];
 const us = (value: number | null | undefined) => (value === null || value === undefined || Number.isNaN(value) ? '—' : value.toFixed(value < 100 ? 1 : 0));
-
-/** `events` distinct pileup-200 toy events; returns the mean towers and record bytes per event. */
-function writeEvents(path: string): { meanTowers: number; meanRecordBytes: number } {
-  const fd = openSync(path, 'w');
-  writeSync(fd, delimit(encodeFileHeader({ kind: 'events', grid: DEFAULT_GRID, producer: 'jetlag bench', label: 'invented toy events (Halden ring scenario)' })));
-  let towers = 0;
-  let bytes = 0;
-  for (const event of generateEvents(DEFAULT_GRID, { events, pileup: 200, seed: 2026 })) {
-    towers += event.towerIndex.length;
-    bytes += writeSync(fd, delimit(encodeEventRecord({ event: event.event, towerIndex: event.towerIndex, towerEt: event.towerEt })));
-  }
-  closeSync(fd);
-  return { meanTowers: towers / events, meanRecordBytes: bytes / events };
-}
 
 /**
  * Section 5: p10, p50, p90, p99 of the C pair's round trip minus the child's own time, µs;
@@ -130,7 +112,8 @@ function describeRound(what: string, round: ProgramRound): string {
 const program = buildExample();
 if (program !== null) {
   const file = join(dir, 'pileup200.events');
-  const { meanTowers, meanRecordBytes } = writeEvents(file);
+  // `events` distinct pileup-200 toy events
+  const { meanTowers, meanRecordBytes } = writeToyEventFile(file, { events, pileup: 200 });
   line(`exec-pipe: ${events} pileup-200 toy events, mean ${meanTowers.toFixed(0)} towers per event; C++ example built in ${dir}`);
   const base: RunOptions = {
     input: file, check: { mode: 'none', fraction: 0, seed: 1 }, engine: 'wasm',

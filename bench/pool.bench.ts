@@ -10,16 +10,12 @@
 // Events are invented (the toy generator, host/generate.ts). Figures go to stdout and to
 // bench/results/pool.json (not committed). The machine is shared: quote medians and ratios.
 
-import { mkdirSync, mkdtempSync, openSync, closeSync, readFileSync, writeSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { Worker } from 'node:worker_threads';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Bench } from 'tinybench';
 import { Piscina } from 'piscina';
-import { encodeEventRecord } from '../host/formats/event-codec.js';
-import { encodeFileHeader } from '../host/formats/file-header.js';
-import { generateEvents } from '../host/generator/generate.js';
-import { delimit } from '../host/formats/wire.js';
 import { DEFAULT_GRID } from '../host/types.js';
 import { runEvents } from '../host/pipeline/run.js';
 import type { RunOptions } from '../host/pipeline/run-plan.js';
@@ -27,6 +23,7 @@ import { workerFile } from '../host/pipeline/pool.js';
 import { describeMachine, type RunSummary } from '../host/measure/summary.js';
 import { LatencyRecorder } from '../host/measure/latency.js';
 import { CPU_WAIT_DELAY_NS } from '../host/measure/run-tally.js';
+import { writeToyEventFile } from './support/toy-event-file.js';
 
 // `--exec-pipe`: an outside program as the engine instead (exec-pipe.bench.ts)
 if (process.argv.includes('--exec-pipe')) {
@@ -43,31 +40,6 @@ const dir = mkdtempSync(join(tmpdir(), 'jetlag-bench-'));
 const results: Record<string, unknown> = { machine: describeMachine() };
 
 /** Writes `events` toy events of the given pileup, cycling through `distinct` generated ones. */
-function writeToyFile(path: string, events: number, pileup: number, distinct: number): { bytes: number; meanTowers: number } {
-  const pool: { towerIndex: Int32Array; towerEt: Float64Array }[] = [];
-  for (const e of generateEvents(DEFAULT_GRID, { events: Math.min(distinct, events), pileup, seed: 2026 })) {
-    pool.push({ towerIndex: e.towerIndex, towerEt: e.towerEt });
-  }
-  const fd = openSync(path, 'w');
-  let bytes = 0;
-  const write = (chunk: Uint8Array) => { bytes += writeSync(fd, chunk); };
-  write(delimit(encodeFileHeader({ kind: 'events', grid: DEFAULT_GRID, producer: 'jetlag bench', label: 'invented toy events (Halden ring scenario)' })));
-  let towers = 0;
-  const parts: Uint8Array[] = [];
-  let partBytes = 0;
-  for (let k = 0; k < events; k++) {
-    const source = pool[k % pool.length];
-    towers += source.towerIndex.length;
-    const record = delimit(encodeEventRecord({ event: k, towerIndex: source.towerIndex, towerEt: source.towerEt }));
-    parts.push(record);
-    partBytes += record.length;
-    if (partBytes > 1 << 22) { write(Buffer.concat(parts)); parts.length = 0; partBytes = 0; }
-  }
-  if (parts.length) write(Buffer.concat(parts));
-  closeSync(fd);
-  return { bytes, meanTowers: towers / events };
-}
-
 function line(text: string): void {
   process.stdout.write(text + '\n');
 }
@@ -116,7 +88,7 @@ if (!streamingOnly) {
 
 const pileupFile = join(dir, 'pileup200.events');
 const pileupEvents = quick ? 600 : 1500;
-const written = writeToyFile(pileupFile, pileupEvents, 200, 500);
+const written = writeToyEventFile(pileupFile, { events: pileupEvents, pileup: 200, distinct: 500 });
 line(`pileup-200 file: ${pileupEvents} events, ${(written.bytes / 1e6).toFixed(1)} MB, mean ${written.meanTowers.toFixed(0)} towers per event`);
 const base: RunOptions = { input: pileupFile, check: { mode: 'none', fraction: 0, seed: 1 }, engine: 'wasm' };
 
@@ -252,7 +224,7 @@ if (!streamingOnly) {
 // 5000 events (several seconds a run): a p99 of the first second alone is mostly start-up
 const openLoopEvents = quick ? 600 : 5000;
 const openLoopFile = join(dir, 'pileup200-open-loop.events');
-if (!streamingOnly) writeToyFile(openLoopFile, openLoopEvents, 200, 500);
+if (!streamingOnly) writeToyEventFile(openLoopFile, { events: openLoopEvents, pileup: 200, distinct: 500 });
 async function openLoopRound(workers: number, rateHz: number, cpuWaitPerEvent = false) {
   const overhead = new LatencyRecorder();
   const summary = await timedRun({
@@ -330,7 +302,7 @@ if (!streamingOnly) {
 if (!quick && !noStreaming) {
   const bigFile = join(dir, 'big.events');
   const bigEvents = 120_000;
-  const big = writeToyFile(bigFile, bigEvents, 200, 500);
+  const big = writeToyEventFile(bigFile, { events: bigEvents, pileup: 200, distinct: 500 });
   line(`big file: ${(big.bytes / 2 ** 30).toFixed(2)} GiB, ${bigEvents} events`);
   let peakRss = 0;
   const sampler = setInterval(() => { peakRss = Math.max(peakRss, process.memoryUsage.rss()); }, 100);
