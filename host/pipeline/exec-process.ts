@@ -16,7 +16,7 @@
 // Why blocking: while its event is out the worker has nothing else to do, and a read that
 // returns the moment the answer's last byte is in costs less than a wake-up of the event loop
 // (README, "Timing your own program"). A blocking read cannot time out, so a watchdog thread
-// (exec-watchdog.ts) kills the program at the deadline and wakes the read; stderr goes to a
+// (exec-watchdog.ts) kills the program's group at the deadline and wakes the read; stderr goes to a
 // file, which never needs reading while the worker waits; only a fault's exit status is awaited
 // on the event loop.
 //
