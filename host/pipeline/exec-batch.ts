@@ -23,6 +23,7 @@ import { ENGINE_STOPPED, type ExecBatchFigures, type ExecWorkerConfig } from './
 import { emptyToleranceFigures, type ToleranceFigures } from '../measure/program-figures.js';
 import { STAGE_CHECK, STAGE_CLUSTER, STAGE_COUNT, STAGE_ENCODE, STATUS_INVALID, STATUS_OK, type BatchResult, type BatchTask, type WorkerConfig } from './worker-contract.js';
 import { producerName } from '../version.js';
+import { useProgramGroups } from './exec-groups.js';
 import type { Clusterer, JetSet } from '../types.js';
 
 export interface ExecWorker {
@@ -46,6 +47,7 @@ function programNamed(name: string, config: WorkerConfig): Clusterer {
 }
 
 async function startWorker(config: WorkerConfig, exec: ExecWorkerConfig): Promise<ExecWorker> {
+  if (exec.groups) useProgramGroups(exec.groups);
   const faultLines: string[] = [];
   const engine = await ExecEngine.start({
     argv: exec.argv, label: exec.label, grid: config.grid, settings: config.settings,

@@ -35,6 +35,7 @@ import { checkProgramHeader, readProgramAnswer } from './exec-stream.js';
 import { closeJetlagEnds, type ProgramPipes } from './exec-fifo.js';
 import type { StderrFile } from './exec-stderr.js';
 import { killProgramGroup, spawnProgram } from './exec-spawn.js';
+import { forgetProgramGroup, noteProgramGroup } from './exec-groups.js';
 import { InFlightEvents } from './exec-in-flight.js';
 import type { Watchdog } from './exec-watchdog.js';
 import type { DecodedJets } from '../formats/jets-codec.js';
@@ -106,7 +107,10 @@ export class ProgramProcess {
       this.spawnError = error;
       this.spawnWaiter?.();
     });
+    const pid = this.child.pid;
+    if (pid !== undefined) noteProgramGroup(pid);
     this.child.on('exit', (code, signal) => {
+      if (pid !== undefined) forgetProgramGroup(pid);
       this.exitStatus = { code, signal };
       for (const wake of this.exitWaiters.splice(0)) wake();
     });

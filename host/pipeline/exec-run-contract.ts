@@ -15,6 +15,8 @@ export interface ExecWorkerConfig {
   maxRestarts: number;
   /** null: --check compares bit for bit; else tolerance mode (spec section 7) */
   tolerance: ToleranceSettings | null;
+  /** the main thread's table of running programs' process groups, killed at its exit (exec-groups.ts) */
+  groups?: SharedArrayBuffer;
 }
 
 /** the failure reason of the events after the program used up its restarts (or could not be started) */
