@@ -106,6 +106,8 @@ export class OpenLoopFeed {
   private readingDone = false;
   /** the serving threads' wait for a CPU over their serve tasks, summed (ns; -1 unknown) */
   private workersCpuWaitNs = 0;
+  /** aborted when a serve task fails */
+  private readonly serveFailed = new AbortController();
 
   constructor(
     private readonly plan: OpenLoopPlan,
@@ -122,7 +124,9 @@ export class OpenLoopFeed {
   async feed(records: AsyncIterable<RawRecord>): Promise<void> {
     const collecting = this.collector.run();
     for (let w = 0; w < this.plan.workers; w++) this.serve(w);
-    await waitForSeats(this.ring.views.control, this.plan.workers, SEATING_WAIT_MS, this.plan.signal);
+    // a serve task that failed ends the wait: its worker will not sit down (it is served again)
+    const seating = this.plan.signal ? AbortSignal.any([this.plan.signal, this.serveFailed.signal]) : this.serveFailed.signal;
+    await waitForSeats(this.ring.views.control, this.plan.workers, SEATING_WAIT_MS, seating);
     this.startNs = sharedClockNs() + START_LEAD_NS;
     try {
       await this.publishAll(records);
@@ -200,6 +204,7 @@ export class OpenLoopFeed {
         this.workersCpuWaitNs = outcome.cpuWaitNs >= 0 && this.workersCpuWaitNs >= 0 ? this.workersCpuWaitNs + outcome.cpuWaitNs : -1;
       },
       (error: unknown) => {
+        this.serveFailed.abort();
         this.workersCpuWaitNs = -1;
         const held = Atomics.load(this.ring.views.control, WORKER_HOLDS + w) - 1;
         Atomics.store(this.ring.views.control, WORKER_HOLDS + w, 0);
