@@ -1,8 +1,8 @@
 // Two builds of the engine's groomers against each other and against the reference, in one
 // process, on the events of bench/grooming.bench.ts (toy pileup-200 events with 2 invented
 // boosted objects each, fictional Halden ring; invented data; anti-kt R = 1.0 jets above ptMin).
-// Every event is groomed by the reference and A, then by the reference and B (B first in odd
-// rounds), each call timed on its own: each engine call comes right after a reference call, as
+// Every event is groomed by the reference and A, then by the reference and B (B first in every
+// other round), each call timed on its own: each engine call comes right after a reference call, as
 // in grooming.bench.ts, where that costs the engine about a third more than a call after another
 // engine call would (the reference's allocations push the engine's memory out of the caches), so
 // a fixed order of A and B would favour the second. A figure is the mean over events of each

@@ -8,6 +8,9 @@ import { main as cluster } from '../host/cli/commands/cluster.js';
 import { main as generate } from '../host/cli/commands/generate.js';
 import { fakeIo } from './support/command-io.js';
 import { tempDirForSuite } from './support/temp-dir.js';
+import { makeClusterer, makeReferenceClusterer } from '../host/clustering/clusterers.js';
+import { UsageError } from '../host/errors.js';
+import { DEFAULT_SETTINGS } from '../host/types.js';
 
 const dir = tempDirForSuite('grooming-cli');
 const events = join(dir, 'events.pb');
@@ -38,5 +41,18 @@ describe('jetlag cluster with grooming', () => {
     const io = fakeIo();
     await expect(cluster([events, '--softdrop', '0.1'], io.io)).rejects.toThrow('cluster: --softdrop needs ZCUT:BETA (e.g. 0.1:0), got "0.1"');
     await expect(cluster([events, '--trim', '0:0.05'], io.io)).rejects.toThrow('cluster: --trim needs a subjet radius RSUB in (0, 2], got 0');
+  });
+
+  it('refuses a grid beyond |eta| 10, where merged jets get infinite rapidities, for both engines', () => {
+    // from |eta| of about 19 on, cosh and sinh of a tower's eta are one double (common practice:
+    // calorimeters end near |eta| 5)
+    const grid = { etaMin: -20, etaMax: 20, etaBins: 40, phiBins: 16 };
+    const grooming = { trim: null, softDrop: { zCut: 0.1, beta: 0 } };
+    const settings = { ...DEFAULT_SETTINGS, radius: 1.0 };
+    const message = 'cluster: --trim and --softdrop need a grid within |eta| <= 10, got [-20, 20)';
+    expect(() => makeClusterer('wasm', grid, settings, null, null, 'cluster', grooming)).toThrow(UsageError);
+    expect(() => makeClusterer('wasm', grid, settings, null, null, 'cluster', grooming)).toThrow(message);
+    expect(() => makeReferenceClusterer(grid, settings, null, 'cluster', grooming)).toThrow(message);
+    expect(() => makeClusterer('wasm', { ...grid, etaMin: -10, etaMax: 10 }, settings, null, null, 'cluster', grooming)).not.toThrow();
   });
 });

@@ -76,11 +76,10 @@ describe('engine grooming against the reference', () => {
     ['trimming 0.2:0.05', { trim: { subjetRadius: 0.2, ptFraction: 0.05 }, softDrop: null }],
   ] as [string, GroomingSettings][]) {
     it(`${name} of made-up jets: spread over the grid, across the seam, huge and tiny et, 300 jets`, () => {
-      // the engine re-clusters on a table of the jet's live jets in increasing y
-      // (assembly/groom-pairs.ts): towers spread over the grid give long searches, a jet across
-      // the seam takes the wrapped dphi, soft drop searches without a reach, and weights beyond
-      // the reach argument's range (et near the spec's limits, 1e150 and 1e-150) make trimming
-      // search without one too
+      // soft drop re-clusters on a table of the jet's live jets in increasing y
+      // (assembly/groom-pairs.ts), trimming on the event grid's sequence: towers spread over the
+      // grid give long searches, a jet across the seam takes the wrapped dphi, and et near the
+      // spec's limits (1e150 and 1e-150) puts weights beyond the reach argument's range
       const reference = new ReferenceGroomer(grid, grooming, 1);
       const engine = new EngineGroomer(grid, grooming, 1);
       const random = seededRandom(99 + name.length);

@@ -1,6 +1,7 @@
 // The engine's grooming against the reference, bit for bit, on jets made to test soft drop's
 // table of a jet's live jets in increasing y (assembly/groom-pairs.ts, searches stopped by dy
-// alone; trimming, on the event grid's cells, gets the same jets): every tower in one row (equal y everywhere, no search can stop early), every tower in
+// alone; trimming, on the event grid's cells, gets the same jets): every tower in one row
+// (equal y everywhere, no search can stop early), every tower in
 // one column, a full block of cells (equal distances everywhere, so the ties of clustering-spec.md
 // section 4 decide), a row across the phi seam, unsorted constituents (the engine's own sort),
 // and one jet of several hundred towers spread over the grid.
@@ -44,7 +45,7 @@ function jetShapes(random: () => number): [string, number[]][] {
 
 describe('engine grooming on the live-jet table: the reference bit for bit', () => {
   for (const [name, grooming] of SETTINGS) {
-    it(`${name}: rows, columns, blocks, the seam, unsorted input and a 400-tower jet, each with equal and random et`, () => {
+    it(`${name}: rows, columns, blocks, the seam and a 400-tower jet, each with equal and random et`, () => {
       const reference = new ReferenceGroomer(grid, grooming, 1);
       const engine = new EngineGroomer(grid, grooming, 1);
       const random = seededRandom(1600 + name.length);

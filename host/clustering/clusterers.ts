@@ -13,7 +13,7 @@ import { SoftKillerFirst } from './pileup/softkiller-first.js';
 import { GroomingClusterer } from './grooming/groomer.js';
 import { EngineGroomer } from './grooming/engine-groomer.js';
 import { ReferenceGroomer } from './grooming/reference-groomer.js';
-import { groomingIsOn } from './grooming/settings.js';
+import { checkGroomingGrid, groomingIsOn } from './grooming/settings.js';
 import type { ClusterSettings, Clusterer, Grid, GroomingSettings, PileupSettings } from '../types.js';
 
 export const ENGINE_NAMES = ['wasm', 'reference'] as const;
@@ -38,6 +38,7 @@ export function makeClusterer(
 ): Clusterer {
   if (groomingIsOn(grooming)) {
     refuseGrooming(engine, emulation ?? null, command);
+    checkGroomingGrid(grid, command);
     const base = makeClusterer(engine, grid, settings, emulation, pileup, command);
     const groomer = engine === 'reference' ? new ReferenceGroomer(grid, grooming!, settings.radius) : new EngineGroomer(grid, grooming!, settings.radius);
     return new GroomingClusterer(base, groomer);
@@ -67,7 +68,9 @@ function windowOf(engine: EngineName, emulation: EmulationMode | null) {
 /** The reference a clusterer's jets are checked against: with pileup steps on, the reference's chain. */
 export function makeReferenceClusterer(grid: Grid, settings: ClusterSettings, pileup?: PileupSettings | null, command = 'run', grooming?: GroomingSettings | null): Clusterer {
   const base = pileupStepsOn(pileup) ? new PileupReferenceClusterer(grid, settings, pileup, command) : new ReferenceClusterer(grid, settings);
-  return groomingIsOn(grooming) ? new GroomingClusterer(base, new ReferenceGroomer(grid, grooming!, settings.radius)) : base;
+  if (!groomingIsOn(grooming)) return base;
+  checkGroomingGrid(grid, command);
+  return new GroomingClusterer(base, new ReferenceGroomer(grid, grooming!, settings.radius));
 }
 
 /** Grooming re-clusters generalised-kt jets' towers: the window finder and the emulations take none. */

@@ -2,10 +2,23 @@
 // `--softdrop ZCUT:BETA`. Each bad setting is one UsageError line naming the option and the value.
 
 import { UsageError } from '../../errors.js';
-import type { GroomingSettings, SoftDropSettings, TrimSettings } from '../../types.js';
+import type { Grid, GroomingSettings, SoftDropSettings, TrimSettings } from '../../types.js';
 
 /** subjet radii above this make no sense on any calorimeter grid and keep the engine's search rows small */
 export const TRIM_MAX_RADIUS = 2;
+
+/**
+ * Grooming only on grids within |eta| <= this (as the pileup chain's areas): from |eta| of about
+ * 19 on, cosh and sinh of a tower's eta are the same double, merged jets get infinite
+ * rapidities and their distances NaN, which section 12's re-clustering does not define.
+ */
+export const GROOMING_MAX_ABS_ETA = 10;
+
+export function checkGroomingGrid(grid: Grid, command: string): void {
+  if (!(grid.etaMin >= -GROOMING_MAX_ABS_ETA && grid.etaMax <= GROOMING_MAX_ABS_ETA)) {
+    throw new UsageError(`${command}: --trim and --softdrop need a grid within |eta| <= ${GROOMING_MAX_ABS_ETA}, got [${grid.etaMin}, ${grid.etaMax})`);
+  }
+}
 
 function twoNumbers(text: string): [number, number] | null {
   const parts = text.split(':');
