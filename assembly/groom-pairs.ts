@@ -155,13 +155,17 @@ function searchLost(k: i32): void {
 /** Position p leaves the table; the jets above it move down one. */
 function removeAt(p: i32): void {
   const last = --liveCount;
-  for (let q = p; q < last; q++) {
-    const j = getI32(liveJet, q + 1);
-    setI32(liveJet, q, j);
-    setI32(jetPlace, j, q);
-    setF64(liveY, q, getF64(liveY, q + 1));
-    setF64(livePhi, q, getF64(livePhi, q + 1));
-  }
+  for (let q = p; q < last; q++) moveEntry(q + 1, q);
+}
+
+/** The table's entry at position `from` moves to position `to` (the jet's place follows it). */
+// @ts-ignore: decorator
+@inline function moveEntry(from: i32, to: i32): void {
+  const j = getI32(liveJet, from);
+  setI32(liveJet, to, j);
+  setI32(jetPlace, j, to);
+  setF64(liveY, to, getF64(liveY, from));
+  setF64(livePhi, to, getF64(livePhi, from));
 }
 
 /** Jet k fills the hole at position p, then moves to where its y belongs. */
@@ -170,19 +174,11 @@ function insertNear(p: i32, k: i32): i32 {
   let at = p;
   // shift the jets it passes by one, up or down
   while (at > 0 && getF64(liveY, at - 1) > y) {
-    const j = getI32(liveJet, at - 1);
-    setI32(liveJet, at, j);
-    setI32(jetPlace, j, at);
-    setF64(liveY, at, getF64(liveY, at - 1));
-    setF64(livePhi, at, getF64(livePhi, at - 1));
+    moveEntry(at - 1, at);
     at--;
   }
   while (at + 1 < liveCount && getF64(liveY, at + 1) < y) {
-    const j = getI32(liveJet, at + 1);
-    setI32(liveJet, at, j);
-    setI32(jetPlace, j, at);
-    setF64(liveY, at, getF64(liveY, at + 1));
-    setF64(livePhi, at, getF64(livePhi, at + 1));
+    moveEntry(at + 1, at);
     at++;
   }
   setI32(liveJet, at, k);
