@@ -7,19 +7,11 @@ import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { toyEvents, writeEventFile } from './support/run-files.js';
 import { tempDirForSuite } from './support/temp-dir.js';
+import { alive } from './support/process-alive.js';
 
 const cli = join(import.meta.dirname, '..', 'dist', 'host', 'cli', 'cli.js');
 const fixture = join(import.meta.dirname, 'fixtures', 'engines', 'faulty-engine.mjs');
 const dir = tempDirForSuite('exec-program-groups');
-
-function alive(pid: number): boolean {
-  try {
-    process.kill(pid, 0);
-    return true;
-  } catch {
-    return false;
-  }
-}
 
 async function until(done: () => boolean, timeoutMs: number): Promise<boolean> {
   const end = Date.now() + timeoutMs;

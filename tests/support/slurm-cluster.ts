@@ -6,6 +6,7 @@
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import { existsSync, mkdirSync, openSync, closeSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
+import { alive } from './process-alive.js';
 
 const SLURM_CONF = '/etc/slurm/slurm.conf';
 const MUNGE_PID_FILE = '/run/munge/munged.pid';
@@ -20,15 +21,6 @@ function run(command: string, args: string[], timeoutMs = 30_000, env: NodeJS.Pr
   if (result.error) throw new Error(`${command}: ${result.error.message}`);
   if (result.status !== 0) throw new Error(`${command} ${args.join(' ')}: exit ${result.status}: ${(result.stderr || result.stdout).trim()}`);
   return result.stdout;
-}
-
-function alive(pid: number): boolean {
-  try {
-    process.kill(pid, 0);
-    return true;
-  } catch {
-    return false;
-  }
 }
 
 function tail(path: string, lines = 8): string {
