@@ -44,7 +44,7 @@ export function harnessFigures(tally: RunTally, openLoop: boolean): HarnessFigur
         servingThreads: totals ? totals.servingThreads : null,
         ...(tally.cpuWait.count > 0 ? {
           perEvent: {
-            events: tally.cpuWait.count, delayed: tally.cpuWaitDelayed, delayedOverUs: CPU_WAIT_DELAY_NS / 1e3,
+            events: tally.cpuWait.count, delayed: tally.cpuWait.count - tally.overheadUndelayed.count, delayedOverUs: CPU_WAIT_DELAY_NS / 1e3,
             wait: tally.cpuWait.stats(), overheadUndelayed: tally.overheadUndelayed.stats(),
           },
         } : {}),
@@ -57,10 +57,15 @@ export function harnessHistograms(tally: RunTally): { overhead: EncodedLatency; 
   return { overhead: tally.overhead.encode(), cpuWait: tally.cpuWait.encode(), overheadUndelayed: tally.overheadUndelayed.encode() };
 }
 
-/** The reverse, for a merge: the counts and totals of a summary's harness figures back into its tally. */
-export function restoreHarnessFigures(tally: RunTally, harness: HarnessFigures, open: boolean): void {
+/** The reverse, for a merge: a summary's harness histograms and totals back into its tally. */
+export function restoreHarnessFigures(
+  tally: RunTally, harness: HarnessFigures, histograms: Partial<ReturnType<typeof harnessHistograms>>, open: boolean, where: string,
+): void {
+  for (const name of ['overhead', 'cpuWait', 'overheadUndelayed'] as const) {
+    const encoded = histograms[name];
+    if (encoded) tally[name].merge(LatencyRecorder.decode(encoded, `${where}: histograms.${name}`));
+  }
   const cpuWait = harness.cpuWait;
-  tally.cpuWaitDelayed = cpuWait?.perEvent?.delayed ?? 0;
   if (cpuWait && cpuWait.workersMs !== null && cpuWait.mainMs !== null && cpuWait.servingThreads !== null) {
     tally.threadCpuWait = { workersNs: cpuWait.workersMs * 1e6, mainNs: cpuWait.mainMs * 1e6, servingThreads: cpuWait.servingThreads };
   } else {

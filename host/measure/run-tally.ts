@@ -95,10 +95,11 @@ export class RunTally {
   readonly overhead = new LatencyRecorder();
   /** ... of the events whose threads spent at most CPU_WAIT_DELAY_NS on a run queue */
   readonly overheadUndelayed = new LatencyRecorder();
-  /** open loop, per event where measured: ns its worker's and the main thread waited for a CPU while it was on them */
+  /**
+   * open loop, per event where measured: ns its worker's and the main thread waited for a CPU
+   * while it was on them (the events past CPU_WAIT_DELAY_NS: its count less overheadUndelayed's)
+   */
   readonly cpuWait = new LatencyRecorder();
-  /** events whose cpuWait exceeded CPU_WAIT_DELAY_NS */
-  cpuWaitDelayed = 0;
   /**
    * open loop, where the kernel keeps it: the serving threads' and the main thread's wait for a
    * CPU over the run (ns), and the serving threads' count; null when none was recorded, and
@@ -167,8 +168,7 @@ export class RunTally {
     this.overhead.recordNs(overheadNs);
     if (cpuWaitNs < 0) return;
     this.cpuWait.recordNs(cpuWaitNs);
-    if (cpuWaitNs > CPU_WAIT_DELAY_NS) this.cpuWaitDelayed++;
-    else this.overheadUndelayed.recordNs(overheadNs);
+    if (cpuWaitNs <= CPU_WAIT_DELAY_NS) this.overheadUndelayed.recordNs(overheadNs);
   }
 
   /** Open loop, once at the end: the threads' wait for a CPU over the run (-1: unknown). */
@@ -251,7 +251,6 @@ export class RunTally {
     this.overhead.merge(other.overhead);
     this.overheadUndelayed.merge(other.overheadUndelayed);
     this.cpuWait.merge(other.cpuWait);
-    this.cpuWaitDelayed += other.cpuWaitDelayed;
     // shards side by side: their threads' waits add; one shard without its figure leaves the sum unknown
     this.threadCpuWaitUnknown ||= other.threadCpuWaitUnknown;
     if (this.threadCpuWaitUnknown) this.threadCpuWait = null;

@@ -32,10 +32,7 @@ export function tallyFromSummary(summary: RunSummary, where = 'summary'): RunTal
   tally.returnTrip.merge(LatencyRecorder.decode(histograms.return, `${where}: histograms.return`));
   tally.endToEnd.merge(LatencyRecorder.decode(histograms.endToEnd, `${where}: histograms.endToEnd`));
   tally.dispatchLateness.merge(LatencyRecorder.decode(histograms.dispatchLateness, `${where}: histograms.dispatchLateness`));
-  if (histograms.overhead) tally.overhead.merge(LatencyRecorder.decode(histograms.overhead, `${where}: histograms.overhead`));
-  if (histograms.cpuWait) tally.cpuWait.merge(LatencyRecorder.decode(histograms.cpuWait, `${where}: histograms.cpuWait`));
-  if (histograms.overheadUndelayed) tally.overheadUndelayed.merge(LatencyRecorder.decode(histograms.overheadUndelayed, `${where}: histograms.overheadUndelayed`));
-  restoreHarnessFigures(tally, summary.harness, summary.configuration.arrival.mode !== 'closed');
+  restoreHarnessFigures(tally, summary.harness, histograms, summary.configuration.arrival.mode !== 'closed', where);
   tally.towersPerEvent.merge(LatencyRecorder.decode(histograms.towersPerEvent, `${where}: histograms.towersPerEvent`));
   for (const stage of STAGES) {
     tally.stages[stage].merge(LatencyRecorder.decode(summary.histograms.stages[stage], `${where}: histograms.stages.${stage}`));
