@@ -2,6 +2,8 @@
 // latency drifted between the first and the last tenth of the events beyond the noise
 // between tenths. Pure functions of the samples, so a test can hold them to their rules.
 
+import { RisingLine } from '../host/measure/rising-line.js';
+
 /** the last tenth's mean RSS may differ from the middle tenth's by at most this fraction */
 export const FLAT_FRACTION = 0.05;
 /** a fitted rise of latency over the tenths counts as drift when above this many residual standard deviations ... */
@@ -78,13 +80,10 @@ export function driftVerdict(tenthsUs: readonly number[]): DriftVerdict {
   if (n < 3) return { tenthsUs: [...tenthsUs], fittedRiseUs: NaN, residualUs: NaN, lastOverFirst: NaN, drift: false, rule: `${rule} (too few tenths to judge)` };
   const meanX = (n - 1) / 2;
   const meanY = mean(values);
-  let sxy = 0;
-  let sxx = 0;
-  for (let x = 0; x < n; x++) {
-    sxy += (x - meanX) * (values[x] - meanY);
-    sxx += (x - meanX) ** 2;
-  }
-  const slope = sxy / sxx;
+  const line = new RisingLine();
+  for (const value of values) line.add(value);
+  // the least-squares line passes through (meanX, meanY)
+  const slope = line.slope();
   let squares = 0;
   for (let x = 0; x < n; x++) squares += (values[x] - (meanY + slope * (x - meanX))) ** 2;
   const residualUs = Math.sqrt(squares / (n - 2));

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { LatencyRecorder } from '../host/measure/latency.js';
 import { ArrivalSchedule } from '../host/pipeline/arrivals.js';
-import { fittedRise } from '../host/measure/rising-line.js';
+import { RisingLine } from '../host/measure/rising-line.js';
 import { makeRandom } from '../host/random.js';
 
 /** skewed latencies of the shape clustering times have: a body and a long tail */
@@ -112,6 +112,13 @@ describe('arrival schedules', () => {
     expect(() => new ArrivalSchedule({ kind: 'fixed', rateHz: 0 })).toThrow('positive finite');
   });
 });
+
+/** How much a least-squares line through the values rises from the first to the last. */
+function fittedRise(values: readonly number[]): number {
+  const line = new RisingLine();
+  for (const y of values) line.add(y);
+  return line.rise();
+}
 
 describe('the backlog trend of an open loop', () => {
   it('rises by the ramp\'s height for a steady ramp, and little for one late pile-up that drains', () => {

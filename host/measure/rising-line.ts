@@ -37,10 +37,3 @@ export class RisingLine {
     return this.n < 2 ? 0 : this.slope() * (this.n - 1);
   }
 }
-
-/** How much a least-squares line through values[0..n) rises from the first to the last. */
-export function fittedRise(values: readonly number[]): number {
-  const line = new RisingLine();
-  for (const y of values) line.add(y);
-  return line.rise();
-}
