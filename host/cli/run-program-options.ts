@@ -8,18 +8,21 @@ import type { OptionSpec, ParsedArgs } from './args.js';
 import { DEFAULT_ENGINE_RESTARTS, DEFAULT_ENGINE_TIMEOUT_MS, defaultEngineTimeoutMs } from '../pipeline/exec-engine.js';
 import { execCommandOf, splitCommand } from '../pipeline/exec-command.js';
 import type { ExecWorkerConfig } from '../pipeline/exec-run-contract.js';
+import { parseProgramCpu } from '../pipeline/exec-cpu.js';
+import { PROGRAM_CPU_OPTION } from './program-cpu-options.js';
 import { DEFAULT_TOLERANCE, checkToleranceSettings, type ToleranceSettings } from '../validate/tolerance-compare.js';
 
 export const RUN_PROGRAM_OPTIONS: OptionSpec[] = [
   { name: 'engine-timeout-ms', kind: 'integer', argument: '<ms>', description: `exec: engines: how long the program may take for one event before it is killed and restarted (default: 100 x --budget-us, else ${DEFAULT_ENGINE_TIMEOUT_MS})` },
   { name: 'engine-restarts', kind: 'integer', argument: '<n>', description: `exec: engines: how often a failing program is restarted (per worker) before the run stops (default: ${DEFAULT_ENGINE_RESTARTS})` },
+  PROGRAM_CPU_OPTION,
   { name: 'tolerance', kind: 'flag', description: 'exec: engines: --check compares in tolerance mode (clustering spec section 7; jets with pt >= --ptmin must agree) instead of bit for bit' },
   { name: 'match-r', kind: 'number', argument: '<dR>', description: `with --tolerance: a program's jet matches a reference jet when closer than this in (y, phi) (default: ${DEFAULT_TOLERANCE.matchR})` },
   { name: 'pt-tol', kind: 'number', argument: '<x>', description: `with --tolerance: a matched pair agrees when |pt_program / pt_reference - 1| <= this (default: ${DEFAULT_TOLERANCE.ptTol})` },
   { name: 'angle-tol', kind: 'number', argument: '<dR>', description: `with --tolerance: ... and when its distance in (y, phi) <= this (default: ${DEFAULT_TOLERANCE.angleTol})` },
 ];
 
-const PROGRAM_ONLY = ['engine-timeout-ms', 'engine-restarts', 'tolerance', 'match-r', 'pt-tol', 'angle-tol'];
+const PROGRAM_ONLY = ['engine-timeout-ms', 'engine-restarts', 'program-cpu', 'tolerance', 'match-r', 'pt-tol', 'angle-tol'];
 
 /**
  * The engine program of a run, or null when --engine is not exec:…; UsageError on a bad
@@ -37,6 +40,7 @@ export function runProgramFrom(args: ParsedArgs, engineText: string | undefined,
   const maxRestarts = (args.values['engine-restarts'] as number | undefined) ?? DEFAULT_ENGINE_RESTARTS;
   if (!(timeoutMs >= 1)) throw new UsageError(`run: --engine-timeout-ms must be at least 1, got ${timeoutMs}`);
   if (!(maxRestarts >= 0)) throw new UsageError(`run: --engine-restarts must be 0 or more, got ${maxRestarts}`);
+  const programCpu = parseProgramCpu(args.values['program-cpu'] as string | undefined, 'run');
   let tolerance: ToleranceSettings | null = null;
   if (args.values.tolerance === true) {
     tolerance = {
@@ -53,5 +57,5 @@ export function runProgramFrom(args: ParsedArgs, engineText: string | undefined,
   } else if (['match-r', 'pt-tol', 'angle-tol'].some((name) => args.values[name] !== undefined)) {
     throw new UsageError('run: --match-r, --pt-tol and --angle-tol need --tolerance');
   }
-  return { argv, label: engineText!, timeoutMs, maxRestarts, tolerance };
+  return { argv, label: engineText!, timeoutMs, maxRestarts, tolerance, programCpu };
 }

@@ -62,7 +62,7 @@ export function tallyFromSummary(summary: RunSummary, where = 'summary'): RunTal
 /** What must agree between summaries for their sum to mean anything, named as the reader knows it. */
 function mergeFields(configuration: RunConfiguration): Record<string, unknown> {
   const { grid, settings, batch, arrival, budgetUs, check, engine, maxEvents } = configuration;
-  return { 'input label': configuration.input?.label, grid, settings, pileup: configuration.pileup ?? null, batch, arrival, budgetUs, check, engine, '--events': maxEvents, 'shard count': configuration.shard.count };
+  return { 'input label': configuration.input?.label, grid, settings, pileup: configuration.pileup ?? null, batch, arrival, budgetUs, check, engine, '--events': maxEvents, 'shard count': configuration.shard.count, '--program-cpu': configuration.programCpu ?? 'any' };
 }
 
 function mergeKey(configuration: RunConfiguration): string {

@@ -43,6 +43,11 @@ export interface RunConfiguration {
   /** trimming and soft drop of each reported jet (spec section 12); absent when none ran */
   grooming?: GroomingSettings;
   workers: number;
+  /**
+   * an engine program only (absent otherwise, and in summaries from before it): same when each
+   * worker thread and its program were held on one CPU (--program-cpu same), else any
+   */
+  programCpu?: 'same' | 'any';
   batch: number;
   arrival: { mode: 'closed' | 'fixed' | 'poisson'; rateHz: number | null; seed: number | null };
   budgetUs: number | null;

@@ -24,6 +24,7 @@ import { emptyToleranceFigures, type ToleranceFigures } from '../measure/program
 import { STAGE_CHECK, STAGE_CLUSTER, STAGE_COUNT, STAGE_ENCODE, STATUS_INVALID, STATUS_OK, type BatchResult, type BatchTask, type WorkerConfig } from './worker-contract.js';
 import { producerName } from '../version.js';
 import { useProgramGroups } from './exec-groups.js';
+import { takeProgramSeat } from './exec-cpu.js';
 import type { Clusterer, JetSet } from '../types.js';
 
 export interface ExecWorker {
@@ -54,6 +55,7 @@ async function startWorker(config: WorkerConfig, exec: ExecWorkerConfig): Promis
     producer: producerName('run'), streamLabel: 'events of a run',
     timeoutMs: exec.timeoutMs, maxRestarts: exec.maxRestarts,
     onFault: (line) => faultLines.push(line),
+    ...(exec.programCpu === 'same' ? { cpuWorkerIndex: exec.programSeats ? takeProgramSeat(exec.programSeats) : 0 } : {}),
   });
   const state: WorkerState = {
     config,

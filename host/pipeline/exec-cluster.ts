@@ -7,6 +7,7 @@
 //   describeProgramRun(name, counts, figures): string   one summary line (no command prefix)
 
 import { ExecEngine, type ExecCounts } from './exec-engine.js';
+import type { ProgramCpu } from './exec-cpu.js';
 import type { ClusterSettings, Grid } from '../types.js';
 import { producerName } from '../version.js';
 
@@ -19,13 +20,18 @@ export interface ProgramEngineChoice {
   maxRestarts: number;
   /** one line per fault of the program */
   onFault: (line: string) => void;
+  /** --program-cpu: same holds this thread and the program on one CPU (exec-cpu.ts); absent: any */
+  programCpu?: ProgramCpu;
 }
 
 export function startProgramEngine(
   choice: ProgramEngineChoice, grid: Grid, settings: ClusterSettings, inputLabel: string, maxRecordBytes?: number,
 ): Promise<ExecEngine> {
+  const { programCpu, ...engineChoice } = choice;
   return ExecEngine.start({
-    ...choice,
+    ...engineChoice,
+    // one program, on the thread that runs the command: the first CPU it may use
+    ...(programCpu === 'same' ? { cpuWorkerIndex: 0 } : {}),
     grid,
     settings,
     producer: producerName('cluster'),

@@ -28,6 +28,7 @@ import { ProgramProcess, type FaultKind, type ProcessFault } from './exec-proces
 import { Watchdog } from './exec-watchdog.js';
 import { ExecEngineError } from './exec-error.js';
 import { checkPipePlatform } from './exec-fifo.js';
+import { holdThreadOnCpu, type CpuHold } from './exec-cpu.js';
 import { DEFAULT_MAX_RECORD_BYTES } from '../input/record-framer.js';
 import type { DecodedJets } from '../formats/jets-codec.js';
 import type { ClusterSettings, Grid, JetSet } from '../types.js';
@@ -62,6 +63,11 @@ export interface ExecEngineOptions {
   maxInFlight?: number;
   /** one line per fault, as it happens */
   onFault?: (line: string) => void;
+  /**
+   * --program-cpu same: this worker's index; the calling thread is held on its CPU before the
+   * program starts, and the program (restarts too) inherits it (exec-cpu.ts). Absent: not held.
+   */
+  cpuWorkerIndex?: number;
 }
 
 export type ExecFailureReason = FaultKind | 'refused';
@@ -107,6 +113,8 @@ export class ExecEngine {
   private readonly maxInFlight: number;
   private readonly watchdog: Watchdog;
   private pumpScheduled = false;
+  /** --program-cpu same: where this thread and its program are held; null when not held */
+  cpuHold: CpuHold | null = null;
 
   private constructor(private readonly options: ExecEngineOptions) {
     this.headerRecord = encodeStreamHeader(options.grid, options.settings, options.producer, options.streamLabel ?? '');
@@ -120,9 +128,12 @@ export class ExecEngine {
     checkPipePlatform(options.label);
     const engine = new ExecEngine(options);
     try {
+      // after the watchdog thread exists (it stays free to run anywhere), before the first spawn
+      if (options.cpuWorkerIndex !== undefined) engine.cpuHold = holdThreadOnCpu(options.cpuWorkerIndex, options.label);
       await engine.ensureProcess(true);
     } catch (error) {
       engine.watchdog.close();
+      engine.releaseCpu();
       throw error;
     }
     return engine;
@@ -160,6 +171,18 @@ export class ExecEngine {
     this.process = null;
     if (running) await running.stop(this.options.timeoutMs);
     this.watchdog.close();
+    this.releaseCpu();
+  }
+
+  /** The thread's former CPUs back; a failure here ends nothing, the program is gone. */
+  private releaseCpu(): void {
+    const hold = this.cpuHold;
+    this.cpuHold = null;
+    try {
+      hold?.release();
+    } catch {
+      // the thread stays on its CPU: only its own later work is confined
+    }
   }
 
   /** The oldest answer of the running process, or its fault, settled. */

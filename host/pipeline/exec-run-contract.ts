@@ -5,6 +5,7 @@
 
 import type { ToleranceSettings } from '../validate/tolerance-compare.js';
 import type { ToleranceFigures } from '../measure/program-figures.js';
+import type { ProgramCpu } from './exec-cpu.js';
 
 /** WorkerConfig.exec: each worker starts this program as its engine (exec-engine.ts). */
 export interface ExecWorkerConfig {
@@ -17,6 +18,10 @@ export interface ExecWorkerConfig {
   tolerance: ToleranceSettings | null;
   /** the main thread's table of running programs' process groups, killed at its exit (exec-groups.ts) */
   groups?: SharedArrayBuffer;
+  /** --program-cpu: same holds each worker thread and its program on one CPU (exec-cpu.ts); absent: any */
+  programCpu?: ProgramCpu;
+  /** the run's seat counter that numbers the workers for --program-cpu same (exec-cpu.ts) */
+  programSeats?: SharedArrayBuffer;
 }
 
 /** the failure reason of the events after the program used up its restarts (or could not be started) */

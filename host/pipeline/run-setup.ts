@@ -15,6 +15,7 @@ import { ReproWriter } from '../output/repro-writer.js';
 import { OutputFile } from '../output/output-file.js';
 import { producerName } from '../version.js';
 import { programGroupsBuffer } from './exec-groups.js';
+import { programSeatsBuffer } from './exec-cpu.js';
 
 /**
  * Refuses up front, in one line, what the workers' engines would refuse (or a missing build),
@@ -47,7 +48,7 @@ export function workerConfigOf(plan: RunPlan, grid: Grid, encodeJets: boolean, p
   // the timed pass sends its check sample back; the reference runs after it (check-pass.ts)
   const config: WorkerConfig = { grid, settings: plan.settings, pileup: plan.pileup, grooming: plan.grooming, engine: plan.engine, checkFraction: checkFractionOf(plan.check), checkSeed: plan.check.seed, encodeJets, checkApart: true };
   // a program's jets exist only in its worker: the check runs there, after each answer
-  return program ? { ...config, exec: { ...program, groups: programGroupsBuffer() }, checkApart: false } : config;
+  return program ? { ...config, exec: { ...program, groups: programGroupsBuffer(), programSeats: programSeatsBuffer() }, checkApart: false } : config;
 }
 
 /**

@@ -19,6 +19,7 @@ export function summarize(options: RunOptions, plan: RunPlan, delivery: RunDeliv
     ...(plan.pileup ? { pileup: plan.pileup } : {}),
     ...(plan.grooming ? { grooming: plan.grooming } : {}),
     workers: plan.workers,
+    ...(options.program ? { programCpu: options.program.programCpu ?? 'any' } : {}),
     batch: plan.batch,
     arrival: {
       mode: arrival.kind,

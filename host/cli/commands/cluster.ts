@@ -24,6 +24,8 @@ import { execCommandOf, splitCommand } from '../../pipeline/exec-command.js';
 import { DEFAULT_ENGINE_RESTARTS, DEFAULT_ENGINE_TIMEOUT_MS } from '../../pipeline/exec-engine.js';
 import { describeProgramRun, type ProgramEngineChoice } from '../../pipeline/exec-cluster.js';
 import { RecordProgress } from '../../measure/input-progress.js';
+import { parseProgramCpu } from '../../pipeline/exec-cpu.js';
+import { PROGRAM_CPU_OPTION } from '../program-cpu-options.js';
 
 export const spec: CommandSpec = {
   name: 'cluster',
@@ -34,6 +36,7 @@ export const spec: CommandSpec = {
     { name: 'engine', kind: 'string', argument: '<name>', description: "wasm (the engine), reference (the plain TypeScript reference), or exec:'COMMAND ARGS…', an outside program that turns an event stream into a jets stream (proto/README.md) (default: wasm)" },
     { name: 'engine-timeout-ms', kind: 'integer', argument: '<ms>', description: `exec: engines: how long the program may take for one event before it is killed and restarted (default: ${DEFAULT_ENGINE_TIMEOUT_MS})` },
     { name: 'engine-restarts', kind: 'integer', argument: '<n>', description: `exec: engines: how often a failing program is restarted before the command stops (default: ${DEFAULT_ENGINE_RESTARTS})` },
+    PROGRAM_CPU_OPTION,
     { name: 'emulate', kind: 'string', argument: '<f32|fixed:LSB|window:W:SEEDET>', description: 'cluster with single precision (f32) or tower energies quantised to LSB GeV (fixed:0.25) instead, or run the level-1 style window finder: W x W towers around local maxima of et >= SEEDET GeV (window = window:9:5)' },
     { name: 'format', kind: 'string', argument: '<jets|jsonl>', description: 'a jets file, or one JSON line per event (default: jets)' },
     { name: 'out', kind: 'string', argument: '<file>', description: 'output file, - for stdout (default: -)' },
@@ -68,6 +71,8 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
   if (execCommand === null && (args.values['engine-timeout-ms'] !== undefined || args.values['engine-restarts'] !== undefined)) {
     throw new UsageError('cluster: --engine-timeout-ms and --engine-restarts apply to --engine exec: only');
   }
+  if (execCommand === null && args.values['program-cpu'] !== undefined) throw new UsageError('cluster: --program-cpu applies to --engine exec: only');
+  const programCpu = parseProgramCpu(args.values['program-cpu'] as string | undefined, 'cluster');
   const timeoutMs = (args.values['engine-timeout-ms'] as number | undefined) ?? DEFAULT_ENGINE_TIMEOUT_MS;
   const maxRestarts = (args.values['engine-restarts'] as number | undefined) ?? DEFAULT_ENGINE_RESTARTS;
   if (!(timeoutMs >= 1)) throw new UsageError(`cluster: --engine-timeout-ms must be at least 1, got ${timeoutMs}`);
@@ -78,6 +83,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     timeoutMs,
     maxRestarts,
     onFault: (line) => io.stderr.write(`jetlag cluster: ${line}\n`),
+    programCpu,
   };
   const settings = clusterSettingsFrom(args, 'cluster');
   const pileup = pileupSettingsFrom(args, 'cluster');
