@@ -3,11 +3,13 @@
 // node dist/bench/exec-pipe.bench.js [--quick] after npm run build):
 //   1. builds the example into a temporary folder (Debian's protobuf; skipped with a line when
 //      it cannot be built);
-//   2. closed loop, 1 worker, alternating rounds, then 2 workers: per event the pipe's cost,
-//      round trip (jetlag writes the event -> jetlag has read the whole answer) minus the
-//      program's own time (cluster_time_ns), p50 and p99 of the per-event differences;
+//   2. closed loop, 1 worker, rounds, then 2 workers: per event the pipe's cost, round trip
+//      (jetlag writes the event -> jetlag has read the whole answer) minus the program's own
+//      time (cluster_time_ns), p50 and p99 of the per-event differences; each round twice in a
+//      row, without and with --program-cpu same (each worker and its program on one CPU), so
+//      the median of the rounds' ratios of the two p50s is paired;
 //   3. open loop, 1 worker (the default in an open loop on 2 cores) at a quarter of what one
-//      worker sustains: the same figures with the program idle between events;
+//      worker sustains: the same figures with the program idle between events, the same pairs;
 //   4. the program's own time against the WASM engine's service time on the same events,
 //      closed loop, 1 worker: p50, p99 and the median of the per-event ratios;
 //   5. the machine's floor at the moment: exec-pipe-floor.c, a C parent and a C child on a
@@ -71,6 +73,14 @@ function buildExample(): string | null {
   }
 }
 
+/** the rounds with --program-cpu same beside the default ones */
+interface PairedRounds {
+  anyCpu: ProgramRound[];
+  sameCpu: ProgramRound[];
+  /** median over the rounds of pipe p50 with --program-cpu same / without */
+  medianPipeP50Ratio: number | null;
+}
+
 interface ProgramRound {
   /** the pipe's cost when the scheduler was least in the way, to set beside the floor's p10 */
   pipeP10Us: number | null;
@@ -120,20 +130,34 @@ if (program !== null) {
     program: { argv: [program], label: `exec:${program}`, timeoutMs: 60_000, maxRestarts: 0, tolerance: null },
   };
 
+  /** `count` rounds of `options`, each once without and once with --program-cpu same */
+  const pairedRounds = async (what: string, options: RunOptions, count: number): Promise<PairedRounds> => {
+    const paired: PairedRounds = { anyCpu: [], sameCpu: [], medianPipeP50Ratio: null };
+    const ratios: number[] = [];
+    for (let r = 0; r < count; r++) {
+      const anyCpu = programRound(await timedRun(options));
+      line(describeRound(`${what}, round ${r + 1}`, anyCpu));
+      const sameCpu = programRound(await timedRun({ ...options, program: { ...base.program!, programCpu: 'same' } }));
+      line(describeRound(`${what}, round ${r + 1}, --program-cpu same`, sameCpu));
+      paired.anyCpu.push(anyCpu);
+      paired.sameCpu.push(sameCpu);
+      if (anyCpu.pipeP50Us !== null && sameCpu.pipeP50Us !== null && anyCpu.pipeP50Us > 0) ratios.push(sameCpu.pipeP50Us / anyCpu.pipeP50Us);
+    }
+    paired.medianPipeP50Ratio = ratios.length > 0 ? median(ratios) : null;
+    line(`${what}: pipe's cost p50 with --program-cpu same / without, median of ${ratios.length} paired rounds: ${paired.medianPipeP50Ratio?.toFixed(2) ?? '—'}; ` +
+      `medians of the rounds' p50s ${us(median(paired.anyCpu.map((x) => x.pipeP50Us ?? NaN)))} µs without, ${us(median(paired.sameCpu.map((x) => x.pipeP50Us ?? NaN)))} µs with`);
+    return paired;
+  };
+
   // 2. closed loop
-  const closedOne: ProgramRound[] = [];
-  for (let r = 0; r < rounds; r++) {
-    closedOne.push(programRound(await timedRun({ ...base, workers: 1 })));
-    line(describeRound(`closed loop, 1 worker, round ${r + 1}`, closedOne[r]));
-  }
-  const closedTwo = programRound(await timedRun({ ...base, workers: 2 }));
-  line(describeRound('closed loop, 2 workers', closedTwo));
-  results.closedLoop = { events, meanTowers, oneWorkerRounds: closedOne, twoWorkers: closedTwo };
+  const closedOnePaired = await pairedRounds('closed loop, 1 worker', { ...base, workers: 1 }, rounds);
+  const closedOne = closedOnePaired.anyCpu;
+  const closedTwo = await pairedRounds('closed loop, 2 workers', { ...base, workers: 2 }, rounds);
+  results.closedLoop = { events, meanTowers, oneWorker: closedOnePaired, twoWorkers: closedTwo };
 
   // 3. open loop at a quarter of one worker's closed-loop rate
   const rateHz = median(closedOne.map((round) => round.eventsPerSecond)) / 4;
-  const open = programRound(await timedRun({ ...base, workers: 1, arrival: { kind: 'fixed', rateHz } }));
-  line(describeRound(`open loop, 1 worker at ${rateHz.toFixed(1)} Hz`, open));
+  const open = await pairedRounds(`open loop, 1 worker at ${rateHz.toFixed(1)} Hz`, { ...base, workers: 1, arrival: { kind: 'fixed', rateHz } }, rounds);
   results.openLoop = { rateHz, ...open };
 
   // 4. the program's own time against the engine's, event by event
