@@ -17,13 +17,13 @@ import { inStart, outStatus, jetKt2, jetY, jetPhi, jetPx, jetPy, jetPz, jetE, je
   finalOrder, finalScratch, finalPt, groomJetPt, groomPx, groomPy, groomPz, groomE, groomPt, groomY,
   groomPhi, groomMass, groomTowers, groomSubjets, groomZ, groomDeltaR, nodeTowers, nodeParentA,
   nodeParentB, inIndex, inEt, evIndex, evEt, cellTotal, getF64, setF64, getI32, setI32 } from './layout';
-import { setBeamsOff, threshold, TWO_PI } from './settings';
-import { selectTowers } from './input';
+import { setBeamsOff, TWO_PI } from './settings';
+import { selectTowers, towerKept } from './input';
 import { pairCluster, pairJetCount } from './groom-pairs';
 import { clusterTowers, finalCount, jetCount } from './sequence';
 import { deltaR2 } from './kinematics';
 import { sortPermutation } from './sort';
-import { MIN_ET, STATUS_OK, GROOM_TRIM, GROOM_SOFT_DROP, GROOM_REGION_JET_PT, GROOM_REGION_PX, GROOM_REGION_PY,
+import { STATUS_OK, GROOM_TRIM, GROOM_SOFT_DROP, GROOM_REGION_JET_PT, GROOM_REGION_PX, GROOM_REGION_PY,
   GROOM_REGION_PZ, GROOM_REGION_ENERGY, GROOM_REGION_PT, GROOM_REGION_RAPIDITY, GROOM_REGION_PHI, GROOM_REGION_MASS,
   GROOM_REGION_TOWERS, GROOM_REGION_SUBJETS, GROOM_REGION_ZG, GROOM_REGION_DELTA_RG } from './shared-constants';
 
@@ -101,7 +101,7 @@ function selectConstituents(start: i32, end: i32): i32 {
     const index = getI32(inIndex, k);
     if (<u32>index >= total || index <= previous) return selectTowers(start, end);
     const et = getF64(inEt, k);
-    if (et > threshold && et >= MIN_ET) {
+    if (towerKept(et)) {
       setI32(evIndex, n, index);
       setF64(evEt, n, et);
       n++;

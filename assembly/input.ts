@@ -14,6 +14,12 @@ import { MIN_ET, STATUS_INDEX_OUTSIDE, STATUS_INDEX_REPEATED } from './shared-co
 
 let indexBits: i32 = 0;
 
+/** Whether a tower enters clustering (spec section 1): above the threshold and not below 1e-150 GeV. */
+// @ts-ignore: decorator
+@inline export function towerKept(et: f64): bool {
+  return et > threshold && et >= MIN_ET;
+}
+
 export function initInput(): void {
   indexBits = 0;
   while ((1 << indexBits) < cellTotal) indexBits++;
@@ -51,7 +57,7 @@ export function selectTowers(start: i32, end: i32): i32 {
     const index = getI32(inIndex, k);
     const et = getF64(inEt, k);
     if (<u32>index >= total) return STATUS_INDEX_OUTSIDE;
-    if (et > threshold && et >= MIN_ET) {
+    if (towerKept(et)) {
       setI32(sortIndex, n, index);
       setF64(sortEt, n, et);
       n++;
