@@ -13,6 +13,8 @@ import { parseArgs } from '../host/cli/args.js';
 import { runOptionsFrom, spec as runSpec } from '../host/cli/commands/run.js';
 import { main as clusterMain } from '../host/cli/commands/cluster.js';
 import { UsageError } from '../host/errors.js';
+import { ExecEngineError } from '../host/pipeline/exec-error.js';
+import { cpusOfList } from '../host/pipeline/exec-cpu.js';
 import type { ExecWorkerConfig } from '../host/pipeline/exec-run-contract.js';
 import type { ClusterSettings } from '../host/types.js';
 import { fakeIo } from './support/command-io.js';
@@ -88,6 +90,21 @@ describe('run --program-cpu same', () => {
   }, 120_000);
 });
 
+describe('run --program-cpu same where it cannot be done', () => {
+  it('stops the run with one line naming taskset when it cannot be run', async () => {
+    const path = process.env.PATH;
+    // the pool's threads take jetlag's environment when they start, so the programs they run find no taskset
+    process.env.PATH = join(dir, 'no-such-folder');
+    try {
+      const run = runEvents({ input, workers: 1, check: NONE, settings: SETTINGS, progress: null, program: noting(join(dir, 'unused'), 'well', -1, 'same') });
+      await expect(run).rejects.toThrow(ExecEngineError);
+      await expect(run).rejects.toThrow(/^exec:faulty-engine well: --program-cpu same: cannot hold worker 0 on CPU \d+ with taskset -pc \d+ \d+ \(util-linux\): .*ENOENT$/);
+    } finally {
+      process.env.PATH = path;
+    }
+  }, 60_000);
+});
+
 describe('cluster --program-cpu same', () => {
   it.skipIf(!severalCpus)('holds the program on one CPU, and gives the command\'s thread its CPUs back at the end', async () => {
     const before = ownCpus();
@@ -100,6 +117,14 @@ describe('cluster --program-cpu same', () => {
     expect(notedCpus(notes)[0]).toMatch(/^\d+$/);
     expect(ownCpus()).toBe(before);
   }, 60_000);
+});
+
+describe('the allowed CPUs as /proc lists them', () => {
+  // the list format of Cpus_allowed_list: proc(5), "Cpus_allowed_list" (from memory)
+  it('reads ranges and single CPUs', () => {
+    expect(cpusOfList('0-2,5\n')).toEqual([0, 1, 2, 5]);
+    expect(cpusOfList('3')).toEqual([3]);
+  });
 });
 
 describe('--program-cpu on the command line', () => {

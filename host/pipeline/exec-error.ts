@@ -8,3 +8,15 @@ export class ExecEngineError extends Error {
     this.name = 'ExecEngineError';
   }
 }
+
+/**
+ * An error from a pool worker comes back as a plain Error (structured cloning keeps only the
+ * message of a class of our own): one whose message is a program's line, which starts with
+ * its label, is that program's ExecEngineError again.
+ */
+export function asProgramError(error: unknown, label: string): unknown {
+  if (error instanceof Error && !(error instanceof ExecEngineError) && (error.message.startsWith(`${label}: `) || error.message.startsWith(`${label} failed `))) {
+    return new ExecEngineError(error.message);
+  }
+  return error;
+}

@@ -35,6 +35,7 @@ import type { Grid } from '../types.js';
 import { planRun, type RunOptions } from './run-plan.js';
 import { openOutputs, progressBytesTotal, refuseUnusableEngine, workerConfigOf } from './run-setup.js';
 import { summarize } from './run-summary.js';
+import { asProgramError } from './exec-error.js';
 
 export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const plan = planRun(options);
@@ -66,7 +67,8 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
     deliver: (outcome) => delivery.deliver(outcome),
   });
   // threads and engines are made before the clock starts: start-up is not throughput
-  await pool.warmUp(plan.workers);
+  // a program that cannot be started (or held on its CPU) stops the run with its own one line
+  await pool.warmUp(plan.workers).catch((error: unknown) => { throw program ? asProgramError(error, program.label) : error; });
   const feedPlan = { batch: plan.batch, shard: plan.shard, maxEvents: options.maxEvents, signal: options.signal ? AbortSignal.any([options.signal, engineStop.signal]) : engineStop.signal };
   const feed = schedule.openLoop
     ? new OpenLoopFeed({ ...feedPlan, workers: plan.workers, maxRecordBytes: DEFAULT_MAX_RECORD_BYTES, cpuWaitPerEvent: options.cpuWaitPerEvent ?? false }, schedule, pool, delivery)
