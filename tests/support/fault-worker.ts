@@ -16,6 +16,9 @@
 //   JETLAG_TEST_KILL=PERMILLE:SEED the thread exits part way through the batches that
 //                                 kill-points.ts picks (about PERMILLE in 1000): random points
 //                                 of a run, but the same ones every time
+//   JETLAG_TEST_STUB_SCALING=NS:EXPONENT a stub clusterer whose cost grows with the event's
+//                                 towers: it spins NS·N^EXPONENT ns, N the towers that enter
+//                                 clustering (et above the threshold, spec section 1)
 //   JETLAG_TEST_STUB_STALL=E:MS   event number E sleeps MS ms inside its timed clustering, once
 //                                 per worker thread (a stalled worker)
 //   JETLAG_TEST_SERVE_DELAY_MS=MS an open-loop serve task sleeps MS ms before it takes its seat
@@ -26,6 +29,7 @@ import { killsBatch, killSlot } from './kill-points.js';
 import type { WorkerHooks } from '../../host/pipeline/cluster-batch.js';
 import { STAGE_BIN, STAGE_CHECK, STAGE_CLUSTER, STAGE_DECODE, STAGE_ENCODE, type BatchTask } from '../../host/pipeline/worker-contract.js';
 import { emptyJetSet } from '../../host/formats/jets-codec.js';
+import { MIN_ET } from '../../host/clustering/grid.js';
 import { DEFAULT_SETTINGS, type Clusterer, type JetSet } from '../../host/types.js';
 
 interface PlantedFault { kind: 'throw' | 'exit' | 'stall'; batch: number; ms: number }
@@ -78,6 +82,11 @@ function hooksFromEnvironment(): WorkerHooks {
   }
   const stubUs = process.env.JETLAG_TEST_STUB_US;
   if (stubUs !== undefined) hooks.clusterer = () => spinningClusterer(Number(stubUs));
+  const stubScaling = process.env.JETLAG_TEST_STUB_SCALING;
+  if (stubScaling !== undefined) {
+    const [coefficientNs, exponent] = stubScaling.split(':').map(Number);
+    hooks.clusterer = () => scalingClusterer(coefficientNs, exponent);
+  }
   const stall = process.env.JETLAG_TEST_STUB_STALL;
   if (stall !== undefined) {
     const [event, ms] = stall.split(':').map(Number);
@@ -107,6 +116,24 @@ function spinningClusterer(us: number): Clusterer {
     settings: { ...DEFAULT_SETTINGS },
     cluster(): JetSet {
       const until = performance.now() + us / 1000;
+      while (performance.now() < until) { /* the stub's cost */ }
+      return emptyJetSet();
+    },
+  };
+}
+
+/** A clusterer whose cost is c·N^exponent: it spins that many ns on the clock, from its call. */
+function scalingClusterer(coefficientNs: number, exponent: number): Clusterer {
+  const settings = { ...DEFAULT_SETTINGS };
+  return {
+    name: `stub-${coefficientNs}ns-N^${exponent}`,
+    settings,
+    cluster(_towerIndex: Int32Array, towerEt: Float64Array): JetSet {
+      const start = performance.now();
+      // the N the run tallies: towers above the threshold and not vanishingly small
+      let towers = 0;
+      for (let t = 0; t < towerEt.length; t++) if (towerEt[t] > settings.threshold && towerEt[t] >= MIN_ET) towers++;
+      const until = start + (coefficientNs * towers ** exponent) / 1e6;
       while (performance.now() < until) { /* the stub's cost */ }
       return emptyJetSet();
     },
