@@ -9,6 +9,8 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { runEvents } from '../host/pipeline/run.js';
 import { formatReport } from '../host/measure/report.js';
+import { mergeSummaries } from '../host/measure/summary-merge.js';
+import type { RunSummary } from '../host/measure/summary.js';
 import { parseArgs } from '../host/cli/args.js';
 import { runOptionsFrom, spec as runSpec } from '../host/cli/commands/run.js';
 import { main as clusterMain } from '../host/cli/commands/cluster.js';
@@ -87,6 +89,18 @@ describe('run --program-cpu same', () => {
     expect(cpus.length).toBeGreaterThan(0);
     for (const cpu of cpus) expect(cpu).toMatch(/^\d+$/);
     expect(new Set(cpus).size).toBe(cpus.length);
+  }, 120_000);
+});
+
+describe('shards run with and without --program-cpu same', () => {
+  it('are not merged: their pipes were timed differently', async () => {
+    const shard = (index: number, programCpu: 'same' | 'any') => runEvents({
+      input, workers: 1, check: NONE, settings: SETTINGS, progress: null, shard: { index, count: 2 },
+      program: noting(join(dir, `merge-${index}`), 'well', -1, programCpu),
+    });
+    const shards = [await shard(0, 'same'), await shard(1, 'any')];
+    expect(() => mergeSummaries(shards.map((summary, k) => ({ name: `shard ${k}`, summary: JSON.parse(JSON.stringify(summary)) as RunSummary }))))
+      .toThrow(/shard 1: configuration differs from shard 0: --program-cpu is "any", there "same"/);
   }, 120_000);
 });
 
