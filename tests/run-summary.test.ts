@@ -147,7 +147,7 @@ describe('merged summaries', () => {
   it('refuse a summary of a version this jetlag does not read, in one line', () => {
     const old = { ...asRead(render(tallyOf(evens), 0, 2)), version: 1 } as unknown as RunSummary;
     expect(() => mergeSummaries([{ name: 'old.json', summary: old }]))
-      .toThrow(/^old\.json: summary version 1, this jetlag reads version 2 only \(rerun that shard with this jetlag\)$/);
+      .toThrow(/^old\.json: summary version 1, this jetlag reads versions 2 and 3 only \(rerun that shard with this jetlag\)$/);
   });
 });
 

@@ -7,6 +7,9 @@ import type { LatencyStats } from './latency.js';
 import type { RunSummary } from './summary.js';
 import type { CpuWaitFigures } from './harness-figures.js';
 import { PILEUP_STAGES, type PileupStage } from './run-tally.js';
+import { offeredText, saturationCause } from './saturation-figures.js';
+import { describePileup } from '../clustering/pileup/settings.js';
+import { describeGrooming, groomingIsOn } from '../clustering/grooming/settings.js';
 
 /** the pileup chain's stages as the latency table names them (the HTML report's too) */
 export const PILEUP_STAGE_LABELS: Record<PileupStage, string> = {
@@ -65,14 +68,19 @@ function headerLine(summary: RunSummary): string {
   const c = summary.configuration;
   const s = c.settings;
   const g = c.grid;
-  const loop = c.arrival.mode === 'closed'
-    ? 'closed loop'
-    : `open loop ${c.arrival.mode === 'poisson' ? 'Poisson' : 'fixed'} ${grouped(c.arrival.rateHz ?? 0)} Hz`;
+  // merged shards ran side by side, each offered the rate: the farm was offered their sum (the rate line's figure)
+  const shardsRun = summary.shards.length;
+  const rateHz = c.arrival.rateHz ?? 0;
+  const offered = shardsRun > 1 ? `${grouped(rateHz)} Hz per shard, ${offeredText(grouped(rateHz * shardsRun), shardsRun)}` : `${grouped(rateHz)} Hz`;
+  const loop = c.arrival.mode === 'closed' ? 'closed loop' : `open loop ${c.arrival.mode === 'poisson' ? 'Poisson' : 'fixed'} ${offered}`;
+  const pileup = describePileup(c.pileup);
+  const grooming = c.grooming && groomingIsOn(c.grooming) ? describeGrooming(c.grooming) : '';
+  const chain = (pileup ? ` · pileup ${pileup}` : '') + (grooming ? ` · grooming ${grooming}` : '');
   const shardText = summary.shards.length === 1 && c.shard.count === 1
     ? ''
     : ` · shards ${summary.shards.map((x) => x.index).join(',')} of ${c.shard.count}`;
   return `${c.file} · ${algorithmName(s.p)} p=${s.p} R=${s.radius} ${s.recombination === 'wta' ? 'WTA' : 'E-scheme'}` +
-    ` ptMin ${s.ptMin} GeV threshold ${s.threshold} GeV · grid η ${g.etaMin}..${g.etaMax} ${g.etaBins}×${g.phiBins}` +
+    ` ptMin ${s.ptMin} GeV threshold ${s.threshold} GeV · grid η ${g.etaMin}..${g.etaMax} ${g.etaBins}×${g.phiBins}${chain}` +
     ` · engine ${c.engine}${c.programCpu === 'same' ? ' (each worker and its program held on one CPU)' : ''} · ${c.workers} worker${c.workers === 1 ? '' : 's'}, batch ${c.batch} · ${loop}${shardText}`;
 }
 
@@ -180,9 +188,9 @@ export function formatReport(summary: RunSummary): string {
   lines.push(throughputLine(summary));
   const saturation = summary.saturation;
   if (saturation) {
-    lines.push(saturation.saturated
-      ? `  SATURATED   offered ${grouped(saturation.offeredHz)} Hz, sustained ${grouped(saturation.sustainedHz)} Hz: the pool did not keep up, the queue grew through the run`
-      : `  rate        offered ${grouped(saturation.offeredHz)} Hz, sustained ${grouped(saturation.sustainedHz)} Hz`);
+    const rates = `offered ${offeredText(grouped(saturation.offeredHz), saturation.shards)}, sustained ${grouped(saturation.sustainedHz)} Hz` +
+      (saturation.shards > 1 ? ` (${saturation.sustainedBasis})` : '');
+    lines.push(saturation.saturated ? `  SATURATED   ${rates}: the pool did not keep up, ${saturationCause(saturation)}` : `  rate        ${rates}`);
   }
   if (summary.budget) {
     const b = summary.budget;

@@ -5,6 +5,7 @@ import { addToleranceFigures, emptyToleranceFigures, type FailedEvent, type Tole
 import { LatencyRecorder } from './latency.js';
 import { MultiplicityBins } from './multiplicity-fit.js';
 import { combineMachineLoads, type MachineLoad, type MachineLoadProbe } from './machine-load.js';
+import { runSaturation, type Saturation } from './saturation-figures.js';
 import type { TowerCounts } from '../types.js';
 import type { JetDifference } from '../validate/bit-exact.js';
 
@@ -46,18 +47,8 @@ export interface CheckedDifference extends JetDifference {
   event: number;
 }
 
-/**
- * A sustained rate this far below the offered one counts as saturation: a run that keeps up
- * still falls short by its last event's latency over the run's length, and Poisson arrivals
- * wander; 5 % leaves room for both on runs of a second or more.
- */
-export const SATURATION_SHORTFALL = 0.05;
-
-export interface Saturation {
-  offeredHz: number;
-  sustainedHz: number;
-  saturated: boolean;
-}
+// the open loop's rates and the saturation verdict live in saturation-figures.ts
+export { SATURATION_SHORTFALL, type Saturation } from './saturation-figures.js';
 
 /**
  * With --cpu-wait-per-event, an event whose threads spent longer than this on a run queue counts
@@ -188,11 +179,7 @@ export class RunTally {
    * whether the backlog of due events grew through the run. Saturated when either says so.
    */
   recordRates(offeredHz: number, sustainedHz: number, backlogGrew: boolean): void {
-    this.saturation = {
-      offeredHz,
-      sustainedHz,
-      saturated: backlogGrew || sustainedHz < offeredHz * (1 - SATURATION_SHORTFALL),
-    };
+    this.saturation = runSaturation(offeredHz, sustainedHz, backlogGrew);
   }
 
   /** Once, right after the timed run: the machine as measured (the workers' busy time from the stage times). */
@@ -274,15 +261,7 @@ export class RunTally {
       addToleranceFigures(this.tolerance, other.tolerance);
     }
     this.overBudget += other.overBudget;
-    // shards run side by side: their rates add, and one saturated shard saturates the whole
-    if (other.saturation) {
-      const own = this.saturation;
-      this.saturation = own === null ? { ...other.saturation } : {
-        offeredHz: own.offeredHz + other.saturation.offeredHz,
-        sustainedHz: own.sustainedHz + other.saturation.sustainedHz,
-        saturated: own.saturated || other.saturation.saturated,
-      };
-    }
+    // the shards' rates are merged with their wall times, which a tally does not hold (summary-merge.ts)
     if (other.machineLoad) this.machineLoad = this.machineLoad ? combineMachineLoads(this.machineLoad, other.machineLoad) : { ...other.machineLoad };
   }
 }

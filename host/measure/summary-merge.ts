@@ -8,7 +8,8 @@ import { LatencyRecorder } from './latency.js';
 import { restoreHarnessFigures } from './harness-figures.js';
 import { toleranceFiguresOf } from './program-figures.js';
 import { PILEUP_STAGES, RunTally, STAGES, type PileupStage } from './run-tally.js';
-import { renderSummary, SUMMARY_VERSION, type MachineInfo, type RunConfiguration, type RunSummary } from './summary.js';
+import { mergedSaturation, readSaturation, type Saturation } from './saturation-figures.js';
+import { MERGE_READS_VERSIONS, renderSummary, SUMMARY_VERSION, type MachineInfo, type RunConfiguration, type RunSummary } from './summary.js';
 
 /** Rebuilds the tally of a summary (histograms decoded, counts and lists copied). */
 export function tallyFromSummary(summary: RunSummary, where = 'summary'): RunTally {
@@ -54,7 +55,7 @@ export function tallyFromSummary(summary: RunSummary, where = 'summary'): RunTal
     tally.multiplicity.sumTowers[entry.bin] = entry.sumTowers;
   }
   tally.overBudget = summary.budget?.over ?? 0;
-  tally.saturation = summary.saturation ? { ...summary.saturation } : null;
+  tally.saturation = summary.saturation ? readSaturation(summary.saturation) : null;
   tally.machineLoad = summary.machineLoad ? { ...summary.machineLoad } : null;
   return tally;
 }
@@ -62,7 +63,10 @@ export function tallyFromSummary(summary: RunSummary, where = 'summary'): RunTal
 /** What must agree between summaries for their sum to mean anything, named as the reader knows it. */
 function mergeFields(configuration: RunConfiguration): Record<string, unknown> {
   const { grid, settings, batch, arrival, budgetUs, check, engine, maxEvents } = configuration;
-  return { 'input label': configuration.input?.label, grid, settings, pileup: configuration.pileup ?? null, batch, arrival, budgetUs, check, engine, '--events': maxEvents, 'shard count': configuration.shard.count, '--program-cpu': configuration.programCpu ?? 'any' };
+  return {
+    'input label': configuration.input?.label, grid, settings, pileup: configuration.pileup ?? null, grooming: configuration.grooming ?? null,
+    batch, arrival, budgetUs, check, engine, '--events': maxEvents, 'shard count': configuration.shard.count, '--program-cpu': configuration.programCpu ?? 'any',
+  };
 }
 
 function mergeKey(configuration: RunConfiguration): string {
@@ -102,8 +106,8 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
     if (summary?.format !== 'jetlag-run-summary' || typeof summary.configuration !== 'object') {
       throw new Error(`${name}: not a jetlag run summary (format ${JSON.stringify(summary?.format)})`);
     }
-    if (summary.version !== SUMMARY_VERSION) {
-      throw new Error(`${name}: summary version ${JSON.stringify(summary.version)}, this jetlag reads version ${SUMMARY_VERSION} only (rerun that shard with this jetlag)`);
+    if (!(MERGE_READS_VERSIONS as readonly unknown[]).includes(summary.version)) {
+      throw new Error(`${name}: summary version ${JSON.stringify(summary.version)}, this jetlag reads versions ${MERGE_READS_VERSIONS.join(' and ')} only (rerun that shard with this jetlag)`);
     }
     const problem = shapeProblem(summary);
     if (problem !== null) throw new Error(`${name}: not a jetlag run summary: ${problem}`);
@@ -117,9 +121,16 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
   let partial = false;
   const reasons: string[] = [];
   const machines: MachineInfo[] = [];
+  const saturations: Saturation[] = [];
   for (const { name, summary } of summaries) {
     if (mergeKey(summary.configuration) !== key) {
-      throw new Error(`${name}: configuration differs from ${first.name}: ${firstDifference(first.summary.configuration, summary.configuration)} (input label, grid, settings, batch, arrivals, budget, check, engine, --events and shard count must agree)`);
+      throw new Error(`${name}: configuration differs from ${first.name}: ${firstDifference(first.summary.configuration, summary.configuration)} (input label, grid, settings, pileup steps, grooming, batch, arrivals, budget, check, engine, --events and shard count must agree)`);
+    }
+    // shards of one job run alike: rates and latencies of different pools do not add into one run's
+    const workers = summary.configuration.workers;
+    const firstWorkers = first.summary.configuration.workers;
+    if (workers !== firstWorkers) {
+      throw new Error(`${name}: ran ${workers} worker${workers === 1 ? '' : 's'}, ${first.name} ${firstWorkers}: shards of one job must run the same number of workers`);
     }
     const own = summary.configuration.input?.records ?? null;
     if (own !== null && records !== null && own !== records) {
@@ -131,7 +142,9 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
       if (other !== undefined) throw new Error(`${name}: shard ${shard.index}/${shard.count} is already in ${other}`);
       seen.set(shard.index, name);
     }
-    tally.merge(tallyFromSummary(summary, name));
+    const shardTally = tallyFromSummary(summary, name);
+    if (shardTally.saturation) saturations.push(shardTally.saturation);
+    tally.merge(shardTally);
     wallSeconds = Math.max(wallSeconds, summary.throughput.wallSeconds);
     if (summary.partial) {
       partial = true;
@@ -141,6 +154,7 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
       if (!machines.some((m) => JSON.stringify(m) === JSON.stringify(machine))) machines.push(machine);
     }
   }
+  tally.saturation = mergedSaturation(saturations, tally.read, wallSeconds);
   const shardCount = first.summary.configuration.shard.count;
   const shards = [...seen.keys()].sort((a, b) => a - b).map((index) => ({ index, count: shardCount }));
   if (shards.length < shardCount) {

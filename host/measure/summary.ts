@@ -7,7 +7,8 @@ import os from 'node:os';
 import { LatencyRecorder, type EncodedLatency, type LatencyStats } from './latency.js';
 import { fitScaling, scalingSamples, type Scaling } from './scaling-fit.js';
 import { harnessFigures, harnessHistograms, type HarnessFigures } from './harness-figures.js';
-import { PILEUP_STAGES, STAGES, type PileupStage, type CheckedDifference, type FailedBatch, type InvalidEvent, type RunTally, type Saturation, type Stage } from './run-tally.js';
+import { PILEUP_STAGES, STAGES, type PileupStage, type CheckedDifference, type FailedBatch, type InvalidEvent, type RunTally, type Stage } from './run-tally.js';
+import type { Saturation } from './saturation-figures.js';
 import type { MachineLoad } from './machine-load.js';
 import { summarizeTolerance, type FailedEvent, type ToleranceSummary } from './program-figures.js';
 import { plainHistograms, type PlainHistogram } from './plain-histogram.js';
@@ -60,11 +61,15 @@ export interface RunConfiguration {
 }
 
 /**
- * The summary's layout version; merge reads this one only. 2: latency.service (was cluster),
- * latency.wait/return/endToEnd open loop only, harness.dispatchLateness, saturation, scaling
- * (was multiplicity), towersPerEvent, machineLoad.
+ * The summary's layout version. 2: latency.service (was cluster), latency.wait/return/endToEnd
+ * open loop only, harness.dispatchLateness, saturation, scaling (was multiplicity),
+ * towersPerEvent, machineLoad. 3: saturation's causes, shards and basis; findRate's workers
+ * and ceiling; scanWorkers' service_p50_us and service_mean_us (were cluster_p50_us and an
+ * always-empty endToEnd_p99_us).
  */
-export const SUMMARY_VERSION = 2;
+export const SUMMARY_VERSION = 3;
+/** The versions merge reads: version 2 lacks only what merge fills in or does not read (saturation-figures.ts). */
+export const MERGE_READS_VERSIONS = [2, 3] as const;
 
 export interface TowersPerEvent {
   mean: number | null;
