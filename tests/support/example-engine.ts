@@ -1,8 +1,9 @@
 // Running an example engine program (examples/engines/) over invented events under the exec
 // driver, and holding its answers against the reference in tolerance mode (spec section 7).
 
-import { execFileSync } from 'node:child_process';
+import { execFile } from 'node:child_process';
 import { basename } from 'node:path';
+import { promisify } from 'node:util';
 import { ExecEngine, type ExecOutcome } from '../../host/pipeline/exec-engine.js';
 import { ReferenceClusterer } from '../../host/clustering/reference.js';
 import { DEFAULT_TOLERANCE, ToleranceMatcher } from '../../host/validate/tolerance-compare.js';
@@ -14,10 +15,22 @@ export interface ExampleRun {
   faults: string[];
 }
 
+/**
+ * Builds the example with its Makefile into `build` (Debian's protobuf), without holding up the
+ * event loop; when it fails, the error carries make's own messages.
+ */
+export async function buildExampleEngine(exampleDir: string, build: string): Promise<void> {
+  try {
+    await promisify(execFile)('make', ['-s', '-C', exampleDir, `BUILD=${build}`], { encoding: 'utf8' });
+  } catch (error) {
+    throw new Error(`building ${exampleDir} failed: ${(error as { stderr?: string }).stderr ?? (error as Error).message}`);
+  }
+}
+
 /** Builds the example with its Makefile into `build`, then sends it every event, one at a time. */
 export async function runExampleEngine(exampleDir: string, build: string, argv: string[], settings: ClusterSettings,
   events: readonly EventRecordFields[], timeoutMs: number, env?: Record<string, string>): Promise<ExampleRun> {
-  execFileSync('make', ['-s', '-C', exampleDir, `BUILD=${build}`], { stdio: ['ignore', 'ignore', 'inherit'] });
+  await buildExampleEngine(exampleDir, build);
   const faults: string[] = [];
   const engine = await ExecEngine.start({
     argv, env, label: `exec:${basename(argv[argv.length - 1])}`, grid: DEFAULT_GRID, settings, producer: 'jetlag tests',
