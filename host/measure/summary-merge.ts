@@ -124,7 +124,7 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
   const saturations: Saturation[] = [];
   for (const { name, summary } of summaries) {
     if (mergeKey(summary.configuration) !== key) {
-      throw new Error(`${name}: configuration differs from ${first.name}: ${firstDifference(first.summary.configuration, summary.configuration)} (input label, grid, settings, pileup steps, grooming, batch, arrivals, budget, check, engine, --events and shard count must agree)`);
+      throw new Error(`${name}: configuration differs from ${first.name}: ${firstDifference(first.summary.configuration, summary.configuration)} (input label, grid, settings, pileup steps, grooming, batch, arrivals, budget, check, engine, --events, shard count and --program-cpu must agree)`);
     }
     // shards of one job run alike: rates and latencies of different pools do not add into one run's
     const workers = summary.configuration.workers;
