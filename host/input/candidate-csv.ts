@@ -1,13 +1,15 @@
 // Candidate CSV of jets (candidate-reader.ts): a header, then one row per jet, rows of an
-// event together.
+// event together. The groomed pt and mass columns `jetlag export` writes are read too
+// (candidate-csv-groomed.ts).
 
 import { InputError } from '../errors.js';
 import { GROOMED_CSV_SUFFIXES } from '../formats/groomed-csv-columns.js';
 import { EVENT_CSV_COLUMNS, EVENT_CSV_SUFFIX } from '../formats/event-csv-columns.js';
 import type { CandidateEvent } from './candidate-reader.js';
+import { CsvGroomedColumns } from './candidate-csv-groomed.js';
 import { emptyEvent, JetColumns, MAX_CANDIDATE_JETS_PER_EVENT, quote, type Line } from './candidate-lines.js';
 
-/** the third: `jetlag export` of jets with pileup values (spec part two); the columns after m are not compared */
+/** the third: `jetlag export` of jets with pileup values (spec part two); its columns after m are not compared */
 export const CANDIDATE_CSV_HEADERS = ['event,pt,y,phi', 'event,pt,y,phi,m', 'event,pt,y,phi,m,ghosts,area,ptRaw,rho,etCut,killed,subtractedAway'] as const;
 
 const EVENT_NUMBER = /^[0-9]+$/;
@@ -19,6 +21,7 @@ export async function* csvEvents(input: AsyncGenerator<Line>, label: string, max
   /** the per-event columns at the end of an exported row: not compared, not checked */
   let eventColumns = 0;
   let columnNames: string[] = [];
+  let groomed = new CsvGroomedColumns([], 0);
   let headerSeen = false;
   let current: number | null = null;
   let currentOffset = 0;
@@ -26,7 +29,15 @@ export async function* csvEvents(input: AsyncGenerator<Line>, label: string, max
   let blankOffset = -1;
   let blankLine = 0;
   const finish = (): CandidateEvent => {
-    const out = currentError !== '' ? emptyEvent(current, currentOffset, currentError) : columns.take(current!, currentOffset, columnNames[4] === 'm');
+    let out: CandidateEvent;
+    if (currentError !== '') {
+      out = emptyEvent(current, currentOffset, currentError);
+      groomed.clear();
+    } else {
+      out = columns.take(current!, currentOffset, columnNames[4] === 'm');
+      const groomedColumns = groomed.take();
+      if (groomedColumns) out.groomed = groomedColumns;
+    }
     columns.count = 0;
     currentError = '';
     return out;
@@ -46,6 +57,7 @@ export async function* csvEvents(input: AsyncGenerator<Line>, label: string, max
       }
       columnNames = text.split(',');
       fields = columnNames.length;
+      groomed = new CsvGroomedColumns(columnNames, fields - eventColumns);
       headerSeen = true;
       continue;
     }
@@ -86,6 +98,7 @@ export async function* csvEvents(input: AsyncGenerator<Line>, label: string, max
       continue;
     }
     columns.push(Number(parts[1]), Number(parts[2]), Number(parts[3]), columnNames[4] === 'm' ? Number(parts[4]) : 0);
+    groomed.push(parts);
   }
   if (!headerSeen) throw new InputError(label, `missing header: expected "${CANDIDATE_CSV_HEADERS[0]}"`, undefined, 0, 1);
   if (current !== null) yield finish();

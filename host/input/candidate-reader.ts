@@ -14,11 +14,11 @@
 //               ignored. Every event has a line
 //               (a line can hold "jets":[]), so an event with no line is missing.
 //   CSV         header `event,pt,y,phi` or `event,pt,y,phi,m` (or `jetlag export`'s with the
-//               pileup columns after m, and the groomed columns after those, read but not
-//               compared: groomed values are compared from jets files and JSON lines; then
-//               cluster_time_ns and towers, skipped), then one row per jet, rows of
-//               an event together. CSV cannot list an event without jets, so an event with
-//               no rows has no jets.
+//               pileup columns after m, read but not compared; the groomed columns after
+//               those, of which each groomer's pt and m are read as the other formats'
+//               (candidate-csv-groomed.ts); then cluster_time_ns and towers, skipped), then
+//               one row per jet, rows of an event together. CSV cannot list an event
+//               without jets, so an event with no rows has no jets.
 //
 // API
 //   openCandidate(input, { fileLabel? }): Promise<CandidateSource>

@@ -25,6 +25,7 @@ import { describePileup, pileupStepsOn } from '../clustering/pileup/settings.js'
 import { DEFAULT_PILEUP_SETTINGS, DEFAULT_SETTINGS, NO_GROOMING, type ClusterSettings, type Grid, type GroomingSettings, type PileupSettings } from '../types.js';
 import { describeGrooming, groomingIsOn } from '../clustering/grooming/settings.js';
 import { GroomedAgreement, type GroomedAgreementReport } from './groomed-agreement.js';
+import { GroomedCoverage } from './groomed-coverage.js';
 import { ValidationAccumulator } from './validation-accumulator.js';
 import { TurnOnAccumulator, type TurnOnCurve, type TurnOnRequest } from './turn-on.js';
 import type { ValidationReport } from './validation-report.js';
@@ -154,6 +155,7 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
     options.note(`jetlag compare: the reference grooms ${describeGrooming(grooming ?? NO_GROOMING) || 'nothing'}; the candidate header names ${describeGrooming(headerGrooming) || 'no grooming'}`);
   }
   const groomed = new GroomedAgreement(settings.ptMin, tolerance.ptTol);
+  const groomedCoverage = new GroomedCoverage();
   let reference: ReturnType<typeof makeClusterer>;
   try {
     reference = makeClusterer(options.engine ?? 'reference', grid, { ...settings, ptMin: 0 }, null, pileup, 'compare', grooming);
@@ -263,6 +265,7 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
       accumulator.addCompared(event, matcher, jets, mine, mine.hasMass ? mine.mass : null);
       if (jets.trim && mine.groomed?.trim) groomed.add('trim', matcher, jets.pt, jets.trim, mine.groomed.trim);
       if (jets.softDrop && mine.groomed?.softdrop) groomed.add('softdrop', matcher, jets.pt, jets.softDrop, mine.groomed.softdrop);
+      groomedCoverage.add(jets, mine);
       // every event valid on both sides counts once in each curve (spec section 13)
       for (const curve of turnOnCurves) curve.add(jets.pt, jets.count, mine.pt, mine.count);
     }
@@ -278,6 +281,7 @@ export async function compareFiles(eventsPath: string, candidatePath: string, op
   } else {
     await candidateIterator.return(undefined as never);
   }
+  for (const line of groomedCoverage.notes(candidate.format)) options.note(line);
   return {
     report: accumulator.report(),
     settings,
