@@ -2,7 +2,7 @@
 import { describe, expect, it } from 'vitest';
 import { join } from 'node:path';
 import { runEvents } from '../host/pipeline/run.js';
-import type { RunOptions } from '../host/pipeline/run-plan.js';
+import { defaultWorkers, type RunOptions } from '../host/pipeline/run-plan.js';
 import { findRate, scanWorkers } from '../host/pipeline/studies.js';
 import { toyEvents, writeEventFile } from './support/run-files.js';
 import { tempDirForSuite } from './support/temp-dir.js';
@@ -24,10 +24,30 @@ describe('the rate search', () => {
     const closed = await runEvents(options);
     const found = await findRate(options, closed, 0.001, true, 3);
     expect(found.rateHz).toBeNull();
+    expect(found.atCeiling).toBe(false);
     expect(found.trials).toHaveLength(1);
     expect(found.trials[0].rateHz).toBeCloseTo(0.02 * closed.throughput.eventsPerSecond, 6);
     expect(found.trials[0].p99_us).toBeGreaterThan(0.001);
   });
+});
+
+describe('the rate search\'s workers and ceiling', () => {
+  it('runs the trials with the open loop\'s default workers when --workers is not given, and says how many', async () => {
+    const { workers: _given, ...unset } = options;
+    const closed = await runEvents(options);
+    const found = await findRate({ ...unset, maxEvents: 10 }, { ...closed, throughput: { ...closed.throughput, eventsPerSecond: 1000 } }, 1e9, false, 2);
+    expect(found.workers).toBe(defaultWorkers(true));
+  });
+
+  it('when the highest rate tried passes, gives it as a lower bound at the search\'s ceiling', async () => {
+    const closed = await runEvents(options);
+    // a ceiling of 1000 Hz, far below what one worker clusters these small events at
+    const found = await findRate({ ...options, maxEvents: 10 }, { ...closed, throughput: { ...closed.throughput, eventsPerSecond: 1000 } }, 1e9, false, 5);
+    expect(found.workers).toBe(1);
+    expect(found.trials.map((t) => t.rateHz)).toEqual([20, 1000]);
+    expect(found).toMatchObject({ rateHz: 1000, atCeiling: true });
+  });
+
 });
 
 describe('the worker scan', () => {
@@ -36,5 +56,12 @@ describe('the worker scan', () => {
     expect(scan.points.map((p) => p.workers)).toEqual([1, 2]);
     expect(scan.points[0].speedup).toBe(1);
     expect(scan.points[1].speedup).toBeCloseTo(scan.points[1].eventsPerSecond / scan.points[0].eventsPerSecond, 12);
+  });
+
+  it('gives each point\'s service time, the closed loop\'s per-event figure, and no end-to-end', async () => {
+    const scan = await scanWorkers(options, 1);
+    expect(Object.keys(scan.points[0]).sort()).toEqual(['eventsPerSecond', 'service_mean_us', 'service_p50_us', 'speedup', 'workers']);
+    expect(scan.points[0].service_p50_us).toBeGreaterThan(0);
+    expect(scan.points[0].service_mean_us).toBeGreaterThan(0);
   });
 });

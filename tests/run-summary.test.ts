@@ -178,8 +178,14 @@ describe('the report', () => {
 
   it('says on how many events a --find-rate trial\'s p99 rests when fewer than 1,000', () => {
     const summary = render(tallyOf([1, 2, 3]));
-    summary.findRate = { budgetUs: 500, rateHz: 40, trials: [{ rateHz: 40, p99_us: 300, saturated: false, withinBudget: true, events: 100 }, { rateHz: 2000, p99_us: 900, saturated: true, withinBudget: false, events: 100 }] };
-    expect(formatReport(summary)).toContain("find-rate   p99 within 500 µs up to 40 Hz (2 open-loop trials); each trial's p99 rests on only 100 events");
+    summary.findRate = { budgetUs: 500, workers: 1, rateHz: 40, atCeiling: false, trials: [{ rateHz: 40, p99_us: 300, saturated: false, withinBudget: true, events: 100 }, { rateHz: 2000, p99_us: 900, saturated: true, withinBudget: false, events: 100 }] };
+    expect(formatReport(summary)).toContain("find-rate   p99 within 500 µs up to 40 Hz (2 open-loop trials, 1 worker); each trial's p99 rests on only 100 events");
+  });
+
+  it('gives a --find-rate whose highest trial passed as a lower bound, with the trials\' workers', () => {
+    const summary = render(tallyOf([1, 2, 3]));
+    summary.findRate = { budgetUs: 500, workers: 3, rateHz: 2000, atCeiling: true, trials: [{ rateHz: 40, p99_us: 300, saturated: false, withinBudget: true, events: 1000 }, { rateHz: 2000, p99_us: 400, saturated: false, withinBudget: true, events: 1000 }] };
+    expect(formatReport(summary)).toContain("find-rate   p99 within 500 µs up to at least 2,000 Hz (the search's ceiling, the closed loop's events/s; 2 open-loop trials, 3 workers)\n");
   });
 
   it('says why there is no alpha', () => {

@@ -166,9 +166,12 @@ function findRateLine(summary: RunSummary): string | null {
   const f = summary.findRate;
   if (!f) return null;
   const lowest = Math.min(...f.trials.map((t) => t.rateHz));
+  const how = `${f.trials.length} open-loop trials, ${f.workers} worker${f.workers === 1 ? '' : 's'}`;
   const main = f.rateHz === null
-    ? `  find-rate   p99 over ${f.budgetUs} µs even at the lowest rate tried, ${grouped(lowest)} Hz`
-    : `  find-rate   p99 within ${f.budgetUs} µs up to ${grouped(f.rateHz)} Hz (${f.trials.length} open-loop trials)`;
+    ? `  find-rate   p99 over ${f.budgetUs} µs even at the lowest rate tried, ${grouped(lowest)} Hz (${how})`
+    : f.atCeiling
+      ? `  find-rate   p99 within ${f.budgetUs} µs up to at least ${grouped(f.rateHz)} Hz (the search's ceiling, the closed loop's events/s; ${how})`
+      : `  find-rate   p99 within ${f.budgetUs} µs up to ${grouped(f.rateHz)} Hz (${how})`;
   const fewest = Math.min(...f.trials.map((t) => t.events));
   return fewest < P99_MIN_EVENTS ? `${main}; each trial's p99 rests on only ${grouped(fewest)} events` : main;
 }

@@ -172,16 +172,25 @@ export interface RunSummary {
   scanWorkers?: ScanWorkersResult;
 }
 
+/** saturated: the pool did not sustain the rate (a failed trial whatever its p99) */
+export interface FindRateTrial { rateHz: number; p99_us: number | null; saturated: boolean; withinBudget: boolean; events: number }
+
 export interface FindRateResult {
   budgetUs: number;
+  /** the workers every trial ran (--workers, else the open loop's default) */
+  workers: number;
   /** highest rate tried whose end-to-end p99 stayed within the budget; null if none did */
   rateHz: number | null;
-  /** saturated: the pool did not sustain the rate (a failed trial whatever its p99) */
-  trials: { rateHz: number; p99_us: number | null; saturated: boolean; withinBudget: boolean; events: number }[];
+  /** the highest rate the search tries (the closed loop's events/s) passed: the rate is at least rateHz */
+  atCeiling: boolean;
+  trials: FindRateTrial[];
 }
 
+/** one closed-loop run: service time is its per-event figure (a closed loop has no end-to-end) */
+export interface ScanWorkersPoint { workers: number; eventsPerSecond: number; speedup: number; service_p50_us: number | null; service_mean_us: number | null }
+
 export interface ScanWorkersResult {
-  points: { workers: number; eventsPerSecond: number; speedup: number; cluster_p50_us: number | null; endToEnd_p99_us: number | null }[];
+  points: ScanWorkersPoint[];
 }
 
 export interface RenderContext {
