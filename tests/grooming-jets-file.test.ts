@@ -73,7 +73,7 @@ describe('jetlag export of a groomed jets file', () => {
 });
 
 describe('jetlag compare of an exported groomed CSV', () => {
-  it('reads the plain columns and agrees, the groomed columns read but not compared', async () => {
+  it('reads the plain columns and agrees; without --softdrop on the reference side no groomed figures', async () => {
     const events = join(dir, 'csv-events.pb');
     const jetsPath = join(dir, 'csv-jets.pb');
     const csvPath = join(dir, 'jets.csv');
