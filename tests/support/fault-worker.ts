@@ -16,6 +16,8 @@
 //   JETLAG_TEST_KILL=PERMILLE:SEED the thread exits part way through the batches that
 //                                 kill-points.ts picks (about PERMILLE in 1000): random points
 //                                 of a run, but the same ones every time
+//   JETLAG_TEST_STUB_SLEEP_US=US  a stub clusterer that sleeps US µs per event (Atomics.wait): a
+//                                 known cost in wall time that leaves the cores to the harness
 //   JETLAG_TEST_STUB_SCALING=NS:EXPONENT a stub clusterer whose cost grows with the event's
 //                                 towers: it spins NS·N^EXPONENT ns, N the towers that enter
 //                                 clustering (et above the threshold, spec section 1)
@@ -82,6 +84,8 @@ function hooksFromEnvironment(): WorkerHooks {
   }
   const stubUs = process.env.JETLAG_TEST_STUB_US;
   if (stubUs !== undefined) hooks.clusterer = () => spinningClusterer(Number(stubUs));
+  const stubSleepUs = process.env.JETLAG_TEST_STUB_SLEEP_US;
+  if (stubSleepUs !== undefined) hooks.clusterer = () => sleepingClusterer(Number(stubSleepUs));
   const stubScaling = process.env.JETLAG_TEST_STUB_SCALING;
   if (stubScaling !== undefined) {
     const [coefficientNs, exponent] = stubScaling.split(':').map(Number);
@@ -117,6 +121,21 @@ function spinningClusterer(us: number): Clusterer {
     cluster(): JetSet {
       const until = performance.now() + us / 1000;
       while (performance.now() < until) { /* the stub's cost */ }
+      return emptyJetSet();
+    },
+  };
+}
+
+/** A clusterer whose cost is known and takes no CPU: it sleeps `us` µs and finds no jets. */
+function sleepingClusterer(us: number): Clusterer {
+  const sleeper = new Int32Array(new SharedArrayBuffer(4));
+  return {
+    name: `stub-sleep-${us}us`,
+    settings: { ...DEFAULT_SETTINGS },
+    cluster(): JetSet {
+      // the deadline is the cost: a timed wait may end a little before it
+      const until = performance.now() + us / 1000;
+      for (let left = us / 1000; left > 0; left = until - performance.now()) Atomics.wait(sleeper, 0, 0, left);
       return emptyJetSet();
     },
   };
