@@ -5,8 +5,9 @@
 import { escapeHtml, formatNumber } from './escape.js';
 import type { LatencySeries, RunView } from './report-data.js';
 import type { LatencyStats } from '../measure/latency.js';
-import { PILEUP_STAGE_LABELS } from '../measure/report.js';
+import { P99_MIN_EVENTS, P999_MIN_EVENTS, PILEUP_STAGE_LABELS } from '../measure/report.js';
 import { PILEUP_STAGES } from '../measure/run-tally.js';
+import { saturationCause } from '../measure/saturation-figures.js';
 import { describePileup } from '../clustering/pileup/settings.js';
 import { describeGrooming } from '../clustering/grooming/settings.js';
 
@@ -120,7 +121,7 @@ export function latencyTable(runs: RunView[]): string {
       if (series === null) continue;
       const s = series.stats;
       const lead: [string, ...Cell[]] = several ? [name, run.name] : [name];
-      rows.push([...lead, s.count, s.mean_us, s.p50_us, s.p90_us, markSmall(series, 'p99_us', 1000), markSmall(series, 'p999_us', 10000), s.max_us]);
+      rows.push([...lead, s.count, s.mean_us, s.p50_us, s.p90_us, markSmall(s, 'p99_us', P99_MIN_EVENTS), markSmall(s, 'p999_us', P999_MIN_EVENTS), s.max_us]);
     }
   }
   const stageRows = (label: string, of: (run: RunView) => LatencyStats | null | undefined) => {
@@ -128,7 +129,7 @@ export function latencyTable(runs: RunView[]): string {
       const s = of(run);
       if (!s || s.count === 0) continue;
       const lead: [string, ...Cell[]] = several ? [label, run.name] : [label];
-      rows.push([...lead, s.count, s.mean_us, s.p50_us, s.p90_us, s.p99_us, s.p999_us, s.max_us]);
+      rows.push([...lead, s.count, s.mean_us, s.p50_us, s.p90_us, markSmall(s, 'p99_us', P99_MIN_EVENTS), markSmall(s, 'p999_us', P999_MIN_EVENTS), s.max_us]);
     }
   };
   for (const stage of ['decode', 'bin', 'cluster', 'check', 'encode']) {
@@ -143,11 +144,10 @@ export function latencyTable(runs: RunView[]): string {
 }
 
 /** A tail percentile on too few events to mean much is marked so (common practice: ~10 events beyond it). */
-function markSmall(series: LatencySeries | null, key: 'p99_us' | 'p999_us', enough: number): Cell {
-  if (series === null) return null;
-  const value = series.stats[key];
+function markSmall(stats: LatencyStats, key: 'p99_us' | 'p999_us', enough: number): Cell {
+  const value = stats[key];
   if (value === null) return null;
-  return series.stats.count < enough ? `${formatNumber(value)} (few events)` : value;
+  return stats.count < enough ? `${formatNumber(value)} (few events)` : value;
 }
 
 /** One line per run that says something about the conditions: partial, saturated, busy machine. */
@@ -160,7 +160,7 @@ export function conditionLines(runs: RunView[]): string {
     const saturation = s.saturation;
     if (saturation && typeof saturation === 'object') {
       lines.push(saturation.saturated
-        ? `${who}saturated: offered ${formatNumber(saturation.offeredHz)} events/s, sustained only ${formatNumber(saturation.sustainedHz)} events/s; the queue grew through the run`
+        ? `${who}saturated: offered ${formatNumber(saturation.offeredHz)} events/s, sustained only ${formatNumber(saturation.sustainedHz)} events/s; ${saturationCause(saturation)}`
         : `${who}not saturated: offered ${formatNumber(saturation.offeredHz)} events/s, sustained ${formatNumber(saturation.sustainedHz)} events/s`);
     }
     const load = s.machineLoad;

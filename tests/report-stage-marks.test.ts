@@ -1,0 +1,68 @@
+// The HTML report marks a tail percentile resting on few events in every latency row, the
+// stages' rows as the figures' (and as the text report does), and words a saturation by the
+// cause that fired.
+
+import { describe, expect, it } from 'vitest';
+import { RunTally } from '../host/measure/run-tally.js';
+import { describeMachine, renderSummary, type RunConfiguration } from '../host/measure/summary.js';
+import { runView } from '../host/report/report-data.js';
+import { conditionLines, latencyTable } from '../host/report/run-tables.js';
+
+const CONFIGURATION: RunConfiguration = {
+  file: 'events.jl',
+  input: { label: 'invented test events', records: null },
+  engine: 'wasm',
+  grid: { etaMin: -2.5, etaMax: 2.5, etaBins: 50, phiBins: 64 },
+  settings: { p: -1, radius: 0.4, ptMin: 5, threshold: 0.5, recombination: 'e' },
+  workers: 1,
+  batch: 8,
+  arrival: { mode: 'fixed', rateHz: 100, seed: null },
+  budgetUs: null,
+  check: { mode: 'none', fraction: 0, seed: 1 },
+  shard: { index: 0, count: 1 },
+  maxEvents: null,
+  out: null,
+};
+
+/** a run of `events` events, each 10 µs in every stage */
+function viewOf(events: number, rates?: [number, number, boolean]) {
+  const tally = new RunTally();
+  for (let k = 0; k < events; k++) {
+    tally.read++;
+    tally.ok++;
+    tally.recordService(20, 10_000 + k);
+    tally.stages.cluster.recordNs(10_000 + k);
+  }
+  if (rates) tally.recordRates(...rates);
+  const summary = renderSummary(tally, { configuration: CONFIGURATION, shards: [{ index: 0, count: 1 }], machine: describeMachine(), partial: false, partialReason: null, wallSeconds: 1 });
+  return runView(JSON.parse(JSON.stringify(summary)), 'run.json');
+}
+
+/** the cells of the latency table's row labelled so */
+function rowCells(html: string, label: string): string[] {
+  const row = html.match(new RegExp(`<tr><th scope="row">${label}</th>(.*?)</tr>`))![1];
+  return [...row.matchAll(/<td>([^<]*)<\/td>/g)].map((m) => m[1]);
+}
+
+describe('the HTML latency table', () => {
+  it('marks a stage\'s p99 on fewer than 1,000 events and its p99.9 on fewer than 10,000', () => {
+    // events, mean, p50, p90, p99, p99.9, max
+    const cells = rowCells(latencyTable([viewOf(500)]), 'stage cluster');
+    expect(cells[0]).toBe('500');
+    expect(cells[4]).toMatch(/ \(few events\)$/);
+    expect(cells[5]).toMatch(/ \(few events\)$/);
+  });
+
+  it('leaves a stage\'s p99 on 1,000 events or more unmarked', () => {
+    const cells = rowCells(latencyTable([viewOf(1000)]), 'stage cluster');
+    expect(cells[4]).not.toContain('few events');
+    expect(cells[5]).toMatch(/ \(few events\)$/);
+  });
+});
+
+describe('the HTML saturation line', () => {
+  it('names the rate\'s shortfall when only the rate fell short', () => {
+    const html = conditionLines([viewOf(10, [100, 50, false])]);
+    expect(html).toContain('sustained only 50 events/s; the sustained rate fell more than 5 % short of the offered one</li>');
+  });
+});
