@@ -10,7 +10,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { runEvents } from '../host/pipeline/run.js';
 import { mergeSummaries } from '../host/measure/summary-merge.js';
 import { formatProgramReport } from '../host/measure/program-report.js';
-import { ExecEngineError } from '../host/pipeline/exec-engine.js';
+import { engineStoppedOf } from '../host/pipeline/run-summary.js';
 import { DEFAULT_TOLERANCE } from '../host/validate/tolerance-compare.js';
 import type { ExecWorkerConfig } from '../host/pipeline/exec-run-contract.js';
 import type { RunSummary } from '../host/measure/summary.js';
@@ -105,8 +105,10 @@ describe('run with a program that crashes on one event', () => {
     expect(merged.latency.roundTrip!.count).toBe(39);
   }, 120_000);
 
-  it('stops the run with ExecEngineError when the program fails more often than --engine-restarts', async () => {
-    await expect(runEvents({ input, workers: 1, batch: 8, check: NONE, settings: SETTINGS, progress: null, program: faulty('crash-all', 0, 1) }))
-      .rejects.toThrow(ExecEngineError);
+  it('stops the run, partial and with the program\'s error, when the program fails more often than --engine-restarts', async () => {
+    const summary = await runEvents({ input, workers: 1, batch: 8, check: NONE, settings: SETTINGS, progress: null, program: faulty('crash-all', 0, 1) });
+    expect(summary.partial).toBe(true);
+    expect(engineStoppedOf(summary)).toMatch(/failed 2 times and was restarted 1 times \(--engine-restarts 1\)/);
+    expect(summary.events.read).toBe(summary.events.ok + summary.events.failed + summary.events.invalid);
   }, 120_000);
 });

@@ -43,10 +43,21 @@ export function summarize(options: RunOptions, plan: RunPlan, delivery: RunDeliv
     wallSeconds: run.wallSeconds,
   });
   if (feed.inputError) Object.defineProperty(summary, 'inputError', { value: feed.inputError, enumerable: false });
+  if (delivery.engineStopped !== null) Object.defineProperty(summary, 'engineStopped', { value: delivery.engineStopped, enumerable: false });
   return summary;
 }
 
 /** The input error that cut a run short, if any (kept off the JSON). */
 export function inputErrorOf(summary: RunSummary): InputError | null {
   return (summary as unknown as { inputError?: InputError }).inputError ?? null;
+}
+
+/** partialReason of a run whose engine program used up its restarts: the program's own error line, which ends with its last fault's */
+export function engineStoppedReason(message: string): string {
+  return `the engine program stopped: ${message}; reading stopped, batches in flight drained`;
+}
+
+/** The error of an engine program that used up its restarts and stopped the run, if any (kept off the JSON). */
+export function engineStoppedOf(summary: RunSummary): string | null {
+  return (summary as unknown as { engineStopped?: string }).engineStopped ?? null;
 }

@@ -28,13 +28,12 @@ import { runCheckPass } from './check-pass.js';
 import { DEFAULT_MAX_RECORD_BYTES } from '../input/record-framer.js';
 import { MachineLoadProbe } from '../measure/machine-load.js';
 import { shardInput } from './shard-input.js';
-import { ExecEngineError } from './exec-engine.js';
 import type { RunSummary } from '../measure/summary.js';
 import { ProgressBar } from '../measure/progress.js';
 import type { Grid } from '../types.js';
 import { planRun, type RunOptions } from './run-plan.js';
 import { openOutputs, progressBytesTotal, refuseUnusableEngine, workerConfigOf } from './run-setup.js';
-import { summarize } from './run-summary.js';
+import { engineStoppedReason, summarize } from './run-summary.js';
 import { asProgramError } from './exec-error.js';
 
 export async function runEvents(options: RunOptions): Promise<RunSummary> {
@@ -106,10 +105,9 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
     await delivery.abortOutputs();
     throw error;
   }
-  if (delivery.engineStopped !== null) {
-    await delivery.abortOutputs();
-    throw new ExecEngineError(delivery.engineStopped);
-  }
+  // a program that used up its restarts ends the run as an interruption does: what was
+  // answered before it is kept (jets, summary marked partial), and the command exits 2
+  if (delivery.engineStopped !== null) feed.partialReason = engineStoppedReason(delivery.engineStopped);
   await delivery.closeRepro();
   delivery.tally.bytesRead = feed.lastOffset;
   await delivery.closeJets();

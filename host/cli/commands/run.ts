@@ -6,7 +6,7 @@ import { UsageError } from '../../errors.js';
 import { CLUSTER_OPTIONS, FORCE_OPTION, GRID_OPTIONS, INFLATE_OPTIONS, MAX_EVENT_GAP_OPTION, clusterSettingsFrom, gridFrom, inflateLimitsFrom, maxEventGapFrom } from '../common-options.js';
 import { checkOutputAllowed } from '../../output/output-target.js';
 import { DEFAULT_BATCH, DEFAULT_CHECK, type CheckOption, type RunOptions } from '../../pipeline/run-plan.js';
-import { inputErrorOf } from '../../pipeline/run-summary.js';
+import { engineStoppedOf, inputErrorOf } from '../../pipeline/run-summary.js';
 import { runEvents } from '../../pipeline/run.js';
 import { shardReadingNote } from '../../pipeline/shard-input.js';
 import { findRate, scanWorkers } from '../../pipeline/studies.js';
@@ -212,7 +212,7 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   } catch (error) {
     await reportOutputs.abort();
     if (error instanceof ExecEngineError) {
-      // the program's fault, not jetlag's: one line, exit 2
+      // a program that cannot be started: one line, exit 2
       io.stderr.write(`jetlag run: ${error.message}; the run stopped there\n`);
       return 2;
     }
@@ -230,6 +230,12 @@ export const main: CommandMain = async (argv: string[], io: CommandIo) => {
   const inputError = inputErrorOf(summary);
   if (inputError) {
     io.stderr.write(`jetlag run: ${inputError.message}\n`);
+    return 2;
+  }
+  const engineStopped = engineStoppedOf(summary);
+  if (engineStopped !== null) {
+    // the program's fault, not jetlag's: one line, exit 2; what it answered before is kept above
+    io.stderr.write(`jetlag run: ${engineStopped}; the run stopped there\n`);
     return 2;
   }
   if (controller.signal.aborted) return 130;
