@@ -117,3 +117,30 @@ export function combineMachineLoads(a: MachineLoad, b: MachineLoad): MachineLoad
     busyReason: reasons.length > 0 ? reasons.join('; ') : null,
   };
 }
+
+/** a reason a merge already led with its shards: "shard 3: …" or "shards 0, 2: …" */
+const SHARD_LED_REASON = /^shards? (\d+(?:, \d+)*): (.*)$/s;
+
+/**
+ * Merged shards' busy reasons, each once, led by the shards that gave it ("shards 0, 1: load
+ * average …; shard 1: the process got …"); null when no shard was busy. A reason is one part
+ * of a shard's busyReason (judgeMachineLoad joins them with "; ").
+ */
+export function shardBusyReasons(parts: readonly { shards: readonly number[]; busyReason: string | null }[]): string | null {
+  const shardsOf = new Map<string, Set<number>>();
+  for (const { shards, busyReason } of parts) {
+    if (busyReason === null) continue;
+    for (const part of busyReason.split('; ')) {
+      const led = SHARD_LED_REASON.exec(part);
+      const reason = led ? led[2] : part;
+      const own = shardsOf.get(reason) ?? new Set<number>();
+      for (const shard of led ? led[1].split(', ').map(Number) : shards) own.add(shard);
+      shardsOf.set(reason, own);
+    }
+  }
+  if (shardsOf.size === 0) return null;
+  return [...shardsOf].map(([reason, shards]) => {
+    const sorted = [...shards].sort((a, b) => a - b);
+    return `shard${sorted.length === 1 ? '' : 's'} ${sorted.join(', ')}: ${reason}`;
+  }).join('; ');
+}

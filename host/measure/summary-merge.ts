@@ -5,6 +5,7 @@
 import { readFileSync } from 'node:fs';
 import { InputError } from '../errors.js';
 import { LatencyRecorder } from './latency.js';
+import { shardBusyReasons } from './machine-load.js';
 import { restoreHarnessFigures } from './harness-figures.js';
 import { toleranceFiguresOf } from './program-figures.js';
 import { PILEUP_STAGES, RunTally, STAGES, type PileupStage } from './run-tally.js';
@@ -122,6 +123,7 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
   const reasons: string[] = [];
   const machines: MachineInfo[] = [];
   const saturations: Saturation[] = [];
+  const busyReasons: { shards: number[]; busyReason: string | null }[] = [];
   for (const { name, summary } of summaries) {
     if (mergeKey(summary.configuration) !== key) {
       throw new Error(`${name}: configuration differs from ${first.name}: ${firstDifference(first.summary.configuration, summary.configuration)} (input label, grid, settings, pileup steps, grooming, batch, arrivals, budget, check, engine, --events, shard count and --program-cpu must agree)`);
@@ -144,6 +146,7 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
     }
     const shardTally = tallyFromSummary(summary, name);
     if (shardTally.saturation) saturations.push(shardTally.saturation);
+    busyReasons.push({ shards: summary.shards.map((shard) => shard.index), busyReason: summary.machineLoad?.busyReason ?? null });
     tally.merge(shardTally);
     wallSeconds = Math.max(wallSeconds, summary.throughput.wallSeconds);
     if (summary.partial) {
@@ -155,6 +158,8 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
     }
   }
   tally.saturation = mergedSaturation(saturations, tally.read, wallSeconds);
+  // each reason once, naming the shards that gave it (the shards' own lines do not say whose they are)
+  if (tally.machineLoad) tally.machineLoad.busyReason = shardBusyReasons(busyReasons);
   const shardCount = first.summary.configuration.shard.count;
   const shards = [...seen.keys()].sort((a, b) => a - b).map((index) => ({ index, count: shardCount }));
   if (shards.length < shardCount) {
