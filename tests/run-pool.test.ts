@@ -158,6 +158,34 @@ describe('the pool', () => {
     }
   });
 
+  it('refills a batch buffer the worker handed back, and the smaller batch in it reads only its own records', async () => {
+    const eventNumbers: number[] = [];
+    const pool = new BatchPool({
+      workers: 1,
+      maxInFlight: 2,
+      config: { grid: DEFAULT_GRID, settings: { ...DEFAULT_SETTINGS }, engine: 'reference', checkFraction: 0, checkSeed: 1, encodeJets: false },
+      deliver: (outcome) => eventNumbers.push(...Array.from(new Float64Array(outcome.result!.buffer, 0, outcome.count))),
+    });
+    try {
+      const builder = new BatchBuilder();
+      for (let k = 0; k < 3; k++) builder.add(encodeEventRecord(events[k]), 0);
+      const first = builder.seal(0, pool.spares);
+      const firstBytes = first.task.buffer.byteLength;
+      pool.dispatch(first, 0, new Float64Array(3));
+      await pool.drain();
+      builder.add(encodeEventRecord(events[3]), 0);
+      const second = builder.seal(1, pool.spares);
+      // the first batch's buffer, back from the worker with its old records still in it
+      expect(second.task.buffer.byteLength).toBe(firstBytes);
+      expect(pool.spares.take(1)).toBeNull();
+      pool.dispatch(second, 3, new Float64Array(1));
+      await pool.drain();
+      expect(eventNumbers).toEqual(events.slice(0, 4).map((e) => e.event));
+    } finally {
+      await pool.close();
+    }
+  });
+
   it('delivers results in input order when a later batch finishes first', async () => {
     restore.push(withEnv('JETLAG_TEST_FAULT', 'stall:0:800'));
     const delivered: number[] = [];

@@ -66,7 +66,7 @@ export class RecordFeed {
   private async send(): Promise<void> {
     await this.delivery.jetsWritten();
     await this.pool.waitForRoom();
-    const sealed = this.builder.seal(this.dispatchIndex++);
+    const sealed = this.builder.seal(this.dispatchIndex++, this.pool.spares);
     // when each event was handed over (the batch's events have no arrivals of their own)
     const starts = new Float64Array(sealed.task.count).fill(nowNs());
     this.pool.dispatch(sealed, this.builderFirstRecord, starts);

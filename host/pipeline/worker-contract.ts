@@ -125,6 +125,8 @@ export interface BatchResult {
   jetsBytes: Uint8Array | null;
   /** an engine program's figures (exec-run-contract.ts); absent for the in-process engines */
   exec?: ExecBatchFigures;
+  /** the task's own buffer, handed back (transferred) for the host to refill (pool.ts SpareBuffers) */
+  inputBuffer?: ArrayBuffer;
 }
 
 /**

@@ -61,8 +61,10 @@ export function makeBatchRunner(hooks: WorkerHooks = {}): (task: BatchTask) => P
     }
     try {
       const result = clusterBatch(state, task, hooks);
+      // the records' buffer goes back too, for the host to refill (nothing here keeps a view of it)
+      result.inputBuffer = task.buffer;
       return move({
-        get [transferableSymbol]() { return result.jetsBytes ? [result.buffer, result.jetsBytes.buffer] : [result.buffer]; },
+        get [transferableSymbol]() { return result.jetsBytes ? [result.buffer, task.buffer, result.jetsBytes.buffer] : [result.buffer, task.buffer]; },
         get [valueSymbol]() { return result; },
       } as unknown as ArrayBuffer);
     } catch (error) {
