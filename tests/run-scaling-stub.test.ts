@@ -59,5 +59,5 @@ describe('the scaling fit of a run with a stub of cost c·N^1.5', () => {
     expect(scaling.nMax).toBe(Math.max(...towersPerEvent));
     expect(scaling.bins.map((bin) => bin.events)).toEqual(scaling.bins.map((bin) => towersPerEvent.filter((n) => n >= bin.nLow && n <= bin.nHigh).length));
     expect(scaling.bins.reduce((sum, bin) => sum + bin.events, 0)).toBe(events.length);
-  });
+  }, 20_000);
 });
