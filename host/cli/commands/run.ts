@@ -30,7 +30,7 @@ const PROBLEM_LINES_MAX = 20;
 
 /** run's own options; `demo` shares some of them (runOption) */
 const RUN_OPTIONS: OptionSpec[] = [
-  { name: 'workers', kind: 'integer', argument: '<n>', description: `worker threads, each with its own engine (default: cores, here ${describeMachine().cores})` },
+  { name: 'workers', kind: 'integer', argument: '<n>', description: `worker threads, each with its own engine (default: cores in a closed loop, here ${describeMachine().cores}; cores − 1 in an open loop and --find-rate's trials, at least 1)` },
   { name: 'batch', kind: 'integer', argument: '<k>', description: `events per task sent to a worker (default: ${DEFAULT_BATCH})` },
   { name: 'rate', kind: 'number', argument: '<hz>', description: 'open loop: events due at fixed spacing 1/rate (default: closed loop, as fast as the pool takes them)' },
   { name: 'poisson', kind: 'number', argument: '<hz>', description: 'open loop: events due at Poisson arrivals of this mean rate, seeded by --seed' },
