@@ -37,10 +37,10 @@ export function formatProgramReport(summary: RunSummary): string {
     const t = check.tolerance;
     lines.push(`  check: tolerance mode (spec section 7), not bit for bit: ${t.agreeing} of ${t.checked} events agree (${percent(t.agreement)}); `
       + `efficiency ${percent(t.efficiency)}, fake rate ${percent(t.fakeRate)}, response ${t.response === null ? '-' : t.response.toFixed(6)}`);
-  } else if (check.checked > 0) {
-    lines.push(`  check: bit for bit: ${check.agreeing} of ${check.checked} events agree`);
+  } else if (check.mode === null) {
+    lines.push('  check: none (--check none)');
   } else {
-    lines.push('  check: none');
+    lines.push(`  check: bit for bit: ${check.agreeing} of ${check.checked} events agree`);
   }
   return lines.join('\n') + '\n';
 }

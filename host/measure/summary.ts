@@ -98,8 +98,8 @@ export interface RunSummary {
     timing: string;
     /** which events were checked: CHECK_SAMPLE_RULE with the configuration's check fraction and seed */
     sample: string;
-    /** bit for bit against the reference, or tolerance mode (spec section 7; an engine program only) */
-    mode: 'bit-exact' | 'tolerance';
+    /** bit for bit against the reference, or tolerance mode (spec section 7; an engine program only); null: no check ran (--check none) */
+    mode: 'bit-exact' | 'tolerance' | null;
     /** tolerance mode: compare's figures (agreement, efficiency, fake rate, response) */
     tolerance?: ToleranceSummary;
   };
@@ -264,7 +264,7 @@ export function renderSummary(tally: RunTally, context: RenderContext): RunSumma
     jets: tally.jets,
     check: {
       ...tally.check,
-      mode: tally.tolerance ? 'tolerance' : 'bit-exact',
+      mode: context.configuration.check.mode === 'none' ? null : tally.tolerance ? 'tolerance' : 'bit-exact',
       timing: program ? CHECK_INSIDE_TIMING : CHECK_APART_FROM_TIMING,
       sample: CHECK_SAMPLE_RULE,
       ...(tally.tolerance ? { tolerance: summarizeTolerance(tally.tolerance) } : {}),
