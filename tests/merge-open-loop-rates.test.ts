@@ -57,6 +57,11 @@ describe('merged rates', () => {
 });
 
 describe('the saturation line', () => {
+  it('of merged shards says the cause fired in a shard', () => {
+    const merged = mergedSaturation([runSaturation(100, 100, false), runSaturation(100, 50, false)], 150, 2)!;
+    expect(saturationCause(merged)).toBe('in a shard, the sustained rate fell more than 5 % short of the offered one');
+  });
+
   it('names the cause that fired', () => {
     expect(saturationCause(runSaturation(100, 50, false))).toBe('the sustained rate fell more than 5 % short of the offered one');
     expect(saturationCause(runSaturation(100, 100, true))).toBe('the queue of due events grew through the run');

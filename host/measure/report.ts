@@ -193,7 +193,9 @@ export function formatReport(summary: RunSummary): string {
   if (saturation) {
     const rates = `offered ${offeredText(grouped(saturation.offeredHz), saturation.shards)}, sustained ${grouped(saturation.sustainedHz)} Hz` +
       (saturation.shards > 1 ? ` (${saturation.sustainedBasis})` : '');
-    lines.push(saturation.saturated ? `  SATURATED   ${rates}: the pool did not keep up, ${saturationCause(saturation)}` : `  rate        ${rates}`);
+    // merged: the sums compare shards that may have run for different times, so the verdict is each shard's own
+    const kept = saturation.shards > 1 ? '; each shard kept up with its own rate' : '';
+    lines.push(saturation.saturated ? `  SATURATED   ${rates}: the pool did not keep up, ${saturationCause(saturation)}` : `  rate        ${rates}${kept}`);
   }
   if (summary.budget) {
     const b = summary.budget;

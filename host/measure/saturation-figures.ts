@@ -93,11 +93,13 @@ export function mergedSaturation(shards: readonly Saturation[], eventsRead: numb
 
 /** Why a saturated run counts as such, by the cause that fired (summaries of either version). */
 export function saturationCause(saturation: Partial<Saturation> & { offeredHz: number; sustainedHz: number; saturated: boolean }): string {
-  const { rateFellShort, backlogGrew } = readSaturation(saturation);
-  const short = `the sustained rate fell more than ${SATURATION_SHORTFALL * 100} % short of the offered one`;
+  const { rateFellShort, backlogGrew, shards } = readSaturation(saturation);
+  // merged shards: each was judged on its own rates (mergedSaturation)
+  const where = shards > 1 ? 'in a shard, ' : '';
+  const short = `${where}the sustained rate fell more than ${SATURATION_SHORTFALL * 100} % short of the offered one`;
   if (rateFellShort && backlogGrew) return `${short}, and the queue grew through the run`;
   if (rateFellShort) return short;
-  return 'the queue of due events grew through the run';
+  return `${where}the queue of due events grew through the run`;
 }
 
 /** "200 Hz summed over 2 shards" for merged shards, "100 Hz" for one run. */
