@@ -4,6 +4,7 @@
 
 import { describe, expect, it } from 'vitest';
 import { RunTally } from '../host/measure/run-tally.js';
+import { mergedSaturation, runSaturation } from '../host/measure/saturation-figures.js';
 import { describeMachine, renderSummary, type RunConfiguration } from '../host/measure/summary.js';
 import { runView } from '../host/report/report-data.js';
 import { conditionLines, latencyTable } from '../host/report/run-tables.js';
@@ -25,7 +26,7 @@ const CONFIGURATION: RunConfiguration = {
 };
 
 /** a run of `events` events, each 10 µs in every stage */
-function viewOf(events: number, rates?: [number, number, boolean]) {
+function viewOf(events: number, rates?: [number, number, boolean], merged?: RunTally['saturation']) {
   const tally = new RunTally();
   for (let k = 0; k < events; k++) {
     tally.read++;
@@ -34,6 +35,7 @@ function viewOf(events: number, rates?: [number, number, boolean]) {
     tally.stages.cluster.recordNs(10_000 + k);
   }
   if (rates) tally.recordRates(...rates);
+  if (merged) tally.saturation = merged;
   const summary = renderSummary(tally, { configuration: CONFIGURATION, shards: [{ index: 0, count: 1 }], machine: describeMachine(), partial: false, partialReason: null, wallSeconds: 1 });
   return runView(JSON.parse(JSON.stringify(summary)), 'run.json');
 }
@@ -64,5 +66,11 @@ describe('the HTML saturation line', () => {
   it('names the rate\'s shortfall when only the rate fell short', () => {
     const html = conditionLines([viewOf(10, [100, 50, false])]);
     expect(html).toContain('sustained only 50 events/s; the sustained rate fell more than 5 % short of the offered one</li>');
+  });
+
+  it('of merged shards that kept up says the offered rate is their sum and each kept up', () => {
+    const merged = mergedSaturation([runSaturation(100, 100, false), runSaturation(100, 99, false)], 150, 1);
+    const html = conditionLines([viewOf(10, undefined, merged)]);
+    expect(html).toContain('not saturated: offered 200 events/s, sustained 150 events/s (summed over 2 shards; each kept up with its own rate)</li>');
   });
 });

@@ -161,7 +161,7 @@ export function conditionLines(runs: RunView[]): string {
     if (saturation && typeof saturation === 'object') {
       lines.push(saturation.saturated
         ? `${who}saturated: offered ${formatNumber(saturation.offeredHz)} events/s, sustained only ${formatNumber(saturation.sustainedHz)} events/s; ${saturationCause(saturation)}`
-        : `${who}not saturated: offered ${formatNumber(saturation.offeredHz)} events/s, sustained ${formatNumber(saturation.sustainedHz)} events/s`);
+        : `${who}not saturated: offered ${formatNumber(saturation.offeredHz)} events/s, sustained ${formatNumber(saturation.sustainedHz)} events/s${(saturation.shards ?? 1) > 1 ? ` (summed over ${saturation.shards} shards; each kept up with its own rate)` : ''}`);
     }
     const load = s.machineLoad;
     if (load && typeof load === 'object' && load.busy) lines.push(`${who}the figures were taken on a busy machine${load.busyReason ? `: ${load.busyReason}` : ''}`);
