@@ -169,7 +169,7 @@ function readEvents(state: WorkerState, work: BatchWork): void {
 /** A clusterer that takes a whole batch per call (the wasm engine, clustering/engine.ts). */
 interface BatchClusterer extends Clusterer {
   clusterBatch(eventCount: number, towerStart: Int32Array, towerIndex: Int32Array, towerEt: Float64Array, withTowers: boolean): BatchJets;
-  /** the same into arrays the clusterer keeps, valid until its next call (one event only) */
+  /** the same into arrays the clusterer keeps, valid until its next call */
   clusterBatchReusing?(eventCount: number, towerStart: Int32Array, towerIndex: Int32Array, towerEt: Float64Array, withTowers: boolean): BatchJets;
 }
 
@@ -188,9 +188,9 @@ function clusterValidEvents(state: WorkerState, clusterer: Clusterer, work: Batc
   const withTowers = state.reference !== null || state.encodeJets !== null;
   let jetsOf: (v: number) => JetSet;
   if (hasBatchApi(clusterer)) {
-    // one event (every open-loop event): the engine's own result arrays, which live until its
-    // next call, long enough for this batch's check and encode; no ~60 KB of fresh arrays per event
-    const batch = valid === 1 && clusterer.clusterBatchReusing
+    // the engine's own result arrays, which live until its next call, long enough for this
+    // batch's check and encode: no fresh arrays per batch (~2.6 MB for 32 pileup-200 events)
+    const batch = clusterer.clusterBatchReusing
       ? clusterer.clusterBatchReusing(valid, batchStart, state.batchIndex, state.batchEt, withTowers)
       : clusterer.clusterBatch(valid, batchStart, state.batchIndex, state.batchEt, withTowers);
     for (let v = 0; v < valid; v++) {
