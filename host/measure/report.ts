@@ -81,7 +81,7 @@ function headerLine(summary: RunSummary): string {
     : ` · shards ${summary.shards.map((x) => x.index).join(',')} of ${c.shard.count}`;
   return `${c.file} · ${algorithmName(s.p)} p=${s.p} R=${s.radius} ${s.recombination === 'wta' ? 'WTA' : 'E-scheme'}` +
     ` ptMin ${s.ptMin} GeV threshold ${s.threshold} GeV · grid η ${g.etaMin}..${g.etaMax} ${g.etaBins}×${g.phiBins}${chain}` +
-    ` · engine ${c.engine}${c.programCpu === 'same' ? ' (each worker and its program held on one CPU)' : ''} · ${c.workers} worker${c.workers === 1 ? '' : 's'}, batch ${c.batch} · ${loop}${shardText}`;
+    ` · engine ${c.engine}${c.programCpu === 'same' ? ' (each worker and its program held on one CPU)' : ''}${c.engineInFlight !== undefined ? `, ${c.engineInFlight} event${c.engineInFlight === 1 ? '' : 's'} in flight` : ''} · ${c.workers} worker${c.workers === 1 ? '' : 's'}, batch ${c.batch} · ${loop}${shardText}`;
 }
 
 function latencyLines(summary: RunSummary): string[] {

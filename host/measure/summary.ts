@@ -49,6 +49,8 @@ export interface RunConfiguration {
    * worker thread and its program were held on one CPU (--program-cpu same), else any
    */
   programCpu?: 'same' | 'any';
+  /** an engine program only: --engine-in-flight, events written to it ahead of its answers (absent in summaries from before it: 1) */
+  engineInFlight?: number;
   batch: number;
   arrival: { mode: 'closed' | 'fixed' | 'poisson'; rateHz: number | null; seed: number | null };
   budgetUs: number | null;

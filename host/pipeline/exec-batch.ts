@@ -17,7 +17,7 @@ import { EventTowerReader } from '../input/event-towers.js';
 import { encodeDelimitedJetsRecord } from '../formats/jets-codec.js';
 import { firstJetDifference } from '../validate/bit-exact.js';
 import { ToleranceMatcher } from '../validate/tolerance-compare.js';
-import { ExecEngine, ExecEngineError } from './exec-engine.js';
+import { ExecEngine, ExecEngineError, type ExecOutcome } from './exec-engine.js';
 import { inCheckSample, joined, readBatch, type WorkerState } from './cluster-batch.js';
 import { ENGINE_STOPPED, type ExecBatchFigures, type ExecWorkerConfig } from './exec-run-contract.js';
 import { emptyToleranceFigures, type ToleranceFigures } from '../measure/program-figures.js';
@@ -53,7 +53,7 @@ async function startWorker(config: WorkerConfig, exec: ExecWorkerConfig): Promis
   const engine = await ExecEngine.start({
     argv: exec.argv, label: exec.label, grid: config.grid, settings: config.settings,
     producer: producerName('run'), streamLabel: 'events of a run',
-    timeoutMs: exec.timeoutMs, maxRestarts: exec.maxRestarts,
+    timeoutMs: exec.timeoutMs, maxRestarts: exec.maxRestarts, maxInFlight: exec.maxInFlight ?? 1,
     onFault: (line) => faultLines.push(line),
     ...(exec.programCpu === 'same' ? { cpuWorkerIndex: exec.programSeats ? takeProgramSeat(exec.programSeats) : 0 } : {}),
   });
@@ -107,12 +107,37 @@ export async function finishExecBatch(running: ExecWorker, work: ReturnType<type
   return work.result;
 }
 
+/** A submission's outcome, or what it threw (kept, so that no later rejection goes unhandled). */
+type Submitted = ExecOutcome | { thrown: unknown };
+
+/**
+ * --engine-in-flight above 1: every valid event of the batch to the program at once, in input
+ * order; the engine writes each as soon as fewer than that many are unanswered.
+ */
+function submitAll(w: ExecWorker, work: ReturnType<typeof readBatch>): (Promise<Submitted> | null)[] {
+  const { state } = w;
+  const { out } = work;
+  const submitted: (Promise<Submitted> | null)[] = new Array(work.task.count).fill(null);
+  let v = 0;
+  for (let k = 0; k < work.task.count; k++) {
+    if (out.status[k] !== STATUS_OK) continue;
+    const from = state.batchStart[v];
+    const to = state.batchStart[v + 1];
+    v++;
+    submitted[k] = w.engine.submit(out.eventNumber[k], state.batchIndex.subarray(from, to), state.batchEt.subarray(from, to))
+      .catch((thrown: unknown) => ({ thrown }));
+  }
+  return submitted;
+}
+
 /** Each valid event of the batch, in input order: program, check (sampled), encode. */
 async function programPass(w: ExecWorker, result: BatchResult, work: ReturnType<typeof readBatch>, figures: ExecBatchFigures): Promise<void> {
   const { state } = w;
   const { out } = work;
   const { config, reference, encodeJets, batchStart } = state;
   const jetChunks: Uint8Array[] = [];
+  // one in flight: submitted one at a time below, as each answer is taken (nothing written ahead)
+  const ahead = (w.exec.maxInFlight ?? 1) > 1 ? submitAll(w, work) : null;
   let nextInvalid = 0;
   let v = 0;
   for (let k = 0; k < work.task.count; k++) {
@@ -130,23 +155,19 @@ async function programPass(w: ExecWorker, result: BatchResult, work: ReturnType<
     const towerEt = state.batchEt.subarray(from, to);
     let failure: { reason: string; message: string } | null = null;
     let jets: JetSet | null = null;
-    if (figures.engineError !== null) {
+    // after the program stopped (restarts used up), the events left fail as not clustered
+    const settled: Submitted | null = ahead !== null ? await ahead[k]! : figures.engineError !== null ? null
+      : await w.engine.submit(event, towerIndex, towerEt).catch((thrown: unknown) => ({ thrown }));
+    if (settled !== null && 'thrown' in settled && !(settled.thrown instanceof ExecEngineError)) throw settled.thrown;
+    if (settled !== null && 'thrown' in settled && figures.engineError === null) figures.engineError = (settled.thrown as ExecEngineError).message;
+    if (settled === null || 'thrown' in settled) {
       failure = { reason: ENGINE_STOPPED, message: `${w.exec.label}, event ${event}: not clustered, the program had stopped` };
+    } else if (settled.ok) {
+      jets = settled.jets;
+      out.stageNs[at + STAGE_CLUSTER] = settled.serviceNs;
+      figures.roundTripNs[k] = settled.roundTripNs;
     } else {
-      try {
-        const outcome = await w.engine.submit(event, towerIndex, towerEt);
-        if (outcome.ok) {
-          jets = outcome.jets;
-          out.stageNs[at + STAGE_CLUSTER] = outcome.serviceNs;
-          figures.roundTripNs[k] = outcome.roundTripNs;
-        } else {
-          failure = { reason: outcome.reason, message: outcome.message };
-        }
-      } catch (error) {
-        if (!(error instanceof ExecEngineError)) throw error;
-        figures.engineError = error.message;
-        failure = { reason: ENGINE_STOPPED, message: `${w.exec.label}, event ${event}: not clustered, the program had stopped` };
-      }
+      failure = { reason: settled.reason, message: settled.message };
     }
     if (failure !== null || jets === null) {
       // a failed event is not invalid input: it keeps its own count (events.failed)

@@ -52,6 +52,7 @@ export interface ProcessFault {
 }
 
 export interface ProcessHandlers {
+  /** roundTripNs: from max(the event's write, the previous answer's arrival) to its answer's arrival */
   answered(event: number, answer: DecodedJets, roundTripNs: number): void;
   /** once per instance, after start(); `inFlight` are the events that fail with it, oldest first */
   faulted(fault: ProcessFault, inFlight: number[]): void;
@@ -95,6 +96,8 @@ export class ProgramProcess {
   private exitWaiters: (() => void)[] = [];
   private spawnWaiter: (() => void) | null = null;
   private readonly sent = new InFlightEvents();
+  /** when the previous answer came in (0: none yet): the next event's round trip starts no earlier */
+  private previousAnswerNs = 0;
   /** the name the program gives itself in its header (settings.engine) */
   engineName = '';
   /** spawn failure (ENOENT, EACCES): restarting cannot help */
@@ -229,14 +232,17 @@ export class ProgramProcess {
     if (!result.ok) return this.fault('malformed', due, `output byte ${offset}: ${result.problem}`, null);
     // answered at the deadline: the watchdog has killed the program already
     if (!this.watchdog.disarm()) return this.timedOut();
-    const writtenNs = this.sent.oldestWrittenNs;
+    // with several events in flight an event queues behind the one before it: its round trip,
+    // like its timeout, counts from when the program could start on it
+    const startedNs = Math.max(this.sent.oldestWrittenNs, this.previousAnswerNs);
+    this.previousAnswerNs = arrivedNs;
     this.sent.dropOldest();
     if (this.sent.count > 0) {
       const sinceNs = Math.max(arrivedNs, this.sent.oldestWrittenNs);
       this.watchdog.arm(this.child.pid!, this.pipes.answersIn, BigInt(Math.round(sinceNs)) + BigInt(this.config.timeoutMs) * 1_000_000n);
     }
     this.stderr.trim();
-    this.handlers.answered(due, result.answer, arrivedNs - writtenNs);
+    this.handlers.answered(due, result.answer, arrivedNs - startedNs);
   }
 
   private timedOut(): void {

@@ -18,6 +18,8 @@ export interface ExecWorkerConfig {
   tolerance: ToleranceSettings | null;
   /** the main thread's table of running programs' process groups, killed at its exit (exec-groups.ts) */
   groups?: SharedArrayBuffer;
+  /** --engine-in-flight: events written to the program ahead of its answers (absent: 1) */
+  maxInFlight?: number;
   /** --program-cpu: same holds each worker thread and its program on one CPU (exec-cpu.ts); absent: any */
   programCpu?: ProgramCpu;
   /** the run's seat counter that numbers the workers for --program-cpu same (exec-cpu.ts) */

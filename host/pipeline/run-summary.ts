@@ -19,7 +19,7 @@ export function summarize(options: RunOptions, plan: RunPlan, delivery: RunDeliv
     ...(plan.pileup ? { pileup: plan.pileup } : {}),
     ...(plan.grooming ? { grooming: plan.grooming } : {}),
     workers: plan.workers,
-    ...(options.program ? { programCpu: options.program.programCpu ?? 'any' } : {}),
+    ...(options.program ? { programCpu: options.program.programCpu ?? 'any', engineInFlight: options.program.maxInFlight ?? 1 } : {}),
     batch: plan.batch,
     arrival: {
       mode: arrival.kind,
