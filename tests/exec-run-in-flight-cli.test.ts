@@ -87,3 +87,19 @@ describe('run --engine exec: --engine-in-flight', () => {
     expect(result.stderr).toContain('--engine-in-flight must be an integer from 1 to 8, got 9');
   }, 60_000);
 });
+
+describe('shards run with different --engine-in-flight', () => {
+  it('are not merged: their round trips count from different starts', () => {
+    const shard = (index: number, inFlight: string) => {
+      const json = join(dir, `merge-${index}.json`);
+      const program = `exec:"${process.execPath}" "${FIXTURE}" well -1`;
+      const result = spawnSync(process.execPath, [CLI, 'run', input, '--engine', program, '--workers', '1', '--check', 'none', '--shard', `${index}/2`, '--engine-in-flight', inFlight, '--json', json, '-q'], { encoding: 'utf8', timeout: 60_000 });
+      expect(result.status).toBe(0);
+      return json;
+    };
+    const paths = [shard(0, '1'), shard(1, '2')];
+    const merged = spawnSync(process.execPath, [CLI, 'merge', ...paths], { encoding: 'utf8', timeout: 60_000 });
+    expect(merged.status).not.toBe(0);
+    expect(merged.stderr).toMatch(/configuration differs from .*merge-0\.json: --engine-in-flight is 2, there 1/);
+  }, 120_000);
+});

@@ -67,6 +67,8 @@ function mergeFields(configuration: RunConfiguration): Record<string, unknown> {
   return {
     'input label': configuration.input?.label, grid, settings, pileup: configuration.pileup ?? null, grooming: configuration.grooming ?? null,
     batch, arrival, budgetUs, check, engine, '--events': maxEvents, 'shard count': configuration.shard.count, '--program-cpu': configuration.programCpu ?? 'any',
+    // more events in flight time each round trip from another start (exec-process.ts)
+    '--engine-in-flight': configuration.engineInFlight ?? 1,
   };
 }
 
@@ -126,7 +128,7 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
   const busyReasons: { shards: number[]; busyReason: string | null }[] = [];
   for (const { name, summary } of summaries) {
     if (mergeKey(summary.configuration) !== key) {
-      throw new Error(`${name}: configuration differs from ${first.name}: ${firstDifference(first.summary.configuration, summary.configuration)} (input label, grid, settings, pileup steps, grooming, batch, arrivals, budget, check, engine, --events, shard count and --program-cpu must agree)`);
+      throw new Error(`${name}: configuration differs from ${first.name}: ${firstDifference(first.summary.configuration, summary.configuration)} (input label, grid, settings, pileup steps, grooming, batch, arrivals, budget, check, engine, --events, shard count, --program-cpu and --engine-in-flight must agree)`);
     }
     // shards of one job run alike: rates and latencies of different pools do not add into one run's
     const workers = summary.configuration.workers;
