@@ -22,6 +22,11 @@ export interface MachineLoad {
    */
   workerCpuWaitSeconds?: number;
   workerServeSeconds?: number;
+  /**
+   * an engine program (--engine exec:): its CPU time is its own process's, not in cpuSeconds,
+   * and the workers' time on events includes waiting for it, so their CPU share is not judged
+   */
+  programCpuNote?: string;
   busy: boolean;
   /** why the machine counts as busy, in words; null when it does not */
   busyReason: string | null;
@@ -35,6 +40,7 @@ export interface MachineLoad {
 export const BUSY_CPU_SHARE = 0.8;
 /** Serving threads that waited for a CPU longer than this share of their time serving were kept off the cores. */
 export const BUSY_WAIT_SHARE = 0.1;
+export const PROGRAM_CPU_NOTE = "the engine program's CPU is not counted (another process): the process's CPU against its workers' time on events, which holds the waits for the program, is not judged";
 
 function coresOf(): number {
   return typeof os.availableParallelism === 'function' ? os.availableParallelism() : os.cpus().length;
@@ -45,6 +51,9 @@ export class MachineLoadProbe {
   private readonly loadStart = os.loadavg()[0];
   private readonly cpuStart = process.cpuUsage();
   private readonly wallStartNs = process.hrtime.bigint();
+
+  /** engineProgram: the events go to an outside program, whose CPU time this process does not see */
+  constructor(private readonly engineProgram = false) {}
 
   /**
    * workerBusyNs: the workers' wall time on events, summed (from the run's stage times);
@@ -60,6 +69,7 @@ export class MachineLoadProbe {
       cpuSeconds: (cpu.user + cpu.system) / 1e6,
       wallSeconds,
       workerBusySeconds: workerBusyNs / 1e9,
+      ...(this.engineProgram ? { programCpuNote: PROGRAM_CPU_NOTE } : {}),
       ...(cpuWait === undefined ? {} : { workerCpuWaitSeconds: cpuWait.workersNs / 1e9, workerServeSeconds: cpuWait.servingThreads * wallSeconds }),
     });
   }
@@ -76,13 +86,13 @@ function round(value: number, digits: number): number {
  * over its wall time; that much is taken off before comparing with the cores.
  */
 export function judgeMachineLoad(measured: Omit<MachineLoad, 'busy' | 'busyReason'>): MachineLoad {
-  const { cores, loadAverageStart, loadAverageEnd, cpuSeconds, wallSeconds, workerBusySeconds, workerCpuWaitSeconds, workerServeSeconds } = measured;
+  const { cores, loadAverageStart, loadAverageEnd, cpuSeconds, wallSeconds, workerBusySeconds, workerCpuWaitSeconds, workerServeSeconds, programCpuNote } = measured;
   const ownThreads = wallSeconds > 0 ? cpuSeconds / wallSeconds : 0;
   const othersAtEnd = loadAverageEnd - ownThreads;
   const reasons: string[] = [];
   if (loadAverageStart > cores) reasons.push(`load average ${loadAverageStart.toFixed(2)} before the run on ${cores} cores`);
   else if (othersAtEnd > cores) reasons.push(`load average ${loadAverageEnd.toFixed(2)} after the run on ${cores} cores, ${othersAtEnd.toFixed(2)} of it not this run's`);
-  if (workerBusySeconds > 0 && cpuSeconds < BUSY_CPU_SHARE * workerBusySeconds) {
+  if (programCpuNote === undefined && workerBusySeconds > 0 && cpuSeconds < BUSY_CPU_SHARE * workerBusySeconds) {
     reasons.push(`the process got ${cpuSeconds.toFixed(2)} s of CPU for ${workerBusySeconds.toFixed(2)} s its workers spent on events`);
   }
   if (workerCpuWaitSeconds !== undefined && workerServeSeconds !== undefined && workerServeSeconds > 0 && workerCpuWaitSeconds > BUSY_WAIT_SHARE * workerServeSeconds) {
@@ -96,6 +106,7 @@ export function judgeMachineLoad(measured: Omit<MachineLoad, 'busy' | 'busyReaso
     wallSeconds: round(wallSeconds, 3),
     workerBusySeconds: round(workerBusySeconds, 3),
     ...(workerCpuWaitSeconds === undefined || workerServeSeconds === undefined ? {} : { workerCpuWaitSeconds: round(workerCpuWaitSeconds, 3), workerServeSeconds: round(workerServeSeconds, 3) }),
+    ...(programCpuNote === undefined ? {} : { programCpuNote }),
     busy: reasons.length > 0,
     busyReason: reasons.length > 0 ? reasons.join('; ') : null,
   };
@@ -113,6 +124,7 @@ export function combineMachineLoads(a: MachineLoad, b: MachineLoad): MachineLoad
     workerBusySeconds: round(a.workerBusySeconds + b.workerBusySeconds, 3),
     ...(a.workerCpuWaitSeconds !== undefined && b.workerCpuWaitSeconds !== undefined && a.workerServeSeconds !== undefined && b.workerServeSeconds !== undefined
       ? { workerCpuWaitSeconds: round(a.workerCpuWaitSeconds + b.workerCpuWaitSeconds, 3), workerServeSeconds: round(a.workerServeSeconds + b.workerServeSeconds, 3) } : {}),
+    ...(a.programCpuNote !== undefined || b.programCpuNote !== undefined ? { programCpuNote: a.programCpuNote ?? b.programCpuNote } : {}),
     busy: a.busy || b.busy,
     busyReason: reasons.length > 0 ? reasons.join('; ') : null,
   };

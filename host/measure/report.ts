@@ -187,6 +187,7 @@ export function formatReport(summary: RunSummary): string {
   lines.push(`  events      read ${grouped(e.read)} · ok ${grouped(e.ok)} · invalid ${grouped(e.invalid)} · failed ${grouped(e.failed)}`);
   const load = summary.machineLoad;
   if (load?.busy) lines.push(`  BUSY        figures taken on a busy machine: ${load.busyReason}`);
+  if (load?.programCpuNote) lines.push(`  machine     ${load.programCpuNote}`);
   lines.push(...latencyLines(summary));
   lines.push(throughputLine(summary));
   const saturation = summary.saturation;

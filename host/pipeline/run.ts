@@ -75,7 +75,7 @@ export async function runEvents(options: RunOptions): Promise<RunSummary> {
   const progress = new ProgressBar(options.progress ?? process.stderr, { eventsDone: () => delivery.tally.read, bytesDone: () => delivery.offsetDone }, { bytes: bytesTotal }, Boolean(options.progress));
   let wallSeconds = 0;
   progress.start();
-  const machineLoad = new MachineLoadProbe();
+  const machineLoad = new MachineLoadProbe(program !== null);
   // either loop: an index counts the records of the whole file, of which a shard saw only its own
   try {
     if (feed instanceof OpenLoopFeed) {
