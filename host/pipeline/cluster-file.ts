@@ -21,9 +21,9 @@ import { formatErrorLine, formatJetsLine } from '../formats/jets-jsonl.js';
 import { TextFileWriter } from '../output/text-file-writer.js';
 import { describePileup, pileupStepsOn } from '../clustering/pileup/settings.js';
 import { describeGrooming, groomingIsOn } from '../clustering/grooming/settings.js';
-import type { ClusterSettings, Grid, GroomingSettings, JetSet, PileupSettings } from '../types.js';
+import type { ClusterSettings, Grid, GroomingSettings, PileupSettings } from '../types.js';
 import { producerName } from '../version.js';
-import { ExecEngineError, type ExecCounts } from './exec-engine.js';
+import { ExecEngineError, type ExecCounts, type ExecOutcome } from './exec-engine.js';
 import { ProgramTimes, startProgramEngine, type ProgramEngineChoice, type ProgramFigures } from './exec-cluster.js';
 
 export interface ClusterFileOptions {
@@ -77,6 +77,14 @@ export interface ClusterFileResult {
   program: { counts: ExecCounts; figures: ProgramFigures } | null;
   /** the engine program used up its restarts here; the events before were written */
   stopped: ExecEngineError | null;
+  /** events written to the output (clustered, invalid and failed ones) */
+  written: number;
+}
+
+/** An event given to the program and not yet written: its outcome (or what the submit threw) and its tower count. */
+interface QueuedEvent {
+  outcome: Promise<ExecOutcome | { thrown: unknown }>;
+  towers: number;
 }
 
 /** Towers with et above the threshold: the count `run` records per event (cluster-batch.ts readEvents). */
@@ -130,6 +138,30 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
   let unreadable: InputError | null = null;
   let failed = 0;
   let stopped: ExecEngineError | null = null;
+  let written = 0;
+  // --engine-in-flight: up to this many events are given to the program before the oldest
+  // answer is written; the output stays in input order
+  const programWindow = options.program?.maxInFlight ?? 1;
+  const queued: QueuedEvent[] = [];
+  const writeOldest = async (): Promise<void> => {
+    const { outcome: settling, towers: eventTowers } = queued.shift()!;
+    const outcome = await settling;
+    if ('thrown' in outcome) throw outcome.thrown;
+    written++;
+    if (!outcome.ok) {
+      // the program's fault, named by onFault; the event keeps its number in the output
+      failed++;
+      const pending = jetsFile ? jetsFile.writeJets({ event: outcome.event, jets: emptyJetSet(), error: outcome.message }) : lines!.write(formatErrorLine(outcome.event, outcome.message) + '\n');
+      if (pending) await pending;
+      return;
+    }
+    const jets = withTowers ? outcome.jets : { ...outcome.jets, towers: new Int32Array(0) };
+    programTimes.add(outcome.serviceNs, outcome.roundTripNs);
+    const pending = jetsFile
+      ? jetsFile.writeJets({ event: outcome.event, jets, clusterTimeNs: outcome.serviceNs, eventTowers })
+      : lines!.write(formatJetsLine(outcome.event, jets, withTowers) + '\n');
+    if (pending) await pending;
+  };
   try {
     try {
       for await (const record of source.records) {
@@ -137,6 +169,8 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
         if (options.onRecord) options.onRecord(record.offset);
         const towers = reader.read(record.bytes);
         if (!towers.ok) {
+          while (queued.length > 0) await writeOldest();
+          written++;
           invalid++;
           const where = towers.event !== undefined ? `event ${towers.event}` : `record ${events - 1}`;
           options.onInvalid(`${source.label}, ${where}, byte ${record.offset}: ${towers.problem}`);
@@ -148,25 +182,17 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
           continue;
         }
         outsideAcceptance += towers.outsideAcceptance;
-        let jets: JetSet;
-        let clusterTimeNs: number;
         if (program) {
-          const outcome = await program.submit(towers.event, towers.towerIndex, towers.towerEt);
-          if (!outcome.ok) {
-            // the program's fault, named by onFault; the event keeps its number in the output
-            failed++;
-            const pending = jetsFile ? jetsFile.writeJets({ event: outcome.event, jets: emptyJetSet(), error: outcome.message }) : lines!.write(formatErrorLine(outcome.event, outcome.message) + '\n');
-            if (pending) await pending;
-            continue;
-          }
-          jets = withTowers ? outcome.jets : { ...outcome.jets, towers: new Int32Array(0) };
-          clusterTimeNs = outcome.serviceNs;
-          programTimes.add(outcome.serviceNs, outcome.roundTripNs);
-        } else {
-          const started = process.hrtime.bigint();
-          jets = clusterer!.cluster(towers.towerIndex, towers.towerEt);
-          clusterTimeNs = Number(process.hrtime.bigint() - started);
+          // the towers are encoded as the event is given; the reader's buffers may then be reused
+          const submitted = program.submit(towers.event, towers.towerIndex, towers.towerEt).catch((thrown: unknown) => ({ thrown }));
+          queued.push({ outcome: submitted, towers: towersEnteringClustering(towers.towerEt, settings.threshold) });
+          while (queued.length >= programWindow) await writeOldest();
+          continue;
         }
+        const started = process.hrtime.bigint();
+        const jets = clusterer!.cluster(towers.towerIndex, towers.towerEt);
+        const clusterTimeNs = Number(process.hrtime.bigint() - started);
+        written++;
         const pending = jetsFile
           ? jetsFile.writeJets({ event: towers.event, jets, clusterTimeNs, eventTowers: towersEnteringClustering(towers.towerEt, settings.threshold) })
           : lines!.write(formatJetsLine(towers.event, jets, withTowers) + '\n');
@@ -177,6 +203,13 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
       else if (!(error instanceof InputError)) throw error;
       else unreadable = error;
     }
+    // the events still with the program, unless it stopped
+    try {
+      while (stopped === null && queued.length > 0) await writeOldest();
+    } catch (error) {
+      if (!(error instanceof ExecEngineError)) throw error;
+      stopped = error;
+    }
     await program?.close();
     await (jetsFile ?? lines)!.close();
   } catch (error) {
@@ -185,5 +218,5 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
     throw error;
   }
   const programRun = program ? { counts: { ...program.counts }, figures: programTimes.figures() } : null;
-  return { engineName, events, invalid, outsideAcceptance, unreadable, failed, program: programRun, stopped };
+  return { engineName, events, invalid, outsideAcceptance, unreadable, failed, program: programRun, stopped, written };
 }

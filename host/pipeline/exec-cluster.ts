@@ -20,6 +20,8 @@ export interface ProgramEngineChoice {
   maxRestarts: number;
   /** one line per fault of the program */
   onFault: (line: string) => void;
+  /** --engine-in-flight: events given to the program ahead of its answers (absent: 1) */
+  maxInFlight?: number;
   /** --program-cpu: same holds this thread and the program on one CPU (exec-cpu.ts); absent: any */
   programCpu?: ProgramCpu;
 }

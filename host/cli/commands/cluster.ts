@@ -26,6 +26,7 @@ import { describeProgramRun, type ProgramEngineChoice } from '../../pipeline/exe
 import { RecordProgress } from '../../measure/input-progress.js';
 import { parseProgramCpu } from '../../pipeline/exec-cpu.js';
 import { PROGRAM_CPU_OPTION } from '../program-cpu-options.js';
+import { RUN_PROGRAM_OPTIONS, parseEngineInFlight } from '../run-program-options.js';
 
 export const spec: CommandSpec = {
   name: 'cluster',
@@ -36,6 +37,7 @@ export const spec: CommandSpec = {
     { name: 'engine', kind: 'string', argument: '<name>', description: "wasm (the engine), reference (the plain TypeScript reference), or exec:'COMMAND ARGS…', an outside program that turns an event stream into a jets stream (proto/README.md) (default: wasm)" },
     { name: 'engine-timeout-ms', kind: 'integer', argument: '<ms>', description: `exec: engines: how long the program may take for one event before it is killed and restarted (default: ${DEFAULT_ENGINE_TIMEOUT_MS})` },
     { name: 'engine-restarts', kind: 'integer', argument: '<n>', description: `exec: engines: how often a failing program is restarted before the command stops (default: ${DEFAULT_ENGINE_RESTARTS})` },
+    RUN_PROGRAM_OPTIONS.find((option) => option.name === 'engine-in-flight')!,
     PROGRAM_CPU_OPTION,
     { name: 'emulate', kind: 'string', argument: '<f32|fixed:LSB|window:W:SEEDET>', description: 'cluster with single precision (f32) or tower energies quantised to LSB GeV (fixed:0.25) instead, or run the level-1 style window finder: W x W towers around local maxima of et >= SEEDET GeV (window = window:9:5)' },
     { name: 'format', kind: 'string', argument: '<jets|jsonl>', description: 'a jets file, or one JSON line per event (default: jets)' },
@@ -72,6 +74,8 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     throw new UsageError('cluster: --engine-timeout-ms and --engine-restarts apply to --engine exec: only');
   }
   if (execCommand === null && args.values['program-cpu'] !== undefined) throw new UsageError('cluster: --program-cpu applies to --engine exec: only');
+  if (execCommand === null && args.values['engine-in-flight'] !== undefined) throw new UsageError('cluster: --engine-in-flight applies to --engine exec: only');
+  const maxInFlight = parseEngineInFlight(args.values['engine-in-flight'] as number | undefined, 'cluster');
   const programCpu = parseProgramCpu(args.values['program-cpu'] as string | undefined, 'cluster');
   const timeoutMs = (args.values['engine-timeout-ms'] as number | undefined) ?? DEFAULT_ENGINE_TIMEOUT_MS;
   const maxRestarts = (args.values['engine-restarts'] as number | undefined) ?? DEFAULT_ENGINE_RESTARTS;
@@ -82,6 +86,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     label: engineText,
     timeoutMs,
     maxRestarts,
+    maxInFlight,
     onFault: (line) => io.stderr.write(`jetlag cluster: ${line}\n`),
     programCpu,
   };
@@ -127,7 +132,7 @@ export async function main(argv: string[], io: CommandIo): Promise<number> {
     io.stderr.write(`jetlag cluster: ${describeProgramRun(engineText, result.engineName, result.program.counts, result.program.figures)}\n`);
   }
   if (result.stopped) {
-    io.stderr.write(`jetlag cluster: ${result.stopped.message}; stopped there, the ${events - 1} events before it were written\n`);
+    io.stderr.write(`jetlag cluster: ${result.stopped.message}; stopped there, the ${result.written} events before it were written\n`);
     return 2;
   }
   if (!quiet) {
