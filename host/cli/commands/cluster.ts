@@ -30,7 +30,7 @@ import { RUN_PROGRAM_OPTIONS, parseEngineInFlight } from '../run-program-options
 
 export const spec: CommandSpec = {
   name: 'cluster',
-  summary: 'Cluster every event of an event file (or CSV tower file) and write the jets.',
+  summary: 'Cluster every event of an event file (or CSV tower file) and write the jets.\nExit code 0 when every event was written, invalid ones and those an engine program failed on as error records (counted on stderr), as with any engine; 2 when the input becomes unreadable or the program used up --engine-restarts.',
   usage: "jetlag cluster <events> [--engine wasm|reference|exec:'COMMAND ARGS…'] [--format jets|jsonl] [--out FILE] [options]",
   positionals: { min: 1, max: 1 },
   options: [
