@@ -53,7 +53,7 @@ const RUN_OPTIONS: OptionSpec[] = [
 
 export const spec: CommandSpec = {
   name: 'run',
-  summary: 'Stream an event file through a pool of workers, cluster every event and report per-event latency.\nExit code 1 also when a batch of events failed in a worker, when no event was clustered, or when more than --max-miss-fraction of the events missed --budget-us; 130 when interrupted (the summary is then marked partial).',
+  summary: 'Stream an event file through a pool of workers, cluster every event and report per-event latency.\nExit code 1 also when a batch of events failed in a worker, when no event was clustered, or when more than --max-miss-fraction of the events missed --budget-us; 2 when an engine program used up --engine-restarts and 130 when interrupted (the summary is then marked partial, what came before kept).',
   usage: 'jetlag run <events> [options]',
   positionals: { min: 1, max: 1 },
   options: [
