@@ -4,10 +4,19 @@
 
 import type { ArrivalMode } from './arrivals.js';
 import { runEvents } from './run.js';
+import { engineStoppedOf } from './run-summary.js';
+import { ExecEngineError } from './exec-error.js';
 import { defaultWorkers, type CheckOption, type RunOptions } from './run-plan.js';
 import type { FindRateResult, FindRateTrial, RunSummary, ScanWorkersPoint } from '../measure/summary.js';
 
 const NO_CHECK: CheckOption = { mode: 'none', fraction: 0, seed: 1 };
+
+/** A study's run whose engine program used up its restarts is no point of the study: the study stops. */
+function studyRun(summary: RunSummary): RunSummary {
+  const stopped = engineStoppedOf(summary);
+  if (stopped !== null) throw new ExecEngineError(stopped);
+  return summary;
+}
 
 /**
  * --find-rate: the highest open-loop rate whose end-to-end p99 stays within the budget and
@@ -23,7 +32,7 @@ export async function findRate(options: RunOptions, closedLoop: RunSummary, budg
   const result = (rateHz: number | null, atCeiling: boolean): FindRateResult => ({ budgetUs, workers, rateHz, atCeiling, trials: results });
   const runAt = async (rateHz: number): Promise<FindRateTrial> => {
     const arrival: ArrivalMode = poisson ? { kind: 'poisson', rateHz, seed: 1 } : { kind: 'fixed', rateHz };
-    const summary = await runEvents({ ...options, workers, arrival, check: NO_CHECK, out: null, repro: null, progress: null, onProblem: undefined });
+    const summary = studyRun(await runEvents({ ...options, workers, arrival, check: NO_CHECK, out: null, repro: null, progress: null, onProblem: undefined }));
     const p99 = summary.latency.endToEnd.p99_us;
     const saturated = summary.saturation?.saturated ?? false;
     return { rateHz, p99_us: p99, saturated, withinBudget: p99 !== null && p99 <= budgetUs && !saturated, events: summary.events.read };
@@ -52,7 +61,7 @@ export async function findRate(options: RunOptions, closedLoop: RunSummary, budg
 export async function scanWorkers(options: RunOptions, cores: number) {
   const points: ScanWorkersPoint[] = [];
   for (let workers = 1; workers <= cores; workers++) {
-    const summary = await runEvents({ ...options, workers, arrival: { kind: 'closed' }, check: NO_CHECK, out: null, repro: null, progress: null, onProblem: undefined });
+    const summary = studyRun(await runEvents({ ...options, workers, arrival: { kind: 'closed' }, check: NO_CHECK, out: null, repro: null, progress: null, onProblem: undefined }));
     const eventsPerSecond = summary.throughput.eventsPerSecond;
     points.push({
       workers,
