@@ -61,6 +61,6 @@ describe('merge of shards that did not run alike', () => {
     // a UsageError: the command line prints its one line and exits 2 (host/cli/cli.ts)
     const refusal = mergeMain([a, b, '-q'], fakeIo().io);
     await expect(refusal).rejects.toThrow(UsageError);
-    await expect(refusal).rejects.toThrow(new RegExp(`^merge: ${b}: ran 3 workers, ${a} 2: shards of one job must run the same number of workers$`));
+    await expect(refusal).rejects.toThrow(new RegExp(`^merge: ${b}: ran 3 workers, ${a} 2: shards of one job must run the same number of workers \\(give each the same --workers\\)$`));
   });
 });

@@ -134,7 +134,7 @@ export function mergeSummaries(summaries: readonly { name: string; summary: RunS
     const workers = summary.configuration.workers;
     const firstWorkers = first.summary.configuration.workers;
     if (workers !== firstWorkers) {
-      throw new Error(`${name}: ran ${workers} worker${workers === 1 ? '' : 's'}, ${first.name} ${firstWorkers}: shards of one job must run the same number of workers`);
+      throw new Error(`${name}: ran ${workers} worker${workers === 1 ? '' : 's'}, ${first.name} ${firstWorkers}: shards of one job must run the same number of workers (give each the same --workers)`);
     }
     const own = summary.configuration.input?.records ?? null;
     if (own !== null && records !== null && own !== records) {
