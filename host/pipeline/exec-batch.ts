@@ -138,6 +138,9 @@ async function programPass(w: ExecWorker, result: BatchResult, work: ReturnType<
   const jetChunks: Uint8Array[] = [];
   // one in flight: submitted one at a time below, as each answer is taken (nothing written ahead)
   const ahead = (w.exec.maxInFlight ?? 1) > 1 ? submitAll(w, work) : null;
+  // every answer in before any check or encode: those run without yielding, so an answer still
+  // out would be read (and its round trip stamped) only after them, past its watchdog's deadline
+  if (ahead !== null) await Promise.all(ahead);
   let nextInvalid = 0;
   let v = 0;
   for (let k = 0; k < work.task.count; k++) {
