@@ -77,7 +77,7 @@ export interface ClusterFileResult {
   program: { counts: ExecCounts; figures: ProgramFigures } | null;
   /** the engine program used up its restarts here; the events before were written */
   stopped: ExecEngineError | null;
-  /** events written to the output (clustered, invalid and failed ones) */
+  /** events written to the output (clustered, failed, and invalid ones with an event number) */
   written: number;
 }
 
@@ -170,12 +170,13 @@ export async function clusterFile(options: ClusterFileOptions): Promise<ClusterF
         const towers = reader.read(record.bytes);
         if (!towers.ok) {
           while (queued.length > 0) await writeOldest();
-          written++;
           invalid++;
           const where = towers.event !== undefined ? `event ${towers.event}` : `record ${events - 1}`;
           options.onInvalid(`${source.label}, ${where}, byte ${record.offset}: ${towers.problem}`);
           const event = towers.event ?? -1;
+          // a record with no event number has nothing to write under, and is not counted as written
           if (event >= 0) {
+            written++;
             const pending = jetsFile ? jetsFile.writeJets({ event, jets: emptyJetSet(), error: towers.problem }) : lines!.write(formatErrorLine(event, towers.problem) + '\n');
             if (pending) await pending;
           }
