@@ -4,25 +4,12 @@ import { describe, expect, it } from 'vitest';
 import { judgeMachineLoad, shardBusyReasons } from '../host/measure/machine-load.js';
 import { formatReport } from '../host/measure/report.js';
 import { RunTally } from '../host/measure/run-tally.js';
-import { describeMachine, renderSummary, type RunConfiguration, type RunSummary } from '../host/measure/summary.js';
+import { describeMachine, renderSummary, type RunSummary } from '../host/measure/summary.js';
 import { mergeSummaries } from '../host/measure/summary-merge.js';
+import { testRunConfiguration } from './support/run-configuration.js';
 
 function shard(index: number, loadAverageStart: number, cpuSeconds: number): RunSummary {
-  const configuration: RunConfiguration = {
-    file: 'events.jl',
-    input: { label: 'invented test events', records: null },
-    engine: 'wasm',
-    grid: { etaMin: -2.5, etaMax: 2.5, etaBins: 50, phiBins: 64 },
-    settings: { p: -1, radius: 0.4, ptMin: 5, threshold: 0.5, recombination: 'e' },
-    workers: 2,
-    batch: 8,
-    arrival: { mode: 'closed', rateHz: null, seed: null },
-    budgetUs: null,
-    check: { mode: 'none', fraction: 0, seed: 1 },
-    shard: { index, count: 3 },
-    maxEvents: null,
-    out: null,
-  };
+  const configuration = testRunConfiguration({ workers: 2, shard: { index, count: 3 } });
   const tally = new RunTally();
   tally.read = tally.ok = 1;
   tally.recordService(20, 1000);

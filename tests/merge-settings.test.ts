@@ -11,24 +11,10 @@ import { describeMachine, renderSummary, type RunConfiguration, type RunSummary 
 import { mergeSummaries } from '../host/measure/summary-merge.js';
 import { fakeIo } from './support/command-io.js';
 import { tempDirForTest } from './support/temp-dir.js';
+import { testRunConfiguration } from './support/run-configuration.js';
 
 function shard(index: number, extra: Partial<RunConfiguration>): RunSummary {
-  const configuration: RunConfiguration = {
-    file: 'events.jl',
-    input: { label: 'invented test events', records: null },
-    engine: 'wasm',
-    grid: { etaMin: -2.5, etaMax: 2.5, etaBins: 50, phiBins: 64 },
-    settings: { p: -1, radius: 0.4, ptMin: 5, threshold: 0.5, recombination: 'e' },
-    workers: 2,
-    batch: 8,
-    arrival: { mode: 'closed', rateHz: null, seed: null },
-    budgetUs: null,
-    check: { mode: 'none', fraction: 0, seed: 1 },
-    shard: { index, count: 2 },
-    maxEvents: null,
-    out: null,
-    ...extra,
-  };
+  const configuration = testRunConfiguration({ workers: 2, shard: { index, count: 2 }, ...extra });
   const tally = new RunTally();
   tally.read = tally.ok = 1;
   tally.recordService(20, 1000);

@@ -5,31 +5,13 @@ import { describe, expect, it } from 'vitest';
 import { formatReport } from '../host/measure/report.js';
 import { RunTally } from '../host/measure/run-tally.js';
 import { describeMachine, renderSummary, type RunConfiguration } from '../host/measure/summary.js';
-
-function configuration(extra: Partial<RunConfiguration>): RunConfiguration {
-  return {
-    file: 'events.jl',
-    input: { label: 'invented test events', records: null },
-    engine: 'wasm',
-    grid: { etaMin: -2.5, etaMax: 2.5, etaBins: 50, phiBins: 64 },
-    settings: { p: -1, radius: 0.4, ptMin: 5, threshold: 0.5, recombination: 'e' },
-    workers: 1,
-    batch: 8,
-    arrival: { mode: 'closed', rateHz: null, seed: null },
-    budgetUs: null,
-    check: { mode: 'none', fraction: 0, seed: 1 },
-    shard: { index: 0, count: 1 },
-    maxEvents: null,
-    out: null,
-    ...extra,
-  };
-}
+import { testRunConfiguration } from './support/run-configuration.js';
 
 function headerOf(extra: Partial<RunConfiguration>): string {
   const tally = new RunTally();
   tally.read = tally.ok = 1;
   tally.recordService(20, 1000);
-  const summary = renderSummary(tally, { configuration: configuration(extra), shards: [{ index: 0, count: 1 }], machine: describeMachine(), partial: false, partialReason: null, wallSeconds: 1 });
+  const summary = renderSummary(tally, { configuration: testRunConfiguration(extra), shards: [{ index: 0, count: 1 }], machine: describeMachine(), partial: false, partialReason: null, wallSeconds: 1 });
   return formatReport(summary).split('\n')[0];
 }
 

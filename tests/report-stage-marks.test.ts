@@ -5,25 +5,12 @@
 import { describe, expect, it } from 'vitest';
 import { RunTally } from '../host/measure/run-tally.js';
 import { mergedSaturation, runSaturation } from '../host/measure/saturation-figures.js';
-import { describeMachine, renderSummary, type RunConfiguration } from '../host/measure/summary.js';
+import { describeMachine, renderSummary } from '../host/measure/summary.js';
 import { runView } from '../host/report/report-data.js';
 import { conditionLines, latencyTable } from '../host/report/run-tables.js';
+import { testRunConfiguration } from './support/run-configuration.js';
 
-const CONFIGURATION: RunConfiguration = {
-  file: 'events.jl',
-  input: { label: 'invented test events', records: null },
-  engine: 'wasm',
-  grid: { etaMin: -2.5, etaMax: 2.5, etaBins: 50, phiBins: 64 },
-  settings: { p: -1, radius: 0.4, ptMin: 5, threshold: 0.5, recombination: 'e' },
-  workers: 1,
-  batch: 8,
-  arrival: { mode: 'fixed', rateHz: 100, seed: null },
-  budgetUs: null,
-  check: { mode: 'none', fraction: 0, seed: 1 },
-  shard: { index: 0, count: 1 },
-  maxEvents: null,
-  out: null,
-};
+const CONFIGURATION = testRunConfiguration({ arrival: { mode: 'fixed', rateHz: 100, seed: null } });
 
 /** a run of `events` events, each 10 µs in every stage */
 function viewOf(events: number, rates?: [number, number, boolean], merged?: RunTally['saturation']) {

@@ -4,24 +4,19 @@ import { MULTIPLICITY_EDGES, MultiplicityBins } from '../host/measure/multiplici
 import { RunTally } from '../host/measure/run-tally.js';
 import { mergeSummaries } from '../host/measure/summary-merge.js';
 import { formatReport } from '../host/measure/report.js';
+import { testRunConfiguration } from './support/run-configuration.js';
 
 
 function configuration(shardIndex: number, shardCount: number): RunConfiguration {
-  return {
-    file: 'events.jl',
-    input: { label: 'invented test events', records: null },
+  return testRunConfiguration({
     engine: 'reference',
-    grid: { etaMin: -2.5, etaMax: 2.5, etaBins: 50, phiBins: 64 },
     settings: { p: -1, radius: 0.4, ptMin: 0, threshold: 0, recombination: 'e' },
     workers: 2,
     batch: 16,
-    arrival: { mode: 'closed', rateHz: null, seed: null },
     budgetUs: 500,
     check: { mode: 'fraction', fraction: 0.1, seed: 1 },
     shard: { index: shardIndex, count: shardCount },
-    maxEvents: null,
-    out: null,
-  };
+  });
 }
 
 /** a tally of synthetic events: event k has 10 + k % 700 towers and takes a time that grows with them */
