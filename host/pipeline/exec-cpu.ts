@@ -5,9 +5,9 @@
 // starts its program; the program, and every restart of it, inherits the thread's mask.
 //
 //   parseProgramCpu(text, commandName): ProgramCpu     UsageError on anything but same or any
-//   programSeatsBuffer(): SharedArrayBuffer            one per run: the workers' seat counter
-//   takeProgramSeat(seats): number                     this worker's index, 0, 1, … in the
-//                                                      order the workers start their programs
+//   programSeatsBuffer(): SharedArrayBuffer            one per run: the workers' seat table
+//   takeProgramSeat(seats): number                     this worker's index: the lowest seat
+//                                                      free, or whose thread is gone
 //   holdThreadOnCpu(workerIndex, label): CpuHold       the calling thread on one CPU; one line
 //                                                      (ExecEngineError) when that fails
 //
@@ -16,7 +16,7 @@
 // the allowed CPUs need not start at 0. Linux only, as the pipes are (exec-fifo.ts).
 
 import { execFileSync } from 'node:child_process';
-import { readFileSync, readlinkSync } from 'node:fs';
+import { existsSync, readFileSync, readlinkSync } from 'node:fs';
 import { UsageError } from '../errors.js';
 import { ExecEngineError } from './exec-error.js';
 
@@ -31,17 +31,42 @@ export function parseProgramCpu(text: string | undefined, commandName: string): 
   throw new UsageError(`${commandName}: --program-cpu must be ${PROGRAM_CPU_CHOICES.join(' or ')}, got ${JSON.stringify(text)}`);
 }
 
+/** seats in a run's table; a worker beyond them (never with --workers up to the table) counts on past it */
+export const PROGRAM_SEATS = 1024;
+/** Int32 layout: [0, PROGRAM_SEATS) each seat's holder, a Linux thread id (0: free); then the count of seats taken past the table */
+const OVERFLOW_WORD = PROGRAM_SEATS;
+
 export function programSeatsBuffer(): SharedArrayBuffer {
-  return new SharedArrayBuffer(Int32Array.BYTES_PER_ELEMENT);
+  return new SharedArrayBuffer((PROGRAM_SEATS + 1) * Int32Array.BYTES_PER_ELEMENT);
+}
+
+/** the calling thread's Linux thread id; 0 when /proc cannot say (holdThreadOnCpu then fails with its own line) */
+function ownThreadId(): number {
+  try {
+    return Number(readlinkSync('/proc/thread-self').split('/').pop());
+  } catch {
+    return 0;
+  }
 }
 
 /**
- * A piscina batch does not say which worker runs it, so each worker takes the next seat when
- * it starts its program; the open loop's ServeTask.workerIndex comes after the warm-up has
- * already started the program, too late to hold it.
+ * A piscina batch does not say which worker runs it, so each worker takes a seat when it
+ * starts its program; the open loop's ServeTask.workerIndex comes after the warm-up has
+ * already started the program, too late to hold it. A seat is the lowest one free or held by a
+ * thread that is gone (/proc/self/task has no entry for it), so a thread that replaces a dead
+ * worker gets the dead one's CPU rather than doubling up on a live worker's; a thread that
+ * asks again keeps its seat.
  */
-export function takeProgramSeat(seats: SharedArrayBuffer): number {
-  return Atomics.add(new Int32Array(seats), 0, 1);
+export function takeProgramSeat(seats: SharedArrayBuffer, threadId = ownThreadId()): number {
+  const holders = new Int32Array(seats);
+  for (let seat = 0; seat < PROGRAM_SEATS; seat++) if (threadId !== 0 && Atomics.load(holders, seat) === threadId) return seat;
+  for (let seat = 0; seat < PROGRAM_SEATS; seat++) {
+    const holder = Atomics.load(holders, seat);
+    if (holder !== 0 && existsSync(`/proc/self/task/${holder}`)) continue;
+    // another thread may take the same seat at the same moment: only one exchange succeeds
+    if (Atomics.compareExchange(holders, seat, holder, threadId) === holder) return seat;
+  }
+  return PROGRAM_SEATS + Atomics.add(holders, OVERFLOW_WORD, 1);
 }
 
 export interface CpuHold {
