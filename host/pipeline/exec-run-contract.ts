@@ -22,7 +22,7 @@ export interface ExecWorkerConfig {
   maxInFlight?: number;
   /** --program-cpu: same holds each worker thread and its program on one CPU (exec-cpu.ts); absent: any */
   programCpu?: ProgramCpu;
-  /** the run's seat counter that numbers the workers for --program-cpu same (exec-cpu.ts) */
+  /** the run's seat table that numbers the workers for --program-cpu same (exec-cpu.ts) */
   programSeats?: SharedArrayBuffer;
 }
 
