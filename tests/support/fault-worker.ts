@@ -21,6 +21,9 @@
 //   JETLAG_TEST_STUB_SCALING=NS:EXPONENT a stub clusterer whose cost grows with the event's
 //                                 towers: it spins NS·N^EXPONENT ns, N the towers that enter
 //                                 clustering (et above the threshold, spec section 1)
+//   JETLAG_TEST_STUB_NOMINAL=1    with JETLAG_TEST_STUB_SCALING: the stub does not spin, and each
+//                                 event's clustering time is its nominal cost c·N^EXPONENT, so a
+//                                 busy machine cannot bend the times
 //   JETLAG_TEST_STUB_STALL=E:MS   event number E sleeps MS ms inside its timed clustering, once
 //                                 per worker thread (a stalled worker)
 //   JETLAG_TEST_SERVE_DELAY_MS=MS an open-loop serve task sleeps MS ms before it takes its seat
@@ -89,7 +92,11 @@ function hooksFromEnvironment(): WorkerHooks {
   const stubScaling = process.env.JETLAG_TEST_STUB_SCALING;
   if (stubScaling !== undefined) {
     const [coefficientNs, exponent] = stubScaling.split(':').map(Number);
-    hooks.clusterer = () => scalingClusterer(coefficientNs, exponent);
+    const nominal = process.env.JETLAG_TEST_STUB_NOMINAL === '1';
+    hooks.clusterer = () => scalingClusterer(coefficientNs, exponent, nominal);
+    // the cost of the N the run tallies (towers that entered clustering), which is the N the
+    // stub counts; set once per event served, so the pool's warm-up calls leave no trace
+    if (nominal) hooks.stageTimes = (stageNs, at, towersClustered) => { stageNs[at + STAGE_CLUSTER] = coefficientNs * towersClustered ** exponent; };
   }
   const stall = process.env.JETLAG_TEST_STUB_STALL;
   if (stall !== undefined) {
@@ -141,8 +148,11 @@ function sleepingClusterer(us: number): Clusterer {
   };
 }
 
-/** A clusterer whose cost is c·N^exponent: it spins that many ns on the clock, from its call. */
-function scalingClusterer(coefficientNs: number, exponent: number): Clusterer {
+/**
+ * A clusterer whose cost is c·N^exponent: it spins that many ns on the clock, from its call;
+ * `nominal`: it spins not at all (the worker's stage-time hook reports the cost instead).
+ */
+function scalingClusterer(coefficientNs: number, exponent: number, nominal = false): Clusterer {
   const settings = { ...DEFAULT_SETTINGS };
   return {
     name: `stub-${coefficientNs}ns-N^${exponent}`,
@@ -152,6 +162,7 @@ function scalingClusterer(coefficientNs: number, exponent: number): Clusterer {
       // the N the run tallies: towers above the threshold and not vanishingly small
       let towers = 0;
       for (let t = 0; t < towerEt.length; t++) if (towerEt[t] > settings.threshold && towerEt[t] >= MIN_ET) towers++;
+      if (nominal) return emptyJetSet();
       const until = start + (coefficientNs * towers ** exponent) / 1e6;
       while (performance.now() < until) { /* the stub's cost */ }
       return emptyJetSet();
