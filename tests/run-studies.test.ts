@@ -4,6 +4,7 @@ import { join } from 'node:path';
 import { runEvents } from '../host/pipeline/run.js';
 import { defaultWorkers, type RunOptions } from '../host/pipeline/run-plan.js';
 import { findRate, scanWorkers } from '../host/pipeline/studies.js';
+import { formatReport } from '../host/measure/report.js';
 import { toyEvents, writeEventFile } from './support/run-files.js';
 import { tempDirForSuite } from './support/temp-dir.js';
 
@@ -41,11 +42,16 @@ describe('the rate search\'s workers and ceiling', () => {
 
   it('when the highest rate tried passes, gives it as a lower bound at the search\'s ceiling', async () => {
     const closed = await runEvents(options);
-    // a ceiling of 1000 Hz, far below what one worker clusters these small events at
-    const found = await findRate({ ...options, maxEvents: 10 }, { ...closed, throughput: { ...closed.throughput, eventsPerSecond: 1000 } }, 1e9, false, 5);
+    // Trials of one event each: the open loop judges a sustained rate only from two returns or
+    // more, so a trial of one has none to fall short and no stall of the machine can make it
+    // count as saturated (a 10-event trial at 1000 Hz lasts 10 ms, and a few ms of stall did);
+    // the budget, 1e9 µs, no run misses. So the ceiling's trial passes, and what is checked is
+    // the search's answer to that. That a saturated trial fails is the first test's check.
+    const found = await findRate({ ...options, maxEvents: 1 }, { ...closed, throughput: { ...closed.throughput, eventsPerSecond: 1000 } }, 1e9, false, 5);
     expect(found.workers).toBe(1);
-    expect(found.trials.map((t) => t.rateHz)).toEqual([20, 1000]);
+    expect(found.trials.map((t) => [t.rateHz, t.events, t.withinBudget])).toEqual([[20, 1, true], [1000, 1, true]]);
     expect(found).toMatchObject({ rateHz: 1000, atCeiling: true });
+    expect(formatReport({ ...closed, findRate: found })).toContain('find-rate   p99 within 1000000000 µs up to at least 1,000 Hz (the search\'s ceiling');
   });
 
 });
