@@ -29,7 +29,7 @@ import { evIndex, evEt, jetY, jetPhi, jetInto, jetNn, jetNnDR2, jetSlot, slotJet
   liveY, livePhi, jetPlace, pointedHead, pointedNext, pointedPrev, getF64, setF64, getI32,
   setI32 } from './layout';
 import { BEAM } from './settings';
-import { loadTower, mergeJets, deltaR2 } from './kinematics';
+import { loadTower, recordMerge, deltaR2 } from './kinematics';
 import { startTree, buildTree, updateTree, treeWinner, isBeamCandidate,
   setCandidate as setSlotCandidate, setEmptyCandidate } from './tournament';
 
@@ -110,25 +110,17 @@ function searchNeighbour(i: i32): void {
   const jets = liveJet;
   let bestJet = BEAM;
   let bestDR2 = INFINITY_BITS;
-  for (let q = p + 1; q < count; q++) {
-    const yq = getF64(ys, q);
-    const dy = y - yq;
-    if (dy * dy > reinterpret<f64>(bestDR2)) break;
-    const j = getI32(jets, q);
-    const dR2 = reinterpret<u64>(deltaR2(y, phi, yq, getF64(phis, q)));
-    const better = (dR2 < bestDR2) | ((dR2 == bestDR2) & (j < bestJet));
-    bestJet = select<i32>(j, bestJet, better);
-    bestDR2 = select<u64>(dR2, bestDR2, better);
-  }
-  for (let q = p - 1; q >= 0; q--) {
-    const yq = getF64(ys, q);
-    const dy = y - yq;
-    if (dy * dy > reinterpret<f64>(bestDR2)) break;
-    const j = getI32(jets, q);
-    const dR2 = reinterpret<u64>(deltaR2(y, phi, yq, getF64(phis, q)));
-    const better = (dR2 < bestDR2) | ((dR2 == bestDR2) & (j < bestJet));
-    bestJet = select<i32>(j, bestJet, better);
-    bestDR2 = select<u64>(dR2, bestDR2, better);
+  for (let direction = 1; direction >= -1; direction -= 2) {
+    for (let q = p + direction; q >= 0 && q < count; q += direction) {
+      const yq = getF64(ys, q);
+      const dy = y - yq;
+      if (dy * dy > reinterpret<f64>(bestDR2)) break;
+      const j = getI32(jets, q);
+      const dR2 = reinterpret<u64>(deltaR2(y, phi, yq, getF64(phis, q)));
+      const better = (dR2 < bestDR2) | ((dR2 == bestDR2) & (j < bestJet));
+      bestJet = select<i32>(j, bestJet, better);
+      bestDR2 = select<u64>(dR2, bestDR2, better);
+    }
   }
   setNeighbour(i, bestJet, bestDR2);
 }
@@ -194,10 +186,7 @@ function merge(i: i32): void {
   const a = min<i32>(i, j);
   const b = max<i32>(i, j);
   const k = pairJetCount++;
-  mergeJets(a, b, k);
-  setI32(jetInto, a, k);
-  setI32(jetInto, b, k);
-  setI32(jetInto, k, -1);
+  recordMerge(a, b, k);
   setI32(jetNn, k, -1);
   setI32(pointedHead, k, -1);
   // the new jet takes the smaller of its parents' slots; the other stays empty

@@ -6,7 +6,7 @@
 //   jetPx jetPy jetPz jetE jetKt2 jetY jetPhi f64
 
 import { etaCentre, sinhEta, coshEta, phiCentre, cosPhi, sinPhi, phiBins,
-  jetPx, jetPy, jetPz, jetE, jetKt2, jetY, jetPhi, getF64, setF64 } from './layout';
+  jetPx, jetPy, jetPz, jetE, jetKt2, jetY, jetPhi, jetInto, getF64, setF64, setI32 } from './layout';
 import { pMode, pValue, reach2, PI, TWO_PI, winnerTakeAll } from './settings';
 
 // weights within these bounds keep (w * dR2) * invR2 monotone and away from underflow and
@@ -82,4 +82,12 @@ export function mergeJets(a: i32, b: i32, k: i32): void {
   if (phi < 0) phi = phi + TWO_PI;
   if (phi >= TWO_PI) phi = phi - TWO_PI;
   setF64(jetPhi, k, phi);
+}
+
+/** Jets i and j (either order) make jet k: its four-vector, and the history in jetInto (k alive). */
+export function recordMerge(i: i32, j: i32, k: i32): void {
+  mergeJets(min<i32>(i, j), max<i32>(i, j), k);
+  setI32(jetInto, i, k);
+  setI32(jetInto, j, k);
+  setI32(jetInto, k, -1);
 }

@@ -10,7 +10,7 @@
 import { evIndex, evEt, cellJet, cellNn, cellY, cellPhi, cellW, cellNnKey, jetInto, jetY,
   jetPhi, finalJet, redo, cellSlot, slotCell, getF64, getI32, setI32 } from './layout';
 import { BEAM, invR2 } from './settings';
-import { loadTower, mergeJets, deltaR2 } from './kinematics';
+import { loadTower, recordMerge, deltaR2 } from './kinematics';
 import { resetDrift, placeJet, clearCell, unlink, detachPointers, freeCellNear, assignSlot, setNeighbour,
   centreOffsetY, centreOffsetPhi } from './cells';
 import { findNeighbour, setSeedCell } from './search';
@@ -56,13 +56,8 @@ function finish(c: i32): void {
 function merge(ca: i32, cb: i32): void {
   const i = getI32(cellJet, ca);
   const j = getI32(cellJet, cb);
-  const a = min<i32>(i, j);
-  const b = max<i32>(i, j);
   const k = jetCount++;
-  mergeJets(a, b, k);
-  setI32(jetInto, i, k);
-  setI32(jetInto, j, k);
-  setI32(jetInto, k, -1);
+  recordMerge(i, j, k);
 
   let count = detachPointers(ca, redo, 0);
   count = detachPointers(cb, redo, count);
