@@ -27,7 +27,7 @@ export const DEFAULT_PROGRAM_CPU: ProgramCpu = 'any';
 
 export function parseProgramCpu(text: string | undefined, commandName: string): ProgramCpu {
   if (text === undefined) return DEFAULT_PROGRAM_CPU;
-  if (text === 'same' || text === 'any') return text;
+  if (PROGRAM_CPU_CHOICES.includes(text as ProgramCpu)) return text as ProgramCpu;
   throw new UsageError(`${commandName}: --program-cpu must be ${PROGRAM_CPU_CHOICES.join(' or ')}, got ${JSON.stringify(text)}`);
 }
 
@@ -40,7 +40,7 @@ export function programSeatsBuffer(): SharedArrayBuffer {
   return new SharedArrayBuffer((PROGRAM_SEATS + 1) * Int32Array.BYTES_PER_ELEMENT);
 }
 
-/** the calling thread's Linux thread id; 0 when /proc cannot say (holdThreadOnCpu then fails with its own line) */
+/** the calling thread's Linux thread id (/proc/thread-self -> "PID/task/TID"); 0 when /proc cannot say */
 function ownThreadId(): number {
   try {
     return Number(readlinkSync('/proc/thread-self').split('/').pop());
@@ -99,11 +99,10 @@ function runTaskset(cpuList: string, threadId: string, label: string, what: stri
 }
 
 export function holdThreadOnCpu(workerIndex: number, label: string): CpuHold {
-  let threadId: string;
+  const threadId = String(ownThreadId());
   let allowedBefore: string;
   try {
-    // /proc/thread-self -> "PID/task/TID": the calling thread, not the process
-    threadId = readlinkSync('/proc/thread-self').split('/').pop()!;
+    if (threadId === '0') throw new Error('no /proc/thread-self');
     const status = readFileSync('/proc/thread-self/status', 'utf8');
     allowedBefore = /^Cpus_allowed_list:\s*(\S+)/m.exec(status)![1];
   } catch (error) {
