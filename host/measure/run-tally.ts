@@ -47,9 +47,6 @@ export interface CheckedDifference extends JetDifference {
   event: number;
 }
 
-// the open loop's rates and the saturation verdict live in saturation-figures.ts
-export { SATURATION_SHORTFALL, type Saturation } from './saturation-figures.js';
-
 /**
  * With --cpu-wait-per-event, an event whose threads spent longer than this on a run queue counts
  * as delayed. Not a line between the harness and the machine: on a virtual machine a thread
